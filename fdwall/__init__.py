@@ -1,0 +1,1 @@
+"""fdwall: 1-D transient finite-volume model of the walls of heated equipment."""

@@ -1,0 +1,512 @@
+"""The case model: validated, immutable objects in SI units.
+
+Data flows one way: a case file (or Python code) builds these objects; :mod:`fdwall.system`
+turns them into plain arrays; the compiled kernels integrate the arrays; :class:`fdwall.result.Result`
+holds what comes out.  Nothing here knows about numba, TOML or files.
+
+Units: every length [m], area [m2], temperature [K], time [s], power [W], heat flux [W/m2],
+film coefficient [W/m2/K], contact resistance [m2.K/W].
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Optional, Union
+
+import numpy as np
+
+from .schedule import Schedule
+
+__all__ = [
+    "Layer", "Wall", "Face", "Chamber", "Heater", "Control", "EnclosureWall", "Event",
+    "RunSettings", "Case", "ModelError",
+]
+
+
+class ModelError(ValueError):
+    """An inconsistent or physically impossible model input."""
+
+
+def _pos(name, x, allow_zero=False):
+    if x is None or not np.isfinite(x) or (x < 0 if allow_zero else x <= 0):
+        need = "zero or positive" if allow_zero else "positive"
+        raise ModelError(f"{name} must be a finite {need} number, got {x!r}")
+
+
+def _sched(name, x, kelvin=False):
+    if x is None:
+        return None
+    s = Schedule.coerce(x)
+    if kelvin and min(s.values) <= 0.0:
+        raise ModelError(f"{name}: temperature {min(s.values):g} K is at or below absolute zero")
+    return s
+
+
+@dataclass(frozen=True)
+class Layer:
+    """One homogeneous layer of a wall.
+
+    Parameters
+    ----------
+    material : fdwall.materials.Material
+        Its material (conductivity k(T) [W/m/K], specific heat cp(T) [J/kg/K], density [kg/m3]).
+    thickness : float
+        Layer thickness [m] (radial thickness for cylinders and spheres).
+    cells : int, optional
+        Number of finite-volume cells across the layer; default chosen by :mod:`fdwall.mesh`.
+    name : str
+        Label used in reports (defaults to the material name).
+    """
+
+    material: object
+    thickness: float
+    cells: Optional[int] = None
+    name: str = ""
+
+    def __post_init__(self):
+        _pos(f"thickness of layer '{self.label}'", self.thickness)
+        if self.cells is not None and (int(self.cells) != self.cells or self.cells < 1):
+            raise ModelError(f"cells of layer '{self.label}' must be a whole number >= 1")
+
+    @property
+    def label(self) -> str:
+        """Layer label for reports."""
+        return self.name or getattr(self.material, "name", "layer")
+
+
+@dataclass(frozen=True)
+class Wall:
+    """A multilayer wall, listed from the inner (hot) face to the outer face.
+
+    Parameters
+    ----------
+    layers : tuple of Layer
+        Layers from inner to outer face.
+    geometry : {'slab', 'cylinder', 'sphere'}
+        Flat slab, hollow cylinder or hollow sphere.
+    area : float
+        Slab area [m2] (default 1 m2: results per unit area).
+    inner_radius : float, optional
+        Inner radius [m] for a cylinder or sphere.
+    length : float
+        Cylinder length [m] (default 1 m: results per metre of pipe).
+    contact : tuple of float
+        Contact (interface) resistance between consecutive layers [m2.K/W], one per interface;
+        0 means perfect contact.
+    refine : float
+        Multiplies every layer's default cell count (mesh studies) [-].
+    name : str
+        Label of the wall.
+    """
+
+    layers: tuple
+    geometry: str = "slab"
+    area: float = 1.0
+    inner_radius: Optional[float] = None
+    length: float = 1.0
+    contact: tuple = ()
+    refine: float = 1.0
+    name: str = "wall"
+
+    def __post_init__(self):
+        object.__setattr__(self, "layers", tuple(self.layers))
+        if not self.layers:
+            raise ModelError(f"wall '{self.name}' has no layers")
+        if self.geometry not in ("slab", "cylinder", "sphere"):
+            raise ModelError(f"wall '{self.name}': geometry must be slab, cylinder or sphere, "
+                             f"got {self.geometry!r}")
+        if self.geometry == "slab":
+            _pos(f"area of wall '{self.name}'", self.area)
+        else:
+            if self.inner_radius is None:
+                raise ModelError(f"wall '{self.name}': a {self.geometry} needs an inner radius")
+            _pos(f"inner radius of wall '{self.name}'", self.inner_radius)
+            if self.geometry == "cylinder":
+                _pos(f"length of wall '{self.name}'", self.length)
+        c = tuple(float(x) for x in self.contact) if self.contact else (0.0,) * (len(self.layers) - 1)
+        if len(c) != len(self.layers) - 1:
+            raise ModelError(f"wall '{self.name}': {len(self.layers) - 1} interface(s) need that many "
+                             f"contact resistances, got {len(c)}")
+        for x in c:
+            _pos(f"contact resistance in wall '{self.name}'", x, allow_zero=True)
+        object.__setattr__(self, "contact", c)
+        _pos(f"refine of wall '{self.name}'", self.refine)
+
+    @property
+    def thickness(self) -> float:
+        """Total thickness [m]."""
+        return float(sum(l.thickness for l in self.layers))
+
+    def radii(self):
+        """Radius (or depth for a slab) of each face and interface, inner first [m]."""
+        x0 = 0.0 if self.geometry == "slab" else float(self.inner_radius)
+        return x0 + np.concatenate([[0.0], np.cumsum([l.thickness for l in self.layers])])
+
+    def area_at(self, x) -> float:
+        """Heat-flow area at radius/depth ``x`` [m2]."""
+        if self.geometry == "slab":
+            return float(self.area)
+        if self.geometry == "cylinder":
+            return float(2 * np.pi * x * self.length)
+        return float(4 * np.pi * x * x)
+
+    @property
+    def inner_area(self) -> float:
+        """Area of the inner face [m2]."""
+        return self.area_at(self.radii()[0])
+
+    @property
+    def outer_area(self) -> float:
+        """Area of the outer face [m2]."""
+        return self.area_at(self.radii()[-1])
+
+    def with_layer(self, index: int, **changes) -> "Wall":
+        """A copy with layer ``index`` changed (e.g. ``thickness=0.1`` [m])."""
+        from dataclasses import replace
+        layers = list(self.layers)
+        layers[index] = replace(layers[index], **changes)
+        return replace(self, layers=tuple(layers))
+
+
+@dataclass(frozen=True)
+class Face:
+    """What happens at one face of a wall.
+
+    Any combination of the terms below acts together, except ``temperature``, which fixes
+    the face temperature and overrides the rest.  A face with nothing set is adiabatic.
+
+    Parameters
+    ----------
+    temperature : Schedule or float, optional
+        Imposed face temperature [K].
+    flux : Schedule or float, optional
+        Imposed heat flux into the wall [W/m2] (heater element, absorbed solar).
+    fluid : Schedule or float, optional
+        Temperature of the fluid (air) at the face [K]; needed with ``convection``.
+    convection : float or fdwall.physics.convection.Convection, optional
+        Film coefficient [W/m2/K], or a correlation evaluated as the run goes.
+    emissivity : float or Schedule, optional
+        Grey emissivity [-], constant or a table against surface temperature [K]; None: no
+        radiation.
+    surroundings : Schedule or float, optional
+        Temperature of the radiant surroundings [K]; defaults to ``fluid``.
+    """
+
+    temperature: Optional[Schedule] = None
+    flux: Optional[Schedule] = None
+    fluid: Optional[Schedule] = None
+    convection: Union[None, float, object] = None
+    emissivity: Union[None, float, Schedule] = None
+    surroundings: Optional[Schedule] = None
+
+    def __post_init__(self):
+        object.__setattr__(self, "temperature", _sched("face temperature", self.temperature, True))
+        object.__setattr__(self, "flux", _sched("face flux", self.flux))
+        object.__setattr__(self, "fluid", _sched("fluid temperature", self.fluid, True))
+        object.__setattr__(self, "surroundings", _sched("surroundings temperature", self.surroundings, True))
+        if isinstance(self.convection, (int, float)):
+            _pos("film coefficient", float(self.convection), allow_zero=True)
+        e = self.emissivity
+        if e is not None:
+            vals = e.values if isinstance(e, Schedule) else (float(e),)
+            if min(vals) < 0 or max(vals) > 1:
+                raise ModelError(f"emissivity must lie between 0 and 1, got {vals}")
+        if self.convection is not None and self.fluid is None and not getattr(self, "_chamber", False):
+            pass  # checked where the face is used (a chamber face takes the chamber as its fluid)
+
+    @classmethod
+    def adiabatic(cls) -> "Face":
+        """A perfectly insulated face (no heat flow)."""
+        return cls()
+
+    @classmethod
+    def fixed(cls, temperature) -> "Face":
+        """A face held at ``temperature`` [K] (a Schedule or a number)."""
+        return cls(temperature=temperature)
+
+    @classmethod
+    def exchange(cls, fluid, h, emissivity=None, surroundings=None, flux=None) -> "Face":
+        """Convection with film coefficient ``h`` [W/m2/K] to fluid at ``fluid`` [K], plus grey
+        radiation (``emissivity`` [-]) to ``surroundings`` [K] and an imposed ``flux`` [W/m2]."""
+        return cls(fluid=fluid, convection=h, emissivity=emissivity, surroundings=surroundings,
+                   flux=flux)
+
+
+@dataclass(frozen=True)
+class Chamber:
+    """A lumped chamber node (air, load, racks) coupled to the inner faces of walls.
+
+    Parameters
+    ----------
+    capacity : float or Schedule
+        Heat capacity of the chamber contents [J/K]; a Schedule is read as a table of
+        capacity against temperature [K].
+    ambient : Schedule or float
+        Temperature of the room air that leakage and extra losses go to [K].
+    leakage : float
+        Air flow through the chamber [m3/s], at room conditions (ventilation, leaks).
+    extra_ua : float
+        Further fixed losses as a conductance to ambient [W/K].
+    """
+
+    capacity: Union[float, Schedule]
+    ambient: Schedule = 293.15
+    leakage: float = 0.0
+    extra_ua: float = 0.0
+
+    def __post_init__(self):
+        cap = self.capacity
+        vals = cap.values if isinstance(cap, Schedule) else (float(cap),)
+        if min(vals) <= 0:
+            raise ModelError("chamber capacity must be positive [J/K]")
+        object.__setattr__(self, "ambient", _sched("chamber ambient", self.ambient, True))
+        _pos("chamber leakage flow", self.leakage, allow_zero=True)
+        _pos("chamber extra UA", self.extra_ua, allow_zero=True)
+
+    @property
+    def leakage_ua(self) -> float:
+        """Leakage as a conductance to ambient [W/K] (room air, 1.2 kg/m3, 1006 J/kg/K)."""
+        # Air at 20 degC and 1 atm: rho = 1.204 kg/m3, cp = 1006 J/kg/K (Incropera, Table A.4).
+        return float(self.leakage) * 1.204 * 1006.0
+
+
+@dataclass(frozen=True)
+class Heater:
+    """An electric heater.
+
+    Parameters
+    ----------
+    power : Schedule or float
+        Rated power at rated voltage [W].
+    location : str
+        'chamber' (heats the chamber node), 'inner' (a flux on the inner face of ``wall``),
+        or 'interface' (embedded between layers ``interface`` and ``interface+1`` of ``wall``).
+    wall : int
+        Index of the wall for 'inner' and 'interface' [-].
+    interface : int
+        Index of the layer the element lies behind, for 'interface' [-].
+    voltage_ratio : float
+        Supply voltage / rated voltage [-]; power scales with its square.
+    alpha : float
+        Temperature coefficient of the element's resistance [1/K] (power falls as it heats).
+    t_ref : float
+        Temperature at which ``power`` is rated [K].
+    """
+
+    power: Schedule
+    location: str = "chamber"
+    wall: int = 0
+    interface: int = 0
+    voltage_ratio: float = 1.0
+    alpha: float = 0.0
+    t_ref: float = 293.15
+
+    def __post_init__(self):
+        object.__setattr__(self, "power", _sched("heater power", self.power))
+        if min(self.power.values) < 0:
+            raise ModelError("heater power must not be negative [W]")
+        if self.location not in ("chamber", "inner", "interface"):
+            raise ModelError(f"heater location must be chamber, inner or interface, got {self.location!r}")
+        _pos("heater voltage ratio", self.voltage_ratio)
+        _pos("heater alpha", self.alpha, allow_zero=True)
+
+
+@dataclass(frozen=True)
+class Control:
+    """How the heater is switched.
+
+    Parameters
+    ----------
+    mode : {'fixed', 'duty', 'thermostat', 'pid'}
+        'fixed': power times ``duty`` (a schedule 0..1, default 1); 'duty': time-proportioning
+        at a fixed fraction ``duty``; 'thermostat': on/off with hysteresis ``band`` around
+        ``setpoint``; 'pid': PI/PID time-proportioning to ``setpoint``.
+    duty : Schedule or float
+        Fraction of rated power for 'fixed' and 'duty' [-].
+    switched : bool
+        For 'duty' and 'pid': True switches the element fully on for duty x period and off
+        for the rest of each period; False delivers the period-averaged power.
+    period : float
+        Cycle (time-proportioning) period, also the PID sampling interval [s].
+    setpoint : Schedule or float
+        Setpoint [K] for 'thermostat' and 'pid'.
+    band : float
+        Thermostat hysteresis, total width [K].
+    sensor : str
+        'chamber', or 'wall' with ``sensor_wall`` and ``sensor_depth``.
+    sensor_wall : int
+        Wall index of a wall sensor [-].
+    sensor_depth : float
+        Depth of a wall sensor below the inner face [m].
+    kp, ki, kd : float
+        PID gains: proportional [1/K], integral [1/K/s], derivative [s/K].
+    enable : Schedule or float
+        Master switch 0/1 (power off for the cool-down) [-].
+    """
+
+    mode: str = "fixed"
+    duty: Schedule = 1.0
+    switched: bool = False
+    period: float = 60.0
+    setpoint: Optional[Schedule] = None
+    band: float = 2.0
+    sensor: str = "chamber"
+    sensor_wall: int = 0
+    sensor_depth: float = 0.0
+    kp: float = 0.05
+    ki: float = 0.0
+    kd: float = 0.0
+    enable: Schedule = 1.0
+
+    def __post_init__(self):
+        if self.mode not in ("fixed", "duty", "thermostat", "pid"):
+            raise ModelError(f"control mode must be fixed, duty, thermostat or pid, got {self.mode!r}")
+        object.__setattr__(self, "duty", _sched("duty", self.duty))
+        object.__setattr__(self, "enable", _sched("enable", self.enable))
+        object.__setattr__(self, "setpoint", _sched("setpoint", self.setpoint, True))
+        if min(self.duty.values) < 0 or max(self.duty.values) > 1:
+            raise ModelError("duty must lie between 0 and 1")
+        _pos("control period", self.period)
+        _pos("thermostat band", self.band, allow_zero=True)
+        if self.mode in ("thermostat", "pid") and self.setpoint is None:
+            raise ModelError(f"control mode {self.mode!r} needs a setpoint")
+        if self.sensor not in ("chamber", "wall"):
+            raise ModelError("sensor must be 'chamber' or 'wall'")
+        for n in ("kp", "ki", "kd"):
+            _pos(n, getattr(self, n), allow_zero=True)
+
+
+@dataclass(frozen=True)
+class EnclosureWall:
+    """One wall assembly of an enclosure: its construction, its outer face and how many alike.
+
+    Parameters
+    ----------
+    wall : Wall
+        Construction, inner layer first; a slab's ``area`` is the wall's area [m2].
+    outer : Face
+        Conditions at the outer face.
+    inner_h : float or Convection
+        Film coefficient to the chamber air [W/m2/K] or a correlation.
+    inner_emissivity : float, optional
+        Emissivity of the inner face for radiation exchange with the chamber contents [-].
+    """
+
+    wall: Wall
+    outer: Face
+    inner_h: Union[float, object] = 10.0
+    inner_emissivity: Optional[float] = None
+
+
+@dataclass(frozen=True)
+class Event:
+    """Watch a face, interface or depth for crossing a temperature.
+
+    Parameters
+    ----------
+    threshold : float
+        Temperature [K].
+    wall : int
+        Wall index [-].
+    depth : float
+        Depth below the inner face [m]; use ``where`` instead for named spots.
+    where : str
+        'inner', 'outer', 'interface:N' (after layer N, 1-based) or '' to use ``depth``.
+    name : str
+        Label.
+    """
+
+    threshold: float
+    wall: int = 0
+    depth: float = 0.0
+    where: str = "outer"
+    name: str = ""
+
+
+@dataclass(frozen=True)
+class RunSettings:
+    """Settings of a transient run.
+
+    Parameters
+    ----------
+    duration : float
+        Simulated time [s].
+    initial : float or array
+        Initial temperature [K]: a number for a uniform start, or an array over the nodes of
+        the system (e.g. a profile from an earlier result).
+    output_interval : float, optional
+        Spacing of stored outputs [s] (default duration/200).
+    profile_times : tuple of float
+        Times at which temperature profiles are plotted [s].
+    tolerance : float
+        Local error tolerance per step [K].
+    max_step : float, optional
+        Upper limit on the time step [s].
+    events : tuple of Event
+        Crossings to locate.
+    """
+
+    duration: float
+    initial: object = 293.15
+    output_interval: Optional[float] = None
+    profile_times: tuple = ()
+    tolerance: float = 0.01
+    max_step: Optional[float] = None
+    events: tuple = ()
+
+    def __post_init__(self):
+        _pos("duration", self.duration)
+        if self.output_interval is not None:
+            _pos("output interval", self.output_interval)
+        _pos("tolerance", self.tolerance)
+        if self.max_step is not None:
+            _pos("max step", self.max_step)
+        init = np.asarray(self.initial, dtype=float)
+        if np.any(~np.isfinite(init)) or np.any(init <= 0):
+            raise ModelError("initial temperature must be above absolute zero [K]")
+
+
+@dataclass(frozen=True)
+class Case:
+    """A complete problem: a single wall with two faces, or an enclosure.
+
+    For a single wall give ``wall``, ``inner`` and ``outer``.  For an enclosure give
+    ``walls`` (EnclosureWall), ``chamber``, and optionally ``heater`` and ``control``; each
+    wall's inner face then exchanges heat with the chamber node.
+    """
+
+    run: RunSettings
+    wall: Optional[Wall] = None
+    inner: Face = field(default_factory=Face)
+    outer: Face = field(default_factory=Face)
+    walls: tuple = ()
+    chamber: Optional[Chamber] = None
+    heater: Optional[Heater] = None
+    control: Control = field(default_factory=Control)
+    name: str = "case"
+    source: str = ""   # case file text, kept verbatim in results
+
+    def __post_init__(self):
+        object.__setattr__(self, "walls", tuple(self.walls))
+        if self.wall is None and not self.walls:
+            raise ModelError("a case needs a wall (single wall) or walls (enclosure)")
+        if self.wall is not None and self.walls:
+            raise ModelError("give either a single wall or enclosure walls, not both")
+        if self.walls and self.chamber is None:
+            raise ModelError("enclosure walls need a chamber")
+        if self.heater is not None and self.heater.location == "chamber" and self.chamber is None:
+            raise ModelError("a heater in the chamber needs a chamber")
+        if self.control.mode in ("thermostat", "pid") and self.heater is None:
+            raise ModelError("thermostat or PID control needs a heater")
+        if self.control.sensor == "chamber" and self.control.mode in ("thermostat", "pid") \
+                and self.chamber is None:
+            raise ModelError("a chamber sensor needs a chamber; use sensor = 'wall' for a single wall")
+
+    @property
+    def is_enclosure(self) -> bool:
+        """True for an enclosure case (chamber node with several walls)."""
+        return bool(self.walls)
+
+    @property
+    def wall_list(self):
+        """All walls of the case, in order [Wall]."""
+        return [self.wall] if self.wall is not None else [w.wall for w in self.walls]

@@ -1,0 +1,382 @@
+"""Results of a run: arrays, derived quantities (stored energy, energy ledger), HDF5 archive.
+
+HDF5 layout (one file per run; every dataset carries a ``units`` attribute)
+------------------------------------------------------------------------
+/                      attrs: fdwall_version, case_name, complete, message, created, kind
+/input/case_text       the case file as given (string)
+/input/resolved_json   resolved SI inputs (JSON string)
+/mesh/wall_<j>/x       node radius/depth [m]; attrs name, geometry; datasets layer_first,
+                       layer_last, interface_nodes (node indices within the wall)
+/time                  output times [s]
+/temperature           all unknowns at output times (n_time, n_unknowns) [K]; the chamber,
+                       if any, is the last column
+/faces/names           face labels '<wall>:inner' / '<wall>:outer'
+/faces/heat_flow       heat into the wall at each face (n_time, n_faces) [W]
+/faces/energy          cumulative heat into the wall at each face [J]
+/faces/h_convective    film coefficient (n_time, n_faces) [W/m2/K]
+/faces/h_radiative     linearised radiative coefficient (n_time, n_faces) [W/m2/K]
+/faces/temperature     face temperatures (n_time, n_faces) [K]
+/energy/stored         total stored energy relative to the start (n_time) [J]
+/energy/stored_layers  per layer (n_time, n_layers) [J]; attrs layer_names
+/energy/stored_chamber chamber contents [J]
+/energy/heater         cumulative heater energy [J]
+/energy/loss_chamber   cumulative loss from the chamber by leakage/extra UA [J]
+/energy/residual       heat in - heat out - change in stored energy [J]
+/heater/power          heater power at output times [W]
+/events/names, /events/up, /events/down   first upward/downward crossing times [s] (NaN: none)
+/solver                attrs: accepted, rejected, newton_failures, newton_iterations, ...
+/steady/temperature    steady-state temperatures of all unknowns [K] (when solved)
+"""
+from __future__ import annotations
+
+import json
+import os
+import tempfile
+from dataclasses import dataclass, field, asdict
+from datetime import datetime, timezone
+
+import numpy as np
+
+__all__ = ["Result", "read_result"]
+
+
+def _version():
+    try:
+        from importlib.metadata import version
+        return version("fdwall")
+    except Exception:  # pragma: no cover - running from a source tree
+        return "0+unknown"
+
+
+@dataclass
+class Result:
+    """Everything a transient run produced.
+
+    Attributes
+    ----------
+    times : ndarray
+        Output times [s].
+    T : ndarray
+        Temperatures of all unknowns at output times (n_time, n_unknowns) [K].
+    face_flow : ndarray
+        Heat flowing into the wall at each face (n_time, n_faces) [W].
+    face_energy : ndarray
+        Cumulative heat into the wall at each face (n_time, n_faces) [J].
+    heater_energy, loss_energy : ndarray
+        Cumulative heater energy and chamber loss to ambient [J].
+    heater_power : ndarray
+        Heater power at the output times [W].
+    h_conv, h_rad : ndarray
+        Convective and linearised radiative film coefficients per face [W/m2/K].
+    stats : dict
+        Solver statistics (steps accepted/rejected, Newton iterations, ...).
+    events : dict
+        name -> (first upward crossing [s], first downward crossing [s]); NaN when none.
+    complete : bool
+        False when the run stopped early (see ``message``).
+    """
+
+    case: object
+    system: object
+    times: np.ndarray
+    T: np.ndarray
+    face_flow: np.ndarray
+    face_energy: np.ndarray
+    heater_energy: np.ndarray
+    loss_energy: np.ndarray
+    heater_power: np.ndarray
+    h_conv: np.ndarray
+    h_rad: np.ndarray
+    stats: dict
+    events: dict
+    complete: bool = True
+    message: str = ""
+    wall_time: float = 0.0
+    steady: object = None
+
+    @classmethod
+    def from_run(cls, case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out, stats,
+                 ev_out, complete, wall_time):
+        from .solver import kernels as K
+        n = len(t_out)
+        if not complete:
+            n = int(np.sum(np.isfinite(T_out[:, 0])))
+        nf = qf_out.shape[1]
+        st = {
+            "accepted_steps": int(stats[K.ST_ACC]), "rejected_steps": int(stats[K.ST_REJ]),
+            "newton_failures": int(stats[K.ST_NFAIL]), "newton_iterations": int(stats[K.ST_NEWTON]),
+            "event_retries": int(stats[K.ST_EVRETRY]), "assemblies": int(stats[K.ST_ASSEMBLE]),
+            "min_step_s": float(stats[K.ST_HMIN]) if np.isfinite(stats[K.ST_HMIN]) else 0.0,
+            "max_step_s": float(stats[K.ST_HMAX]), "reached_s": float(stats[K.ST_T]),
+            "tolerance_K": float(case.run.tolerance), "wall_time_s": float(wall_time),
+            "nodes": int(sysm.n_unknowns),
+        }
+        evs = {}
+        for e, ev in enumerate(case.run.events):
+            evs[ev.name or f"event{e + 1}"] = (float(ev_out[e, 0]), float(ev_out[e, 1]))
+        return cls(case=case, system=sysm, times=t_out[:n].copy(), T=T_out[:n].copy(),
+                   face_flow=qf_out[:n].copy(), face_energy=E_out[:n, :nf].copy(),
+                   heater_energy=E_out[:n, nf].copy(), loss_energy=E_out[:n, nf + 1].copy(),
+                   heater_power=P_out[:n].copy(), h_conv=hc_out[:n].copy(),
+                   h_rad=hr_out[:n].copy(), stats=st, events=evs, complete=complete,
+                   wall_time=wall_time)
+
+    # ----------------------------------------------------------------- temperatures
+    @property
+    def face_names(self):
+        """Labels of the faces, '<wall>:inner' and '<wall>:outer'."""
+        return list(self.system.face_names)
+
+    @property
+    def face_T(self) -> np.ndarray:
+        """Temperature of every face (n_time, n_faces) [K]."""
+        return self.T[:, self.system.face_i[:, 0]]
+
+    def wall_T(self, wall: int = 0) -> np.ndarray:
+        """Node temperatures of one wall (n_time, n_nodes) [K]."""
+        return self.T[:, self.system.wall_nodes(wall)]
+
+    def x(self, wall: int = 0) -> np.ndarray:
+        """Node positions of one wall, depth from the inner face [m]."""
+        m = self.system.meshes[wall]
+        return m.x - m.x[0]
+
+    def interface_T(self, wall: int = 0) -> np.ndarray:
+        """Temperatures at the interfaces of a wall (n_time, n_interfaces) [K]."""
+        m = self.system.meshes[wall]
+        return self.wall_T(wall)[:, m.interface_nodes]
+
+    @property
+    def chamber_T(self):
+        """Chamber temperature (n_time) [K], or None without a chamber."""
+        return self.T[:, -1] if self.system.has_chamber else None
+
+    def profile(self, t: float, wall: int = 0):
+        """Temperature profile nearest to time ``t`` [s]: (depth [m], T [K], actual time [s])."""
+        k = int(np.argmin(np.abs(self.times - t)))
+        return self.x(wall), self.wall_T(wall)[k], float(self.times[k])
+
+    # ----------------------------------------------------------------- energy
+    def _enthalpy(self):
+        if not hasattr(self, "_H"):
+            self._H = self.system.enthalpy(self.T)
+        return self._H
+
+    @property
+    def stored_layers(self) -> np.ndarray:
+        """Energy stored in each layer relative to the start (n_time, n_layers) [J]."""
+        Hh, Hc = self._enthalpy()
+        lid = self.system.layer_of_half
+        n_l = len(self.system.layer_names)
+        out = np.zeros((self.T.shape[0], n_l))
+        for s in (0, 1):
+            for l in range(n_l):
+                mask = lid[:, s] == l
+                out[:, l] += Hh[:, mask, s].sum(axis=1)
+        return out - out[0]
+
+    @property
+    def stored_chamber(self) -> np.ndarray:
+        """Energy stored in the chamber contents relative to the start (n_time) [J]."""
+        Hh, Hc = self._enthalpy()
+        return Hc - Hc[0]
+
+    @property
+    def stored(self) -> np.ndarray:
+        """Total energy stored in walls and chamber relative to the start (n_time) [J]."""
+        return self.stored_layers.sum(axis=1) + self.stored_chamber
+
+    def stored_wall(self, wall: int) -> np.ndarray:
+        """Energy stored in one wall relative to the start (n_time) [J]."""
+        cols = [l for l, w in enumerate(self.system.layer_wall) if w == wall]
+        return self.stored_layers[:, cols].sum(axis=1)
+
+    @property
+    def heat_in(self) -> np.ndarray:
+        """Cumulative heat entering the system from outside (faces + heater - chamber loss) [J]."""
+        ext = self.system.external
+        return self.face_energy[:, ext].sum(axis=1) + self.heater_energy - self.loss_energy
+
+    @property
+    def residual(self) -> np.ndarray:
+        """Energy-balance residual: heat in - heat out - change in stored energy (n_time) [J]."""
+        return self.heat_in - self.stored
+
+    @property
+    def relative_residual(self) -> float:
+        """Largest |residual| relative to the largest energy that crossed or was stored [-]."""
+        scale = max(np.max(np.abs(self.stored)), np.max(np.abs(self.face_energy)),
+                    np.max(np.abs(self.heater_energy)), 1e-300)
+        return float(np.max(np.abs(self.residual)) / scale)
+
+    # ----------------------------------------------------------------- summary and files
+    def summary(self) -> dict:
+        """A plain dict of the headline numbers (SI units, keys name the unit)."""
+        sysm = self.system
+        walls = self.case.wall_list
+        faces = []
+        for f, name in enumerate(self.face_names):
+            faces.append({
+                "face": name,
+                "T_final_K": float(self.face_T[-1, f]),
+                "T_max_K": float(np.max(self.face_T[:, f])),
+                "heat_in_final_W": float(self.face_flow[-1, f]),
+                "energy_in_J": float(self.face_energy[-1, f]),
+                "h_conv_final_W_m2K": float(self.h_conv[-1, f]),
+                "h_rad_final_W_m2K": float(self.h_rad[-1, f]),
+            })
+        wall_rows = []
+        for j, w in enumerate(walls):
+            wall_rows.append({
+                "wall": w.name,
+                "interfaces_final_K": [float(v) for v in self.interface_T(j)[-1]],
+                "stored_final_J": float(self.stored_wall(j)[-1]),
+            })
+        out = {
+            "case": self.case.name,
+            "complete": bool(self.complete),
+            "message": self.message,
+            "duration_s": float(self.times[-1]),
+            "faces": faces,
+            "walls": wall_rows,
+            "layers": {n: float(v) for n, v in zip(sysm.layer_names, self.stored_layers[-1])},
+            "stored_total_J": float(self.stored[-1]),
+            "heater_energy_J": float(self.heater_energy[-1]),
+            "chamber_loss_J": float(self.loss_energy[-1]),
+            "energy_residual_J": float(self.residual[-1]),
+            "energy_residual_relative": self.relative_residual,
+            "events": {k: {"up_s": v[0], "down_s": v[1]} for k, v in self.events.items()},
+            "solver": self.stats,
+        }
+        if sysm.has_chamber:
+            out["chamber_final_K"] = float(self.chamber_T[-1])
+            out["chamber_max_K"] = float(np.max(self.chamber_T))
+        if self.steady is not None:
+            out["steady"] = self.steady.summary()
+        return out
+
+    def write_hdf5(self, path) -> str:
+        """Write the run to ``path`` atomically (a temporary file renamed when complete)."""
+        import h5py
+        path = os.fspath(path)
+        d = os.path.dirname(os.path.abspath(path))
+        os.makedirs(d, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(prefix=".fdwall-", suffix=".h5.part", dir=d)
+        os.close(fd)
+        try:
+            with h5py.File(tmp, "w") as h:
+                self._write(h)
+            os.replace(tmp, path)
+        except BaseException:
+            if os.path.exists(tmp):
+                os.remove(tmp)
+            raise
+        return path
+
+    def _write(self, h):
+        import h5py
+        sysm = self.system
+        h.attrs["fdwall_version"] = _version()
+        h.attrs["case_name"] = self.case.name
+        h.attrs["complete"] = bool(self.complete)
+        h.attrs["message"] = self.message
+        h.attrs["created"] = datetime.now(timezone.utc).isoformat()
+        h.attrs["kind"] = "transient"
+        g = h.create_group("input")
+        g.create_dataset("case_text", data=self.case.source or "")
+        g.create_dataset("resolved_json", data=json.dumps(resolved_inputs(self.case), default=str))
+
+        def ds(grp, name, data, units, **attrs):
+            data = np.asarray(data)
+            kw = {}
+            if data.ndim >= 1 and data.size > 16:
+                kw = dict(chunks=True, compression="gzip", maxshape=(None,) + data.shape[1:])
+            d = grp.create_dataset(name, data=data, **kw)
+            d.attrs["units"] = units
+            for k, v in attrs.items():
+                d.attrs[k] = v
+            return d
+
+        mg = h.create_group("mesh")
+        for j, (w, m) in enumerate(zip(self.case.wall_list, sysm.meshes)):
+            wg = mg.create_group(f"wall_{j}")
+            wg.attrs["name"] = w.name
+            wg.attrs["geometry"] = w.geometry
+            ds(wg, "x", m.x, "m")
+            ds(wg, "layer_first", [a for a, b in m.layer_nodes], "1")
+            ds(wg, "layer_last", [b for a, b in m.layer_nodes], "1")
+            ds(wg, "interface_nodes", np.array(m.interface_nodes, dtype=int), "1")
+            wg.attrs["layers"] = json.dumps([l.label for l in w.layers])
+        ds(h, "time", self.times, "s")
+        ds(h, "temperature", self.T, "K")
+        fg = h.create_group("faces")
+        fg.create_dataset("names", data=np.array(self.face_names, dtype=object),
+                          dtype=h5py.string_dtype())
+        ds(fg, "heat_flow", self.face_flow, "W")
+        ds(fg, "energy", self.face_energy, "J")
+        ds(fg, "h_convective", self.h_conv, "W/m2/K")
+        ds(fg, "h_radiative", self.h_rad, "W/m2/K")
+        ds(fg, "temperature", self.face_T, "K")
+        eg = h.create_group("energy")
+        ds(eg, "stored", self.stored, "J")
+        ds(eg, "stored_layers", self.stored_layers, "J",
+           layer_names=json.dumps(list(sysm.layer_names)))
+        ds(eg, "stored_chamber", self.stored_chamber, "J")
+        ds(eg, "heater", self.heater_energy, "J")
+        ds(eg, "loss_chamber", self.loss_energy, "J")
+        ds(eg, "residual", self.residual, "J")
+        hg = h.create_group("heater")
+        ds(hg, "power", self.heater_power, "W")
+        evg = h.create_group("events")
+        names = list(self.events)
+        evg.create_dataset("names", data=np.array(names, dtype=object), dtype=h5py.string_dtype())
+        ds(evg, "up", np.array([v[0] for v in self.events.values()]), "s")
+        ds(evg, "down", np.array([v[1] for v in self.events.values()]), "s")
+        sg = h.create_group("solver")
+        for k, v in self.stats.items():
+            sg.attrs[k] = v
+        if self.steady is not None:
+            stg = h.create_group("steady")
+            ds(stg, "temperature", self.steady.T, "K")
+            stg.attrs["summary_json"] = json.dumps(self.steady.summary(), default=float)
+
+
+def resolved_inputs(case) -> dict:
+    """The case with every quantity in SI, as plain data (for archives and --json)."""
+    def conv(o):
+        if hasattr(o, "__dataclass_fields__"):
+            out = {"type": type(o).__name__}
+            for k in o.__dataclass_fields__:
+                if k in ("source",):
+                    continue
+                out[k] = conv(getattr(o, k))
+            return out
+        if isinstance(o, (list, tuple)):
+            return [conv(x) for x in o]
+        if isinstance(o, np.ndarray):
+            return o.tolist()
+        if isinstance(o, (int, float, str, bool)) or o is None:
+            return o
+        return str(o)
+    return conv(case)
+
+
+def read_result(path) -> dict:
+    """Read an fdwall HDF5 result into a dict of arrays and attributes (SI units)."""
+    import h5py
+    out = {}
+    with h5py.File(path, "r") as h:
+        out["attrs"] = {k: (v.decode() if isinstance(v, bytes) else v) for k, v in h.attrs.items()}
+
+        def visit(name, obj):
+            if isinstance(obj, h5py.Dataset):
+                v = obj[()]
+                if isinstance(v, bytes):
+                    v = v.decode()
+                elif isinstance(v, np.ndarray) and v.dtype == object:
+                    v = [x.decode() if isinstance(x, bytes) else x for x in v]
+                out[name] = v
+        h.visititems(visit)
+        if "solver" in h:
+            out["solver"] = dict(h["solver"].attrs)
+    return out

@@ -1,0 +1,102 @@
+"""Piecewise-linear schedules of a quantity in time (steps, ramps and holds).
+
+A schedule is a list of knots ``(t_i, v_i)`` with non-decreasing times.  Between knots the
+value is interpolated linearly; before the first knot and after the last it is held.  A
+*step* is two knots at the same time: the value jumps there (the later knot wins from that
+instant on).  The same object also serves for tables against temperature (emissivity
+versus surface temperature), where "time" is read as temperature.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+__all__ = ["Schedule"]
+
+
+@dataclass(frozen=True)
+class Schedule:
+    """Piecewise-linear function of time, held constant outside its knots.
+
+    Parameters
+    ----------
+    times : sequence of float
+        Knot times, non-decreasing [s] (or [K] for a table against temperature).  A repeated
+        time makes a step.
+    values : sequence of float
+        Values at the knots, in the SI unit of the quantity scheduled (e.g. [K], [W/m2], [W]).
+
+    Examples
+    --------
+    A heater flux of 2 kW/m2 for 3 h, then off:
+
+    >>> s = Schedule([0, 10800, 10800], [2000.0, 2000.0, 0.0])
+    >>> float(s(3600.0)), float(s(20000.0))
+    (2000.0, 0.0)
+    """
+
+    times: tuple = field()
+    values: tuple = field()
+
+    def __post_init__(self):
+        t = np.atleast_1d(np.asarray(self.times, dtype=float))
+        v = np.atleast_1d(np.asarray(self.values, dtype=float))
+        if t.ndim != 1 or v.ndim != 1 or t.size != v.size or t.size == 0:
+            raise ValueError("a schedule needs equally many times and values (at least one knot)")
+        if not (np.all(np.isfinite(t)) and np.all(np.isfinite(v))):
+            raise ValueError("schedule times and values must be finite numbers")
+        if np.any(np.diff(t) < 0):
+            i = int(np.argmax(np.diff(t) < 0))
+            raise ValueError(
+                f"schedule times go backwards at knot {i + 2} ({t[i + 1]:g} after {t[i]:g}); "
+                "times must be non-decreasing (repeat a time to make a step)")
+        if t.size >= 3 and np.any((t[2:] == t[1:-1]) & (t[1:-1] == t[:-2])):
+            raise ValueError("a schedule may repeat a time at most twice (one step per instant)")
+        object.__setattr__(self, "times", tuple(float(x) for x in t))
+        object.__setattr__(self, "values", tuple(float(x) for x in v))
+
+    @classmethod
+    def constant(cls, value: float) -> "Schedule":
+        """A schedule holding ``value`` at all times (SI unit of the quantity)."""
+        return cls((0.0,), (float(value),))
+
+    @classmethod
+    def coerce(cls, x) -> "Schedule":
+        """Return ``x`` as a Schedule (numbers become constant schedules)."""
+        if isinstance(x, Schedule):
+            return x
+        return cls.constant(float(x))
+
+    @property
+    def is_constant(self) -> bool:
+        """True when the schedule never changes."""
+        return len(set(self.values)) == 1
+
+    def __call__(self, t, side: str = "right"):
+        """Value at time(s) ``t`` [s]; at a step, ``side='left'`` gives the value before it."""
+        t_k = np.asarray(self.times)
+        v_k = np.asarray(self.values)
+        t = np.asarray(t, dtype=float)
+        idx = np.searchsorted(t_k, t, side=side) - 1
+        idx = np.clip(idx, 0, t_k.size - 1)
+        nxt = np.clip(idx + 1, 0, t_k.size - 1)
+        dt = t_k[nxt] - t_k[idx]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            w = np.where(dt > 0, (t - t_k[idx]) / np.where(dt > 0, dt, 1.0), 0.0)
+        w = np.clip(w, 0.0, 1.0)
+        out = v_k[idx] + w * (v_k[nxt] - v_k[idx])
+        out = np.where(t < t_k[0], v_k[0], out)
+        return out if out.ndim else float(out)
+
+    def shifted(self, dt: float) -> "Schedule":
+        """The same schedule delayed by ``dt`` [s]."""
+        return Schedule(tuple(t + dt for t in self.times), self.values)
+
+    def scaled(self, factor: float) -> "Schedule":
+        """The same schedule with every value multiplied by ``factor`` [-]."""
+        return Schedule(self.times, tuple(v * factor for v in self.values))
+
+    def breakpoints(self):
+        """Knot times where the slope or the value may jump [s]."""
+        return sorted(set(self.times))

@@ -1,0 +1,812 @@
+"""Compiled kernels: property and schedule evaluation, assembly, bordered tridiagonal solves,
+the TR-BDF2 time loop and the steady Newton solve.
+
+Everything here takes and returns plain arrays; nothing knows about cases, units or files.
+The system is a set of *chains* (one per wall, nodes inner face -> outer face) optionally
+coupled to one lumped *chamber* node, the last unknown.  Its Jacobian is tridiagonal per
+chain plus a border (the chamber row and column): an arrow matrix, solved by eliminating each
+chain and then the chamber equation, at a cost linear in the node count.
+
+Array layouts (built by :mod:`fdwall.system`)
+---------------------------------------------
+node_i[N, 3] int   : left-half material, right-half material, link material (-1 contact,
+                     -2 no link: last node of a chain)
+node_f[N, 3] float : left-half volume [m3], right-half volume [m3], link geometry factor [m]
+                     (or contact conductance [W/K])
+chains[nc, 2] int  : first and last node of each chain
+face_i[nf, 8] int  : node, dirichlet sched, flux sched, fluid sched, radiant-temperature sched,
+                     emissivity table (sched over T), to-chamber flag, h mode (0 fixed, 1 corr.)
+face_f[nf, 2] float: area [m2], fixed film coefficient [W/m2/K]
+hpar[nf, P] float  : correlation parameters for fdwall.physics.convection.h_conv
+m_off[nm+1], mtab[5, :] : material tables, rows T [K], k [W/m/K], K=int k dT [W/m],
+                     c = rho*cp [J/m3/K], H = int c dT [J/m3]
+s_off[ns+1], stab[2, :] : schedules, rows time [s] (or T [K]) and value
+ch_i[3] int        : has chamber, capacity material (volume 1), ambient sched
+ch_f[1] float      : conductance to ambient (leakage + extra) [W/K]
+ctl_i[10] int      : mode, heater node (-1 none), sensor a, sensor b, rated-power sched,
+                     duty sched, setpoint sched, enable sched
+ctl_f[10] float    : period [s], band [K], kp, ki, kd, sensor weight on a, alpha [1/K],
+                     t_ref [K], power factor (voltage ratio squared), event tol [K]
+"""
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from ..physics.convection import h_conv
+
+SIGMA = 5.670374419e-8          # Stefan-Boltzmann constant [W/m2/K4] (CODATA 2018)
+GAMMA = 2.0 - np.sqrt(2.0)      # TR-BDF2 stage fraction (Bank et al. 1985)
+D_COEF = GAMMA / 2.0            # implicit coefficient of both stages (times h)
+A2 = 1.0 / (GAMMA * (2.0 - GAMMA))
+B2 = (1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA))
+C2 = (1.0 - GAMMA) / (2.0 - GAMMA)
+W0 = 1.0 / (2.0 * (2.0 - GAMMA))  # quadrature weights of one step: W0*F_n + W0*F_g + W2*F_n+1
+W2 = C2
+KERR = (-3.0 * GAMMA ** 2 + 4.0 * GAMMA - 2.0) / (12.0 * (2.0 - GAMMA))
+
+# stats layout
+ST_ACC, ST_REJ, ST_NFAIL, ST_NEWTON, ST_EVRETRY, ST_STATUS, ST_T, ST_HMIN, ST_HMAX, ST_ASSEMBLE = range(10)
+N_STATS = 10
+# control-state layout
+CS_U, CS_ON, CS_INT, CS_PREV, CS_NEXT, CS_OFF, CS_H, CS_SENSOR = range(8)
+N_CS = 8
+
+
+@njit(cache=True)
+def sched_eval(s_off, stab, idx, t, left):
+    """Value of schedule ``idx`` at ``t``; ``left`` gives the value just before a step."""
+    a = s_off[idx]
+    b = s_off[idx + 1]
+    tt = stab[0]
+    vv = stab[1]
+    if b - a == 1:
+        return vv[a]
+    # last knot i with tt[i] <= t (right) or tt[i] < t (left)
+    lo = a
+    hi = b
+    while lo < hi:
+        mid = (lo + hi) // 2
+        if (tt[mid] < t) if left else (tt[mid] <= t):
+            lo = mid + 1
+        else:
+            hi = mid
+    i = lo - 1
+    if i < a:
+        return vv[a]
+    if i >= b - 1:
+        return vv[b - 1]
+    t0 = tt[i]
+    t1 = tt[i + 1]
+    if t1 <= t0:
+        return vv[i + 1]
+    w = (t - t0) / (t1 - t0)
+    return vv[i] + w * (vv[i + 1] - vv[i])
+
+
+@njit(cache=True)
+def sched_eval_slope(s_off, stab, idx, x):
+    """Value and slope d(value)/dx of a table (e.g. emissivity against T) at ``x``."""
+    a = s_off[idx]
+    b = s_off[idx + 1]
+    tt = stab[0]
+    vv = stab[1]
+    if b - a == 1 or x <= tt[a]:
+        return vv[a], 0.0
+    if x >= tt[b - 1]:
+        return vv[b - 1], 0.0
+    lo = a
+    hi = b
+    while lo < hi:
+        mid = (lo + hi) // 2
+        if tt[mid] <= x:
+            lo = mid + 1
+        else:
+            hi = mid
+    i = lo - 1
+    dt = tt[i + 1] - tt[i]
+    s = (vv[i + 1] - vv[i]) / dt
+    return vv[i] + s * (x - tt[i]), s
+
+
+@njit(cache=True)
+def mat_eval(m_off, mtab, m, T):
+    """Material ``m`` at ``T`` [K]: k [W/m/K], K=int k dT [W/m], c=rho*cp [J/m3/K], H [J/m3].
+
+    Piecewise-linear k and c between table knots (so K and H are exact piecewise quadratics),
+    held constant outside the table.
+    """
+    a = m_off[m]
+    b = m_off[m + 1]
+    Tt = mtab[0]
+    if T <= Tt[a]:
+        k = mtab[1, a]
+        c = mtab[3, a]
+        d = T - Tt[a]
+        return k, mtab[2, a] + k * d, c, mtab[4, a] + c * d
+    if T >= Tt[b - 1]:
+        k = mtab[1, b - 1]
+        c = mtab[3, b - 1]
+        d = T - Tt[b - 1]
+        return k, mtab[2, b - 1] + k * d, c, mtab[4, b - 1] + c * d
+    lo = a
+    hi = b - 1
+    while hi - lo > 1:
+        mid = (lo + hi) // 2
+        if Tt[mid] <= T:
+            lo = mid
+        else:
+            hi = mid
+    d = T - Tt[lo]
+    w = d / (Tt[lo + 1] - Tt[lo])
+    k0 = mtab[1, lo]
+    c0 = mtab[3, lo]
+    k = k0 + w * (mtab[1, lo + 1] - k0)
+    c = c0 + w * (mtab[3, lo + 1] - c0)
+    return k, mtab[2, lo] + 0.5 * d * (k0 + k), c, mtab[4, lo] + 0.5 * d * (c0 + c)
+
+
+@njit(cache=True)
+def face_h(face_i, face_f, hpar, f, Ts, Tf):
+    """Convective film coefficient [W/m2/K] of face ``f`` and its derivatives d/dTs, d/dTf."""
+    if face_i[f, 7] == 0:
+        return face_f[f, 1], 0.0, 0.0
+    p = hpar[f]
+    h = h_conv(p, Ts, Tf)
+    dT = 1e-3
+    dhs = (h_conv(p, Ts + dT, Tf) - h) / dT
+    dhf = (h_conv(p, Ts, Tf + dT) - h) / dT
+    return h, dhs, dhf
+
+
+@njit(cache=True)
+def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+             s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
+             F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc, hr, extra):
+    """Net heat flow into every unknown and its Jacobian.
+
+    Parameters
+    ----------
+    T : temperatures of the unknowns [K]; t : time [s]; left : evaluate schedules just before t;
+    u_ctl : heater on-fraction from the controller, < 0 to take the duty schedule [-].
+
+    Outputs (filled in place): F net heat flow into each unknown [W] (Dirichlet nodes: all but
+    the face term), Cap dH/dT [J/K], H enthalpy [J], Jacobian dF/dT as diagonal Jd, sub Jl,
+    super Ju, chamber column Jcol and row Jrow [W/K], qf heat into the wall at each face [W],
+    hc/hr convective and linearised radiative film coefficients [W/m2/K],
+    extra[0] heater power [W], extra[1] loss to ambient from the chamber [W].
+    """
+    N = node_i.shape[0]
+    nun = T.shape[0]
+    for i in range(nun):
+        F[i] = 0.0
+        Jd[i] = 0.0
+        Jl[i] = 0.0
+        Ju[i] = 0.0
+        Jcol[i] = 0.0
+        Jrow[i] = 0.0
+        Cap[i] = 0.0
+        H[i] = 0.0
+    # conduction links and capacities
+    for i in range(N):
+        Ti = T[i]
+        ml = node_i[i, 0]
+        mr = node_i[i, 1]
+        if ml >= 0:
+            k, K, c, h = mat_eval(m_off, mtab, ml, Ti)
+            v = node_f[i, 0]
+            Cap[i] += v * c
+            H[i] += v * h
+        if mr >= 0:
+            k, K, c, h = mat_eval(m_off, mtab, mr, Ti)
+            v = node_f[i, 1]
+            Cap[i] += v * c
+            H[i] += v * h
+        lm = node_i[i, 2]
+        if lm == -2:
+            continue
+        Tj = T[i + 1]
+        g = node_f[i, 2]
+        if lm == -1:
+            q = g * (Ti - Tj)
+            di = g
+            dj = -g
+        else:
+            ki, Ki, ci, hi = mat_eval(m_off, mtab, lm, Ti)
+            kj, Kj, cj, hj = mat_eval(m_off, mtab, lm, Tj)
+            q = g * (Ki - Kj)
+            di = g * ki
+            dj = -g * kj
+        F[i] -= q
+        F[i + 1] += q
+        Jd[i] -= di
+        Ju[i] -= dj
+        Jl[i + 1] += di
+        Jd[i + 1] += dj
+    has_ch = ch_i[0] == 1
+    nc_idx = N
+    # faces
+    nf = face_i.shape[0]
+    for f in range(nf):
+        i = face_i[f, 0]
+        A = face_f[f, 0]
+        qf[f] = 0.0
+        hc[f] = 0.0
+        hr[f] = 0.0
+        if face_i[f, 1] >= 0:
+            continue  # Dirichlet: the face flow is whatever holds the temperature
+        Ts = T[i]
+        q = 0.0
+        dq_s = 0.0
+        dq_o = 0.0   # derivative with respect to the chamber temperature
+        if face_i[f, 2] >= 0:
+            q += A * sched_eval(s_off, stab, face_i[f, 2], t, left)
+        to_ch = face_i[f, 6] == 1 and has_ch
+        if to_ch:
+            Tf = T[nc_idx]
+        elif face_i[f, 3] >= 0:
+            Tf = sched_eval(s_off, stab, face_i[f, 3], t, left)
+        else:
+            Tf = Ts
+        hcv, dhs, dhf = face_h(face_i, face_f, hpar, f, Ts, Tf)
+        qc = A * hcv * (Tf - Ts)
+        dqc_s = A * (dhs * (Tf - Ts) - hcv)
+        dqc_f = A * (dhf * (Tf - Ts) + hcv)
+        hc[f] = hcv
+        qr = 0.0
+        dqr_s = 0.0
+        dqr_o = 0.0
+        if face_i[f, 5] >= 0:
+            eps, deps = sched_eval_slope(s_off, stab, face_i[f, 5], Ts)
+            if to_ch:
+                Tr = Tf
+            elif face_i[f, 4] >= 0:
+                Tr = sched_eval(s_off, stab, face_i[f, 4], t, left)
+            else:
+                Tr = Tf
+            Ts2 = Ts * Ts
+            Tr2 = Tr * Tr
+            diff4 = Tr2 * Tr2 - Ts2 * Ts2
+            qr = A * eps * SIGMA * diff4
+            dqr_s = A * SIGMA * (deps * diff4 - 4.0 * eps * Ts2 * Ts)
+            dqr_o = A * eps * SIGMA * 4.0 * Tr2 * Tr
+            hr[f] = eps * SIGMA * (Ts2 + Tr2) * (Ts + Tr)
+        q += qc + qr
+        dq_s = dqc_s + dqr_s
+        F[i] += q
+        Jd[i] += dq_s
+        qf[f] = q
+        if to_ch:
+            dq_o = dqc_f + dqr_o
+            Jcol[i] += dq_o
+            # the chamber loses what the wall gains (the imposed flux part is not from the chamber)
+            qx = qc + qr
+            F[nc_idx] -= qx
+            Jrow[i] -= dqc_s + dqr_s
+            Jd[nc_idx] -= dq_o
+        elif face_i[f, 3] < 0:
+            pass
+    # chamber capacity and losses
+    extra[0] = 0.0
+    extra[1] = 0.0
+    if has_ch:
+        Tc = T[nc_idx]
+        k, K, c, h = mat_eval(m_off, mtab, ch_i[1], Tc)
+        Cap[nc_idx] = c
+        H[nc_idx] = h
+        Tamb = sched_eval(s_off, stab, ch_i[2], t, left)
+        ua = ch_f[0]
+        loss = ua * (Tc - Tamb)
+        F[nc_idx] -= loss
+        Jd[nc_idx] -= ua
+        extra[1] = loss
+    # heater
+    hn = ctl_i[1]
+    if hn >= 0:
+        if u_ctl >= 0.0:
+            u = u_ctl
+        else:
+            u = sched_eval(s_off, stab, ctl_i[5], t, left)
+        en = sched_eval(s_off, stab, ctl_i[7], t, left)
+        P0 = sched_eval(s_off, stab, ctl_i[4], t, left) * ctl_f[8] * u * en
+        alpha = ctl_f[6]
+        if alpha > 0.0:
+            den = 1.0 + alpha * (T[hn] - ctl_f[7])
+            if den < 0.05:
+                den = 0.05
+            P = P0 / den
+            dP = -P * alpha / den
+        else:
+            P = P0
+            dP = 0.0
+        F[hn] += P
+        Jd[hn] += dP
+        extra[0] = P
+
+
+@njit(cache=True)
+def solve_arrow(Md, Ml, Mu, Mcol, Mrow, chains, N, has_ch, rhs, x, wc, wy, wz):
+    """Solve the arrow system (tridiagonal chains + chamber border) ``M x = rhs``.
+
+    Thomas elimination per chain for two right-hand sides (``rhs`` and the chamber column),
+    then the scalar chamber equation, then back-substitution.  Work arrays wc, wy, wz of size N.
+    """
+    nch = chains.shape[0]
+    for j in range(nch):
+        a = chains[j, 0]
+        b = chains[j, 1]
+        # forward sweep
+        beta = Md[a]
+        wy[a] = rhs[a] / beta
+        wz[a] = Mcol[a] / beta
+        for i in range(a + 1, b + 1):
+            wc[i - 1] = Mu[i - 1] / beta
+            beta = Md[i] - Ml[i] * wc[i - 1]
+            wy[i] = (rhs[i] - Ml[i] * wy[i - 1]) / beta
+            wz[i] = (Mcol[i] - Ml[i] * wz[i - 1]) / beta
+        for i in range(b - 1, a - 1, -1):
+            wy[i] -= wc[i] * wy[i + 1]
+            wz[i] -= wc[i] * wz[i + 1]
+    if has_ch:
+        s = Md[N]
+        r = rhs[N]
+        for i in range(N):
+            s -= Mrow[i] * wz[i]
+            r -= Mrow[i] * wy[i]
+        xc = r / s
+        x[N] = xc
+        for i in range(N):
+            x[i] = wy[i] - wz[i] * xc
+    else:
+        for i in range(N):
+            x[i] = wy[i]
+
+
+@njit(cache=True)
+def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
+                  node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab,
+                  ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc, hr, extra,
+                  R, dx, wc, wy, wz, tol, stats):
+    """Solve H(T) - Hbase - dh*F(T) = 0 (Dirichlet rows: T = T_set(t)) by Newton.
+
+    Returns True on convergence; T holds the solution and F/Cap/H/J the values there.
+    """
+    N = node_i.shape[0]
+    nun = T.shape[0]
+    has_ch = ch_i[0] == 1
+    for i in range(nun):
+        T[i] = Tguess[i]
+    nd = dirich_node.shape[0]
+    for k in range(nd):
+        T[dirich_node[k]] = sched_eval(s_off, stab, dirich_sched[k], t, True)
+    prev = 1e300
+    for it in range(12):
+        assemble(T, t, True, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+                 s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc,
+                 hr, extra)
+        stats[ST_ASSEMBLE] += 1
+        for i in range(nun):
+            R[i] = -(H[i] - Hbase[i] - dh * F[i])
+            Jd[i] = Cap[i] - dh * Jd[i]
+            Jl[i] = -dh * Jl[i]
+            Ju[i] = -dh * Ju[i]
+            Jcol[i] = -dh * Jcol[i]
+            Jrow[i] = -dh * Jrow[i]
+        for k in range(nd):
+            i = dirich_node[k]
+            R[i] = 0.0
+            Jd[i] = 1.0
+            Jl[i] = 0.0
+            Ju[i] = 0.0
+            Jcol[i] = 0.0
+        solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
+        stats[ST_NEWTON] += 1
+        mx = 0.0
+        for i in range(nun):
+            a = abs(dx[i])
+            if not (a < 1e200):
+                return False
+            if a > mx:
+                mx = a
+        lim = 1.0
+        if mx > 200.0:
+            lim = 200.0 / mx
+        for i in range(nun):
+            T[i] += lim * dx[i]
+            if T[i] < 1.0:
+                T[i] = 1.0
+        if mx < tol:
+            # values at the converged point for the caller
+            assemble(T, t, True, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
+                     mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,
+                     Jrow, qf, hc, hr, extra)
+            stats[ST_ASSEMBLE] += 1
+            return True
+        if it >= 3 and mx > 0.7 * prev:
+            return False
+        prev = mx
+    return False
+
+
+@njit(cache=True)
+def _sensor(T, ctl_i, ctl_f):
+    w = ctl_f[5]
+    return w * T[ctl_i[2]] + (1.0 - w) * T[ctl_i[3]]
+
+
+@njit(cache=True)
+def _hermite_cross(y0, y1, d0, d1, h, thr):
+    """Fraction of the step where the cubic Hermite interpolant crosses ``thr`` (bisection)."""
+    a = 0.0
+    b = 1.0
+    fa = y0 - thr
+    for _ in range(40):
+        m = 0.5 * (a + b)
+        s = m
+        h00 = 2 * s ** 3 - 3 * s ** 2 + 1
+        h10 = s ** 3 - 2 * s ** 2 + s
+        h01 = -2 * s ** 3 + 3 * s ** 2
+        h11 = s ** 3 - s ** 2
+        y = h00 * y0 + h10 * h * d0 + h01 * y1 + h11 * h * d1 - thr
+        if (y > 0) == (fa > 0):
+            a = m
+            fa = y
+        else:
+            b = m
+    return 0.5 * (a + b)
+
+
+@njit(cache=True)
+def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_f, chains,
+              face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
+              dirich_node, dirich_sched, dirich_face, ev_i, ev_f, ev_out,
+              T_out, qf_out, E_out, P_out, hc_out, hr_out):
+    """Integrate from ``t_out[k0-1]`` (or the state time) to ``t_out[k1-1]`` by TR-BDF2.
+
+    State carried between calls: T [K], cs (control state, cs[CS_H] the next step [s]),
+    acc (cumulative energies [J]: per face into the wall, then heater, then loss from the
+    chamber), stats.  Outputs are written at rows k0..k1-1.  Breakpoints ``bp`` (sorted times
+    where forcing jumps or kinks) are landed on exactly.  Returns the number of outputs written.
+    ``ev_out[e, 0:2]`` gets the first upward / downward crossing time of event e.
+    """
+    N = node_i.shape[0]
+    nun = T.shape[0]
+    nf = face_i.shape[0]
+    has_ch = ch_i[0] == 1
+    F0 = np.empty(nun)
+    Fg = np.empty(nun)
+    F1 = np.empty(nun)
+    Cap = np.empty(nun)
+    H0 = np.empty(nun)
+    Hg = np.empty(nun)
+    H1 = np.empty(nun)
+    Jd = np.empty(nun)
+    Jl = np.empty(nun)
+    Ju = np.empty(nun)
+    Jcol = np.empty(nun)
+    Jrow = np.empty(nun)
+    R = np.empty(nun)
+    dx = np.empty(nun)
+    wc = np.empty(nun)
+    wy = np.empty(nun)
+    wz = np.empty(nun)
+    Tg = np.empty(nun)
+    T1 = np.empty(nun)
+    Tp = np.empty(nun)
+    Hb = np.empty(nun)
+    C0 = np.empty(nun)
+    q0 = np.empty(nf)
+    qg = np.empty(nf)
+    q1 = np.empty(nf)
+    hcw = np.empty(nf)
+    hrw = np.empty(nf)
+    ex0 = np.zeros(2)
+    exg = np.zeros(2)
+    ex1 = np.zeros(2)
+    nd = dirich_node.shape[0]
+    mode = ctl_i[0]
+    period = ctl_f[0]
+    ev_tol = ctl_f[9]
+    newton_tol = 1e-4 * tol
+    t = acc[acc.shape[0] - 1]     # current time is kept in the last accumulator slot
+    h = cs[CS_H]
+    hmin = 1e-9 * max(1.0, t_out[t_out.shape[0] - 1])
+    nbp = bp.shape[0]
+    ibp = 0
+    while ibp < nbp and bp[ibp] <= t:
+        ibp += 1
+    k = k0
+    nev = ev_i.shape[0]
+    while k < k1:
+        t_target = t_out[k]
+        if ibp < nbp and bp[ibp] < t_target:
+            t_target = bp[ibp]
+        # controller: sampling and switching times
+        u = -1.0
+        if mode == 1 or mode == 3 or mode == 4:
+            if t >= cs[CS_NEXT] - 1e-9 * period:
+                sp = 0.0
+                if mode == 1:
+                    ufrac = sched_eval(s_off, stab, ctl_i[5], t, False)
+                else:
+                    y = _sensor(T, ctl_i, ctl_f)
+                    sp = sched_eval(s_off, stab, ctl_i[6], t, False)
+                    e = sp - y
+                    de = 0.0
+                    if cs[CS_PREV] > -1e299:
+                        de = (e - cs[CS_PREV]) / period
+                    ui = cs[CS_INT] + ctl_f[3] * e * period
+                    ufrac = ctl_f[2] * e + ui + ctl_f[4] * de
+                    # anti-windup: integrate only while unsaturated or when it unwinds
+                    if (ufrac < 1.0 and ufrac > 0.0) or (ufrac >= 1.0 and e < 0) or (ufrac <= 0.0 and e > 0):
+                        cs[CS_INT] = ui
+                    if ufrac > 1.0:
+                        ufrac = 1.0
+                    if ufrac < 0.0:
+                        ufrac = 0.0
+                    cs[CS_PREV] = e
+                cs[CS_U] = ufrac
+                cs[CS_OFF] = t + ufrac * period
+                cs[CS_NEXT] = t + period
+            if cs[CS_NEXT] < t_target:
+                t_target = cs[CS_NEXT]
+            if mode == 3:
+                u = cs[CS_U]
+            else:
+                if cs[CS_OFF] > t + 1e-9 * period:
+                    u = 1.0
+                    if cs[CS_OFF] < t_target:
+                        t_target = cs[CS_OFF]
+                else:
+                    u = 0.0
+        elif mode == 2:
+            y = _sensor(T, ctl_i, ctl_f)
+            sp = sched_eval(s_off, stab, ctl_i[6], t, False)
+            half = 0.5 * ctl_f[1]
+            if cs[CS_ON] > 0.5 and y >= sp + half - ev_tol:
+                cs[CS_ON] = 0.0
+            elif cs[CS_ON] < 0.5 and y <= sp - half + ev_tol:
+                cs[CS_ON] = 1.0
+            u = cs[CS_ON]
+        # step size
+        hs = h
+        if hs > max_step:
+            hs = max_step
+        rem = t_target - t
+        if hs >= rem * (1.0 - 1e-9):
+            hs = rem
+            land = True
+        else:
+            land = False
+            if hs > 0.5 * rem:
+                hs = 0.5 * rem
+        # values at the start of the step (right limit)
+        assemble(T, t, False, u, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+                 s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, Jd, Jl, Ju, Jcol, Jrow, q0,
+                 hcw, hrw, ex0)
+        stats[ST_ASSEMBLE] += 1
+        accepted = False
+        while not accepted:
+            dh = D_COEF * hs
+            tg = t + GAMMA * hs
+            t1 = t + hs
+            # stage 1: trapezoid over gamma*h
+            for i in range(nun):
+                Hb[i] = H0[i] + dh * F0[i]
+            ok = _newton_stage(Tg, T, tg, dh, Hb, u, dirich_node, dirich_sched, node_i, node_f,
+                               chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i,
+                               ch_f, ctl_i, ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol, Jrow, qg, hcw,
+                               hrw, exg, R, dx, wc, wy, wz, newton_tol, stats)
+            if ok:
+                # stage 2: BDF2 through t, t+gamma*h, t+h
+                for i in range(nun):
+                    Tp[i] = T[i] + (Tg[i] - T[i]) / GAMMA
+                    if Tp[i] < 1.0:
+                        Tp[i] = T[i]
+                    Hb[i] = A2 * Hg[i] - B2 * H0[i]
+                ok = _newton_stage(T1, Tp, t1, dh, Hb, u, dirich_node, dirich_sched, node_i,
+                                   node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off,
+                                   stab, ch_i, ch_f, ctl_i, ctl_f, F1, Cap, H1, Jd, Jl, Ju, Jcol,
+                                   Jrow, q1, hcw, hrw, ex1, R, dx, wc, wy, wz, newton_tol, stats)
+            if not ok:
+                stats[ST_NFAIL] += 1
+                hs *= 0.25
+                land = False
+                if hs < hmin:
+                    stats[ST_STATUS] = 1
+                    stats[ST_T] = t
+                    acc[acc.shape[0] - 1] = t
+                    return k - k0
+                continue
+            # error estimate (Bank et al. 1985), filtered by the stage matrix (Hosea & Shampine 1996)
+            for i in range(nun):
+                R[i] = 2.0 * KERR * hs * (F0[i] / GAMMA - Fg[i] / (GAMMA * (1.0 - GAMMA))
+                                          + F1[i] / (1.0 - GAMMA))
+            for i in range(nun):
+                Jd[i] = Cap[i] - dh * Jd[i]
+                Jl[i] = -dh * Jl[i]
+                Ju[i] = -dh * Ju[i]
+                Jcol[i] = -dh * Jcol[i]
+                Jrow[i] = -dh * Jrow[i]
+            for kk in range(nd):
+                i = dirich_node[kk]
+                R[i] = 0.0
+                Jd[i] = 1.0
+                Jl[i] = 0.0
+                Ju[i] = 0.0
+                Jcol[i] = 0.0
+            solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
+            err = 0.0
+            for i in range(nun):
+                a = abs(dx[i])
+                if a > err:
+                    err = a
+            err /= tol
+            if not (err <= 1.0):
+                stats[ST_REJ] += 1
+                fac = 0.9 * err ** (-1.0 / 3.0) if err < 1e200 else 0.1
+                if fac < 0.2:
+                    fac = 0.2
+                hs *= fac
+                land = False
+                if hs < hmin:
+                    stats[ST_STATUS] = 1
+                    stats[ST_T] = t
+                    acc[acc.shape[0] - 1] = t
+                    return k - k0
+                continue
+            # thermostat: do not step across a switching threshold by more than ev_tol
+            if mode == 2:
+                y0 = _sensor(T, ctl_i, ctl_f)
+                y1 = _sensor(T1, ctl_i, ctl_f)
+                sp1 = sched_eval(s_off, stab, ctl_i[6], t1, True)
+                half = 0.5 * ctl_f[1]
+                thr = sp1 + half if u > 0.5 else sp1 - half
+                over = (y1 - thr) if u > 0.5 else (thr - y1)
+                if over > ev_tol and hs > hmin * 10:
+                    d0 = (y0 - thr)
+                    d1 = (y1 - thr)
+                    frac = 0.5
+                    if d1 != d0:
+                        frac = d0 / (d0 - d1)
+                    if frac < 0.05:
+                        frac = 0.05
+                    if frac > 0.95:
+                        frac = 0.95
+                    hs *= frac
+                    land = False
+                    stats[ST_EVRETRY] += 1
+                    continue
+            accepted = True
+        # accept the step: ledger with the step's quadrature weights
+        for f in range(nf):
+            acc[f] += hs * (W0 * (q0[f] + qg[f]) + W2 * q1[f])
+        for kk in range(nd):
+            i = dirich_node[kk]
+            f = dirich_face[kk]
+            acc[f] += (H1[i] - H0[i]) - hs * (W0 * (F0[i] + Fg[i]) + W2 * F1[i])
+        acc[nf] += hs * (W0 * (ex0[0] + exg[0]) + W2 * ex1[0])
+        acc[nf + 1] += hs * (W0 * (ex0[1] + exg[1]) + W2 * ex1[1])
+        # events (cubic Hermite location within the step)
+        for e in range(nev):
+            a = ev_i[e, 0]
+            b = ev_i[e, 1]
+            w = ev_f[e, 0]
+            thr = ev_f[e, 1]
+            y0 = w * T[a] + (1 - w) * T[b]
+            y1 = w * T1[a] + (1 - w) * T1[b]
+            if (y0 - thr) * (y1 - thr) <= 0.0 and y0 != y1:
+                d0 = w * F0[a] / C0[a] + (1 - w) * F0[b] / C0[b]
+                d1 = w * F1[a] / Cap[a] + (1 - w) * F1[b] / Cap[b]
+                fr = _hermite_cross(y0, y1, d0, d1, hs, thr)
+                col = 0 if y1 > y0 else 1
+                if ev_out[e, col] != ev_out[e, col]:
+                    ev_out[e, col] = t + fr * hs
+        for i in range(nun):
+            T[i] = T1[i]
+        t = t + hs if not land else t_target
+        stats[ST_ACC] += 1
+        if hs < stats[ST_HMIN]:
+            stats[ST_HMIN] = hs
+        if hs > stats[ST_HMAX]:
+            stats[ST_HMAX] = hs
+        # next step size from the error estimate
+        fac = 0.9 * err ** (-1.0 / 3.0) if err > 1e-12 else 5.0
+        if fac > 5.0:
+            fac = 5.0
+        if fac < 0.2:
+            fac = 0.2
+        h = hs * fac
+        cs[CS_H] = h
+        while ibp < nbp and bp[ibp] <= t * (1 + 1e-14):
+            ibp += 1
+        if land and t >= t_out[k] * (1 - 1e-14) - 1e-12:
+            # output row
+            for i in range(nun):
+                T_out[k, i] = T[i]
+            for f in range(nf):
+                q = q1[f]
+                qf_out[k, f] = q
+                hc_out[k, f] = hcw[f]
+                hr_out[k, f] = hrw[f]
+            for kk in range(nd):
+                i = dirich_node[kk]
+                f = dirich_face[kk]
+                # heat flow that holds the face temperature: storage rate minus net conduction
+                qf_out[k, f] = (H1[i] - H0[i]) / hs - F1[i]
+            for j in range(nf + 2):
+                E_out[k, j] = acc[j]
+            P_out[k] = ex1[0]
+            k += 1
+    acc[acc.shape[0] - 1] = t
+    stats[ST_T] = t
+    return k - k0
+
+
+@njit(cache=True)
+def steady(T, t, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab,
+           ch_i, ch_f, ctl_i, ctl_f, dirich_node, dirich_sched, qf, hc, hr, extra, tol, max_iter):
+    """Newton solve of the steady equations F(T) = 0 (Dirichlet rows T = T_set(t)).
+
+    ``T`` holds the initial guess and returns the solution [K].  Returns (iterations, last
+    correction [K]); iterations < 0 means no convergence.
+    """
+    N = node_i.shape[0]
+    nun = T.shape[0]
+    has_ch = ch_i[0] == 1
+    F = np.empty(nun)
+    Cap = np.empty(nun)
+    H = np.empty(nun)
+    Jd = np.empty(nun)
+    Jl = np.empty(nun)
+    Ju = np.empty(nun)
+    Jcol = np.empty(nun)
+    Jrow = np.empty(nun)
+    R = np.empty(nun)
+    dx = np.empty(nun)
+    wc = np.empty(nun)
+    wy = np.empty(nun)
+    wz = np.empty(nun)
+    nd = dirich_node.shape[0]
+    for k in range(nd):
+        T[dirich_node[k]] = sched_eval(s_off, stab, dirich_sched[k], t, False)
+    mx = 0.0
+    for it in range(max_iter):
+        assemble(T, t, False, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+                 s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc,
+                 hr, extra)
+        for i in range(nun):
+            R[i] = F[i]
+            Jd[i] = -Jd[i]
+            Jl[i] = -Jl[i]
+            Ju[i] = -Ju[i]
+            Jcol[i] = -Jcol[i]
+            Jrow[i] = -Jrow[i]
+        for k in range(nd):
+            i = dirich_node[k]
+            R[i] = 0.0
+            Jd[i] = 1.0
+            Jl[i] = 0.0
+            Ju[i] = 0.0
+            Jcol[i] = 0.0
+        solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
+        mx = 0.0
+        for i in range(nun):
+            a = abs(dx[i])
+            if not (a < 1e200):
+                return -1, 1e300
+            if a > mx:
+                mx = a
+        lim = 1.0
+        if mx > 100.0:
+            lim = 100.0 / mx
+        for i in range(nun):
+            T[i] += lim * dx[i]
+            if T[i] < 1.0:
+                T[i] = 1.0
+        if mx < tol:
+            assemble(T, t, False, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
+                     mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,
+                     Jrow, qf, hc, hr, extra)
+            return it + 1, mx
+    return -1, mx

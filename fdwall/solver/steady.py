@@ -1,0 +1,232 @@
+"""Steady state by Newton on the steady equations (no time marching).
+
+With a controlled heater (thermostat or PID) the steady state is the one that holds the
+sensor at the setpoint; the heater fraction that does so is found by a bracketed root solve
+on the heater on-fraction, each evaluation a full Newton solve.  If even full power cannot
+reach the setpoint, the full-power state is returned and flagged.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.optimize import brentq
+
+from ..system import System, build_system
+from . import kernels as K
+from .transient import ConvergenceError
+
+__all__ = ["solve_steady", "SteadyResult"]
+
+
+@dataclass
+class SteadyResult:
+    """A steady state.
+
+    Attributes
+    ----------
+    T : ndarray
+        Temperatures of all unknowns [K].
+    face_flow : ndarray
+        Heat into the wall at each face [W].
+    h_conv, h_rad : ndarray
+        Film coefficients per face [W/m2/K].
+    heater_power : float
+        Heater power [W].
+    duty : float
+        Heater on-fraction needed (controlled heaters) [-].
+    reachable : bool
+        False when full heater power cannot hold the setpoint.
+    iterations : int
+        Newton iterations of the last solve.
+    """
+
+    system: System
+    T: np.ndarray
+    face_flow: np.ndarray
+    h_conv: np.ndarray
+    h_rad: np.ndarray
+    heater_power: float
+    chamber_loss: float
+    duty: float
+    reachable: bool
+    iterations: int
+    time: float
+
+    def wall_T(self, wall: int = 0) -> np.ndarray:
+        """Node temperatures of one wall [K]."""
+        return self.T[self.system.wall_nodes(wall)]
+
+    def x(self, wall: int = 0) -> np.ndarray:
+        """Depth of every node of a wall below its inner face [m]."""
+        m = self.system.meshes[wall]
+        return m.x - m.x[0]
+
+    @property
+    def face_T(self) -> np.ndarray:
+        """Face temperatures [K]."""
+        return self.T[self.system.face_i[:, 0]]
+
+    def interface_T(self, wall: int = 0) -> np.ndarray:
+        """Interface temperatures of a wall [K]."""
+        return self.wall_T(wall)[self.system.meshes[wall].interface_nodes]
+
+    @property
+    def balance(self) -> float:
+        """Net heat into the system at steady state (should be ~0) [W]."""
+        ext = self.system.external
+        return float(self.face_flow[ext].sum() + self.heater_power - self.chamber_loss)
+
+    def summary(self) -> dict:
+        """Headline numbers in SI units."""
+        out = {
+            "faces": {n: {"T_K": float(t), "heat_in_W": float(q), "h_conv_W_m2K": float(hc),
+                          "h_rad_W_m2K": float(hr)}
+                      for n, t, q, hc, hr in zip(self.system.face_names, self.face_T,
+                                                 self.face_flow, self.h_conv, self.h_rad)},
+            "interfaces_K": [[float(v) for v in self.interface_T(j)]
+                             for j in range(len(self.system.meshes))],
+            "heater_power_W": float(self.heater_power),
+            "duty": float(self.duty),
+            "setpoint_reachable": bool(self.reachable),
+            "balance_W": self.balance,
+            "newton_iterations": int(self.iterations),
+        }
+        if self.system.has_chamber:
+            out["chamber_K"] = float(self.T[-1])
+        return out
+
+
+def _guess(sysm: System, t: float) -> np.ndarray:
+    """A starting profile: the mean of the temperatures that drive the faces [K]."""
+    temps = []
+    for f in range(sysm.face_i.shape[0]):
+        for col in (1, 3, 4):
+            s = sysm.face_i[f, col]
+            if s >= 0:
+                temps.append(K.sched_eval(sysm.s_off, sysm.stab, s, t, False))
+    if sysm.has_chamber:
+        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ch_i[2], t, False))
+    if sysm.ctl_i[0] in (2, 3, 4) and sysm.ctl_i[1] >= 0:
+        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], t, False))
+    T0 = float(np.mean(temps)) if temps else 293.15
+    return np.full(sysm.n_unknowns, T0)
+
+
+def _solve(sysm, t, u, T0, tol):
+    nf = sysm.face_i.shape[0]
+    qf, hc, hr, extra = np.empty(nf), np.empty(nf), np.empty(nf), np.zeros(2)
+    T = T0.copy()
+    it, mx = K.steady(T, t, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f,
+                      sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
+                      sysm.ch_f, sysm.ctl_i, sysm.ctl_f, sysm.dirich_node, sysm.dirich_sched,
+                      qf, hc, hr, extra, tol, 200)
+    if it < 0:
+        # continuation: reach the state through a sequence of pseudo-time relaxations
+        T = _continuation(sysm, t, u, T0, tol)
+        it, mx = K.steady(T, t, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
+                          sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab,
+                          sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f, sysm.dirich_node,
+                          sysm.dirich_sched, qf, hc, hr, extra, tol, 200)
+        if it < 0:
+            raise ConvergenceError(
+                f"the steady state did not converge (last correction {mx:.3g} K). The case may "
+                "have no steady state (e.g. a heater with no path for its heat, or all faces "
+                "adiabatic).")
+    # face flow of Dirichlet faces from the node balance
+    F = np.empty(sysm.n_unknowns)
+    scratch = [np.empty(sysm.n_unknowns) for _ in range(7)]
+    K.assemble(T, t, False, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f,
+               sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i, sysm.ch_f,
+               sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
+    for k, i in enumerate(sysm.dirich_node):
+        qf[sysm.dirich_face[k]] = -F[i]
+    return T, qf, hc, hr, extra.copy(), it
+
+
+def _continuation(sysm, t, u, T0, tol):
+    """Backward-Euler pseudo-time steps with growing step (a homotopy towards the steady state)."""
+    T = T0.copy()
+    C = sysm.capacities(T)
+    tau = 1.0
+    nf = sysm.face_i.shape[0]
+    from .kernels import _newton_stage, N_STATS
+    stats = np.zeros(N_STATS)
+    nun = sysm.n_unknowns
+    work = [np.empty(nun) for _ in range(14)]
+    F, Cap, H = np.empty(nun), np.empty(nun), np.empty(nun)
+    qf, hc, hr, extra = np.empty(nf), np.empty(nf), np.empty(nf), np.zeros(2)
+    scratch = [np.empty(nun) for _ in range(7)]
+    for _ in range(200):
+        K.assemble(T, t, False, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
+                   sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab,
+                   sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, Cap, H, *scratch[:5], qf, hc,
+                   hr, extra)
+        Tn = np.empty(nun)
+        ok = _newton_stage(Tn, T, t, tau, H.copy(), u, sysm.dirich_node, sysm.dirich_sched,
+                           sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f,
+                           sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
+                           sysm.ch_f, sysm.ctl_i, sysm.ctl_f, *work[:8], qf, hc, hr, extra,
+                           *work[9:14], tol, stats)
+        if ok:
+            change = np.max(np.abs(Tn - T))
+            T = Tn
+            tau *= 4.0
+            if change < tol:
+                break
+        else:
+            tau *= 0.25
+    return T
+
+
+def solve_steady(case, t=None, system=None, guess=None, tol=1e-9) -> SteadyResult:
+    """Steady state of ``case`` with the boundary conditions of time ``t`` [s].
+
+    Parameters
+    ----------
+    case : Case
+    t : float, optional
+        Time at which schedules are read [s]; default the end of the run.
+    system : System, optional
+        Prebuilt system of ``case``.
+    guess : ndarray, optional
+        Starting temperatures [K].
+    tol : float
+        Newton stopping tolerance on the correction [K].
+    """
+    sysm = system if system is not None else build_system(case)
+    t = case.run.duration if t is None else float(t)
+    T0 = _guess(sysm, t) if guess is None else np.asarray(guess, float)
+    mode = sysm.ctl_i[0]
+    heater = sysm.ctl_i[1] >= 0
+    if not heater:
+        T, qf, hc, hr, ex, it = _solve(sysm, t, 0.0, T0, tol)
+        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, True, it, t)
+    if mode in (0, 1):
+        u = -1.0 if mode == 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[5], t, False)
+        T, qf, hc, hr, ex, it = _solve(sysm, t, u, T0, tol)
+        duty = u if u >= 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[5], t, False)
+        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], duty, True, it, t)
+    # controlled: find u in [0, 1] holding the sensor at the setpoint
+    sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], t, False)
+    w = sysm.ctl_f[5]
+    a, b = sysm.ctl_i[2], sysm.ctl_i[3]
+    cache = {}
+
+    def gap(u):
+        sol = _solve(sysm, t, u, cache.get("T", T0), tol)
+        cache["T"] = sol[0]
+        cache[u] = sol
+        return w * sol[0][a] + (1 - w) * sol[0][b] - sp
+
+    g1 = gap(1.0)
+    if g1 < 0:
+        T, qf, hc, hr, ex, it = cache[1.0]
+        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 1.0, False, it, t)
+    g0 = gap(0.0)
+    if g0 >= 0:
+        T, qf, hc, hr, ex, it = cache[0.0]
+        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, True, it, t)
+    u = brentq(gap, 0.0, 1.0, xtol=1e-12, rtol=1e-12)
+    T, qf, hc, hr, ex, it = _solve(sysm, t, u, cache["T"], tol)
+    return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], u, True, it, t)

@@ -1,0 +1,201 @@
+"""Transient runs: TR-BDF2 with error control, driven from Python in output-sized chunks.
+
+The whole time loop (step control, Newton, controller, ledger, events) runs inside the
+compiled kernel :func:`fdwall.solver.kernels.integrate`; this module prepares arrays, calls it
+(in several chunks when a run is long enough to deserve a progress bar), and wraps the output
+in a :class:`fdwall.result.Result`.
+"""
+from __future__ import annotations
+
+import time as _time
+
+import numpy as np
+
+from ..model import Case
+from ..system import System, build_system
+from . import kernels as K
+
+__all__ = ["run", "output_times", "ConvergenceError"]
+
+
+class ConvergenceError(RuntimeError):
+    """The solver could not continue; ``result`` holds what was computed (incomplete)."""
+
+    def __init__(self, message, result=None):
+        super().__init__(message)
+        self.result = result
+
+
+def output_times(case: Case) -> np.ndarray:
+    """Output times of a run [s]: 0, every output interval, the profile times, the end."""
+    r = case.run
+    dt = r.output_interval or r.duration / 200.0
+    n = int(np.floor(r.duration / dt + 1e-9))
+    t = np.concatenate([np.arange(n + 1) * dt, [r.duration], list(r.profile_times)])
+    t = np.unique(np.round(t[(t >= 0) & (t <= r.duration)], 9))
+    return t
+
+
+def _event_rows(system: System, case: Case):
+    evs = case.run.events
+    ev_i = np.zeros((len(evs), 2), dtype=np.int64)
+    ev_f = np.zeros((len(evs), 2))
+    from ..system import locate_depth
+    for e, ev in enumerate(evs):
+        j = ev.wall
+        if not 0 <= j < len(system.meshes):
+            from ..model import ModelError
+            raise ModelError(f"event '{ev.name}': wall index {j} does not exist")
+        m, o = system.meshes[j], system.offsets[j]
+        wall = case.wall_list[j]
+        if ev.where == "inner":
+            a = b = o
+            w = 1.0
+        elif ev.where == "outer":
+            a = b = o + m.n - 1
+            w = 1.0
+        elif ev.where.startswith("interface:"):
+            n = int(ev.where.split(":")[1])
+            if not 1 <= n <= len(m.interface_nodes):
+                from ..model import ModelError
+                raise ModelError(f"event '{ev.name}': interface {n} does not exist "
+                                 f"(1..{len(m.interface_nodes)})")
+            a = b = o + m.interface_nodes[n - 1]
+            w = 1.0
+        else:
+            a, b, w = locate_depth(wall, m, ev.depth)
+            a, b = a + o, b + o
+        ev_i[e] = (a, b)
+        ev_f[e] = (w, ev.threshold)
+    return ev_i, ev_f
+
+
+def run(case, initial=None, progress=None, strict=True, system=None):
+    """Run a transient case.
+
+    Parameters
+    ----------
+    case : Case
+        The problem.
+    initial : float or ndarray, optional
+        Initial temperature(s) [K]: overrides ``case.run.initial``; a vector gives one value
+        per unknown (e.g. ``result.T[-1]`` of an earlier run).
+    progress : bool, optional
+        Show a progress bar; default: only when the run takes longer than about 1.5 s.
+    strict : bool
+        Raise :class:`ConvergenceError` (with the partial result attached) if the solver
+        fails; otherwise return the partial result with ``complete = False``.
+    system : System, optional
+        A system already built from ``case`` (saves rebuilding when running variants).
+
+    Returns
+    -------
+    fdwall.result.Result
+    """
+    from ..result import Result
+    sysm = system if system is not None else build_system(case)
+    r = case.run
+    t_out = output_times(case)
+    nun = sysm.n_unknowns
+    nf = sysm.face_i.shape[0]
+    T = sysm.initial_vector(r.initial if initial is None else initial)
+    for k, i in enumerate(sysm.dirich_node):
+        T[i] = K.sched_eval(sysm.s_off, sysm.stab, sysm.dirich_sched[k], 0.0, False)
+    n_out = t_out.size
+    T_out = np.full((n_out, nun), np.nan)
+    qf_out = np.full((n_out, nf), np.nan)
+    E_out = np.full((n_out, nf + 2), np.nan)
+    P_out = np.full(n_out, np.nan)
+    hc_out = np.full((n_out, nf), np.nan)
+    hr_out = np.full((n_out, nf), np.nan)
+    # row 0: the initial state
+    F = np.empty(nun)
+    extra = np.zeros(2)
+    scratch = [np.empty(nun) for _ in range(7)]
+    qf, hc, hr = np.empty(nf), np.empty(nf), np.empty(nf)
+    ctl = sysm.ctl_i
+    u0 = _initial_u(sysm, T)
+    K.assemble(T, 0.0, False, u0, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
+               sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
+               sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
+    T_out[0] = T
+    qf_out[0] = qf
+    hc_out[0], hr_out[0] = hc, hr
+    E_out[0] = 0.0
+    P_out[0] = extra[0]
+    cs = np.zeros(K.N_CS)
+    cs[K.CS_H] = min(1.0, r.duration * 1e-4, t_out[1] if n_out > 1 else r.duration)
+    cs[K.CS_NEXT] = 0.0
+    cs[K.CS_PREV] = -1e300
+    cs[K.CS_ON] = 1.0 if u0 > 0.5 else 0.0
+    acc = np.zeros(nf + 3)
+    stats = np.zeros(K.N_STATS)
+    stats[K.ST_HMIN] = np.inf
+    ev_i, ev_f = _event_rows(sysm, case)
+    ev_out = np.full((len(ev_i), 2), np.nan)
+    max_step = r.max_step if r.max_step is not None else np.inf
+    args = (t_out, None, None, sysm.breakpoints, r.tolerance, max_step, sysm.node_i,
+            sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f, sysm.hpar, sysm.m_off,
+            sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f,
+            sysm.dirich_node, sysm.dirich_sched, sysm.dirich_face, ev_i, ev_f, ev_out, T_out,
+            qf_out, E_out, P_out, hc_out, hr_out)
+    k = 1
+    bar = None
+    t0 = _time.perf_counter()
+    chunk = 1
+    failed = False
+    try:
+        while k < n_out:
+            k1 = min(n_out, k + chunk)
+            a = list(args)
+            a[1], a[2] = k, k1
+            done = K.integrate(T, cs, acc, stats, *a)
+            k += done
+            if stats[K.ST_STATUS] != 0:
+                failed = True
+                break
+            el = _time.perf_counter() - t0
+            frac = t_out[k - 1] / r.duration
+            if bar is None and progress is not False and k < n_out:
+                projected = el / max(frac, 1e-9)
+                if progress or projected > 1.5:
+                    from tqdm import tqdm
+                    bar = tqdm(total=n_out - 1, unit="out", desc=case.name, leave=False)
+                    bar.update(k - 1)
+                else:
+                    chunk = n_out  # fast run: finish in one call
+            elif bar is not None:
+                bar.update(done)
+            if bar is not None:
+                per = el / max(k - 1, 1)
+                chunk = max(1, int(0.2 / max(per, 1e-9)))
+    finally:
+        if bar is not None:
+            bar.close()
+    res = Result.from_run(case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out,
+                          stats, ev_out, complete=not failed,
+                          wall_time=_time.perf_counter() - t0)
+    if failed:
+        msg = (f"the solver could not converge at t = {stats[K.ST_T]:.6g} s "
+               f"({stats[K.ST_T] / 3600:.4g} h): the time step fell below its floor. "
+               "Results up to that time are kept and marked incomplete. Check for unphysical "
+               "inputs (huge film coefficients or fluxes, a heater with no path for its heat).")
+        res.message = msg
+        if strict:
+            raise ConvergenceError(msg, res)
+    return res
+
+
+def _initial_u(sysm, T):
+    """Heater fraction at t = 0 for the initial assembly [-]."""
+    mode = sysm.ctl_i[0]
+    if sysm.ctl_i[1] < 0:
+        return 0.0
+    if mode == 0:
+        return -1.0
+    if mode == 2:
+        w = sysm.ctl_f[5]
+        y = w * T[sysm.ctl_i[2]] + (1 - w) * T[sysm.ctl_i[3]]
+        sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], 0.0, False)
+        return 1.0 if y < sp else 0.0
+    return 0.0

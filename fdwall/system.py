@@ -1,0 +1,385 @@
+"""Turn a :class:`fdwall.model.Case` into the plain arrays the kernels work on.
+
+This is the only place where model objects meet kernel array layouts (documented in
+:mod:`fdwall.solver.kernels`).  The assembled :class:`System` also answers questions that
+analyses need without running anything: node positions, the conductance of every link, the
+heat capacity of every node, and the wall's lumped resistance and capacity.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .mesh import mesh_wall
+from .model import Case, Face, ModelError
+from .schedule import Schedule
+
+__all__ = ["System", "build_system"]
+
+MODE_CODES = {"fixed": 0, "duty": 1, "thermostat": 2, "pid": 3}
+
+
+class _Tables:
+    """Collects material tables and schedules into flat arrays, de-duplicated."""
+
+    def __init__(self):
+        self.mats, self.mat_keys = [], {}
+        self.scheds, self.sched_keys = [], {}
+
+    def material(self, m) -> int:
+        key = id(m)
+        if key in self.mat_keys:
+            return self.mat_keys[key]
+        T, k, cp = m.tables()
+        T = np.asarray(T, float)
+        self._add_mat(key, T, np.asarray(k, float), np.asarray(cp, float) * float(m.rho))
+        return self.mat_keys[key]
+
+    def capacity(self, cap) -> int:
+        """A chamber capacity [J/K] (number or table against T) as a unit-volume material."""
+        if isinstance(cap, Schedule):
+            T, c = np.asarray(cap.times), np.asarray(cap.values)
+            if T.size == 1:
+                T, c = np.array([1.0, 6000.0]), np.array([c[0], c[0]])
+        else:
+            T, c = np.array([1.0, 6000.0]), np.array([float(cap)] * 2)
+        self._add_mat(("cap", id(cap), len(self.mats)), T, np.zeros_like(c), c)
+        return len(self.mats) - 1
+
+    def _add_mat(self, key, T, k, c):
+        if T.size < 2:
+            T, k, c = np.array([1.0, 6000.0]), np.repeat(k, 2), np.repeat(c, 2)
+        K = np.concatenate([[0.0], np.cumsum(0.5 * (k[1:] + k[:-1]) * np.diff(T))])
+        H = np.concatenate([[0.0], np.cumsum(0.5 * (c[1:] + c[:-1]) * np.diff(T))])
+        self.mats.append(np.vstack([T, k, K, c, H]))
+        self.mat_keys[key] = len(self.mats) - 1
+
+    def schedule(self, s) -> int:
+        if s is None:
+            return -1
+        s = Schedule.coerce(s)
+        key = (s.times, s.values)
+        if key not in self.sched_keys:
+            self.scheds.append(np.vstack([np.asarray(s.times), np.asarray(s.values)]))
+            self.sched_keys[key] = len(self.scheds) - 1
+        return self.sched_keys[key]
+
+    def pack(self):
+        def flat(lst, rows):
+            off = np.zeros(len(lst) + 1, dtype=np.int64)
+            for i, a in enumerate(lst):
+                off[i + 1] = off[i] + a.shape[1]
+            tab = np.hstack(lst) if lst else np.zeros((rows, 1))
+            return off, np.ascontiguousarray(tab)
+        m_off, mtab = flat(self.mats, 5)
+        s_off, stab = flat(self.scheds, 2)
+        return m_off, mtab, s_off, stab
+
+
+@dataclass
+class System:
+    """The assembled arrays of a case plus the bookkeeping to read results back.
+
+    Attributes (arrays follow :mod:`fdwall.solver.kernels`)
+    ----------
+    meshes : list of WallMesh, one per wall
+    offsets : first global node of each wall
+    n_nodes : wall nodes N; the chamber, if any, is unknown N
+    face_names : label of each face ('<wall>:inner', '<wall>:outer')
+    external : bool per face: heat crossing it enters the system from outside
+    """
+
+    case: Case
+    meshes: list
+    offsets: list
+    n_nodes: int
+    node_i: np.ndarray
+    node_f: np.ndarray
+    chains: np.ndarray
+    face_i: np.ndarray
+    face_f: np.ndarray
+    hpar: np.ndarray
+    m_off: np.ndarray
+    mtab: np.ndarray
+    s_off: np.ndarray
+    stab: np.ndarray
+    ch_i: np.ndarray
+    ch_f: np.ndarray
+    ctl_i: np.ndarray
+    ctl_f: np.ndarray
+    dirich_node: np.ndarray
+    dirich_sched: np.ndarray
+    dirich_face: np.ndarray
+    breakpoints: np.ndarray
+    face_names: list
+    external: np.ndarray
+    layer_of_half: np.ndarray = field(default=None)   # (N, 2) global layer id per half, -1 none
+    layer_names: list = field(default_factory=list)   # "<wall>/<layer>" per global layer id
+    layer_wall: list = field(default_factory=list)    # wall index per global layer id
+
+    @property
+    def has_chamber(self) -> bool:
+        """True when the system has a chamber node."""
+        return bool(self.ch_i[0])
+
+    @property
+    def n_unknowns(self) -> int:
+        """Number of unknown temperatures (wall nodes plus the chamber) [-]."""
+        return self.n_nodes + int(self.ch_i[0])
+
+    def wall_nodes(self, j: int) -> slice:
+        """Global node range of wall ``j``."""
+        return slice(self.offsets[j], self.offsets[j] + self.meshes[j].n)
+
+    def initial_vector(self, initial) -> np.ndarray:
+        """Initial temperatures of all unknowns [K] from a number or a full vector."""
+        a = np.asarray(initial, dtype=float)
+        if a.ndim == 0:
+            return np.full(self.n_unknowns, float(a))
+        if a.shape != (self.n_unknowns,):
+            raise ModelError(f"an initial profile must have one temperature per unknown "
+                             f"({self.n_unknowns}), got shape {a.shape}")
+        return a.copy()
+
+    def conductances(self, T=None) -> np.ndarray:
+        """Conductance of each link i -> i+1 [W/K] at temperatures ``T`` [K] (default 293.15 K).
+
+        Links after the last node of a wall are 0.  Uses the Kirchhoff mean conductivity.
+        """
+        from .solver.kernels import mat_eval
+        T = np.full(self.n_nodes, 293.15) if T is None else np.asarray(T, float)
+        G = np.zeros(self.n_nodes)
+        for i in range(self.n_nodes):
+            lm = self.node_i[i, 2]
+            if lm == -2:
+                continue
+            if lm == -1:
+                G[i] = self.node_f[i, 2]
+                continue
+            a, b = T[i], T[i + 1]
+            if abs(a - b) < 1e-9:
+                k = mat_eval(self.m_off, self.mtab, lm, a)[0]
+            else:
+                k = (mat_eval(self.m_off, self.mtab, lm, a)[1] - mat_eval(self.m_off, self.mtab, lm, b)[1]) / (a - b)
+            G[i] = self.node_f[i, 2] * k
+        return G
+
+    def capacities(self, T=None) -> np.ndarray:
+        """Heat capacity of every unknown [J/K] at temperatures ``T`` [K] (default 293.15 K)."""
+        from .solver.kernels import mat_eval
+        n = self.n_unknowns
+        T = np.full(n, 293.15) if T is None else np.asarray(T, float)
+        C = np.zeros(n)
+        for i in range(self.n_nodes):
+            for side in (0, 1):
+                m = self.node_i[i, side]
+                if m >= 0:
+                    C[i] += self.node_f[i, side] * mat_eval(self.m_off, self.mtab, m, T[i])[2]
+        if self.has_chamber:
+            C[-1] = mat_eval(self.m_off, self.mtab, self.ch_i[1], T[-1])[2]
+        return C
+
+    def enthalpy(self, T) -> np.ndarray:
+        """Enthalpy of each node half [J] for temperatures ``T`` (n_out, n_unknowns) [K].
+
+        Returns an array (n_out, N, 2) for wall node halves and (n_out,) for the chamber.
+        """
+        from .solver.post import half_enthalpy
+        T = np.atleast_2d(np.asarray(T, float))
+        Hh, Hc = half_enthalpy(T, self.node_i, self.node_f, self.m_off, self.mtab, self.ch_i)
+        return Hh, Hc
+
+
+def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_obj, label):
+    """Kernel rows for one face."""
+    from .physics.convection import PAR_LEN
+    fi = np.full(8, -1, dtype=np.int64)
+    ff = np.zeros(2)
+    par = np.zeros(PAR_LEN)
+    fi[0] = node
+    ff[0] = area
+    fi[6] = 1 if to_chamber else 0
+    fi[7] = 0
+    if face.temperature is not None:
+        fi[1] = tb.schedule(face.temperature)
+        return fi, ff, par
+    fi[2] = tb.schedule(face.flux)
+    conv = conv_obj if to_chamber else face.convection
+    if conv is not None:
+        if not to_chamber and face.fluid is None:
+            raise ModelError(f"{label}: convection needs a fluid temperature")
+        if isinstance(conv, (int, float)):
+            ff[1] = float(conv)
+        else:
+            fi[7] = 1
+            par[:] = conv.to_par()
+    fi[3] = -1 if to_chamber else tb.schedule(face.fluid)
+    eps = face.emissivity
+    if eps is not None:
+        fi[5] = tb.schedule(eps)
+        if not to_chamber:
+            if face.surroundings is None and face.fluid is None:
+                raise ModelError(f"{label}: radiation needs a surroundings (or fluid) temperature")
+            fi[4] = tb.schedule(face.surroundings) if face.surroundings is not None else fi[3]
+    return fi, ff, par
+
+
+def build_system(case: Case) -> System:
+    """Assemble the kernel arrays for ``case``."""
+    tb = _Tables()
+    walls = case.wall_list
+    meshes = [mesh_wall(w) for w in walls]
+    offsets = list(np.cumsum([0] + [m.n for m in meshes])[:-1])
+    N = int(sum(m.n for m in meshes))
+    node_i = np.zeros((N, 3), dtype=np.int64)
+    node_f = np.zeros((N, 3))
+    layer_of_half = np.full((N, 2), -1, dtype=np.int64)
+    layer_names, layer_wall = [], []
+    chains = np.zeros((len(walls), 2), dtype=np.int64)
+    for j, (w, m) in enumerate(zip(walls, meshes)):
+        o = offsets[j]
+        mids = [tb.material(l.material) for l in w.layers]
+        lid0 = len(layer_names)
+        for l in w.layers:
+            layer_names.append(f"{w.name}/{l.label}")
+            layer_wall.append(j)
+        for i in range(m.n):
+            node_i[o + i, 0] = mids[m.layer_of_node_left[i]] if m.layer_of_node_left[i] >= 0 else -1
+            node_i[o + i, 1] = mids[m.layer_of_node_right[i]] if m.layer_of_node_right[i] >= 0 else -1
+            ll = m.link_layer[i]
+            node_i[o + i, 2] = mids[ll] if ll >= 0 else ll
+            node_f[o + i] = (m.vol_left[i], m.vol_right[i], m.link_g[i])
+            layer_of_half[o + i, 0] = lid0 + m.layer_of_node_left[i] if m.layer_of_node_left[i] >= 0 else -1
+            layer_of_half[o + i, 1] = lid0 + m.layer_of_node_right[i] if m.layer_of_node_right[i] >= 0 else -1
+        chains[j] = (o, o + m.n - 1)
+    # faces
+    rows_i, rows_f, rows_p, names, external = [], [], [], [], []
+    if case.is_enclosure:
+        for j, ew in enumerate(case.walls):
+            w, m, o = ew.wall, meshes[j], offsets[j]
+            inner = Face(emissivity=ew.inner_emissivity)
+            for side, face, node, area, to_ch in (
+                    ("inner", inner, o, w.inner_area, True),
+                    ("outer", ew.outer, o + m.n - 1, w.outer_area, False)):
+                label = f"wall '{w.name}' {side} face"
+                fi, ff, par = _face_arrays(tb, face, node, area, to_ch, ew.inner_h, label)
+                rows_i.append(fi), rows_f.append(ff), rows_p.append(par)
+                names.append(f"{w.name}:{side}")
+                external.append(not to_ch)
+    else:
+        w, m = walls[0], meshes[0]
+        for side, face, node, area in (("inner", case.inner, 0, w.inner_area),
+                                       ("outer", case.outer, m.n - 1, w.outer_area)):
+            fi, ff, par = _face_arrays(tb, face, node, area, False, None, f"{side} face")
+            rows_i.append(fi), rows_f.append(ff), rows_p.append(par)
+            names.append(f"{w.name}:{side}")
+            external.append(True)
+    face_i = np.array(rows_i, dtype=np.int64)
+    face_f = np.array(rows_f)
+    hpar = np.array(rows_p)
+    dn = [(face_i[f, 0], face_i[f, 1], f) for f in range(len(face_i)) if face_i[f, 1] >= 0]
+    dirich_node = np.array([d[0] for d in dn], dtype=np.int64)
+    dirich_sched = np.array([d[1] for d in dn], dtype=np.int64)
+    dirich_face = np.array([d[2] for d in dn], dtype=np.int64)
+    # chamber
+    ch_i = np.zeros(3, dtype=np.int64)
+    ch_f = np.zeros(1)
+    if case.chamber is not None:
+        ch = case.chamber
+        ch_i[:] = (1, tb.capacity(ch.capacity), tb.schedule(ch.ambient))
+        ch_f[0] = ch.leakage_ua + ch.extra_ua
+    # heater and control
+    ctl_i = np.full(10, -1, dtype=np.int64)
+    ctl_f = np.zeros(10)
+    ctl = case.control
+    ctl_i[0] = MODE_CODES[ctl.mode]
+    if ctl.mode == "duty" and not ctl.switched:
+        ctl_i[0] = 0
+    if ctl.mode == "pid":
+        ctl_i[0] = 4 if ctl.switched else 3
+    ctl_i[1] = -1
+    hz = case.heater
+    if hz is not None:
+        if hz.location == "chamber":
+            ctl_i[1] = N
+        else:
+            if not 0 <= hz.wall < len(walls):
+                raise ModelError(f"heater wall index {hz.wall} does not exist (0..{len(walls) - 1})")
+            m = meshes[hz.wall]
+            if hz.location == "inner":
+                ctl_i[1] = offsets[hz.wall]
+            else:
+                if not 0 <= hz.interface < len(m.interface_nodes):
+                    raise ModelError(f"heater interface {hz.interface} does not exist in wall "
+                                     f"'{walls[hz.wall].name}' (0..{len(m.interface_nodes) - 1})")
+                ctl_i[1] = offsets[hz.wall] + m.interface_nodes[hz.interface]
+        ctl_i[4] = tb.schedule(hz.power)
+        ctl_f[6] = hz.alpha
+        ctl_f[7] = hz.t_ref
+        ctl_f[8] = hz.voltage_ratio ** 2
+    ctl_i[5] = tb.schedule(ctl.duty)
+    ctl_i[6] = tb.schedule(ctl.setpoint) if ctl.setpoint is not None else tb.schedule(0.0)
+    ctl_i[7] = tb.schedule(ctl.enable)
+    if ctl.sensor == "chamber" and case.chamber is not None:
+        ctl_i[2] = ctl_i[3] = N
+        ctl_f[5] = 1.0
+    else:
+        j = ctl.sensor_wall
+        if not 0 <= j < len(walls):
+            raise ModelError(f"sensor wall index {j} does not exist")
+        a, b, wgt = locate_depth(walls[j], meshes[j], ctl.sensor_depth)
+        ctl_i[2], ctl_i[3], ctl_f[5] = offsets[j] + a, offsets[j] + b, wgt
+    ctl_f[0] = ctl.period
+    ctl_f[1] = ctl.band
+    ctl_f[2], ctl_f[3], ctl_f[4] = ctl.kp, ctl.ki, ctl.kd
+    ctl_f[9] = min(0.02, max(1e-3, 0.02 * ctl.band))
+    # breakpoints: every knot of every time schedule
+    bps = set()
+    for s in _time_schedules(case):
+        bps.update(s.breakpoints())
+    dur = case.run.duration
+    bp = np.array(sorted(t for t in bps if 0.0 < t < dur))
+    m_off, mtab, s_off, stab = tb.pack()
+    return System(case=case, meshes=meshes, offsets=[int(o) for o in offsets], n_nodes=N,
+                  node_i=node_i, node_f=node_f, chains=chains, face_i=face_i, face_f=face_f,
+                  hpar=hpar, m_off=m_off, mtab=mtab, s_off=s_off, stab=stab, ch_i=ch_i,
+                  ch_f=ch_f, ctl_i=ctl_i, ctl_f=ctl_f, dirich_node=dirich_node,
+                  dirich_sched=dirich_sched, dirich_face=dirich_face, breakpoints=bp,
+                  face_names=names, external=np.array(external), layer_of_half=layer_of_half,
+                  layer_names=layer_names, layer_wall=layer_wall)
+
+
+def locate_depth(wall, mesh, depth):
+    """Nodes a, b and weight on a for a point ``depth`` [m] below the inner face."""
+    if not 0.0 <= depth <= wall.thickness * (1 + 1e-12):
+        raise ModelError(f"depth {depth:g} m lies outside wall '{wall.name}' "
+                         f"(0 to {wall.thickness:g} m)")
+    x = mesh.x - mesh.x[0]
+    b = int(np.searchsorted(x, depth, side="left"))
+    b = min(max(b, 1), len(x) - 1)
+    a = b - 1
+    if x[b] == x[a]:
+        return a, b, 1.0
+    w = (x[b] - depth) / (x[b] - x[a])
+    return a, b, float(np.clip(w, 0.0, 1.0))
+
+
+def _time_schedules(case):
+    faces = []
+    if case.is_enclosure:
+        faces = [ew.outer for ew in case.walls]
+        if case.chamber is not None:
+            yield case.chamber.ambient
+    else:
+        faces = [case.inner, case.outer]
+    for f in faces:
+        for s in (f.temperature, f.flux, f.fluid, f.surroundings):
+            if s is not None:
+                yield s
+    if case.heater is not None:
+        yield case.heater.power
+    c = case.control
+    for s in (c.duty, c.enable, c.setpoint):
+        if s is not None:
+            yield s
