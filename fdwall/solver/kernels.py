@@ -49,8 +49,8 @@ KERR = (-3.0 * GAMMA ** 2 + 4.0 * GAMMA - 2.0) / (12.0 * (2.0 - GAMMA))
 ST_ACC, ST_REJ, ST_NFAIL, ST_NEWTON, ST_EVRETRY, ST_STATUS, ST_T, ST_HMIN, ST_HMAX, ST_ASSEMBLE = range(10)
 N_STATS = 10
 # control-state layout
-CS_U, CS_ON, CS_INT, CS_PREV, CS_NEXT, CS_OFF, CS_H, CS_SENSOR = range(8)
-N_CS = 8
+CS_U, CS_ON, CS_INT, CS_PREV, CS_NEXT, CS_OFF, CS_H, CS_UPREV, CS_HSW = range(9)
+N_CS = 9
 
 
 @njit(cache=True)
@@ -568,7 +568,11 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
             elif cs[CS_ON] < 0.5 and y <= sp - half + ev_tol:
                 cs[CS_ON] = 1.0
             u = cs[CS_ON]
-        # step size
+        # step size; after the heater switches, restart from the step that worked last time
+        switched = u != cs[CS_UPREV] and mode != 0
+        cs[CS_UPREV] = u
+        if switched and h > cs[CS_HSW]:
+            h = cs[CS_HSW]
         hs = h
         if hs > max_step:
             hs = max_step
@@ -678,6 +682,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
                     stats[ST_EVRETRY] += 1
                     continue
             accepted = True
+        if switched:
+            cs[CS_HSW] = hs
         # accept the step: ledger with the step's quadrature weights
         for f in range(nf):
             acc[f] += hs * (W0 * (q0[f] + qg[f]) + W2 * q1[f])

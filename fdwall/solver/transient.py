@@ -128,6 +128,8 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     cs[K.CS_NEXT] = 0.0
     cs[K.CS_PREV] = -1e300
     cs[K.CS_ON] = 1.0 if u0 > 0.5 else 0.0
+    cs[K.CS_UPREV] = -2.0
+    cs[K.CS_HSW] = cs[K.CS_H]
     acc = np.zeros(nf + 3)
     stats = np.zeros(K.N_STATS)
     stats[K.ST_HMIN] = np.inf
@@ -158,7 +160,8 @@ def run(case, initial=None, progress=None, strict=True, system=None):
             frac = t_out[k - 1] / r.duration
             if bar is None and progress is not False and k < n_out:
                 projected = el / max(frac, 1e-9)
-                if progress or projected > 1.5:
+                import sys
+                if progress or (projected > 1.5 and progress is None and sys.stderr.isatty()):
                     from tqdm import tqdm
                     bar = tqdm(total=n_out - 1, unit="out", desc=case.name, leave=False)
                     bar.update(k - 1)
