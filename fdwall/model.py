@@ -17,7 +17,7 @@ import numpy as np
 from .schedule import Schedule
 
 __all__ = [
-    "Layer", "Wall", "Face", "Chamber", "Heater", "Control", "EnclosureWall", "Event",
+    "Layer", "Wall", "Face", "Chamber", "Heater", "Control", "EnclosureWall", "Bridge", "Event",
     "RunSettings", "Case", "ModelError",
 ]
 
@@ -246,12 +246,19 @@ class Chamber:
         Air flow through the chamber [m3/s], at room conditions (ventilation, leaks).
     extra_ua : float
         Further fixed losses as a conductance to ambient [W/K].
+    box : tuple of float, optional
+        Inner width, depth and height of a box-shaped enclosure [m].  When given, the
+        conduction through the 12 edges and 8 corners is added by the conduction shape
+        factors S_edge = 0.54 D and S_corner = 0.15 L (Incropera, Fundamentals of Heat and
+        Mass Transfer, Table 4.1, cases 8 and 9; valid for inner dimensions > L/5), spread
+        over the slab walls as an area factor.
     """
 
     capacity: Union[float, Schedule]
     ambient: Schedule = 293.15
     leakage: float = 0.0
     extra_ua: float = 0.0
+    box: Optional[tuple] = None
 
     def __post_init__(self):
         cap = self.capacity
@@ -261,6 +268,12 @@ class Chamber:
         object.__setattr__(self, "ambient", _sched("chamber ambient", self.ambient, True))
         _pos("chamber leakage flow", self.leakage, allow_zero=True)
         _pos("chamber extra UA", self.extra_ua, allow_zero=True)
+        if self.box is not None:
+            if len(self.box) != 3:
+                raise ModelError("chamber box needs three inner dimensions (width, depth, height) [m]")
+            for x in self.box:
+                _pos("chamber box dimension", float(x))
+            object.__setattr__(self, "box", tuple(float(x) for x in self.box))
 
     @property
     def leakage_ua(self) -> float:
@@ -376,6 +389,40 @@ class Control:
 
 
 @dataclass(frozen=True)
+class Bridge:
+    """A thermal bridge through a wall, by the parallel-path method.
+
+    A fraction of the wall area is taken by framing, studs or anchors of ``material`` that
+    replace the listed ``layers`` (usually the insulation).  fdwall then solves two 1-D
+    walls side by side (the clear wall on ``1 - fraction`` of the area, the bridged path on
+    ``fraction``) sharing the same face conditions, and reports the bridge's share of the heat
+    flow.  Limits: the two paths exchange no heat sideways, so lateral spreading in the skins
+    is not resolved: conductive skins feed heat into a bridge from the clear wall around it,
+    which this estimate misses.  Use it for bridges that are wide against the wall
+    thickness, and treat small metal pins with care (ISO 6946 combines this
+    upper bound with an isothermal-planes lower bound; from memory).
+
+    Parameters
+    ----------
+    fraction : float
+        Area fraction of the bridged path [-], 0 < fraction < 1.
+    material : fdwall.materials.Material
+        Bridging material.
+    layers : tuple of int
+        0-based indices of the layers the bridge replaces.
+    """
+
+    fraction: float
+    material: object
+    layers: tuple = (1,)
+
+    def __post_init__(self):
+        if not 0.0 < self.fraction < 1.0:
+            raise ModelError(f"bridge area fraction must lie strictly between 0 and 1, got {self.fraction}")
+        object.__setattr__(self, "layers", tuple(int(i) for i in self.layers))
+
+
+@dataclass(frozen=True)
 class EnclosureWall:
     """One wall assembly of an enclosure: its construction, its outer face and how many alike.
 
@@ -389,12 +436,24 @@ class EnclosureWall:
         Film coefficient to the chamber air [W/m2/K] or a correlation.
     inner_emissivity : float, optional
         Emissivity of the inner face for radiation exchange with the chamber contents [-].
+    bridge : Bridge, optional
+        A thermal bridge through the wall (parallel-path method).
     """
 
     wall: Wall
     outer: Face
     inner_h: Union[float, object] = 10.0
     inner_emissivity: Optional[float] = None
+    bridge: Optional[Bridge] = None
+
+    def __post_init__(self):
+        if self.wall.geometry != "slab" and self.bridge is not None:
+            raise ModelError(f"wall '{self.wall.name}': bridges are supported on slab walls only")
+        if self.bridge is not None:
+            for i in self.bridge.layers:
+                if not 0 <= i < len(self.wall.layers):
+                    raise ModelError(f"wall '{self.wall.name}': bridge layer index {i} does not "
+                                     f"exist (0..{len(self.wall.layers) - 1})")
 
 
 @dataclass(frozen=True)

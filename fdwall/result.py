@@ -213,7 +213,7 @@ class Result:
     def summary(self) -> dict:
         """A plain dict of the headline numbers (SI units, keys name the unit)."""
         sysm = self.system
-        walls = self.case.wall_list
+        walls = sysm.walls
         faces = []
         for f, name in enumerate(self.face_names):
             faces.append({
@@ -248,6 +248,21 @@ class Result:
             "events": {k: {"up_s": v[0], "down_s": v[1]} for k, v in self.events.items()},
             "solver": self.stats,
         }
+        bridges = {}
+        for j, (w, o, b) in enumerate(zip(sysm.walls, sysm.wall_origin, sysm.is_bridge)):
+            if b:
+                main = sysm.chain_of(o)
+                qb = self.face_energy[-1, 2 * j + 1]
+                qm = self.face_energy[-1, 2 * main + 1]
+                tot = qb + qm
+                bridges[sysm.walls[main].name] = {
+                    "bridge_share_of_outer_heat_loss": float(qb / tot) if tot != 0 else 0.0,
+                    "bridge_outer_T_final_K": float(self.face_T[-1, 2 * j + 1]),
+                    "clear_outer_T_final_K": float(self.face_T[-1, 2 * main + 1])}
+        if bridges:
+            out["bridges"] = bridges
+        if sysm.area_factor != 1.0:
+            out["box_edge_corner_area_factor"] = float(sysm.area_factor)
         if sysm.has_chamber:
             out["chamber_final_K"] = float(self.chamber_T[-1])
             out["chamber_max_K"] = float(np.max(self.chamber_T))
@@ -298,7 +313,7 @@ class Result:
             return d
 
         mg = h.create_group("mesh")
-        for j, (w, m) in enumerate(zip(self.case.wall_list, sysm.meshes)):
+        for j, (w, m) in enumerate(zip(sysm.walls, sysm.meshes)):
             wg = mg.create_group(f"wall_{j}")
             wg.attrs["name"] = w.name
             wg.attrs["geometry"] = w.geometry

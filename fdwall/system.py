@@ -117,6 +117,17 @@ class System:
     layer_of_half: np.ndarray = field(default=None)   # (N, 2) global layer id per half, -1 none
     layer_names: list = field(default_factory=list)   # "<wall>/<layer>" per global layer id
     layer_wall: list = field(default_factory=list)    # wall index per global layer id
+    walls: list = field(default_factory=list)         # the 1-D walls solved (bridges split off)
+    wall_origin: list = field(default_factory=list)   # case wall index of each solved wall
+    is_bridge: list = field(default_factory=list)     # True for a bridge path
+    area_factor: float = 1.0                          # box edge/corner factor applied [-]
+
+    def chain_of(self, case_wall: int) -> int:
+        """Index of the solved wall (clear path) for case wall ``case_wall``."""
+        for j, (o, b) in enumerate(zip(self.wall_origin, self.is_bridge)):
+            if o == case_wall and not b:
+                return j
+        raise ModelError(f"wall index {case_wall} does not exist")
 
     @property
     def has_chamber(self) -> bool:
@@ -225,10 +236,56 @@ def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_
     return fi, ff, par
 
 
+def box_area_factor(case: Case) -> float:
+    """Area factor that adds edge and corner conduction of a box enclosure [-].
+
+    S_edge = 0.54 D per edge of length D and S_corner = 0.15 L per corner, L the wall
+    thickness (Incropera, Fundamentals of Heat and Mass Transfer, Table 4.1, cases 8 and 9),
+    against S_walls = sum(A_i / L_i) of the slab walls; L is the area-weighted mean thickness.
+    """
+    ch = case.chamber
+    if ch is None or ch.box is None or not case.walls:
+        return 1.0
+    slabs = [ew.wall for ew in case.walls if ew.wall.geometry == "slab"]
+    if not slabs:
+        return 1.0
+    s_walls = sum(w.area / w.thickness for w in slabs)
+    L = sum(w.area * w.thickness for w in slabs) / sum(w.area for w in slabs)
+    W, D, H = ch.box
+    s_extra = 0.54 * 4.0 * (W + D + H) + 8 * 0.15 * L
+    return 1.0 + s_extra / s_walls
+
+
+def _chains_of(case: Case):
+    """The 1-D walls actually solved: (Wall, case wall index, EnclosureWall or None, is_bridge)."""
+    from dataclasses import replace
+    if not case.is_enclosure:
+        return [(case.wall, 0, None, False)]
+    m = box_area_factor(case)
+    out = []
+    for j, ew in enumerate(case.walls):
+        w = ew.wall
+        if m != 1.0 and w.geometry == "slab":
+            w = replace(w, area=w.area * m)
+        if ew.bridge is None:
+            out.append((w, j, ew, False))
+            continue
+        f = ew.bridge.fraction
+        layers = list(w.layers)
+        for i in ew.bridge.layers:
+            layers[i] = replace(layers[i], material=ew.bridge.material,
+                                name=f"{layers[i].label} (bridge)")
+        out.append((replace(w, area=w.area * (1 - f)), j, ew, False))
+        out.append((replace(w, area=w.area * f, layers=tuple(layers), name=f"{w.name}~bridge"),
+                    j, ew, True))
+    return out
+
+
 def build_system(case: Case) -> System:
     """Assemble the kernel arrays for ``case``."""
     tb = _Tables()
-    walls = case.wall_list
+    specs = _chains_of(case)
+    walls = [s[0] for s in specs]
     meshes = [mesh_wall(w) for w in walls]
     offsets = list(np.cumsum([0] + [m.n for m in meshes])[:-1])
     N = int(sum(m.n for m in meshes))
@@ -256,8 +313,8 @@ def build_system(case: Case) -> System:
     # faces
     rows_i, rows_f, rows_p, names, external = [], [], [], [], []
     if case.is_enclosure:
-        for j, ew in enumerate(case.walls):
-            w, m, o = ew.wall, meshes[j], offsets[j]
+        for j, (w, jc, ew, is_bridge) in enumerate(specs):
+            m, o = meshes[j], offsets[j]
             inner = Face(emissivity=ew.inner_emissivity)
             for side, face, node, area, to_ch in (
                     ("inner", inner, o, w.inner_area, True),
@@ -304,16 +361,15 @@ def build_system(case: Case) -> System:
         if hz.location == "chamber":
             ctl_i[1] = N
         else:
-            if not 0 <= hz.wall < len(walls):
-                raise ModelError(f"heater wall index {hz.wall} does not exist (0..{len(walls) - 1})")
-            m = meshes[hz.wall]
+            hw = _chain_index(specs, hz.wall, "heater")
+            m = meshes[hw]
             if hz.location == "inner":
-                ctl_i[1] = offsets[hz.wall]
+                ctl_i[1] = offsets[hw]
             else:
                 if not 0 <= hz.interface < len(m.interface_nodes):
                     raise ModelError(f"heater interface {hz.interface} does not exist in wall "
-                                     f"'{walls[hz.wall].name}' (0..{len(m.interface_nodes) - 1})")
-                ctl_i[1] = offsets[hz.wall] + m.interface_nodes[hz.interface]
+                                     f"'{walls[hw].name}' (0..{len(m.interface_nodes) - 1})")
+                ctl_i[1] = offsets[hw] + m.interface_nodes[hz.interface]
         ctl_i[4] = tb.schedule(hz.power)
         ctl_f[6] = hz.alpha
         ctl_f[7] = hz.t_ref
@@ -325,9 +381,7 @@ def build_system(case: Case) -> System:
         ctl_i[2] = ctl_i[3] = N
         ctl_f[5] = 1.0
     else:
-        j = ctl.sensor_wall
-        if not 0 <= j < len(walls):
-            raise ModelError(f"sensor wall index {j} does not exist")
+        j = _chain_index(specs, ctl.sensor_wall, "sensor")
         a, b, wgt = locate_depth(walls[j], meshes[j], ctl.sensor_depth)
         ctl_i[2], ctl_i[3], ctl_f[5] = offsets[j] + a, offsets[j] + b, wgt
     ctl_f[0] = ctl.period
@@ -347,7 +401,16 @@ def build_system(case: Case) -> System:
                   ch_f=ch_f, ctl_i=ctl_i, ctl_f=ctl_f, dirich_node=dirich_node,
                   dirich_sched=dirich_sched, dirich_face=dirich_face, breakpoints=bp,
                   face_names=names, external=np.array(external), layer_of_half=layer_of_half,
-                  layer_names=layer_names, layer_wall=layer_wall)
+                  layer_names=layer_names, layer_wall=layer_wall, walls=walls,
+                  wall_origin=[sp[1] for sp in specs], is_bridge=[sp[3] for sp in specs],
+                  area_factor=box_area_factor(case))
+
+
+def _chain_index(specs, case_wall, what):
+    for j, sp in enumerate(specs):
+        if sp[1] == case_wall and not sp[3]:
+            return j
+    raise ModelError(f"{what} wall index {case_wall} does not exist (0..{specs[-1][1]})")
 
 
 def locate_depth(wall, mesh, depth):

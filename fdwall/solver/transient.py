@@ -42,12 +42,9 @@ def _event_rows(system: System, case: Case):
     ev_f = np.zeros((len(evs), 2))
     from ..system import locate_depth
     for e, ev in enumerate(evs):
-        j = ev.wall
-        if not 0 <= j < len(system.meshes):
-            from ..model import ModelError
-            raise ModelError(f"event '{ev.name}': wall index {j} does not exist")
+        j = system.chain_of(ev.wall)
         m, o = system.meshes[j], system.offsets[j]
-        wall = case.wall_list[j]
+        wall = system.walls[j]
         if ev.where == "inner":
             a = b = o
             w = 1.0
