@@ -552,6 +552,10 @@ class Case:
             raise ModelError("give either a single wall or enclosure walls, not both")
         if self.walls and self.chamber is None:
             raise ModelError("enclosure walls need a chamber")
+        names = [ew.wall.name for ew in self.walls]
+        dup = sorted({n for n in names if names.count(n) > 1})
+        if dup:
+            raise ModelError(f"enclosure wall names must be unique; repeated: {', '.join(dup)}")
         if self.heater is not None and self.heater.location == "chamber" and self.chamber is None:
             raise ModelError("a heater in the chamber needs a chamber")
         if self.control.mode in ("thermostat", "pid") and self.heater is None:
