@@ -209,6 +209,28 @@ class Result:
                     np.max(np.abs(self.heater_energy)), 1e-300)
         return float(np.max(np.abs(self.residual)) / scale)
 
+    def layer_max_T(self) -> list:
+        """Highest temperature reached in each layer over the run (one per layer id) [K]."""
+        lid = self.system.layer_of_half
+        Tw = self.T[:, :self.system.n_nodes]
+        tmax = np.max(Tw, axis=0)
+        out = []
+        for l in range(len(self.system.layer_names)):
+            nodes = np.where((lid[:, 0] == l) | (lid[:, 1] == l))[0]
+            out.append(float(tmax[nodes].max()) if nodes.size else float("nan"))
+        return out
+
+    def warnings(self) -> list:
+        """Materials used above their maximum service temperature (text, one per layer)."""
+        from .materials import check_service_temperature
+        out = []
+        layers = [l for w in self.system.walls for l in w.layers]
+        for name, layer, tm in zip(self.system.layer_names, layers, self.layer_max_T()):
+            msg = check_service_temperature(layer.material, tm)
+            if msg:
+                out.append(f"layer {name}: {msg}")
+        return out
+
     # ----------------------------------------------------------------- summary and files
     def summary(self) -> dict:
         """A plain dict of the headline numbers (SI units, keys name the unit)."""
@@ -246,6 +268,8 @@ class Result:
             "energy_residual_J": float(self.residual[-1]),
             "energy_residual_relative": self.relative_residual,
             "events": {k: {"up_s": v[0], "down_s": v[1]} for k, v in self.events.items()},
+            "layer_max_K": {n: v for n, v in zip(sysm.layer_names, self.layer_max_T())},
+            "warnings": self.warnings(),
             "solver": self.stats,
         }
         bridges = {}
