@@ -1,0 +1,323 @@
+"""PNG plots of a run: temperatures over time, profiles through the walls, heat flows and energy.
+
+matplotlib is imported only when a plot is drawn, and only its object-oriented API with the Agg
+canvas is used (no pyplot, no global backend switch), so plotting works headless and does not
+disturb an interactive session.  Every file is written to a temporary name and renamed when
+complete.  Axes: time in [h], temperature in [degC], depth in [mm], heat flow in [W] or [kW],
+energy in [MJ].
+"""
+from __future__ import annotations
+
+import os
+import tempfile
+
+import numpy as np
+
+__all__ = ["plot_temperatures", "plot_profiles", "plot_energy", "write_plots"]
+
+KELVIN_OFFSET = 273.15
+_WALL_COLOURS = ["#b2182b", "#2166ac", "#1b7837", "#762a83", "#e08214", "#35978f", "#8c510a",
+                 "#4d4d4d"]
+_LAYER_FILLS = ["#f2efe9", "#e3e9f0"]
+
+
+def _figure(w=9.0, h=5.5, rows=1, sharex=False, height_ratios=None):
+    from matplotlib.figure import Figure
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    fig = Figure(figsize=(w, h), dpi=110, layout="constrained")
+    FigureCanvasAgg(fig)
+    kw = {"height_ratios": height_ratios} if height_ratios else {}
+    axes = fig.subplots(rows, 1, sharex=sharex, squeeze=False, gridspec_kw=kw)[:, 0]
+    return fig, list(axes)
+
+
+def _save(fig, path) -> str:
+    """Write ``fig`` as PNG to ``path`` atomically; return the path."""
+    path = os.fspath(path)
+    d = os.path.dirname(os.path.abspath(path))
+    os.makedirs(d, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(prefix=".fdwall-", suffix=".png.part", dir=d)
+    os.close(fd)
+    try:
+        fig.savefig(tmp, format="png")
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.remove(tmp)
+        raise
+    return path
+
+
+def _hours(result):
+    return np.asarray(result.times, dtype=float) / 3600.0
+
+
+def _title(result, what):
+    t = f"{result.case.name}: {what}"
+    if not result.complete:
+        t += f"  (INCOMPLETE: stopped at {result.times[-1] / 3600.0:.3g} h)"
+    return t
+
+
+def _style(ax, xlabel=None, ylabel=None):
+    ax.grid(True, color="#d9d9d9", linewidth=0.6)
+    ax.set_axisbelow(True)
+    for s in ("top", "right"):
+        ax.spines[s].set_visible(False)
+    if xlabel:
+        ax.set_xlabel(xlabel)
+    if ylabel:
+        ax.set_ylabel(ylabel)
+
+
+def _legend(ax, n_entries):
+    if n_entries > 9:
+        ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=7, frameon=False)
+    else:
+        ax.legend(loc="best", fontsize=8, framealpha=0.85)
+
+
+def plot_temperatures(result, path) -> str:
+    """Face and interface temperatures [degC] (and the chamber's) against time [h].
+
+    Parameters
+    ----------
+    result : fdwall.result.Result
+    path : str or Path
+        PNG file to write.
+
+    Returns
+    -------
+    str
+        The path written.
+    """
+    from matplotlib import colormaps
+    case = result.case
+    th = _hours(result)
+    fig, (ax,) = _figure()
+    walls = case.wall_list
+    n = 0
+    for j, w in enumerate(walls):
+        T = result.wall_T(j) - KELVIN_OFFSET
+        Ti = result.interface_T(j) - KELVIN_OFFSET
+        curves = [("inner face", T[:, 0])]
+        for i in range(len(w.layers) - 1):
+            curves.append((f"{w.layers[i].label} | {w.layers[i + 1].label}", Ti[:, i]))
+        curves.append(("outer face", T[:, -1]))
+        if len(walls) == 1:
+            cmap = colormaps["coolwarm_r"]
+            cols = [cmap(v) for v in np.linspace(0.0, 1.0, len(curves))]
+            styles = ["-"] * len(curves)
+            widths = [2.0] + [1.4] * (len(curves) - 2) + [2.0]
+        else:
+            c = _WALL_COLOURS[j % len(_WALL_COLOURS)]
+            cols = [c] * len(curves)
+            styles = ["-"] + ["--"] * (len(curves) - 2) + [":"]
+            widths = [1.8] + [1.1] * (len(curves) - 2) + [2.0]
+        for (lab, y), col, ls, lw in zip(curves, cols, styles, widths):
+            name = lab if len(walls) == 1 else f"{w.name}: {lab}"
+            ax.plot(th, y, ls, color=col, lw=lw, label=name)
+            n += 1
+    if result.system.has_chamber:
+        ax.plot(th, result.chamber_T - KELVIN_OFFSET, "-", color="black", lw=2.2, label="chamber")
+        n += 1
+    # event crossings as small markers on the time axis
+    for (name, (up, down)), ev in zip(result.events.items(), case.run.events):
+        for t, mk in ((up, "^"), (down, "v")):
+            if np.isfinite(t):
+                ax.plot([t / 3600.0], [ev.threshold - KELVIN_OFFSET], mk, color="#444444", ms=7,
+                        mfc="white", mew=1.3, zorder=5)
+                ax.annotate(name, (t / 3600.0, ev.threshold - KELVIN_OFFSET),
+                            textcoords="offset points", xytext=(5, 5), fontsize=7,
+                            color="#444444")
+    _style(ax, "time [h]", "temperature [degC]")
+    ax.set_xlim(0.0, max(th[-1], 1e-9))
+    ax.set_title(_title(result, "face and interface temperatures"), fontsize=11)
+    _legend(ax, n)
+    return _save(fig, path)
+
+
+def _profile_times(result, times):
+    if times is None:
+        times = list(result.case.run.profile_times)
+    times = [float(t) for t in times]
+    if not times:
+        t_end = float(result.times[-1])
+        times = list(np.linspace(t_end / 5.0, t_end, 5))
+    t_reached = float(result.times[-1])
+    return sorted(set(t for t in times if t <= t_reached * (1 + 1e-9)))
+
+
+def plot_profiles(result, path, times=None) -> str:
+    """Temperature profiles [degC] through each wall against depth from the inner face [mm], at
+    the case's profile times (or 5 evenly spaced times), with the layers shaded and labelled.
+
+    Parameters
+    ----------
+    result : fdwall.result.Result
+    path : str or Path
+        PNG file to write.
+    times : sequence of float, optional
+        Times of the profiles [s]; default ``case.run.profile_times`` or 5 evenly spaced.
+
+    Returns
+    -------
+    str
+        The path written.
+    """
+    from matplotlib import colormaps
+    case = result.case
+    walls = case.wall_list
+    times = _profile_times(result, times)
+    fig, axes = _figure(9.0, 3.6 * len(walls) + 1.0, rows=len(walls))
+    cmap = colormaps["viridis"]
+    for j, (w, ax) in enumerate(zip(walls, axes)):
+        x_mm = result.x(j) * 1e3
+        edges = np.concatenate([[0.0], np.cumsum([l.thickness for l in w.layers])]) * 1e3
+        total = edges[-1]
+        for i, layer in enumerate(w.layers):
+            ax.axvspan(edges[i], edges[i + 1], color=_LAYER_FILLS[i % 2], zorder=0, lw=0)
+            if i > 0:
+                ax.axvline(edges[i], color="#8c8c8c", lw=0.8, zorder=1)
+        for k, t in enumerate(times):
+            xx, T, ta = result.profile(t, j)
+            col = cmap(0.9 * k / max(len(times) - 1, 1))
+            ax.plot(xx * 1e3, T - KELVIN_OFFSET, "-", color=col, lw=1.8, marker=".", ms=3,
+                    label=f"t = {ta / 3600.0:.3g} h", zorder=3)
+        if result.steady is not None:
+            ax.plot(result.steady.x(j) * 1e3, result.steady.wall_T(j) - KELVIN_OFFSET, "--",
+                    color="black", lw=1.3, label="steady state", zorder=4)
+        _style(ax, "depth from inner face [mm]", "temperature [degC]")
+        ax.set_xlim(-0.01 * total, 1.01 * total)
+        # layer labels along the top, rotated when the layer is narrow
+        ymin, ymax = ax.get_ylim()
+        ax.set_ylim(ymin, ymax + 0.18 * (ymax - ymin))
+        ytop = ymax + 0.16 * (ymax - ymin)
+        for i, layer in enumerate(w.layers):
+            width = edges[i + 1] - edges[i]
+            xc = 0.5 * (edges[i] + edges[i + 1])
+            narrow = width < 0.12 * total
+            ax.text(xc, ytop, f"{i + 1}: {layer.label}" if not narrow else f"{i + 1}",
+                    ha="center", va="top", fontsize=8, color="#333333", zorder=6,
+                    rotation=0, clip_on=True)
+        narrow_names = [f"{i + 1}: {l.label} ({l.thickness * 1e3:g} mm)"
+                        for i, l in enumerate(w.layers)
+                        if (edges[i + 1] - edges[i]) < 0.12 * total]
+        geo = "" if w.geometry == "slab" else f" ({w.geometry})"
+        ttl = f"wall '{w.name}'{geo}"
+        if j == 0:
+            ttl = _title(result, "temperature profiles") + "\n" + ttl
+        if narrow_names:
+            ttl += "  -  thin layers " + ", ".join(narrow_names)
+        ax.set_title(ttl, fontsize=10)
+        ax.legend(loc="upper right", fontsize=8, framealpha=0.9, bbox_to_anchor=(1.0, 0.86))
+    return _save(fig, path)
+
+
+def plot_energy(result, path) -> str:
+    """Heat flow into the wall at each face [W or kW] (and heater power) against time [h], and
+    stored energy [MJ] with the cumulative heat in from outside.
+
+    Parameters
+    ----------
+    result : fdwall.result.Result
+    path : str or Path
+        PNG file to write.
+
+    Returns
+    -------
+    str
+        The path written.
+    """
+    case, sysm = result.case, result.system
+    th = _hours(result)
+    fig, (a1, a2) = _figure(9.0, 7.5, rows=2, sharex=True)
+    q = result.face_flow
+    # heater: mean power over each output interval (on/off control sampled at output
+    # instants would alias); drawn as steps
+    t = np.asarray(result.times, dtype=float)
+    has_heater = bool(np.any(result.heater_energy > 0))
+    if has_heater and t.size > 1:
+        p_mean = np.diff(result.heater_energy) / np.maximum(np.diff(t), 1e-300)
+    else:
+        p_mean = np.zeros(0)
+    big = max(np.nanmax(np.abs(q)) if q.size else 0.0,
+              np.nanmax(np.abs(p_mean)) if p_mean.size else 0.0)
+    sc, pu = (1e3, "kW") if big >= 1e4 else (1.0, "W")
+    names = result.face_names
+    single = len(case.wall_list) == 1
+    for f, n in enumerate(names):
+        j = f // 2
+        inner = n.endswith(":inner")
+        if single:
+            col = _WALL_COLOURS[0] if inner else _WALL_COLOURS[1]
+            ls = "-"
+        else:
+            col = _WALL_COLOURS[j % len(_WALL_COLOURS)]
+            ls = "-" if inner else "--"
+        a1.plot(th, q[:, f] / sc, ls, color=col, lw=1.6, label=f"{n} (into wall)")
+    if p_mean.size:
+        a1.plot(th, np.append(p_mean, p_mean[-1]) / sc, "-", color="#f4a582", lw=1.0,
+                drawstyle="steps-post", label="heater power (mean per output interval)",
+                zorder=1)
+    a1.axhline(0.0, color="#666666", lw=0.7)
+    # a short start-up spike (a hot fluid meeting a cold wall) would flatten everything else:
+    # scale the axis to the rest of the run and say that the peak is off scale
+    series = [q[:, f] for f in range(q.shape[1])] + ([np.append(p_mean, p_mean[-1])]
+                                                      if p_mean.size else [])
+    late = t > 0.03 * t[-1]
+    if series and np.count_nonzero(late) > 3:
+        allv = np.concatenate([s_ for s_ in series]) / sc
+        latev = np.concatenate([s_[late] for s_ in series]) / sc
+        lo, hi = float(np.nanmin(latev)), float(np.nanmax(latev))
+        span_all = float(np.nanmax(np.abs(allv)))
+        span_late = max(abs(lo), abs(hi), 1e-12)
+        if span_all > 4.0 * span_late:
+            pad = 0.15 * (hi - lo if hi > lo else span_late)
+            a1.set_ylim(min(lo, 0.0) - pad, max(hi, 0.0) + pad)
+            a1.text(0.5, 0.97, f"start-up peak of {span_all:.3g} {pu} off scale",
+                    transform=a1.transAxes, ha="center", va="top", fontsize=8, color="#555555")
+    _style(a1, None, f"heat flow [{pu}]")
+    a1.set_title(_title(result, "heat flows and energy"), fontsize=11)
+    _legend(a1, len(names) + 1)
+
+    MJ = 1e6
+    if len(case.wall_list) == 1:
+        for l, n in enumerate(sysm.layer_names):
+            a2.plot(th, result.stored_layers[:, l] / MJ, "-", lw=1.2,
+                    label=f"stored: {n.split('/', 1)[-1]}")
+    else:
+        for j, w in enumerate(case.wall_list):
+            a2.plot(th, result.stored_wall(j) / MJ, "-", lw=1.2,
+                    color=_WALL_COLOURS[j % len(_WALL_COLOURS)], label=f"stored: wall {w.name}")
+    if sysm.has_chamber:
+        a2.plot(th, result.stored_chamber / MJ, "-", color="black", lw=1.2,
+                label="stored: chamber contents")
+    a2.plot(th, result.stored / MJ, "-", color="#222222", lw=2.4, alpha=0.6, label="stored: total")
+    a2.plot(th, result.heat_in / MJ, ":", color="#d6604d", lw=2.0,
+            label="net heat in from outside (cumulative)")
+    if has_heater:
+        a2.plot(th, result.heater_energy / MJ, "-.", color="#f4a582", lw=1.4,
+                label="heater energy (cumulative)")
+    _style(a2, "time [h]", "energy since start [MJ]  (1 kWh = 3.6 MJ)")
+    a2.set_xlim(0.0, max(th[-1], 1e-9))
+    _legend(a2, 6)
+    return _save(fig, path)
+
+
+def write_plots(result, outdir, stem) -> list:
+    """Write the three standard plots of a run into ``outdir``.
+
+    Files: ``<stem>-temperatures.png``, ``<stem>-profiles.png``, ``<stem>-energy.png``.
+
+    Returns
+    -------
+    list of str
+        Paths written.
+    """
+    outdir = os.fspath(outdir)
+    return [
+        plot_temperatures(result, os.path.join(outdir, f"{stem}-temperatures.png")),
+        plot_profiles(result, os.path.join(outdir, f"{stem}-profiles.png")),
+        plot_energy(result, os.path.join(outdir, f"{stem}-energy.png")),
+    ]

@@ -1,0 +1,622 @@
+"""Plain-text reports: run summary, steady state, case description, material tables.
+
+Every number printed carries its unit.  Temperatures are shown in degC (inputs and results stay
+in kelvin inside), energies in kWh and MJ, powers in W or kW, times in s, min or h, depths in mm.
+Only ASCII is used so the text prints on any console.
+"""
+from __future__ import annotations
+
+import math
+import textwrap
+
+import numpy as np
+
+__all__ = [
+    "format_summary", "format_steady", "format_case", "format_material_list", "format_material",
+    "layer_peaks", "TOUCH_CAUTION", "KELVIN_OFFSET",
+]
+
+KELVIN_OFFSET = 273.15  # T[degC] = T[K] - 273.15
+
+TOUCH_CAUTION = (
+    "Caution: skin/touch temperatures here are an engineering estimate; confirm them by "
+    "measurement on the real equipment, and follow local codes, the applicable product-safety "
+    "standard and licensed professional practice.")
+
+WIDTH = 92  # wrap width of free text [characters]
+
+
+# --------------------------------------------------------------------------- number formats
+
+def degc(T):
+    """Temperature [K] -> [degC] (number or array)."""
+    return np.asarray(T, dtype=float) - KELVIN_OFFSET if np.ndim(T) else float(T) - KELVIN_OFFSET
+
+
+def fmt_temp(T: float) -> str:
+    """A temperature [K] as text in degC, e.g. '198.1 degC'."""
+    if T is None or not math.isfinite(T):
+        return "n/a"
+    return f"{float(T) - KELVIN_OFFSET:.1f} degC"
+
+
+def fmt_time(t: float) -> str:
+    """A time [s] in a readable unit: s, min or h (labelled)."""
+    if t is None or not math.isfinite(t):
+        return "n/a"
+    t = float(t)
+    if abs(t) >= 3600.0:
+        return f"{t / 3600.0:.3f} h"
+    if abs(t) >= 60.0:
+        return f"{t / 60.0:.2f} min"
+    return f"{t:.1f} s"
+
+
+def fmt_energy(E: float) -> str:
+    """An energy [J] as 'x.xxx kWh  (y.yyy MJ)'."""
+    return f"{E / 3.6e6:10.4f} kWh  {E / 1e6:10.4f} MJ"
+
+
+def fmt_power(P: float) -> str:
+    """A power [W] as text in W or kW (labelled)."""
+    if not math.isfinite(P):
+        return "n/a"
+    if abs(P) >= 1e4:
+        return f"{P / 1e3:.2f} kW"
+    return f"{P:.1f} W"
+
+
+def _power_scale(values):
+    """(divisor, unit) for a column of powers [W]: kW when any magnitude reaches 10 kW."""
+    v = np.asarray(values, dtype=float)
+    v = v[np.isfinite(v)]
+    if v.size and np.max(np.abs(v)) >= 1e4:
+        return 1e3, "kW"
+    return 1.0, "W"
+
+
+def _table(header, units, rows, indent="  ", align=None):
+    """Aligned columns: a header line, a units line, then rows.  First column left-aligned."""
+    cols = len(header)
+    align = align or (["<"] + [">"] * (cols - 1))
+    cells = [list(map(str, header)), list(map(str, units))] + [list(map(str, r)) for r in rows]
+    w = [max(len(r[c]) for r in cells) for c in range(cols)]
+    out = []
+    for r in cells:
+        out.append(indent + "  ".join(f"{r[c]:{align[c]}{w[c]}}" for c in range(cols)).rstrip())
+    return out
+
+
+def _wrap(text, indent="  "):
+    return textwrap.fill(text, WIDTH, initial_indent=indent, subsequent_indent=indent,
+                         break_long_words=False, break_on_hyphens=False)
+
+
+def _heading(title):
+    return ["", title, "-" * len(title)]
+
+
+# --------------------------------------------------------------------------- helpers on results
+
+def layer_peaks(result):
+    """Highest temperature reached in each layer during a run.
+
+    Returns
+    -------
+    list of dict
+        One per layer: ``wall`` (index), ``wall_name``, ``layer`` (index), ``label``,
+        ``material`` (Material), ``T_max_K`` [K], ``t_max_K`` (service limit [K] or None).
+    """
+    out = []
+    for j, w in enumerate(result.case.wall_list):
+        m = result.system.meshes[j]
+        T = result.wall_T(j)
+        for i, (layer, (a, b)) in enumerate(zip(w.layers, m.layer_nodes)):
+            out.append({
+                "wall": j, "wall_name": w.name, "layer": i, "label": layer.label,
+                "material": layer.material, "T_max_K": float(np.nanmax(T[:, a:b + 1])),
+                "t_max_K": getattr(layer.material, "t_max", None),
+            })
+    return out
+
+
+def _is_outer(name: str) -> bool:
+    return name.endswith(":outer")
+
+
+def _event_where(ev) -> str:
+    if ev.where == "outer":
+        return "outer face"
+    if ev.where == "inner":
+        return "inner face"
+    if ev.where.startswith("interface:"):
+        return f"interface {ev.where.split(':', 1)[1]}"
+    return f"{ev.depth * 1e3:.1f} mm deep"
+
+
+def _speaks_of_skin(text: str) -> bool:
+    t = text.lower()
+    return any(w in t for w in ("skin", "touch", "outer", "surface"))
+
+
+# --------------------------------------------------------------------------- run summary
+
+def format_summary(result) -> str:
+    """Plain-text summary of a transient run (and of its steady state, if attached).
+
+    Parameters
+    ----------
+    result : fdwall.result.Result
+        A run; ``result.steady`` (a SteadyResult) is reported too when set.
+
+    Returns
+    -------
+    str
+        Aligned columns; temperatures in [degC], heat flows in [W] or [kW], energies in
+        [kWh] and [MJ], film coefficients in [W/m2/K], times in [s], [min] or [h].
+    """
+    case, sysm = result.case, result.system
+    names = result.face_names
+    L = []
+    title = f"fdwall run summary: case '{case.name}'"
+    L += [title, "=" * len(title)]
+    status = "complete" if result.complete else "INCOMPLETE (stopped early)"
+    L.append(f"  status            {status}")
+    L.append(f"  simulated time    {fmt_time(float(result.times[-1]))}  "
+             f"({float(result.times[-1]):.0f} s of {case.run.duration:.0f} s asked)")
+    L.append(f"  walls             {len(case.wall_list)}"
+             + ("  (enclosure with chamber)" if case.is_enclosure else "  (single wall)"))
+    if not result.complete and result.message:
+        L.append(_wrap(result.message, "  "))
+
+    # faces
+    L += _heading("Faces (end of run; heat in = into the wall, positive)")
+    q_end = result.face_flow[-1]
+    sc, pu = _power_scale(q_end)
+    rows = []
+    for f, n in enumerate(names):
+        T = result.face_T[:, f]
+        hc, hr = float(result.h_conv[-1, f]), float(result.h_rad[-1, f])
+        rows.append([n, f"{degc(T[-1]):.1f}", f"{degc(np.nanmax(T)):.1f}",
+                     f"{q_end[f] / sc:.1f}", f"{hc:.2f}", f"{hr:.2f}", f"{hc + hr:.2f}"])
+    L += _table(["face", "T end", "T max", "heat in", "h conv", "h rad", "h conv+rad"],
+                ["", "[degC]", "[degC]", f"[{pu}]", "[W/m2/K]", "[W/m2/K]", "[W/m2/K]"], rows)
+    if case.is_enclosure:
+        L.append("  (inner faces exchange heat with the chamber; film coefficients there are to "
+                 "the chamber air)")
+
+    # skin temperature with its caution
+    outer = [f for f, n in enumerate(names) if _is_outer(n)]
+    if outer:
+        L += _heading("Skin (outer face) temperature")
+        for f in outer:
+            T = result.face_T[:, f]
+            k = int(np.nanargmax(T))
+            L.append(f"  {names[f]}: max {fmt_temp(float(T[k]))} at t = "
+                     f"{fmt_time(float(result.times[k]))}; at end {fmt_temp(float(T[-1]))}")
+        L.append(_wrap(TOUCH_CAUTION, "  "))
+
+    # chamber
+    if sysm.has_chamber:
+        Tc = result.chamber_T
+        L += _heading("Chamber")
+        L.append(f"  chamber air/contents: end {fmt_temp(float(Tc[-1]))}, max "
+                 f"{fmt_temp(float(np.nanmax(Tc)))}")
+        if np.any(result.heater_power > 0):
+            L.append(f"  heater power: end {fmt_power(float(result.heater_power[-1]))}, "
+                     f"max {fmt_power(float(np.nanmax(result.heater_power)))}, "
+                     f"mean {fmt_power(_mean_power(result))}")
+    elif np.any(result.heater_power > 0):
+        L += _heading("Heater")
+        L.append(f"  heater power: end {fmt_power(float(result.heater_power[-1]))}, "
+                 f"max {fmt_power(float(np.nanmax(result.heater_power)))}, "
+                 f"mean {fmt_power(_mean_power(result))}")
+
+    # interfaces
+    L += _heading("Interfaces (between layers, inner to outer)")
+    rows = []
+    for j, w in enumerate(case.wall_list):
+        Ti = result.interface_T(j)
+        for i in range(len(w.layers) - 1):
+            rows.append([w.name, f"{w.layers[i].label} | {w.layers[i + 1].label}",
+                         f"{degc(Ti[-1, i]):.1f}", f"{degc(np.nanmax(Ti[:, i])):.1f}"])
+    if rows:
+        L += _table(["wall", "interface", "T end", "T max"], ["", "", "[degC]", "[degC]"], rows,
+                    align=["<", "<", ">", ">"])
+    else:
+        L.append("  (single-layer walls: no interfaces)")
+
+    # layer peaks vs service limits
+    L += _heading("Layers: highest temperature vs maximum service temperature")
+    rows = []
+    for p in layer_peaks(result):
+        lim = p["t_max_K"]
+        flag = "" if lim is None or p["T_max_K"] <= lim else "OVER LIMIT"
+        rows.append([p["wall_name"], p["label"], f"{degc(p['T_max_K']):.1f}",
+                     "-" if lim is None else f"{degc(lim):.0f}", flag])
+    L += _table(["wall", "layer", "T max", "limit", ""], ["", "", "[degC]", "[degC]", ""], rows,
+                align=["<", "<", ">", ">", "<"])
+
+    # energy ledger
+    L += _heading("Energy (from start to end of run)")
+    for f, n in enumerate(names):
+        src = "from outside" if bool(sysm.external[f]) else "from chamber"
+        L.append(f"  heat in through {n:<28s} ({src:12s}) {fmt_energy(float(result.face_energy[-1, f]))}")
+    st_l = result.stored_layers[-1]
+    for n, v in zip(sysm.layer_names, st_l):
+        L.append(f"  stored in layer {n:<43s} {fmt_energy(float(v))}")
+    if sysm.has_chamber:
+        L.append(f"  stored in chamber contents{'':33s} {fmt_energy(float(result.stored_chamber[-1]))}")
+    L.append(f"  stored, total{'':46s} {fmt_energy(float(result.stored[-1]))}")
+    L.append(f"  heater energy{'':46s} {fmt_energy(float(result.heater_energy[-1]))}")
+    if sysm.has_chamber:
+        L.append(f"  chamber loss to ambient (leakage, extra UA){'':16s} "
+                 f"{fmt_energy(float(result.loss_energy[-1]))}")
+    L.append(f"  net heat in from outside{'':35s} {fmt_energy(float(result.heat_in[-1]))}")
+    res = float(result.residual[-1])
+    L.append(f"  energy residual (in - stored)     {res:.3e} J   relative "
+             f"{result.relative_residual:.2e} [-]")
+
+    # events
+    if case.run.events:
+        L += _heading("Events (first crossings)")
+        rows = []
+        for e, (ev, (name, (up, down))) in enumerate(zip(case.run.events, result.events.items())):
+            wname = case.wall_list[ev.wall].name if 0 <= ev.wall < len(case.wall_list) else "?"
+            rows.append([name, f"{wname}, {_event_where(ev)}", f"{degc(ev.threshold):.1f}",
+                         fmt_time(up) if math.isfinite(up) else "not reached",
+                         fmt_time(down) if math.isfinite(down) else "not reached"])
+        L += _table(["event", "where", "threshold", "rising at", "falling at"],
+                    ["", "", "[degC]", "", ""], rows, align=["<", "<", ">", ">", ">"])
+        if any(_speaks_of_skin(r[0] + " " + r[1]) for r in rows):
+            L.append(_wrap(TOUCH_CAUTION, "  "))
+
+    # solver
+    s = result.stats
+    L += _heading("Solver")
+    L.append(f"  steps accepted {s.get('accepted_steps', 0)}, rejected {s.get('rejected_steps', 0)}; "
+             f"Newton iterations {s.get('newton_iterations', 0)}, failures "
+             f"{s.get('newton_failures', 0)}")
+    L.append(f"  step size {s.get('min_step_s', 0.0):.3g} s to {s.get('max_step_s', 0.0):.3g} s; "
+             f"tolerance {s.get('tolerance_K', 0.0):.3g} K; {s.get('nodes', 0)} unknowns; "
+             f"wall-clock {s.get('wall_time_s', 0.0):.2f} s")
+
+    if result.steady is not None:
+        L += _steady_lines(result.steady, case, "Steady state (boundary conditions at t = "
+                           f"{fmt_time(result.steady.time)})")
+    return "\n".join(L) + "\n"
+
+
+def _mean_power(result) -> float:
+    t = float(result.times[-1])
+    return float(result.heater_energy[-1]) / t if t > 0 else 0.0
+
+
+# --------------------------------------------------------------------------- steady state
+
+def _steady_lines(st, case, title):
+    sysm = st.system
+    names = list(sysm.face_names)
+    L = _heading(title)
+    sc, pu = _power_scale(st.face_flow)
+    rows = []
+    for f, n in enumerate(names):
+        hc, hr = float(st.h_conv[f]), float(st.h_rad[f])
+        rows.append([n, f"{degc(st.face_T[f]):.1f}", f"{st.face_flow[f] / sc:.1f}",
+                     f"{hc:.2f}", f"{hr:.2f}", f"{hc + hr:.2f}"])
+    L += _table(["face", "T", "heat in", "h conv", "h rad", "h conv+rad"],
+                ["", "[degC]", f"[{pu}]", "[W/m2/K]", "[W/m2/K]", "[W/m2/K]"], rows)
+    rows = []
+    for j, w in enumerate(case.wall_list):
+        Ti = st.interface_T(j)
+        for i in range(len(w.layers) - 1):
+            rows.append([w.name, f"{w.layers[i].label} | {w.layers[i + 1].label}",
+                         f"{degc(Ti[i]):.1f}"])
+    if rows:
+        L.append("")
+        L += _table(["wall", "interface", "T"], ["", "", "[degC]"], rows, align=["<", "<", ">"])
+    outer = [f for f, n in enumerate(names) if _is_outer(n)]
+    if outer:
+        L.append("")
+        for f in outer:
+            L.append(f"  skin temperature {names[f]}: {fmt_temp(float(st.face_T[f]))}")
+        L.append(_wrap(TOUCH_CAUTION, "  "))
+    L.append("")
+    if sysm.has_chamber:
+        L.append(f"  chamber: {fmt_temp(float(st.T[-1]))}; loss to ambient "
+                 f"{fmt_power(float(st.chamber_loss))}")
+    if case.heater is not None:
+        L.append(f"  heater power {fmt_power(float(st.heater_power))}, duty {st.duty:.3f} [-]"
+                 + ("" if st.reachable else
+                    "; SETPOINT NOT REACHABLE: even full heater power cannot hold it"))
+    loss = -float(np.sum(st.face_flow[outer])) if outer else 0.0
+    L.append(f"  heat leaving through the outer faces {fmt_power(loss)}; balance "
+             f"{st.balance:.3e} W (should be ~0)")
+    return L
+
+
+def format_steady(steady, case) -> str:
+    """Plain-text table of a steady state: face and interface temperatures [degC], heat flows
+    [W] or [kW], film coefficients [W/m2/K], heater power and duty."""
+    title = f"fdwall steady state: case '{case.name}'"
+    L = [title, "=" * len(title)]
+    L += _steady_lines(steady, case, f"Boundary conditions at t = {fmt_time(steady.time)}")
+    return "\n".join(L) + "\n"
+
+
+# --------------------------------------------------------------------------- case description
+
+def _sched_text(s, unit="K") -> str:
+    """Describe a schedule: a constant value, or its range and knot count."""
+    if s is None:
+        return "-"
+    vals = np.asarray(s.values, dtype=float)
+
+    def one(v):
+        if unit == "K":
+            return f"{v - KELVIN_OFFSET:.1f} degC"
+        if unit == "W":
+            return fmt_power(v)
+        return f"{v:g} {unit}"
+    if len(set(vals.tolist())) == 1:
+        return one(vals[0])
+    return (f"{one(vals.min())} .. {one(vals.max())} (schedule, {len(vals)} points to "
+            f"t = {fmt_time(max(s.times))})")
+
+
+def _conv_text(c) -> str:
+    if c is None:
+        return ""
+    if isinstance(c, (int, float)):
+        return f"h = {float(c):.2f} W/m2/K"
+    kind = getattr(c, "kind", type(c).__name__)
+    if kind == "fixed" and getattr(c, "h_fixed", None) is not None:
+        return f"h = {c.h_fixed:.2f} W/m2/K"
+    bits = []
+    for attr, unit in (("height", "m"), ("char_length", "m"), ("diameter", "m"),
+                       ("length", "m")):
+        v = getattr(c, attr, None)
+        if v:
+            bits.append(f"{attr.replace('_', ' ')} {v:g} {unit}")
+    if getattr(c, "speed", 0.0):
+        bits.append(f"wind {c.speed:g} m/s")
+    if getattr(c, "facing", None):
+        bits.append(f"facing {c.facing}")
+    if getattr(c, "tilt_deg", None) is not None:
+        bits.append(f"tilt {c.tilt_deg:g} deg")
+    return f"correlation '{kind.replace('_', ' ')}'" + (f" ({', '.join(bits)})" if bits else "")
+
+
+def _eps_text(e) -> str:
+    if e is None:
+        return ""
+    if isinstance(e, (int, float)):
+        return f"emissivity {float(e):.2f}"
+    return f"emissivity {min(e.values):.2f}..{max(e.values):.2f} (table vs temperature)"
+
+
+def _face_text(face) -> str:
+    if face.temperature is not None:
+        return f"held at {_sched_text(face.temperature)}"
+    parts = []
+    if face.convection is not None:
+        parts.append(f"convection {_conv_text(face.convection)} to air at {_sched_text(face.fluid)}")
+    if face.emissivity is not None:
+        sur = face.surroundings if face.surroundings is not None else face.fluid
+        parts.append(f"radiation, {_eps_text(face.emissivity)}, to surroundings at {_sched_text(sur)}")
+    if face.flux is not None:
+        parts.append(f"imposed flux {_sched_text(face.flux, 'W/m2')} into the wall")
+    return "; ".join(parts) if parts else "adiabatic (no heat flow)"
+
+
+def _layer_resistance(wall, i, k) -> float:
+    """Conduction resistance of layer ``i`` of ``wall`` with conductivity ``k`` [K/W]."""
+    r = wall.radii()
+    r1, r2 = float(r[i]), float(r[i + 1])
+    if wall.geometry == "slab":
+        return (r2 - r1) / (k * wall.area)
+    if wall.geometry == "cylinder":
+        return math.log(r2 / r1) / (2 * math.pi * k * wall.length)
+    return (1.0 / r1 - 1.0 / r2) / (4 * math.pi * k)
+
+
+def format_case(case, system=None, warnings=()) -> str:
+    """Short description of a case: walls, layers (thickness [mm], mesh nodes, conductivity
+    [W/m/K] and R-value at 20 degC), faces, chamber, heater, run settings, and warnings."""
+    T20 = 293.15
+    title = f"fdwall case '{case.name}'"
+    L = [title, "=" * len(title)]
+    kind = "enclosure with a chamber node" if case.is_enclosure else "single wall"
+    L.append(f"  kind              {kind}, {len(case.wall_list)} wall(s)")
+    r = case.run
+    L.append(f"  run               {fmt_time(r.duration)} simulated, tolerance {r.tolerance:g} K, "
+             f"outputs every {fmt_time(r.output_interval or r.duration / 200.0)}")
+    init = np.asarray(r.initial, dtype=float)
+    L.append("  initial           " + (fmt_temp(float(init)) if init.ndim == 0 else
+                                      f"profile of {init.size} values, {fmt_temp(float(init.min()))}"
+                                      f" .. {fmt_temp(float(init.max()))}"))
+    if system is not None:
+        L.append(f"  unknowns          {system.n_unknowns} (mesh nodes"
+                 + (" + chamber)" if system.has_chamber else ")"))
+    for j, w in enumerate(case.wall_list):
+        if w.geometry == "slab":
+            geo = f"slab, area {w.area:g} m2"
+        elif w.geometry == "cylinder":
+            geo = f"cylinder, inner radius {w.inner_radius * 1e3:.1f} mm, length {w.length:g} m"
+        else:
+            geo = f"sphere, inner radius {w.inner_radius * 1e3:.1f} mm"
+        L += _heading(f"Wall {j} '{w.name}': {geo}, {w.thickness * 1e3:.1f} mm thick")
+        mesh = system.meshes[j] if system is not None else None
+        rows = []
+        R_tot = 0.0
+        slab = w.geometry == "slab"
+        for i, layer in enumerate(w.layers):
+            k = float(layer.material.k(T20))
+            R = _layer_resistance(w, i, k)
+            R_tot += R
+            nodes = "-"
+            if mesh is not None:
+                a, b = mesh.layer_nodes[i]
+                nodes = str(b - a + 1)
+            tmax = getattr(layer.material, "t_max", None)
+            lab = layer.label if layer.label == layer.material.name else \
+                f"{layer.label} ({layer.material.name})"
+            row = [str(i + 1), lab, f"{layer.thickness * 1e3:.1f}",
+                   nodes, f"{k:.4g}", f"{R:.4g}"]
+            if slab:
+                row.append(f"{R * w.area:.4g}")
+            row.append("-" if tmax is None else f"{tmax - KELVIN_OFFSET:.0f}")
+            rows.append(row)
+            if i < len(w.layers) - 1 and w.contact[i] > 0:
+                Rc = w.contact[i] / w.area_at(float(w.radii()[i + 1]))
+                R_tot += Rc
+                row = ["", "contact resistance", "0.0", "", "", f"{Rc:.4g}"]
+                if slab:
+                    row.append(f"{w.contact[i]:.4g}")
+                row.append("")
+                rows.append(row)
+        tot = ["", "total", f"{w.thickness * 1e3:.1f}",
+               str(mesh.n) if mesh is not None else "-", "", f"{R_tot:.4g}"]
+        if slab:
+            tot.append(f"{R_tot * w.area:.4g}")
+        tot.append("")
+        rows.append(tot)
+        head = ["#", "layer (material)", "thickness", "nodes", "k at 20 degC", "R"]
+        units = ["", "", "[mm]", "", "[W/m/K]", "[K/W]"]
+        if slab:
+            head.append("R-value")
+            units.append("[m2.K/W]")
+        head.append("limit")
+        units.append("[degC]")
+        L += _table(head, units, rows, align=["<", "<"] + [">"] * (len(head) - 2))
+        if case.is_enclosure:
+            ew = case.walls[j]
+            inner = f"to the chamber: convection {_conv_text(ew.inner_h)}"
+            if ew.inner_emissivity is not None:
+                inner += f"; radiation, emissivity {ew.inner_emissivity:.2f}"
+            L.append(_wrap(f"inner face: {inner}", "  "))
+            L.append(_wrap(f"outer face: {_face_text(ew.outer)}", "  "))
+        else:
+            L.append(_wrap(f"inner face: {_face_text(case.inner)}", "  "))
+            L.append(_wrap(f"outer face: {_face_text(case.outer)}", "  "))
+        L.append(_wrap("(nodes: mesh nodes in the layer, shared with its neighbours at "
+                       "interfaces; k and R at 20 degC, conduction only, without surface films)"))
+    if case.chamber is not None:
+        ch = case.chamber
+        cap = ch.capacity
+        cap_t = (f"{float(cap) / 1e3:.3g} kJ/K" if not hasattr(cap, "values") else
+                 f"{min(cap.values) / 1e3:.3g}..{max(cap.values) / 1e3:.3g} kJ/K (table vs T)")
+        L += _heading("Chamber")
+        L.append(f"  capacity {cap_t}; ambient {_sched_text(ch.ambient)}; leakage "
+                 f"{ch.leakage:g} m3/s ({ch.leakage_ua:.3g} W/K); extra UA {ch.extra_ua:g} W/K")
+    if case.heater is not None:
+        hz = case.heater
+        c = case.control
+        L += _heading("Heater and control")
+        where = {"chamber": "in the chamber", "inner": f"on the inner face of wall {hz.wall}",
+                 "interface": f"behind layer {hz.interface + 1} of wall {hz.wall}"}[hz.location]
+        L.append(f"  heater {_sched_text(hz.power, 'W')} {where}")
+        ctl = f"  control '{c.mode}'"
+        if c.setpoint is not None and c.mode in ("thermostat", "pid"):
+            ctl += f", setpoint {_sched_text(c.setpoint)}, sensor {c.sensor}"
+        if c.mode == "thermostat":
+            ctl += f", band {c.band:g} K"
+        if c.mode in ("fixed", "duty"):
+            ctl += f", duty {_sched_text(c.duty, '[-]')}"
+        L.append(ctl)
+    if r.events:
+        L += _heading("Events watched")
+        for e, ev in enumerate(r.events):
+            wname = case.wall_list[ev.wall].name if 0 <= ev.wall < len(case.wall_list) else "?"
+            L.append(f"  {ev.name or f'event{e + 1}'}: {wname}, {_event_where(ev)} crossing "
+                     f"{fmt_temp(ev.threshold)}")
+    L += _heading("Warnings")
+    if warnings:
+        for w in warnings:
+            L.append(textwrap.fill(w, WIDTH, initial_indent="  - ", subsequent_indent="    ",
+                                   break_long_words=False, break_on_hyphens=False))
+    else:
+        L.append("  none")
+    return "\n".join(L) + "\n"
+
+
+# --------------------------------------------------------------------------- materials
+
+LIST_TEMPS_C = (20.0, 200.0, 500.0)
+
+
+def material_k_in_range(m, T_C: float):
+    """k [W/m/K] of material ``m`` at ``T_C`` [degC], or None where that temperature lies above
+    the maximum service temperature or more than 10 K outside the data range."""
+    T = T_C + KELVIN_OFFSET
+    if m.t_max is not None and T > m.t_max + 1e-9:
+        return None
+    Tk, _ = m.k.knots()
+    lo, hi = float(Tk[0]), float(Tk[-1])
+    if T < lo - 10.0 or T > hi + 10.0:
+        return None
+    return float(m.k(T))
+
+
+def format_material_list(materials) -> str:
+    """Table of materials: name, category, density [kg/m3], k [W/m/K] at 20/200/500 degC, and
+    maximum service temperature [degC]."""
+    rows = []
+    for m in materials:
+        ks = [material_k_in_range(m, t) for t in LIST_TEMPS_C]
+        rows.append([m.name, m.category or "-", f"{m.rho:.0f}"]
+                    + ["-" if k is None else f"{k:.4g}" for k in ks]
+                    + ["-" if m.t_max is None else f"{m.t_max - KELVIN_OFFSET:.0f}"])
+    head = ["material", "category", "rho"] + [f"k {t:.0f} degC" for t in LIST_TEMPS_C] + ["t_max"]
+    units = ["", "", "[kg/m3]"] + ["[W/m/K]"] * len(LIST_TEMPS_C) + ["[degC]"]
+    L = [f"fdwall bundled materials ({len(rows)})", ""]
+    L += _table(head, units, rows, align=["<", "<"] + [">"] * (len(head) - 2))
+    L.append("")
+    L.append(_wrap("'-': above the maximum service temperature or outside the data range. "
+                   "Typical values of the material class (demo/handbook data), not of a product: "
+                   "for design use the data sheet of the product installed. "
+                   "Show one material's tables with: fdwall materials NAME", ""))
+    return "\n".join(L) + "\n"
+
+
+def material_table(m, max_rows: int = 25):
+    """Rows (T [K], k [W/m/K], cp [J/kg/K]) for showing a material.  Constant properties give
+    a short grid; very fine grids (polynomials) are resampled to ``max_rows`` points."""
+    T, k, cp = m.tables()
+    lo, hi = float(T[0]), float(T[-1])
+    if lo <= 1.0 + 1e-9 and hi >= 5999.0:  # both constant
+        T = np.array([293.15])
+    else:
+        lo = max(lo, 273.15) if lo <= 1.0 + 1e-9 else lo
+        hi = min(hi, max(lo + 100.0, (m.t_max or hi))) if hi >= 5999.0 else hi
+        T = T[(T >= lo) & (T <= hi)]
+        if T.size < 2 or T.size > max_rows:
+            T = np.linspace(lo, hi, min(max_rows, 11 if T.size < 2 else max_rows))
+    return T, np.asarray(m.k(T), dtype=float), np.asarray(m.cp(T), dtype=float)
+
+
+def format_material(m) -> str:
+    """One material: density [kg/m3], emissivity [-], service limit [degC], source, notes, and
+    its conductivity [W/m/K] and specific heat [J/kg/K] against temperature [degC]."""
+    title = f"material '{m.name}'"
+    L = [title, "=" * len(title)]
+    L.append(f"  category      {m.category or '-'}")
+    L.append(f"  density       {m.rho:.0f} kg/m3")
+    L.append(f"  emissivity    {m.emissivity:.2f} [-]")
+    L.append("  t_max         " + ("not rated" if m.t_max is None else
+                                    f"{m.t_max - KELVIN_OFFSET:.0f} degC ({m.t_max:.2f} K)"))
+    if m.source:
+        L.append(textwrap.fill(m.source, WIDTH, initial_indent="  source        ",
+                               subsequent_indent=" " * 16, break_long_words=False))
+    if m.notes:
+        L.append(textwrap.fill(m.notes, WIDTH, initial_indent="  notes         ",
+                               subsequent_indent=" " * 16, break_long_words=False))
+    T, k, cp = material_table(m)
+    rows = [[f"{t - KELVIN_OFFSET:.1f}", f"{t:.2f}", f"{a:.4g}", f"{b:.4g}"]
+            for t, a, b in zip(T, k, cp)]
+    L.append("")
+    L += _table(["T", "T", "k", "cp"], ["[degC]", "[K]", "[W/m/K]", "[J/kg/K]"], rows,
+                align=[">"] * 4)
+    L.append("")
+    L.append("  (linear between rows; held at the end values outside them)")
+    return "\n".join(L) + "\n"
