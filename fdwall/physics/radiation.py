@@ -13,8 +13,10 @@
 from __future__ import annotations
 
 import difflib
-import math
-import tomllib
+try:
+    import tomllib
+except ImportError:  # Python 3.10
+    import tomli as tomllib
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
