@@ -187,42 +187,56 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
         Jrow[i] = 0.0
         Cap[i] = 0.0
         H[i] = 0.0
-    # conduction links and capacities
+    # capacities and conduction links: each node's materials are evaluated once at its own
+    # temperature; the link i-1 -> i uses the right-half value of node i-1 (same material as
+    # the left half of node i), so every link costs no extra table look-up.
+    kr_prev = 0.0
+    Kr_prev = 0.0
     for i in range(N):
         Ti = T[i]
         ml = node_i[i, 0]
         mr = node_i[i, 1]
+        kl = 0.0
+        Kl = 0.0
         if ml >= 0:
-            k, K, c, h = mat_eval(m_off, mtab, ml, Ti)
+            kl, Kl, c, h = mat_eval(m_off, mtab, ml, Ti)
             v = node_f[i, 0]
             Cap[i] += v * c
             H[i] += v * h
+        kr = 0.0
+        Kr = 0.0
         if mr >= 0:
-            k, K, c, h = mat_eval(m_off, mtab, mr, Ti)
-            v = node_f[i, 1]
-            Cap[i] += v * c
-            H[i] += v * h
-        lm = node_i[i, 2]
-        if lm == -2:
-            continue
-        Tj = T[i + 1]
-        g = node_f[i, 2]
-        if lm == -1:
-            q = g * (Ti - Tj)
-            di = g
-            dj = -g
-        else:
-            ki, Ki, ci, hi = mat_eval(m_off, mtab, lm, Ti)
-            kj, Kj, cj, hj = mat_eval(m_off, mtab, lm, Tj)
-            q = g * (Ki - Kj)
-            di = g * ki
-            dj = -g * kj
-        F[i] -= q
-        F[i + 1] += q
-        Jd[i] -= di
-        Ju[i] -= dj
-        Jl[i + 1] += di
-        Jd[i + 1] += dj
+            if mr == ml:
+                kr = kl
+                Kr = Kl
+                v = node_f[i, 1]
+                Cap[i] += v * c
+                H[i] += v * h
+            else:
+                kr, Kr, c, h = mat_eval(m_off, mtab, mr, Ti)
+                v = node_f[i, 1]
+                Cap[i] += v * c
+                H[i] += v * h
+        if i > 0:
+            lm = node_i[i - 1, 2]
+            if lm != -2:
+                g = node_f[i - 1, 2]
+                if lm == -1:
+                    q = g * (T[i - 1] - Ti)
+                    di = g
+                    dj = -g
+                else:
+                    q = g * (Kr_prev - Kl)
+                    di = g * kr_prev
+                    dj = -g * kl
+                F[i - 1] -= q
+                F[i] += q
+                Jd[i - 1] -= di
+                Ju[i - 1] -= dj
+                Jl[i] += di
+                Jd[i] += dj
+        kr_prev = kr
+        Kr_prev = Kr
     has_ch = ch_i[0] == 1
     nc_idx = N
     # faces
@@ -507,7 +521,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
     mode = ctl_i[0]
     period = ctl_f[0]
     ev_tol = ctl_f[9]
-    newton_tol = 1e-4 * tol
+    newton_tol = 1e-3 * tol
     t = acc[acc.shape[0] - 1]     # current time is kept in the last accumulator slot
     h = cs[CS_H]
     hmin = 1e-9 * max(1.0, t_out[t_out.shape[0] - 1])
@@ -517,10 +531,17 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
         ibp += 1
     k = k0
     nev = ev_i.shape[0]
+    Tprev = np.empty(nun)
+    hprev = 1.0
+    have_prev = False
+    reuse = False
+    u_last = -9.0
     while k < k1:
         t_target = t_out[k]
+        jump_target = False
         if ibp < nbp and bp[ibp] < t_target:
             t_target = bp[ibp]
+            jump_target = True
         # controller: sampling and switching times
         u = -1.0
         if mode == 1 or mode == 3 or mode == 4:
@@ -550,6 +571,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
                 cs[CS_NEXT] = t + period
             if cs[CS_NEXT] < t_target:
                 t_target = cs[CS_NEXT]
+                jump_target = True
             if mode == 3:
                 u = cs[CS_U]
             else:
@@ -557,6 +579,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
                     u = 1.0
                     if cs[CS_OFF] < t_target:
                         t_target = cs[CS_OFF]
+                        jump_target = True
                 else:
                     u = 0.0
         elif mode == 2:
@@ -569,7 +592,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
                 cs[CS_ON] = 1.0
             u = cs[CS_ON]
         # step size; after the heater switches, restart from the step that worked last time
-        switched = u != cs[CS_UPREV] and mode != 0
+        switched = u != cs[CS_UPREV] and (mode == 1 or mode == 2 or mode == 4)
         cs[CS_UPREV] = u
         if switched and h > cs[CS_HSW]:
             h = cs[CS_HSW]
@@ -584,11 +607,22 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
             land = False
             if hs > 0.5 * rem:
                 hs = 0.5 * rem
-        # values at the start of the step (right limit)
-        assemble(T, t, False, u, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
-                 s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, Jd, Jl, Ju, Jcol, Jrow, q0,
-                 hcw, hrw, ex0)
-        stats[ST_ASSEMBLE] += 1
+        # values at the start of the step (right limit); reuse the end of the last step
+        # unless forcing may have jumped there (breakpoint, controller switch)
+        if reuse and u == u_last:
+            for i in range(nun):
+                F0[i] = F1[i]
+                C0[i] = Cap[i]
+                H0[i] = H1[i]
+            for f in range(nf):
+                q0[f] = q1[f]
+            ex0[0] = ex1[0]
+            ex0[1] = ex1[1]
+        else:
+            assemble(T, t, False, u, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+                     s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, Jd, Jl, Ju, Jcol, Jrow,
+                     q0, hcw, hrw, ex0)
+            stats[ST_ASSEMBLE] += 1
         accepted = False
         while not accepted:
             dh = D_COEF * hs
@@ -597,7 +631,13 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
             # stage 1: trapezoid over gamma*h
             for i in range(nun):
                 Hb[i] = H0[i] + dh * F0[i]
-            ok = _newton_stage(Tg, T, tg, dh, Hb, u, dirich_node, dirich_sched, node_i, node_f,
+                if have_prev:
+                    Tp[i] = T[i] + GAMMA * hs * (T[i] - Tprev[i]) / hprev
+                    if Tp[i] < 1.0:
+                        Tp[i] = T[i]
+                else:
+                    Tp[i] = T[i]
+            ok = _newton_stage(Tg, Tp, tg, dh, Hb, u, dirich_node, dirich_sched, node_i, node_f,
                                chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i,
                                ch_f, ctl_i, ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol, Jrow, qg, hcw,
                                hrw, exg, R, dx, wc, wy, wz, newton_tol, stats)
@@ -709,7 +749,12 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
                 if ev_out[e, col] != ev_out[e, col]:
                     ev_out[e, col] = t + fr * hs
         for i in range(nun):
+            Tprev[i] = T[i]
             T[i] = T1[i]
+        hprev = hs
+        have_prev = True
+        u_last = u
+        reuse = not (land and jump_target)
         t = t + hs if not land else t_target
         stats[ST_ACC] += 1
         if hs < stats[ST_HMIN]:
