@@ -108,7 +108,7 @@ def layer_peaks(result):
         ``material`` (Material), ``T_max_K`` [K], ``t_max_K`` (service limit [K] or None).
     """
     out = []
-    for j, w in enumerate(result.case.wall_list):
+    for j, w in enumerate(solved_walls(result.system, result.case)):
         m = result.system.meshes[j]
         T = result.wall_T(j)
         for i, (layer, (a, b)) in enumerate(zip(w.layers, m.layer_nodes)):
@@ -118,6 +118,13 @@ def layer_peaks(result):
                 "t_max_K": getattr(layer.material, "t_max", None),
             })
     return out
+
+
+def solved_walls(system, case=None) -> list:
+    """The 1-D walls actually solved, in result order (a bridged wall appears twice: its clear
+    path and its bridge path '<name>~bridge'); falls back to the case's walls."""
+    w = list(getattr(system, "walls", None) or [])
+    return w if w else list((case or system.case).wall_list)
 
 
 def _is_outer(name: str) -> bool:
@@ -132,6 +139,11 @@ def _event_where(ev) -> str:
     if ev.where.startswith("interface:"):
         return f"interface {ev.where.split(':', 1)[1]}"
     return f"{ev.depth * 1e3:.1f} mm deep"
+
+
+def _case_wall_name(case, j) -> str:
+    walls = case.wall_list
+    return walls[j].name if 0 <= j < len(walls) else f"wall {j}"
 
 
 def _speaks_of_skin(text: str) -> bool:
@@ -215,7 +227,7 @@ def format_summary(result) -> str:
     # interfaces
     L += _heading("Interfaces (between layers, inner to outer)")
     rows = []
-    for j, w in enumerate(case.wall_list):
+    for j, w in enumerate(solved_walls(sysm, case)):
         Ti = result.interface_T(j)
         for i in range(len(w.layers) - 1):
             rows.append([w.name, f"{w.layers[i].label} | {w.layers[i + 1].label}",
@@ -262,7 +274,7 @@ def format_summary(result) -> str:
         L += _heading("Events (first crossings)")
         rows = []
         for e, (ev, (name, (up, down))) in enumerate(zip(case.run.events, result.events.items())):
-            wname = case.wall_list[ev.wall].name if 0 <= ev.wall < len(case.wall_list) else "?"
+            wname = _case_wall_name(case, ev.wall)
             rows.append([name, f"{wname}, {_event_where(ev)}", f"{degc(ev.threshold):.1f}",
                          fmt_time(up) if math.isfinite(up) else "not reached",
                          fmt_time(down) if math.isfinite(down) else "not reached"])
@@ -270,6 +282,28 @@ def format_summary(result) -> str:
                     ["", "", "[degC]", "", ""], rows, align=["<", "<", ">", ">", ">"])
         if any(_speaks_of_skin(r[0] + " " + r[1]) for r in rows):
             L.append(_wrap(TOUCH_CAUTION, "  "))
+
+    # bridges, box factor and warnings from the core's summary
+    summ = result.summary()
+    if summ.get("bridges"):
+        L += _heading("Thermal bridges (parallel paths)")
+        for wname, b in summ["bridges"].items():
+            L.append(f"  wall {wname}: the bridge carries "
+                     f"{100 * b.get('bridge_share_of_outer_heat_loss', float('nan')):.1f} % of the "
+                     f"outer heat loss; outer face at end: bridge "
+                     f"{fmt_temp(b.get('bridge_outer_T_final_K', float('nan')))}, clear wall "
+                     f"{fmt_temp(b.get('clear_outer_T_final_K', float('nan')))}")
+        L.append(_wrap(TOUCH_CAUTION, "  "))
+    if summ.get("box_edge_corner_area_factor"):
+        L.append("")
+        L.append(f"  box edges and corners: slab wall areas multiplied by "
+                 f"{summ['box_edge_corner_area_factor']:.3f} [-]")
+    warns = list(summ.get("warnings") or [])
+    if warns:
+        L += _heading("Warnings")
+        for w in warns:
+            L.append(textwrap.fill(w, WIDTH, initial_indent="  - ", subsequent_indent="    ",
+                                   break_long_words=False, break_on_hyphens=False))
 
     # solver
     s = result.stats
@@ -307,7 +341,7 @@ def _steady_lines(st, case, title):
     L += _table(["face", "T", "heat in", "h conv", "h rad", "h conv+rad"],
                 ["", "[degC]", f"[{pu}]", "[W/m2/K]", "[W/m2/K]", "[W/m2/K]"], rows)
     rows = []
-    for j, w in enumerate(case.wall_list):
+    for j, w in enumerate(solved_walls(sysm, case)):
         Ti = st.interface_T(j)
         for i in range(len(w.layers) - 1):
             rows.append([w.name, f"{w.layers[i].label} | {w.layers[i + 1].label}",
@@ -446,7 +480,10 @@ def format_case(case, system=None, warnings=()) -> str:
         else:
             geo = f"sphere, inner radius {w.inner_radius * 1e3:.1f} mm"
         L += _heading(f"Wall {j} '{w.name}': {geo}, {w.thickness * 1e3:.1f} mm thick")
-        mesh = system.meshes[j] if system is not None else None
+        mesh = None
+        if system is not None:
+            jj = system.chain_of(j) if hasattr(system, "chain_of") else j
+            mesh = system.meshes[jj]
         rows = []
         R_tot = 0.0
         slab = w.geometry == "slab"
@@ -499,6 +536,11 @@ def format_case(case, system=None, warnings=()) -> str:
         else:
             L.append(_wrap(f"inner face: {_face_text(case.inner)}", "  "))
             L.append(_wrap(f"outer face: {_face_text(case.outer)}", "  "))
+        if case.is_enclosure and getattr(case.walls[j], "bridge", None) is not None:
+            b = case.walls[j].bridge
+            L.append(_wrap(f"thermal bridge: {b.fraction * 100:.1f} % of the area has "
+                           f"{b.material.name} in place of layer(s) "
+                           f"{', '.join(str(i + 1) for i in b.layers)} (parallel paths)"))
         L.append(_wrap("(nodes: mesh nodes in the layer, shared with its neighbours at "
                        "interfaces; k and R at 20 degC, conduction only, without surface films)"))
     if case.chamber is not None:
@@ -509,6 +551,11 @@ def format_case(case, system=None, warnings=()) -> str:
         L += _heading("Chamber")
         L.append(f"  capacity {cap_t}; ambient {_sched_text(ch.ambient)}; leakage "
                  f"{ch.leakage:g} m3/s ({ch.leakage_ua:.3g} W/K); extra UA {ch.extra_ua:g} W/K")
+        if getattr(ch, "box", None):
+            fac = getattr(system, "area_factor", None) if system is not None else None
+            L.append(f"  box {' x '.join(f'{x:g}' for x in ch.box)} m (inner width x depth x "
+                     "height): edges and corners add conduction"
+                     + (f", slab areas x {fac:.3f} [-]" if fac else ""))
     if case.heater is not None:
         hz = case.heater
         c = case.control
@@ -527,7 +574,7 @@ def format_case(case, system=None, warnings=()) -> str:
     if r.events:
         L += _heading("Events watched")
         for e, ev in enumerate(r.events):
-            wname = case.wall_list[ev.wall].name if 0 <= ev.wall < len(case.wall_list) else "?"
+            wname = _case_wall_name(case, ev.wall)
             L.append(f"  {ev.name or f'event{e + 1}'}: {wname}, {_event_where(ev)} crossing "
                      f"{fmt_temp(ev.threshold)}")
     L += _heading("Warnings")
@@ -564,7 +611,7 @@ def format_material_list(materials) -> str:
     rows = []
     for m in materials:
         ks = [material_k_in_range(m, t) for t in LIST_TEMPS_C]
-        rows.append([m.name, m.category or "-", f"{m.rho:.0f}"]
+        rows.append([m.name, m.category or "-", f"{m.rho:.4g}"]
                     + ["-" if k is None else f"{k:.4g}" for k in ks]
                     + ["-" if m.t_max is None else f"{m.t_max - KELVIN_OFFSET:.0f}"])
     head = ["material", "category", "rho"] + [f"k {t:.0f} degC" for t in LIST_TEMPS_C] + ["t_max"]
