@@ -48,6 +48,12 @@ def _save(fig, path) -> str:
     return path
 
 
+def _walls(result):
+    """The 1-D walls solved, in result order (bridge paths included)."""
+    w = list(getattr(result.system, "walls", None) or [])
+    return w if w else list(result.case.wall_list)
+
+
 def _hours(result):
     return np.asarray(result.times, dtype=float) / 3600.0
 
@@ -95,7 +101,7 @@ def plot_temperatures(result, path) -> str:
     case = result.case
     th = _hours(result)
     fig, (ax,) = _figure()
-    walls = case.wall_list
+    walls = _walls(result)
     n = 0
     for j, w in enumerate(walls):
         T = result.wall_T(j) - KELVIN_OFFSET
@@ -167,7 +173,7 @@ def plot_profiles(result, path, times=None) -> str:
     """
     from matplotlib import colormaps
     case = result.case
-    walls = case.wall_list
+    walls = _walls(result)
     times = _profile_times(result, times)
     fig, axes = _figure(9.0, 3.6 * len(walls) + 1.0, rows=len(walls))
     cmap = colormaps["viridis"]
@@ -245,7 +251,8 @@ def plot_energy(result, path) -> str:
               np.nanmax(np.abs(p_mean)) if p_mean.size else 0.0)
     sc, pu = (1e3, "kW") if big >= 1e4 else (1.0, "W")
     names = result.face_names
-    single = len(case.wall_list) == 1
+    walls = _walls(result)
+    single = len(walls) == 1
     for f, n in enumerate(names):
         j = f // 2
         inner = n.endswith(":inner")
@@ -282,12 +289,12 @@ def plot_energy(result, path) -> str:
     _legend(a1, len(names) + 1)
 
     MJ = 1e6
-    if len(case.wall_list) == 1:
+    if single:
         for l, n in enumerate(sysm.layer_names):
             a2.plot(th, result.stored_layers[:, l] / MJ, "-", lw=1.2,
                     label=f"stored: {n.split('/', 1)[-1]}")
     else:
-        for j, w in enumerate(case.wall_list):
+        for j, w in enumerate(walls):
             a2.plot(th, result.stored_wall(j) / MJ, "-", lw=1.2,
                     color=_WALL_COLOURS[j % len(_WALL_COLOURS)], label=f"stored: wall {w.name}")
     if sysm.has_chamber:
