@@ -502,6 +502,11 @@ class RunSettings:
         Upper limit on the time step [s].
     events : tuple of Event
         Crossings to locate.
+    exact_outputs : bool
+        Land a time step on every output time (outputs exact to the solver, at the cost of
+        more steps when outputs are dense).  By default outputs between steps are cubic
+        Hermite interpolants of the step-end states (error well below ``tolerance``); the
+        energy balance is checked at every step either way.
     """
 
     duration: float
@@ -511,6 +516,7 @@ class RunSettings:
     tolerance: float = 0.01
     max_step: Optional[float] = None
     events: tuple = ()
+    exact_outputs: bool = False
 
     def __post_init__(self):
         _pos("duration", self.duration)

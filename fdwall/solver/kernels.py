@@ -46,8 +46,9 @@ W2 = C2
 KERR = (-3.0 * GAMMA ** 2 + 4.0 * GAMMA - 2.0) / (12.0 * (2.0 - GAMMA))
 
 # stats layout
-ST_ACC, ST_REJ, ST_NFAIL, ST_NEWTON, ST_EVRETRY, ST_STATUS, ST_T, ST_HMIN, ST_HMAX, ST_ASSEMBLE = range(10)
-N_STATS = 10
+(ST_ACC, ST_REJ, ST_NFAIL, ST_NEWTON, ST_EVRETRY, ST_STATUS, ST_T, ST_HMIN, ST_HMAX,
+ ST_ASSEMBLE, ST_H0, ST_RESMAX, ST_SCALE) = range(13)
+N_STATS = 13
 # control-state layout
 CS_U, CS_ON, CS_INT, CS_PREV, CS_NEXT, CS_OFF, CS_H, CS_UPREV, CS_HSW = range(9)
 N_CS = 9
@@ -471,7 +472,47 @@ def _hermite_cross(y0, y1, d0, d1, h, thr):
 
 
 @njit(cache=True)
-def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_f, chains,
+def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, Ha, Hb, qa, qb, hcw, hrw, exa, exb,
+               acc_a, acc_b, dirich_node, dirich_sched, dirich_face, s_off, stab, nf,
+               T_out, qf_out, E_out, P_out, hc_out, hr_out):
+    """Write output row ``k`` at fraction ``th`` of the step: cubic Hermite in the states
+    (slopes F/C) and in the cumulative energies (slopes = the flows), linear in the flows."""
+    nun = Ta.shape[0]
+    s2 = th * th
+    s3 = s2 * th
+    h00 = 2 * s3 - 3 * s2 + 1
+    h10 = s3 - 2 * s2 + th
+    h01 = -2 * s3 + 3 * s2
+    h11 = s3 - s2
+    for i in range(nun):
+        if th == 1.0:
+            T_out[k, i] = Tb[i]
+        else:
+            T_out[k, i] = (h00 * Ta[i] + h10 * hs * Fa[i] / Ca[i] + h01 * Tb[i]
+                           + h11 * hs * Fb[i] / Cb[i])
+    nd = dirich_node.shape[0]
+    for kk in range(nd):
+        T_out[k, dirich_node[kk]] = sched_eval(s_off, stab, dirich_sched[kk], tk, True)
+    for f in range(nf):
+        qf_out[k, f] = (1 - th) * qa[f] + th * qb[f]
+        hc_out[k, f] = hcw[f]
+        hr_out[k, f] = hrw[f]
+        E_out[k, f] = h00 * acc_a[f] + h10 * hs * qa[f] + h01 * acc_b[f] + h11 * hs * qb[f]
+    for kk in range(nd):
+        i = dirich_node[kk]
+        f = dirich_face[kk]
+        # heat flow that holds the face temperature: storage rate minus net conduction
+        qd = (Hb[i] - Ha[i]) / hs - Fb[i]
+        qf_out[k, f] = qd
+        E_out[k, f] = acc_a[f] + th * (acc_b[f] - acc_a[f])
+    E_out[k, nf] = h00 * acc_a[nf] + h10 * hs * exa[0] + h01 * acc_b[nf] + h11 * hs * exb[0]
+    E_out[k, nf + 1] = (h00 * acc_a[nf + 1] + h10 * hs * exa[1] + h01 * acc_b[nf + 1]
+                        + h11 * hs * exb[1])
+    P_out[k] = exb[0] if th == 1.0 else (1 - th) * exa[0] + th * exb[0]
+
+
+@njit(cache=True)
+def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step, node_i, node_f, chains,
               face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
               dirich_node, dirich_sched, dirich_face, ev_i, ev_f, ev_out,
               T_out, qf_out, E_out, P_out, hc_out, hr_out):
@@ -536,8 +577,12 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
     have_prev = False
     reuse = False
     u_last = -9.0
+    acc_prev = acc.copy()
+    has_ext = np.empty(nf, dtype=np.bool_)
+    for f in range(nf):
+        has_ext[f] = not (face_i[f, 6] == 1 and has_ch)
     while k < k1:
-        t_target = t_out[k]
+        t_target = t_out[k] if land_outputs else t_out[k1 - 1]
         jump_target = False
         if ibp < nbp and bp[ibp] < t_target:
             t_target = bp[ibp]
@@ -771,24 +816,37 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, bp, tol, max_step, node_i, node_
         cs[CS_H] = h
         while ibp < nbp and bp[ibp] <= t * (1 + 1e-14):
             ibp += 1
-        if land and t >= t_out[k] * (1 - 1e-14) - 1e-12:
-            # output row
-            for i in range(nun):
-                T_out[k, i] = T[i]
-            for f in range(nf):
-                q = q1[f]
-                qf_out[k, f] = q
-                hc_out[k, f] = hcw[f]
-                hr_out[k, f] = hrw[f]
-            for kk in range(nd):
-                i = dirich_node[kk]
-                f = dirich_face[kk]
-                # heat flow that holds the face temperature: storage rate minus net conduction
-                qf_out[k, f] = (H1[i] - H0[i]) / hs - F1[i]
-            for j in range(nf + 2):
-                E_out[k, j] = acc[j]
-            P_out[k] = ex1[0]
+        # energy balance at every accepted step: heat in - out - change in stored enthalpy
+        ext = acc[nf] - acc[nf + 1]
+        sc = abs(acc[nf])
+        for f in range(nf):
+            if has_ext[f]:
+                ext += acc[f]
+            if abs(acc[f]) > sc:
+                sc = abs(acc[f])
+        hsum = 0.0
+        for i in range(nun):
+            hsum += H1[i]
+        dH = hsum - stats[ST_H0]
+        res = abs(ext - dH)
+        if res > stats[ST_RESMAX]:
+            stats[ST_RESMAX] = res
+        if abs(dH) > sc:
+            sc = abs(dH)
+        if sc > stats[ST_SCALE]:
+            stats[ST_SCALE] = sc
+        # output rows inside (t - hs, t]: exact at the step end, cubic Hermite inside
+        t0s = t - hs
+        while k < k1 and t_out[k] <= t + 1e-12 * (1.0 + abs(t)):
+            th = (t_out[k] - t0s) / hs
+            if th >= 1.0 - 1e-12 or land and t_out[k] >= t_target:
+                th = 1.0
+            _write_row(k, th, hs, t_out[k], Tprev, T, F0, C0, F1, Cap, H0, H1, q0, q1, hcw,
+                       hrw, ex0, ex1, acc_prev, acc, dirich_node, dirich_sched, dirich_face,
+                       s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out, hr_out)
             k += 1
+        for j in range(acc.shape[0]):
+            acc_prev[j] = acc[j]
     acc[acc.shape[0] - 1] = t
     stats[ST_T] = t
     return k - k0

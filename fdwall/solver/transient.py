@@ -115,6 +115,7 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     K.assemble(T, 0.0, False, u0, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
                sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
                sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
+    H_initial = float(scratch[1].sum())
     T_out[0] = T
     qf_out[0] = qf
     hc_out[0], hr_out[0] = hc, hr
@@ -130,10 +131,11 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     acc = np.zeros(nf + 3)
     stats = np.zeros(K.N_STATS)
     stats[K.ST_HMIN] = np.inf
+    stats[K.ST_H0] = H_initial
     ev_i, ev_f = _event_rows(sysm, case)
     ev_out = np.full((len(ev_i), 2), np.nan)
     max_step = r.max_step if r.max_step is not None else np.inf
-    args = (t_out, None, None, sysm.breakpoints, r.tolerance, max_step, sysm.node_i,
+    args = (t_out, None, None, bool(r.exact_outputs), sysm.breakpoints, r.tolerance, max_step, sysm.node_i,
             sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f, sysm.hpar, sysm.m_off,
             sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f,
             sysm.dirich_node, sysm.dirich_sched, sysm.dirich_face, ev_i, ev_f, ev_out, T_out,
