@@ -1,0 +1,175 @@
+"""The solvers under test behind one interface, the reference solutions, error measures and
+the loosest-setting search used for the matched-accuracy comparison.
+
+Every ``solve_*`` returns ``(face_T, stats)``: face temperatures at the output times
+(n_out, 2) [K], inner face first, and a dict with at least ``steps`` and ``nodes``.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from . import problems as P
+
+# Accuracy criterion of the comparison [K]: every output time, against the converged reference.
+TOL_INNER = 1.0
+TOL_OUTER = 0.1
+
+# the benchmark mesh: fdwall's default cell counts doubled (85 nodes for problem (a))
+BENCH_REFINE = 2.0
+
+
+def bench_nodes(geometry="slab", refine=BENCH_REFINE):
+    """Node positions of the benchmark mesh [m] (fdwall's graded mesh, shared by everyone)."""
+    from fdwall.system import build_system
+    return build_system(P.wall_case(geometry, refine=refine)).meshes[0].x.copy()
+
+
+def errors(face_T, ref):
+    """Max over output times of |T - T_ref| at the inner and the outer face [K]."""
+    e = np.abs(np.asarray(face_T) - np.asarray(ref))
+    return float(np.max(e[:, 0])), float(np.max(e[:, 1]))
+
+
+def passes(err):
+    """True when both faces meet the accuracy criterion."""
+    return err[0] <= TOL_INNER and err[1] <= TOL_OUTER
+
+
+# ---- fdwall ---------------------------------------------------------------------------------
+
+def solve_fdwall(geometry, tolerance, refine=BENCH_REFINE, cells=None):
+    from fdwall.solver import run
+    r = run(P.wall_case(geometry, tolerance=tolerance, refine=refine, cells=cells))
+    st = dict(r.stats)
+    st["steps"] = st["accepted_steps"]
+    return r.face_T.copy(), st
+
+
+# ---- scipy BDF ------------------------------------------------------------------------------
+
+def scipy_tols(rtol):
+    """atol tied to rtol on the temperature scale (300 K)."""
+    return rtol, rtol * 300.0
+
+
+def solve_scipy(geometry, rtol, x=None, numpy_rhs=False):
+    from .peers import scipy_bdf
+    x = bench_nodes(geometry) if x is None else x
+    fv = P.fv_problem(x, geometry)
+    f = scipy_bdf.solve_numpy_rhs if numpy_rhs else scipy_bdf.solve
+    _, T, st = f(fv, *scipy_tols(rtol))
+    st["nodes"] = fv.n
+    return T[:, [0, -1]].copy(), st
+
+
+# ---- fixed-step backward Euler ----------------------------------------------------------------
+
+def solve_be(geometry, nsub, x=None):
+    from .peers import be_kernel
+    x = bench_nodes(geometry) if x is None else x
+    fv = P.fv_problem(x, geometry)
+    _, T, st = be_kernel.solve(fv, nsub)
+    st["nodes"] = fv.n
+    return T[:, [0, -1]].copy(), st
+
+
+# ---- FiPy -------------------------------------------------------------------------------------
+
+def have_fipy():
+    try:
+        import fipy  # noqa: F401
+        return True
+    except Exception:
+        return False
+
+
+def solve_fipy(geometry, nsub, x=None):
+    from .peers import fipy_peer
+    x = bench_nodes(geometry) if x is None else x
+    fv = P.fv_problem(x, geometry)
+    _, T, st = fipy_peer.solve(fv, nsub)
+    st["nodes"] = fv.n
+    return T, st
+
+
+# ---- reference --------------------------------------------------------------------------------
+
+def references(geometry, quick=False):
+    """Two independent converged solutions: fdwall on a fine graded mesh with a tight
+    tolerance, and scipy BDF (rtol 1e-9) on a fine uniform mesh built by the benchmark.
+
+    Returns (reference face_T, info dict).  The reference is the scipy solution (independent
+    of fdwall); the info gives their disagreement.
+    """
+    if quick:
+        fd_refine, fd_tol, cells, rtol = 8.0, 1e-4, (400, 400, 8), 1e-8
+    else:
+        fd_refine, fd_tol, cells, rtol = 16.0, 1e-5, (800, 800, 16), 1e-9
+    fd, fst = solve_fdwall(geometry, fd_tol, refine=fd_refine)
+    x = P.uniform_nodes(cells, geometry)
+    fv = P.fv_problem(x, geometry)
+    from .peers import scipy_bdf
+    _, T, sst = scipy_bdf.solve(fv, rtol, rtol * 100.0)
+    sp = T[:, [0, -1]].copy()
+    e = errors(fd, sp)
+    info = {"fdwall_fine": f"fdwall graded mesh x{fd_refine:g} ({fst['nodes']} nodes), "
+                           f"tolerance {fd_tol:g} K",
+            "scipy_fine": f"scipy BDF uniform mesh ({fv.n} nodes), rtol {rtol:g}",
+            "agree_inner": e[0], "agree_outer": e[1]}
+    return sp, info
+
+
+# ---- loosest setting that meets the criterion ---------------------------------------------
+
+def loosest(solve, knobs, ref, stop_when_stalled=False, budget_s=None):
+    """Try ``knobs`` from loosest to tightest; return (knob, face_T, stats, err, trials).
+
+    ``trials`` lists (knob, err) of every attempt.  With ``stop_when_stalled`` the search gives
+    up when tightening no longer reduces the error (the rest is spatial error); ``budget_s``
+    caps the time spent.  knob is None when nothing passed.
+    """
+    import time
+    trials = []
+    t0 = time.perf_counter()
+    prev = None
+    for kn in knobs:
+        T, st = solve(kn)
+        err = errors(T, ref)
+        trials.append((kn, err))
+        if passes(err):
+            return kn, T, st, err, trials
+        if stop_when_stalled and prev is not None and max(err[0] / TOL_INNER, err[1] / TOL_OUTER) \
+                > 0.8 * max(prev[0] / TOL_INNER, prev[1] / TOL_OUTER):
+            break
+        prev = err
+        if budget_s is not None and time.perf_counter() - t0 > budget_s:
+            break
+    return None, None, None, None, trials
+
+
+def loosest_integer(solve, ref, start=1, limit=4096):
+    """Smallest integer knob n (steps per output interval) meeting the criterion: doubling,
+    then bisection (error falls monotonically with the step for a first-order method)."""
+    trials = []
+    lo, hi = 0, start
+    hit = None
+    while hi <= limit:
+        T, st = solve(hi)
+        err = errors(T, ref)
+        trials.append((hi, err))
+        if passes(err):
+            hit = (hi, T, st, err)
+            break
+        lo, hi = hi, hi * 2
+    if hit is None:
+        return None, None, None, None, trials
+    while hi - lo > 1:
+        mid = (lo + hi) // 2
+        T, st = solve(mid)
+        err = errors(T, ref)
+        trials.append((mid, err))
+        if passes(err):
+            hi, hit = mid, (mid, T, st, err)
+        else:
+            lo = mid
+    return hit[0], hit[1], hit[2], hit[3], trials

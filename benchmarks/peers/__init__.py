@@ -1,0 +1,1 @@
+"""Peer solvers of the benchmark problems, written for the benchmark (not part of fdwall)."""

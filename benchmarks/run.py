@@ -1,0 +1,529 @@
+"""Run the fdwall benchmark suite and print the tables.
+
+    python -m benchmarks.run [--quick] [--only a,b,c,d,cli,cold,scaling] [--repeats N]
+                             [--no-fipy] [--write-readme]
+
+Sections: (a) furnace slab wall and (b) insulated pipe at matched accuracy against peers,
+(c) a five-wall enclosure with a thermostat, (d) a 1,000-variant study, the CLI on a bundled
+case, cold compilation, and scaling with node count, simulated duration and outputs.
+Timings are medians of several runs (the machine is shared: expect noise).
+"""
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import platform
+import subprocess
+import sys
+import tempfile
+import time
+import tracemalloc
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+
+from . import methods as M
+from . import problems as P
+
+ROOT = Path(__file__).resolve().parent.parent
+OUT = []          # markdown lines of this run (for --write-readme)
+
+
+def say(line=""):
+    print(line, flush=True)
+    OUT.append(line)
+
+
+def table(head, rows):
+    """Print a markdown table."""
+    say("| " + " | ".join(head) + " |")
+    say("|" + "|".join("---" for _ in head) + "|")
+    for r in rows:
+        say("| " + " | ".join(str(c) for c in r) + " |")
+    say()
+
+
+def median_time(fn, repeats):
+    """Median and minimum wall time [s] of ``repeats`` calls (after the caller's warm-up)."""
+    ts = []
+    for _ in range(repeats):
+        t0 = time.perf_counter()
+        fn()
+        ts.append(time.perf_counter() - t0)
+    return float(np.median(ts)), float(np.min(ts))
+
+
+def peak_memory(fn):
+    """Peak traced Python/numpy allocation during one call [bytes] (tracemalloc)."""
+    tracemalloc.start()
+    tracemalloc.reset_peak()
+    try:
+        fn()
+        return tracemalloc.get_traced_memory()[1]
+    finally:
+        tracemalloc.stop()
+
+
+def machine():
+    cpu = "?"
+    try:
+        for line in open("/proc/cpuinfo"):
+            if line.startswith("model name"):
+                cpu = line.split(":", 1)[1].strip()
+                break
+    except OSError:
+        pass
+    import numba
+    import scipy
+    v = {"nproc": os.cpu_count(), "cpu": cpu, "python": platform.python_version(),
+         "numpy": np.__version__, "scipy": scipy.__version__, "numba": numba.__version__}
+    try:
+        import fipy
+        v["fipy"] = fipy.__version__
+    except Exception:
+        v["fipy"] = "not installed"
+    return v
+
+
+def fmt_ms(s):
+    return f"{s * 1e3:.1f}" if s < 10 else f"{s * 1e3:.0f}"
+
+
+def subprocess_json(args, env=None, timeout=900):
+    t0 = time.perf_counter()
+    p = subprocess.run([sys.executable, "-m"] + args, capture_output=True, text=True,
+                       cwd=ROOT, env=env, timeout=timeout)
+    wall = time.perf_counter() - t0
+    if p.returncode != 0:
+        raise RuntimeError(f"{' '.join(args)} failed:\n{p.stderr[-2000:]}")
+    return json.loads(p.stdout.strip().splitlines()[-1]), wall
+
+
+def cold_env(tmp):
+    env = dict(os.environ)
+    env["NUMBA_CACHE_DIR"] = tmp
+    env["PYTHONPATH"] = str(ROOT) + os.pathsep + env.get("PYTHONPATH", "")
+    return env
+
+
+def warm_env():
+    env = dict(os.environ)
+    env["PYTHONPATH"] = str(ROOT) + os.pathsep + env.get("PYTHONPATH", "")
+    return env
+
+
+# ---- (a)/(b): matched accuracy -----------------------------------------------------------------
+
+FD_TOLS = (10.0, 5.0, 3.0, 2.0, 1.0, 0.5, 0.3, 0.2, 0.1, 0.05, 0.02, 0.01, 0.005, 0.002, 0.001)
+SCIPY_RTOLS = (1e-2, 5e-3, 2e-3, 1e-3, 5e-4, 2e-4, 1e-4, 5e-5, 2e-5, 1e-5, 5e-6, 2e-6, 1e-6)
+
+
+def compile_times(quick):
+    """Cold (empty numba cache) first-solve time minus warm solve, per numba-based solver."""
+    out = {}
+    for which in ("fdwall", "be", "scipy"):
+        with tempfile.TemporaryDirectory(prefix="fdwall-bench-numba-") as tmp:
+            try:
+                d, _ = subprocess_json(["benchmarks.coldstart", which], env=cold_env(tmp))
+                out[which] = d["first_s"] - d["second_s"]
+            except Exception as exc:  # pragma: no cover - reported, not fatal
+                out[which] = float("nan")
+                say(f"(compile time of {which} not measured: {exc})")
+    return out
+
+
+def matched(geometry, quick, repeats, use_fipy, compile_s):
+    label = {"slab": "(a) furnace slab wall", "cylinder": "(b) insulated pipe, per metre"}[geometry]
+    say(f"### {label}")
+    say()
+    ref, info = M.references(geometry, quick)
+    say(f"Reference: {info['scipy_fine']}; cross-check {info['fdwall_fine']}: the two agree "
+        f"within {info['agree_inner']:.4f} K (inner face) and {info['agree_outer']:.5f} K "
+        f"(outer skin) at every output time.")
+    x = M.bench_nodes(geometry)
+    n = x.size
+    # spatial error of the benchmark mesh: time-converged solutions on it
+    fd_tc, _ = M.solve_fdwall(geometry, 1e-5)
+    sp_tc, _ = M.solve_scipy(geometry, 1e-9, x=x)
+    e_fd = M.errors(fd_tc, ref)
+    e_sp = M.errors(sp_tc, ref)
+    say(f"Benchmark mesh: fdwall's graded default mesh x{M.BENCH_REFINE:g}, {n} nodes, shared "
+        f"by every solver. Its spatial-discretisation error (time-converged solutions on it vs "
+        f"the reference): fdwall {e_fd[0]:.3f} K inner / {e_fd[1]:.4f} K outer; scipy on the "
+        f"same nodes {e_sp[0]:.3f} K / {e_sp[1]:.4f} K. Criterion: inner face within "
+        f"{M.TOL_INNER:g} K and outer skin within {M.TOL_OUTER:g} K of the reference at every "
+        f"output time.")
+    say()
+    results = []
+    trials_txt = []
+
+    # fdwall
+    kn, T, st, err, tr = M.loosest(lambda tol: M.solve_fdwall(geometry, tol), FD_TOLS, ref)
+    trials_txt.append(("fdwall tolerance [K]", tr))
+    if kn is not None:
+        case = P.wall_case(geometry, tolerance=kn, refine=M.BENCH_REFINE)
+        from fdwall.solver import run
+        run(case)
+        med, mn = median_time(lambda: run(case), repeats)
+        mem = peak_memory(lambda: run(case))
+        results.append(("fdwall TR-BDF2", f"tolerance={kn:g} K", n, st["steps"], med, mn, mem,
+                        err, compile_s.get("fdwall")))
+        from fdwall.system import build_system
+        sysm = build_system(case)
+        med, mn = median_time(lambda: run(case, system=sysm), repeats)
+        results.append(("fdwall, system prebuilt", f"tolerance={kn:g} K", n, st["steps"], med,
+                        mn, mem, err, None))
+    # scipy BDF
+    kn, T, st, err, tr = M.loosest(lambda r: M.solve_scipy(geometry, r, x=x), SCIPY_RTOLS, ref)
+    trials_txt.append(("scipy rtol (atol = 300 K x rtol)", tr))
+    if kn is not None:
+        fn = lambda: M.solve_scipy(geometry, kn, x=x)
+        med, mn = median_time(fn, repeats)
+        mem = peak_memory(fn)
+        results.append(("scipy solve_ivp BDF", f"rtol={kn:g}", n, st["steps"], med, mn, mem, err,
+                        compile_s.get("scipy")))
+        fn = lambda: M.solve_scipy(geometry, kn, x=x, numpy_rhs=True)
+        T2, _ = fn()
+        med, mn = median_time(fn, repeats)
+        mem = peak_memory(fn)
+        results.append(("scipy BDF, numpy rhs", f"rtol={kn:g}", n, st["steps"], med, mn, mem,
+                        M.errors(T2, ref), None))
+    # backward Euler kernel
+    kn, T, st, err, tr = M.loosest_integer(lambda m: M.solve_be(geometry, m, x=x), ref)
+    trials_txt.append(("BE steps per 5-min output", tr))
+    if kn is not None:
+        fn = lambda: M.solve_be(geometry, kn, x=x)
+        med, mn = median_time(fn, repeats)
+        mem = peak_memory(fn)
+        results.append(("fixed-step BE (numba)", f"dt={P.OUTPUT_INTERVAL / kn:.3g} s", n,
+                        st["steps"], med, mn, mem, err, compile_s.get("be")))
+    # FiPy
+    if use_fipy:
+        knobs = (1, 2, 4, 8, 16, 32, 64) if not quick else (1, 2, 4)
+        kn, T, st, err, tr = M.loosest(lambda m: M.solve_fipy(geometry, m, x=x), knobs, ref,
+                                       stop_when_stalled=True,
+                                       budget_s=60 if quick else 400)
+        trials_txt.append(("FiPy steps per 5-min output", tr))
+        # spatial error of FiPy's discretisation: Richardson extrapolation of its two finest
+        # runs (first order in time)
+        fipy_note = ""
+        if len(tr) >= 2:
+            (m1, _), (m2, _) = tr[-2], tr[-1]
+            T1, _ = M.solve_fipy(geometry, m1, x=x)
+            T2, _ = M.solve_fipy(geometry, m2, x=x)
+            r = m2 / m1
+            Tx = (r * T2 - T1) / (r - 1)
+            ex = M.errors(Tx, ref)
+            fipy_note = (f"FiPy's spatial error on the same nodes (cell-centred, Richardson "
+                         f"extrapolation in time of its runs at {m1} and {m2} steps per "
+                         f"output): {ex[0]:.3f} K inner / {ex[1]:.4f} K outer.")
+        if kn is not None:
+            fn = lambda: M.solve_fipy(geometry, kn, x=x)
+            med, mn = median_time(fn, max(1, min(3, repeats)))
+            mem = peak_memory(fn)
+            results.append(("FiPy (sweeps)", f"dt={P.OUTPUT_INTERVAL / kn:.3g} s", n,
+                            st["steps"], med, mn, mem, err, None))
+        else:
+            last = tr[-1]
+            results.append(("FiPy (sweeps)", f"best dt={P.OUTPUT_INTERVAL / last[0]:.3g} s",
+                            n, "-", float("nan"), float("nan"), 0, last[1], None))
+    rows = []
+    fd_time = results[0][4] if results and results[0][0].startswith("fdwall") else None
+    for name, knob, nn, steps, med, mn, mem, err, comp in results:
+        ok = "yes" if M.passes(err) else "no"
+        per = (f"{med / (nn * steps) * 1e9:.0f}" if isinstance(steps, int) and steps > 0
+               and np.isfinite(med) else "-")
+        ratio = f"{med / fd_time:.1f}" if fd_time and np.isfinite(med) else "-"
+        rows.append((name, knob, nn, steps, fmt_ms(med) if np.isfinite(med) else "-",
+                     fmt_ms(mn) if np.isfinite(mn) else "-", per, f"{mem / 1024:.0f}",
+                     f"{err[0]:.3f}", f"{err[1]:.4f}", ok,
+                     f"{comp:.1f}" if comp is not None and np.isfinite(comp) else "-", ratio))
+    table(["method", "setting", "nodes", "steps", "wall median [ms]", "wall min [ms]",
+           "ns per node-step", "peak mem [KiB]", "err inner [K]", "err outer [K]",
+           "meets", "compile [s]", "time / fdwall"], rows)
+    say("Settings tried (loosest first), error inner/outer [K]:")
+    say()
+    for name, tr in trials_txt:
+        say(f"- {name}: " + "; ".join(f"{k:g} -> {e[0]:.3g}/{e[1]:.3g}" for k, e in tr))
+    if use_fipy and fipy_note:
+        say(f"- {fipy_note}")
+    say()
+    return {r[0]: r for r in results}
+
+
+# ---- (c) enclosure ------------------------------------------------------------------------------
+
+def enclosure(quick, repeats):
+    from fdwall.solver import run
+    say("### (c) five-wall enclosure, thermostat (fdwall only)")
+    say()
+    fine = run(P.enclosure_case(tolerance=1e-5, refine=M.BENCH_REFINE))
+    ref = fine.face_T
+    chref = fine.chamber_T
+    nf = ref.shape[1]
+    rows = []
+    chosen = None
+    for tol in FD_TOLS:
+        case = P.enclosure_case(tolerance=tol, refine=M.BENCH_REFINE)
+        r = run(case)
+        e = np.abs(r.face_T - ref)
+        e_in = float(e[:, 0::2].max())
+        e_out = float(e[:, 1::2].max())
+        e_ch = float(np.abs(r.chamber_T - chref).max())
+        ok = e_in <= M.TOL_INNER and e_out <= M.TOL_OUTER and e_ch <= M.TOL_INNER
+        if ok and chosen is None:
+            chosen = tol
+            med, mn = median_time(lambda: run(case), repeats)
+            mem = peak_memory(lambda: run(case))
+            n = r.T.shape[1]
+            steps = r.stats["accepted_steps"]
+            rows.append(("fdwall TR-BDF2", f"tolerance={tol:g} K", n, steps, fmt_ms(med),
+                         fmt_ms(mn), f"{med / (n * steps) * 1e9:.0f}", f"{mem / 1024:.0f}",
+                         f"{e_in:.3f}", f"{e_out:.4f}", f"{e_ch:.3f}"))
+            break
+    say(f"Reference: the same mesh (5 walls x {fine.T.shape[1] // 5} nodes + chamber) with "
+        f"tolerance 1e-5 K (time error only; no independent peer for the enclosure). "
+        f"Heater cycles in the reference: {int(np.sum(np.abs(np.diff(fine.heater_power)) > 1))} "
+        f"power changes between outputs.")
+    say()
+    table(["method", "setting", "unknowns", "steps", "wall median [ms]", "wall min [ms]",
+           "ns per node-step", "peak mem [KiB]", "err inner faces [K]", "err outer skins [K]",
+           "err chamber [K]"], rows)
+    return chosen
+
+
+# ---- (d) study ---------------------------------------------------------------------------------
+
+def study(quick, tol):
+    n = 200 if quick else 1000
+    say(f"### (d) study of {n} variants of (a) (fdwall, tolerance {tol:g} K, benchmark mesh)")
+    say()
+    rows = []
+    with tempfile.TemporaryDirectory(prefix="fdwall-bench-numba-") as tmp:
+        d, wall = subprocess_json(["benchmarks.study", "--n", str(n), "--tolerance", str(tol),
+                                   "--refine", str(M.BENCH_REFINE)], env=cold_env(tmp))
+        rows.append(("cold: fresh process, empty numba cache", f"{wall:.2f}", f"{d['import_s']:.2f}",
+                     f"{d['first_s']:.2f}", f"{d['loop_s']:.2f}", f"{d['loop_s'] / n * 1e3:.2f}"))
+        warm = []
+        for _ in range(3):
+            d, wall = subprocess_json(["benchmarks.study", "--n", str(n), "--tolerance",
+                                       str(tol), "--refine", str(M.BENCH_REFINE)],
+                                      env=cold_env(tmp))
+            warm.append((wall, d))
+        wall, d = sorted(warm, key=lambda w: w[0])[1]
+        rows.append(("warm: fresh process, numba cache filled (median of 3)", f"{wall:.2f}",
+                     f"{d['import_s']:.2f}", f"{d['first_s']:.2f}", f"{d['loop_s']:.2f}",
+                     f"{d['loop_s'] / n * 1e3:.2f}"))
+    table(["run", "total wall [s]", "imports [s]", "first variant [s]", f"{n} variants [s]",
+           "per variant [ms]"], rows)
+    say(f"Answers: hottest skin over the study {d['skin_max_K']:.1f} K (coolest "
+        f"{d['skin_min_K']:.1f} K), hottest inner face {d['inner_max_K']:.1f} K.")
+    say()
+    return rows
+
+
+# ---- CLI and cold compile ----------------------------------------------------------------------
+
+def cli_bench(repeats):
+    import importlib.util
+    import shutil
+    say("### CLI on a bundled case")
+    say()
+    cases = sorted((ROOT / "cases").glob("*.toml"))
+    exe = shutil.which("fdwall")
+    if importlib.util.find_spec("fdwall.cli") is None or not cases:
+        say("Not measured: " + ("no fdwall.cli module" if importlib.util.find_spec("fdwall.cli")
+                                is None else "no cases/*.toml") + " in this checkout.")
+        say()
+        return None
+    rows = []
+    for case in cases:
+        cmd = ([exe] if exe else [sys.executable, "-m", "fdwall.cli"]) + ["run", str(case),
+                                                                            "--no-plots"]
+        with tempfile.TemporaryDirectory() as out:
+            p = subprocess.run(cmd, capture_output=True, text=True, cwd=out, timeout=600)
+            if p.returncode != 0:
+                rows.append((case.name, "failed", p.stderr.strip().splitlines()[-1:]))
+                continue
+            ts = []
+            for _ in range(max(3, repeats // 2)):
+                t0 = time.perf_counter()
+                subprocess.run(cmd, capture_output=True, text=True, cwd=out, timeout=600)
+                ts.append(time.perf_counter() - t0)
+        rows.append((case.name, f"{np.median(ts):.2f}", "yes" if np.median(ts) < 2 else "no"))
+    table(["case", "warm wall median [s]", "< 2 s"], rows)
+    return rows
+
+
+def cold_compile():
+    say("### Cold start")
+    say()
+    rows = []
+    with tempfile.TemporaryDirectory(prefix="fdwall-bench-numba-") as tmp:
+        d, wall = subprocess_json(["benchmarks.coldstart", "fdwall"], env=cold_env(tmp))
+        rows.append(("empty numba cache", f"{wall:.2f}", f"{d['import_s']:.2f}",
+                     f"{d['first_s']:.2f}", f"{d['second_s'] * 1e3:.1f}"))
+        d, wall = subprocess_json(["benchmarks.coldstart", "fdwall"], env=cold_env(tmp))
+        rows.append(("cache filled", f"{wall:.2f}", f"{d['import_s']:.2f}",
+                     f"{d['first_s']:.2f}", f"{d['second_s'] * 1e3:.1f}"))
+    table(["fresh process, problem (a)", "process wall [s]", "imports [s]",
+           "first solve incl. compile/load [s]", "second solve [ms]"], rows)
+    return rows
+
+
+# ---- scaling -----------------------------------------------------------------------------------
+
+def cycling_case(cycles, tol):
+    """Problem (a) with the heater cycle (5 h on, 3 h off) repeated ``cycles`` times."""
+    t, v = [], []
+    for c in range(cycles):
+        a = c * P.DURATION
+        t += [a, a + P.HEAT_OFF, a + P.HEAT_OFF, a + P.DURATION]
+        v += [P.FLUX, P.FLUX, 0.0, 0.0]
+    from fdwall.schedule import Schedule
+    from fdwall.model import Face
+    # consecutive cycles meet as (end, 0), (start, FLUX): a repeated time is a step
+    tt, vv = t, v
+    case = P.wall_case(tolerance=tol, refine=M.BENCH_REFINE, duration=cycles * P.DURATION)
+    return replace(case, inner=Face(flux=Schedule(tt, vv)))
+
+
+def scaling(quick, tol, repeats):
+    from fdwall.solver import run
+    from fdwall.system import build_system
+    say(f"### Scaling (fdwall, tolerance {tol:g} K)")
+    say()
+    Ns = (100, 300, 1000, 3000, 10000) if quick else (100, 300, 1000, 3000, 10000, 30000, 100000)
+    rows = []
+    for N in Ns:
+        cells = (max(1, int(0.45 * (N - 1))), max(1, int(0.45 * (N - 1))), 0)
+        cells = (cells[0], cells[1], max(1, N - 1 - cells[0] - cells[1]))
+        case = P.wall_case(tolerance=tol, cells=cells)
+        r = run(case)
+        rep = repeats if N <= 3000 else max(1, min(3, repeats))
+        med, _ = median_time(lambda: run(case), rep)
+        tb, _ = median_time(lambda: build_system(case), rep)
+        n = r.T.shape[1]
+        steps = r.stats["accepted_steps"]
+        rows.append((n, steps, r.stats["assemblies"], fmt_ms(med), fmt_ms(tb),
+                     f"{med / (n * steps) * 1e9:.0f}",
+                     f"{med / (n * r.stats['assemblies']) * 1e9:.1f}"))
+    say("Node count (cells 45 % / 45 % / 10 % over the three layers):")
+    say()
+    table(["nodes", "steps", "assemblies", "wall median [ms]", "of which build_system [ms]",
+           "ns per node-step", "ns per node-assembly"], rows)
+    rows = []
+    for cyc in ((1, 2, 4) if quick else (1, 2, 4, 8, 16)):
+        case = cycling_case(cyc, tol)
+        r = run(case)
+        med, _ = median_time(lambda: run(case), repeats)
+        steps = r.stats["accepted_steps"]
+        rows.append((f"{cyc * 8} h ({cyc} cycles)", r.times.size, steps, fmt_ms(med),
+                     f"{med / steps * 1e6:.1f}", f"{med / cyc * 1e3:.2f}"))
+    say("Simulated duration (heater cycle 5 h on / 3 h off, repeated; outputs every 5 min):")
+    say()
+    table(["duration", "outputs", "steps", "wall median [ms]", "us per step", "ms per cycle"],
+          rows)
+    rows = []
+    base = P.wall_case(tolerance=tol, refine=M.BENCH_REFINE)
+    for ms in (None, 60.0, 10.0, 2.0):
+        case = replace(base, run=replace(base.run, max_step=ms))
+        r = run(case)
+        mem = peak_memory(lambda: run(case))
+        rows.append(("none" if ms is None else f"{ms:g} s", f"{P.OUTPUT_INTERVAL:g} s",
+                     r.times.size, r.stats["accepted_steps"], f"{mem / 1024:.0f}"))
+    for oi in (60.0, 10.0):
+        case = replace(base, run=replace(base.run, output_interval=oi))
+        r = run(case)
+        mem = peak_memory(lambda: run(case))
+        rows.append(("none", f"{oi:g} s", r.times.size, r.stats["accepted_steps"],
+                     f"{mem / 1024:.0f}"))
+    say("Peak traced memory (tracemalloc: Python and numpy allocations; the kernel's own "
+        "O(nodes) work arrays are not traced) against the number of steps and of outputs:")
+    say()
+    table(["max step", "output interval", "outputs", "steps", "peak mem [KiB]"], rows)
+
+
+# ---- main --------------------------------------------------------------------------------------
+
+def write_readme():
+    path = Path(__file__).with_name("README.md")
+    text = path.read_text()
+    a, b = "<!-- results:start -->", "<!-- results:end -->"
+    if a not in text or b not in text:
+        print(f"(README markers {a} ... {b} not found; results not written)")
+        return
+    head, rest = text.split(a, 1)
+    _, tail = rest.split(b, 1)
+    path.write_text(head + a + "\n" + "\n".join(OUT) + "\n" + b + tail)
+    print(f"results written to {path}")
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description="fdwall benchmark suite")
+    ap.add_argument("--quick", action="store_true", help="smaller references, fewer repeats")
+    ap.add_argument("--only", default="a,b,c,d,cli,cold,scaling",
+                    help="comma-separated sections: a,b,c,d,cli,cold,scaling")
+    ap.add_argument("--repeats", type=int, default=None, help="timing repeats (median)")
+    ap.add_argument("--no-fipy", action="store_true", help="skip the FiPy peer")
+    ap.add_argument("--write-readme", action="store_true",
+                    help="replace the results section of benchmarks/README.md")
+    a = ap.parse_args(argv)
+    sections = set(a.only.split(","))
+    repeats = a.repeats or (3 if a.quick else 7)
+    use_fipy = not a.no_fipy and M.have_fipy()
+    t0 = time.perf_counter()
+    mc = machine()
+    say(f"Run {time.strftime('%Y-%m-%d %H:%M')}{' (--quick)' if a.quick else ''}: "
+        f"{mc['nproc']} cores, {mc['cpu']}; Python {mc['python']}, numpy {mc['numpy']}, "
+        f"scipy {mc['scipy']}, numba {mc['numba']}, FiPy {mc['fipy']}. Timings are medians of "
+        f"{repeats} runs on a machine shared with other work: expect noise of tens of percent.")
+    say()
+    # warm every compiled kernel once (cache load) so in-process timings are warm
+    M.solve_fdwall("slab", 0.1)
+    M.solve_be("slab", 1)
+    M.solve_scipy("slab", 1e-2)
+    comp = compile_times(a.quick) if sections & {"a", "b"} else {}
+    res = {}
+    tol_a = 0.1
+    for g, key in (("slab", "a"), ("cylinder", "b")):
+        if key in sections:
+            res[key] = matched(g, a.quick, repeats, use_fipy, comp)
+    if "a" in res:
+        r = res["a"]
+        fd = r.get("fdwall TR-BDF2")
+        if fd:
+            tol_a = float(fd[1].split("=")[1].split()[0])
+        say("Targets for (a), measured in this run:")
+        say()
+        for peer, target in (("scipy solve_ivp BDF", 10.0), ("fixed-step BE (numba)", 1.0)):
+            if fd and peer in r and np.isfinite(r[peer][4]):
+                ratio = r[peer][4] / fd[4]
+                say(f"- {peer} time / fdwall time = {ratio:.1f} (target >= {target:g}): "
+                    f"{'met' if ratio >= target else 'MISSED'}")
+        say()
+    if "c" in sections:
+        enclosure(a.quick, repeats)
+    if "d" in sections:
+        rows = study(a.quick, tol_a)
+        say(f"- Target: the study under 5 s with compilation included: cold "
+            f"{rows[0][1]} s, warm cache {rows[1][1]} s.")
+        say()
+    if "cli" in sections:
+        cli_bench(repeats)
+    if "cold" in sections:
+        rows = cold_compile()
+        say(f"- Target: cold compile under 30 s: {rows[0][1]} s for a fresh process with an "
+            f"empty cache ({'met' if float(rows[0][1]) < 30 else 'MISSED'}).")
+        say()
+    if "scaling" in sections:
+        scaling(a.quick, tol_a, repeats)
+    say(f"Suite wall time {time.perf_counter() - t0:.0f} s.")
+    if a.write_readme:
+        write_readme()
+
+
+if __name__ == "__main__":
+    main()
