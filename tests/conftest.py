@@ -1,0 +1,45 @@
+"""Shared pytest set-up for the fdwall tests.
+
+* matplotlib is switched to the non-interactive Agg backend before anything imports pyplot,
+  so tests that draw figures run on a machine without a screen.
+* ``fp_strict`` is an opt-in fixture that turns numpy floating-point warnings (overflow,
+  division by zero, invalid operations) into errors for the duration of one test.  It is not
+  global on purpose: numba and h5py may legitimately trip these flags inside library code.
+* the ``slow`` marker is registered here too (also in pyproject.toml), so ``-m "not slow"``
+  works whichever configuration file pytest picks up.
+"""
+from __future__ import annotations
+
+import os
+import sys
+
+import numpy as np
+import pytest
+
+os.environ.setdefault("MPLBACKEND", "Agg")
+try:  # pragma: no cover - matplotlib is a dependency, but keep the tests importable without it
+    import matplotlib
+    matplotlib.use("Agg", force=True)
+except ImportError:  # pragma: no cover
+    pass
+
+# tests/ on the path so the verification tests can ``import reference``.
+_HERE = os.path.dirname(os.path.abspath(__file__))
+if _HERE not in sys.path:
+    sys.path.insert(0, _HERE)
+
+
+def pytest_configure(config):
+    """Register the markers used by the suite (harmless if pyproject.toml already does)."""
+    config.addinivalue_line("markers", "slow: long-running checks (deselect with -m 'not slow')")
+
+
+@pytest.fixture
+def fp_strict():
+    """Raise on numpy floating-point errors (overflow, divide, invalid, underflow excluded)
+    inside the test that asks for this fixture; the previous settings are restored after."""
+    old = np.seterr(all="raise", under="ignore")
+    try:
+        yield
+    finally:
+        np.seterr(**old)
