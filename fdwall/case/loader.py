@@ -590,6 +590,17 @@ class _Loader:
                 raise sec.error(k, f"'{k}' does not apply to the convection model '{model}'",
                                 f"for '{model}': " + ", ".join(sorted(used)))
         wall, orient = geo["wall"], geo["orientation"]
+        if model == "natural":
+            need = ("diameter" if wall.geometry != "slab" else
+                    "height" if orient == "side" else "char_length")
+            for k in ("height", "char_length", "diameter"):
+                if k != need and sec.has(k):
+                    raise sec.error(k, f"'{k}' does not apply to the convection model 'natural' "
+                                       f"on a {wall.geometry} wall with orientation '{orient}'",
+                                    f"'{need}' (natural convection of "
+                                    + ("a horizontal cylinder" if need == "diameter" else
+                                       "a vertical plate" if need == "height" else
+                                       "a horizontal plate, area/perimeter") + ")")
         where = sec.exclusive("altitude", "pressure")
         kw = {"multiplier": sec.quantity("multiplier", "dimensionless", 1.0, positive=True)}
         if where == "altitude":
