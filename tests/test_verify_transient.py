@@ -194,8 +194,7 @@ def test_semi_infinite_step_surface_temperature(exact_outputs):
     error 4e-4 of T_s - T_i (mostly from the coarser core mesh the tail reaches by 100 s),
     face flow 2e-4 (outputs landed on), heat between the two times 5e-5.  Tolerances:
     profile 0.2 %, face flow 0.5 %, heat 0.1 %.  The face flow at outputs between steps
-    (the default) is the subject of the xfail below, so it is checked here only with
-    ``exact_outputs``.
+    (the default) is checked separately in test_fixed_face_flow_between_steps.
     """
     Ts, Ti = 500.0, 300.0
     times = (50.0, 100.0)
@@ -218,12 +217,6 @@ def test_semi_infinite_step_surface_temperature(exact_outputs):
     assert dE == pytest.approx(dE_ref, rel=1e-3)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "solver defect: with the default dense output (exact_outputs=False), the heat flow of a "
-    "fixed-temperature face at an output time between two steps is the flow at the END of "
-    "the step (kernels._write_row: qd = (Hb - Ha)/hs - Fb, not interpolated, while the other "
-    "faces' flows are): 2.5 % / 1.7 % / 1.2 % low at t = 50 s for tolerance 1e-2 / 1e-3 / "
-    "1e-4 K, against 3e-5 with exact_outputs=True"))
 def test_fixed_face_flow_between_steps():
     # Incropera eq. 5.58: q = k (T_s - T_i)/sqrt(pi alpha t)
     Ts, Ti, t = 500.0, 300.0, 50.0
@@ -233,13 +226,6 @@ def test_fixed_face_flow_between_steps():
     assert res.face_flow[k, 0] == pytest.approx(q_ref, rel=5e-3)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "solver defect: with a fixed-temperature face that differs from the initial temperature "
-    "at t = 0, run() overwrites the face node with the face temperature before the first "
-    "step, so the heat that brings the face half-cell from T_i to T_s, rho c V_half "
-    "(T_s - T_i), is in neither face_energy nor stored: the heat taken in is short by a "
-    "first-order-in-dx amount (2.0 % / 1.0 % / 0.5 % at 30 / 60 / 120 skin cells at t = 50 s; "
-    "with that half-cell added the error is 9e-4 / 2e-4 / 6e-5, second order)"))
 def test_semi_infinite_step_heat_taken_in_from_start():
     # Carslaw & Jaeger §2.4: heat in by time t is 2 k (T_s - T_i) sqrt(t/(pi alpha)).
     Ts, Ti, t = 500.0, 300.0, 50.0

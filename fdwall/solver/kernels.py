@@ -472,8 +472,8 @@ def _hermite_cross(y0, y1, d0, d1, h, thr):
 
 
 @njit(cache=True)
-def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, Ha, Hb, qa, qb, hcw, hrw, exa, exb,
-               acc_a, acc_b, dirich_node, dirich_sched, dirich_face, s_off, stab, nf,
+def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hcw, hrw, exa, exb,
+               acc_a, acc_b, qd_a, qd_b, dirich_node, dirich_sched, dirich_face, s_off, stab, nf,
                T_out, qf_out, E_out, P_out, hc_out, hr_out):
     """Write output row ``k`` at fraction ``th`` of the step: cubic Hermite in the states
     (slopes F/C) and in the cumulative energies (slopes = the flows), linear in the flows."""
@@ -499,12 +499,10 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, Ha, Hb, qa, qb, hcw, hrw, 
         hr_out[k, f] = hrw[f]
         E_out[k, f] = h00 * acc_a[f] + h10 * hs * qa[f] + h01 * acc_b[f] + h11 * hs * qb[f]
     for kk in range(nd):
-        i = dirich_node[kk]
         f = dirich_face[kk]
-        # heat flow that holds the face temperature: storage rate minus net conduction
-        qd = (Hb[i] - Ha[i]) / hs - Fb[i]
-        qf_out[k, f] = qd
-        E_out[k, f] = acc_a[f] + th * (acc_b[f] - acc_a[f])
+        # heat flow that holds the face temperature, between the step-end estimates
+        qf_out[k, f] = (1 - th) * qd_a[kk] + th * qd_b[kk]
+        E_out[k, f] = h00 * acc_a[f] + h10 * hs * qd_a[kk] + h01 * acc_b[f] + h11 * hs * qd_b[kk]
     E_out[k, nf] = h00 * acc_a[nf] + h10 * hs * exa[0] + h01 * acc_b[nf] + h11 * hs * exb[0]
     E_out[k, nf + 1] = (h00 * acc_a[nf + 1] + h10 * hs * exa[1] + h01 * acc_b[nf + 1]
                         + h11 * hs * exb[1])
@@ -514,7 +512,7 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, Ha, Hb, qa, qb, hcw, hrw, 
 @njit(cache=True)
 def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step, node_i, node_f, chains,
               face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
-              dirich_node, dirich_sched, dirich_face, ev_i, ev_f, ev_out,
+              dirich_node, dirich_sched, dirich_face, qd_state, ev_i, ev_f, ev_out,
               T_out, qf_out, E_out, P_out, hc_out, hr_out):
     """Integrate from ``t_out[k0-1]`` (or the state time) to ``t_out[k1-1]`` by TR-BDF2.
 
@@ -578,6 +576,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
     reuse = False
     u_last = -9.0
     acc_prev = acc.copy()
+    qd_b = np.zeros(nd)
     has_ext = np.empty(nf, dtype=np.bool_)
     for f in range(nf):
         has_ext[f] = not (face_i[f, 6] == 1 and has_ch)
@@ -835,16 +834,24 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
             sc = abs(dH)
         if sc > stats[ST_SCALE]:
             stats[ST_SCALE] = sc
+        # heat flow at fixed-temperature faces at the step end: storage rate minus conduction
+        for kk in range(nd):
+            i = dirich_node[kk]
+            qd_b[kk] = (H1[i] - H0[i]) / hs - F1[i]
+            if qd_state[kk] != qd_state[kk]:
+                qd_state[kk] = qd_b[kk]
         # output rows inside (t - hs, t]: exact at the step end, cubic Hermite inside
         t0s = t - hs
         while k < k1 and t_out[k] <= t + 1e-12 * (1.0 + abs(t)):
             th = (t_out[k] - t0s) / hs
             if th >= 1.0 - 1e-12 or land and t_out[k] >= t_target:
                 th = 1.0
-            _write_row(k, th, hs, t_out[k], Tprev, T, F0, C0, F1, Cap, H0, H1, q0, q1, hcw,
-                       hrw, ex0, ex1, acc_prev, acc, dirich_node, dirich_sched, dirich_face,
-                       s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out, hr_out)
+            _write_row(k, th, hs, t_out[k], Tprev, T, F0, C0, F1, Cap, q0, q1, hcw,
+                       hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b, dirich_node, dirich_sched,
+                       dirich_face, s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out, hr_out)
             k += 1
+        for kk in range(nd):
+            qd_state[kk] = qd_b[kk]
         for j in range(acc.shape[0]):
             acc_prev[j] = acc[j]
     acc[acc.shape[0] - 1] = t

@@ -96,6 +96,7 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     nun = sysm.n_unknowns
     nf = sysm.face_i.shape[0]
     T = sysm.initial_vector(r.initial if initial is None else initial)
+    T_start = T.copy()
     for k, i in enumerate(sysm.dirich_node):
         T[i] = K.sched_eval(sysm.s_off, sysm.stab, sysm.dirich_sched[k], 0.0, False)
     n_out = t_out.size
@@ -105,7 +106,8 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     P_out = np.full(n_out, np.nan)
     hc_out = np.full((n_out, nf), np.nan)
     hr_out = np.full((n_out, nf), np.nan)
-    # row 0: the initial state
+    # row 0: the initial state.  A fixed-temperature face that starts away from the initial
+    # temperature takes the heat of that jump at t = 0: it is booked on the face's ledger.
     F = np.empty(nun)
     extra = np.zeros(2)
     scratch = [np.empty(nun) for _ in range(7)]
@@ -115,8 +117,12 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     K.assemble(T, 0.0, False, u0, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
                sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
                sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
-    H_initial = float(scratch[1].sum())
-    T_out[0] = T
+    H_after = scratch[1].copy()
+    Hh, Hc = sysm.enthalpy(T_start)
+    H_initial = float(Hh.sum() + Hc.sum())
+    jump = {int(f): float(H_after[i] - Hh[0, i].sum())
+            for i, f in zip(sysm.dirich_node, sysm.dirich_face)}
+    T_out[0] = T_start
     qf_out[0] = qf
     hc_out[0], hr_out[0] = hc, hr
     E_out[0] = 0.0
@@ -129,6 +135,9 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     cs[K.CS_UPREV] = -2.0
     cs[K.CS_HSW] = cs[K.CS_H]
     acc = np.zeros(nf + 3)
+    for f, dh in jump.items():
+        acc[f] += dh
+    qd_state = np.full(len(sysm.dirich_node), np.nan)
     stats = np.zeros(K.N_STATS)
     stats[K.ST_HMIN] = np.inf
     stats[K.ST_H0] = H_initial
@@ -138,7 +147,7 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     args = (t_out, None, None, bool(r.exact_outputs), sysm.breakpoints, r.tolerance, max_step, sysm.node_i,
             sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f, sysm.hpar, sysm.m_off,
             sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f,
-            sysm.dirich_node, sysm.dirich_sched, sysm.dirich_face, ev_i, ev_f, ev_out, T_out,
+            sysm.dirich_node, sysm.dirich_sched, sysm.dirich_face, qd_state, ev_i, ev_f, ev_out, T_out,
             qf_out, E_out, P_out, hc_out, hr_out)
     k = 1
     bar = None
