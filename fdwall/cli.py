@@ -1,6 +1,6 @@
 """Command-line interface: ``fdwall run | steady | check | materials``.
 
-Exit codes: 0 success; 1 results could not be written; 2 bad input (case file, material, model;
+Exit codes: 0 success; 1 results could not be written (or fdwall itself is broken); 2 bad input (case file, material, model;
 nothing is written); 3 the transient run stopped early (the partial result is still written and
 marked incomplete) or no steady state was found; 130 interrupted (Ctrl-C).
 
@@ -34,7 +34,11 @@ class InputError(Exception):
     """Bad input, already phrased for the user (one paragraph)."""
 
 
-class WriteError(Exception):
+class Failure(Exception):
+    """Something other than the input went wrong (exit code 1)."""
+
+
+class WriteError(Failure):
     """Results could not be written (disk, permissions)."""
 
 
@@ -127,6 +131,9 @@ def _load(path_arg):
         import tomli as tomllib
     try:
         return _load_case(p)
+    except ImportError as exc:
+        raise Failure(f"this installation of fdwall cannot read case files ({exc}); "
+                      "reinstall fdwall.") from None
     except FileNotFoundError as exc:
         missing = exc.filename or path_arg
         raise InputError(f"In case file '{path_arg}': file '{missing}' does not exist "
@@ -393,7 +400,7 @@ def main(argv=None) -> int:
     except InputError as exc:
         _error(str(exc))
         return EXIT_INPUT
-    except WriteError as exc:
+    except Failure as exc:
         _error(str(exc))
         return EXIT_WRITE
     except KeyboardInterrupt:

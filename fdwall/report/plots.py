@@ -21,14 +21,13 @@ _WALL_COLOURS = ["#b2182b", "#2166ac", "#1b7837", "#762a83", "#e08214", "#35978f
 _LAYER_FILLS = ["#f2efe9", "#e3e9f0"]
 
 
-def _figure(w=9.0, h=5.5, rows=1, sharex=False, height_ratios=None):
+def _figure(w=9.0, h=5.5, rows=1, cols=1, sharex=False):
     from matplotlib.figure import Figure
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     fig = Figure(figsize=(w, h), dpi=110, layout="constrained")
     FigureCanvasAgg(fig)
-    kw = {"height_ratios": height_ratios} if height_ratios else {}
-    axes = fig.subplots(rows, 1, sharex=sharex, squeeze=False, gridspec_kw=kw)[:, 0]
-    return fig, list(axes)
+    axes = fig.subplots(rows, cols, sharex=sharex, squeeze=False)
+    return fig, [ax for row in axes for ax in row]
 
 
 def _save(fig, path) -> str:
@@ -59,10 +58,15 @@ def _hours(result):
 
 
 def _title(result, what):
+    import textwrap
     t = f"{result.case.name}: {what}"
     if not result.complete:
         t += f"  (INCOMPLETE: stopped at {result.times[-1] / 3600.0:.3g} h)"
-    return t
+    return "\n".join(textwrap.wrap(t, 90))
+
+
+def _suptitle(fig, result, what):
+    fig.suptitle(_title(result, what), fontsize=11)
 
 
 def _style(ax, xlabel=None, ylabel=None):
@@ -97,11 +101,11 @@ def plot_temperatures(result, path) -> str:
     str
         The path written.
     """
-    from matplotlib import colormaps
     case = result.case
     th = _hours(result)
-    fig, (ax,) = _figure()
     walls = _walls(result)
+    n_curves = sum(len(w.layers) + 1 for w in walls) + int(result.system.has_chamber)
+    fig, (ax,) = _figure(12.0 if n_curves > 9 else 9.0, 5.5)
     n = 0
     for j, w in enumerate(walls):
         T = result.wall_T(j) - KELVIN_OFFSET
@@ -111,8 +115,10 @@ def plot_temperatures(result, path) -> str:
             curves.append((f"{w.layers[i].label} | {w.layers[i + 1].label}", Ti[:, i]))
         curves.append(("outer face", T[:, -1]))
         if len(walls) == 1:
-            cmap = colormaps["coolwarm_r"]
-            cols = [cmap(v) for v in np.linspace(0.0, 1.0, len(curves))]
+            # hot face red, cold face blue, interfaces in distinct mid colours
+            mids = ["#e08214", "#1b7837", "#762a83", "#35978f", "#8c510a", "#de77ae"]
+            cols = ([_WALL_COLOURS[0]] + [mids[i % len(mids)] for i in range(len(curves) - 2)]
+                    + [_WALL_COLOURS[1]])
             styles = ["-"] * len(curves)
             widths = [2.0] + [1.4] * (len(curves) - 2) + [2.0]
         else:
@@ -138,8 +144,12 @@ def plot_temperatures(result, path) -> str:
                             color="#444444")
     _style(ax, "time [h]", "temperature [degC]")
     ax.set_xlim(0.0, max(th[-1], 1e-9))
-    ax.set_title(_title(result, "face and interface temperatures"), fontsize=11)
-    _legend(ax, n)
+    _suptitle(fig, result, "face and interface temperatures")
+    if n > 9:
+        _legend(ax, n)
+    else:  # below the axes, so it never hides a curve or an event label
+        fig.legend(*ax.get_legend_handles_labels(), loc="outside lower center",
+                   ncol=min(n, 3), fontsize=8, frameon=False)
     return _save(fig, path)
 
 
@@ -175,8 +185,11 @@ def plot_profiles(result, path, times=None) -> str:
     case = result.case
     walls = _walls(result)
     times = _profile_times(result, times)
-    fig, axes = _figure(9.0, 3.6 * len(walls) + 1.0, rows=len(walls))
+    ncol = 1 if len(walls) <= 2 else 2
+    nrow = -(-len(walls) // ncol)
+    fig, axes = _figure(9.0 if ncol == 1 else 13.0, 3.4 * nrow + 1.2, rows=nrow, cols=ncol)
     cmap = colormaps["viridis"]
+    handles = None
     for j, (w, ax) in enumerate(zip(walls, axes)):
         x_mm = result.x(j) * 1e3
         edges = np.concatenate([[0.0], np.cumsum([l.thickness for l in w.layers])]) * 1e3
@@ -192,31 +205,40 @@ def plot_profiles(result, path, times=None) -> str:
                     label=f"t = {ta / 3600.0:.3g} h", zorder=3)
         if result.steady is not None:
             ax.plot(result.steady.x(j) * 1e3, result.steady.wall_T(j) - KELVIN_OFFSET, "--",
-                    color="black", lw=1.3, label="steady state", zorder=4)
+                    color="black", lw=1.3,
+                    label=f"steady state (conditions at {result.steady.time / 3600.0:.3g} h)",
+                    zorder=4)
+        if handles is None:
+            handles = ax.get_legend_handles_labels()
         _style(ax, "depth from inner face [mm]", "temperature [degC]")
         ax.set_xlim(-0.01 * total, 1.01 * total)
-        # layer labels along the top, rotated when the layer is narrow
+        # layer labels along the top (numbers only for narrow layers, named in the title)
         ymin, ymax = ax.get_ylim()
-        ax.set_ylim(ymin, ymax + 0.18 * (ymax - ymin))
-        ytop = ymax + 0.16 * (ymax - ymin)
+        ax.set_ylim(ymin, ymax + 0.14 * (ymax - ymin))
+        ytop = ymax + 0.12 * (ymax - ymin)
+        narrow_names = []
+        chars_across = 80 if ncol == 2 else 130   # label characters that fit across the axes
         for i, layer in enumerate(w.layers):
             width = edges[i + 1] - edges[i]
-            xc = 0.5 * (edges[i] + edges[i + 1])
-            narrow = width < 0.12 * total
-            ax.text(xc, ytop, f"{i + 1}: {layer.label}" if not narrow else f"{i + 1}",
-                    ha="center", va="top", fontsize=8, color="#333333", zorder=6,
-                    rotation=0, clip_on=True)
-        narrow_names = [f"{i + 1}: {l.label} ({l.thickness * 1e3:g} mm)"
-                        for i, l in enumerate(w.layers)
-                        if (edges[i + 1] - edges[i]) < 0.12 * total]
+            label = f"{i + 1}: {layer.label}"
+            narrow = (width / total) * chars_across < len(label) + 3
+            ax.text(0.5 * (edges[i] + edges[i + 1]), ytop,
+                    f"{i + 1}" if narrow else label,
+                    ha="center", va="top", fontsize=8, color="#333333", zorder=6, clip_on=True)
+            if narrow:
+                narrow_names.append(f"{i + 1}: {layer.label} ({layer.thickness * 1e3:g} mm)")
         geo = "" if w.geometry == "slab" else f" ({w.geometry})"
         ttl = f"wall '{w.name}'{geo}"
-        if j == 0:
-            ttl = _title(result, "temperature profiles") + "\n" + ttl
         if narrow_names:
-            ttl += "  -  thin layers " + ", ".join(narrow_names)
-        ax.set_title(ttl, fontsize=10)
-        ax.legend(loc="upper right", fontsize=8, framealpha=0.9, bbox_to_anchor=(1.0, 0.86))
+            ttl += "; thin layers " + ", ".join(narrow_names)
+        import textwrap
+        ax.set_title("\n".join(textwrap.wrap(ttl, 70 if ncol == 2 else 100)), fontsize=9)
+    for ax in axes[len(walls):]:
+        ax.set_visible(False)
+    _suptitle(fig, result, "temperature profiles through the wall" + ("s" if len(walls) > 1 else ""))
+    if handles:
+        fig.legend(*handles, loc="outside lower center", ncol=min(len(handles[0]), 6),
+                   fontsize=8, frameon=False)
     return _save(fig, path)
 
 
@@ -237,7 +259,9 @@ def plot_energy(result, path) -> str:
     """
     case, sysm = result.case, result.system
     th = _hours(result)
-    fig, (a1, a2) = _figure(9.0, 7.5, rows=2, sharex=True)
+    n_walls = len(_walls(result))
+    outside = n_walls > 1
+    fig, (a1, a2) = _figure(12.0 if outside else 9.0, 7.5, rows=2, sharex=True)
     q = result.face_flow
     # heater: mean power over each output interval (on/off control sampled at output
     # instants would alias); drawn as steps
@@ -285,8 +309,8 @@ def plot_energy(result, path) -> str:
             a1.text(0.5, 0.97, f"start-up peak of {span_all:.3g} {pu} off scale",
                     transform=a1.transAxes, ha="center", va="top", fontsize=8, color="#555555")
     _style(a1, None, f"heat flow [{pu}]")
-    a1.set_title(_title(result, "heat flows and energy"), fontsize=11)
-    _legend(a1, len(names) + 1)
+    _suptitle(fig, result, "heat flows and energy")
+    _legend(a1, 99 if outside else len(names) + 1)
 
     MJ = 1e6
     if single:
@@ -308,7 +332,7 @@ def plot_energy(result, path) -> str:
                 label="heater energy (cumulative)")
     _style(a2, "time [h]", "energy since start [MJ]  (1 kWh = 3.6 MJ)")
     a2.set_xlim(0.0, max(th[-1], 1e-9))
-    _legend(a2, 6)
+    _legend(a2, 99 if outside else 6)
     return _save(fig, path)
 
 

@@ -131,19 +131,31 @@ def _is_outer(name: str) -> bool:
     return name.endswith(":outer")
 
 
-def _event_where(ev) -> str:
+def _event_where(ev, wall=None) -> str:
+    """Where an event watches: 'outer face', 'interface after layer N (label)', 'x mm deep'."""
     if ev.where == "outer":
         return "outer face"
     if ev.where == "inner":
         return "inner face"
     if ev.where.startswith("interface:"):
-        return f"interface {ev.where.split(':', 1)[1]}"
+        n = ev.where.split(":", 1)[1]
+        label = ""
+        try:
+            label = f" ({wall.layers[int(n) - 1].label})" if wall is not None else ""
+        except (ValueError, IndexError, AttributeError):
+            pass
+        return f"interface after layer {n}{label}"
     return f"{ev.depth * 1e3:.1f} mm deep"
 
 
 def _case_wall_name(case, j) -> str:
     walls = case.wall_list
     return walls[j].name if 0 <= j < len(walls) else f"wall {j}"
+
+
+def _case_wall(case, j):
+    walls = case.wall_list
+    return walls[j] if 0 <= j < len(walls) else None
 
 
 def _speaks_of_skin(text: str) -> bool:
@@ -275,7 +287,7 @@ def format_summary(result) -> str:
         rows = []
         for e, (ev, (name, (up, down))) in enumerate(zip(case.run.events, result.events.items())):
             wname = _case_wall_name(case, ev.wall)
-            rows.append([name, f"{wname}, {_event_where(ev)}", f"{degc(ev.threshold):.1f}",
+            rows.append([name, f"{wname}, {_event_where(ev, _case_wall(case, ev.wall))}", f"{degc(ev.threshold):.1f}",
                          fmt_time(up) if math.isfinite(up) else "not reached",
                          fmt_time(down) if math.isfinite(down) else "not reached"])
         L += _table(["event", "where", "threshold", "rising at", "falling at"],
@@ -288,11 +300,12 @@ def format_summary(result) -> str:
     if summ.get("bridges"):
         L += _heading("Thermal bridges (parallel paths)")
         for wname, b in summ["bridges"].items():
-            L.append(f"  wall {wname}: the bridge carries "
-                     f"{100 * b.get('bridge_share_of_outer_heat_loss', float('nan')):.1f} % of the "
-                     f"outer heat loss; outer face at end: bridge "
-                     f"{fmt_temp(b.get('bridge_outer_T_final_K', float('nan')))}, clear wall "
-                     f"{fmt_temp(b.get('clear_outer_T_final_K', float('nan')))}")
+            L.append(_wrap(
+                f"wall {wname}: the bridge carries "
+                f"{100 * b.get('bridge_share_of_outer_heat_loss', float('nan')):.1f} % of the "
+                f"outer heat loss; outer face at end: bridge "
+                f"{fmt_temp(b.get('bridge_outer_T_final_K', float('nan')))}, clear wall "
+                f"{fmt_temp(b.get('clear_outer_T_final_K', float('nan')))}"))
         L.append(_wrap(TOUCH_CAUTION, "  "))
     if summ.get("box_edge_corner_area_factor"):
         L.append("")
@@ -360,9 +373,19 @@ def _steady_lines(st, case, title):
         L.append(f"  chamber: {fmt_temp(float(st.T[-1]))}; loss to ambient "
                  f"{fmt_power(float(st.chamber_loss))}")
     if case.heater is not None:
-        L.append(f"  heater power {fmt_power(float(st.heater_power))}, duty {st.duty:.3f} [-]"
-                 + ("" if st.reachable else
-                    "; SETPOINT NOT REACHABLE: even full heater power cannot hold it"))
+        enabled = True
+        try:
+            enabled = float(case.control.enable(st.time)) > 0.5
+        except Exception:  # pragma: no cover - enable always a Schedule in valid cases
+            pass
+        if not enabled:
+            note = "; the heater is switched off at this time (enable schedule)"
+        elif not st.reachable:
+            note = "; SETPOINT NOT REACHABLE: even full heater power cannot hold it"
+        else:
+            note = ""
+        L.append(_wrap(f"heater power {fmt_power(float(st.heater_power))}, duty "
+                       f"{st.duty:.3f} [-]{note}"))
     loss = -float(np.sum(st.face_flow[outer])) if outer else 0.0
     L.append(f"  heat leaving through the outer faces {fmt_power(loss)}; balance "
              f"{st.balance:.3e} W (should be ~0)")
@@ -507,7 +530,7 @@ def format_case(case, system=None, warnings=()) -> str:
             if i < len(w.layers) - 1 and w.contact[i] > 0:
                 Rc = w.contact[i] / w.area_at(float(w.radii()[i + 1]))
                 R_tot += Rc
-                row = ["", "contact resistance", "0.0", "", "", f"{Rc:.4g}"]
+                row = ["", "contact resistance", "-", "", "", f"{Rc:.4g}"]
                 if slab:
                     row.append(f"{w.contact[i]:.4g}")
                 row.append("")
@@ -530,7 +553,7 @@ def format_case(case, system=None, warnings=()) -> str:
             ew = case.walls[j]
             inner = f"to the chamber: convection {_conv_text(ew.inner_h)}"
             if ew.inner_emissivity is not None:
-                inner += f"; radiation, emissivity {ew.inner_emissivity:.2f}"
+                inner += f"; radiation, {_eps_text(ew.inner_emissivity)}"
             L.append(_wrap(f"inner face: {inner}", "  "))
             L.append(_wrap(f"outer face: {_face_text(ew.outer)}", "  "))
         else:
@@ -549,13 +572,14 @@ def format_case(case, system=None, warnings=()) -> str:
         cap_t = (f"{float(cap) / 1e3:.3g} kJ/K" if not hasattr(cap, "values") else
                  f"{min(cap.values) / 1e3:.3g}..{max(cap.values) / 1e3:.3g} kJ/K (table vs T)")
         L += _heading("Chamber")
-        L.append(f"  capacity {cap_t}; ambient {_sched_text(ch.ambient)}; leakage "
-                 f"{ch.leakage:g} m3/s ({ch.leakage_ua:.3g} W/K); extra UA {ch.extra_ua:g} W/K")
+        L.append(_wrap(f"capacity {cap_t}; ambient {_sched_text(ch.ambient)}; leakage "
+                       f"{ch.leakage:.3g} m3/s ({ch.leakage_ua:.3g} W/K); extra UA "
+                       f"{ch.extra_ua:.3g} W/K"))
         if getattr(ch, "box", None):
             fac = getattr(system, "area_factor", None) if system is not None else None
-            L.append(f"  box {' x '.join(f'{x:g}' for x in ch.box)} m (inner width x depth x "
-                     "height): edges and corners add conduction"
-                     + (f", slab areas x {fac:.3f} [-]" if fac else ""))
+            L.append(_wrap(f"box {' x '.join(f'{x:g}' for x in ch.box)} m (inner width x depth "
+                           "x height): edges and corners add conduction"
+                           + (f", slab areas x {fac:.3f} [-]" if fac else "")))
     if case.heater is not None:
         hz = case.heater
         c = case.control
@@ -570,12 +594,13 @@ def format_case(case, system=None, warnings=()) -> str:
             ctl += f", band {c.band:g} K"
         if c.mode in ("fixed", "duty"):
             ctl += f", duty {_sched_text(c.duty, '[-]')}"
-        L.append(ctl)
+        L.append(_wrap(ctl.strip()))
     if r.events:
         L += _heading("Events watched")
         for e, ev in enumerate(r.events):
             wname = _case_wall_name(case, ev.wall)
-            L.append(f"  {ev.name or f'event{e + 1}'}: {wname}, {_event_where(ev)} crossing "
+            L.append(f"  {ev.name or f'event{e + 1}'}: {wname}, "
+                     f"{_event_where(ev, _case_wall(case, ev.wall))} crossing "
                      f"{fmt_temp(ev.threshold)}")
     L += _heading("Warnings")
     if warnings:
