@@ -124,7 +124,7 @@ def references(geometry, quick=False):
 def loosest(solve, knobs, ref, stop_when_stalled=False, budget_s=None):
     """Try ``knobs`` from loosest to tightest; return (knob, face_T, stats, err, trials).
 
-    ``trials`` lists (knob, err) of every attempt.  With ``stop_when_stalled`` the search gives
+    ``trials`` lists (knob, err, face_T) of every attempt.  With ``stop_when_stalled`` the search gives
     up when tightening no longer reduces the error (the rest is spatial error); ``budget_s``
     caps the time spent.  knob is None when nothing passed.
     """
@@ -135,7 +135,7 @@ def loosest(solve, knobs, ref, stop_when_stalled=False, budget_s=None):
     for kn in knobs:
         T, st = solve(kn)
         err = errors(T, ref)
-        trials.append((kn, err))
+        trials.append((kn, err, T))
         if passes(err):
             return kn, T, st, err, trials
         if stop_when_stalled and prev is not None and max(err[0] / TOL_INNER, err[1] / TOL_OUTER) \
@@ -156,7 +156,7 @@ def loosest_integer(solve, ref, start=1, limit=4096):
     while hi <= limit:
         T, st = solve(hi)
         err = errors(T, ref)
-        trials.append((hi, err))
+        trials.append((hi, err, T))
         if passes(err):
             hit = (hi, T, st, err)
             break
@@ -167,7 +167,7 @@ def loosest_integer(solve, ref, start=1, limit=4096):
         mid = (lo + hi) // 2
         T, st = solve(mid)
         err = errors(T, ref)
-        trials.append((mid, err))
+        trials.append((mid, err, T))
         if passes(err):
             hi, hit = mid, (mid, T, st, err)
         else:
