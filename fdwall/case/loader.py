@@ -142,7 +142,7 @@ def _combine(func, *parts):
     ts, vs = [], []
     for t in times:
         left, right = at(t, "left"), at(t, "right")
-        if ts and not math.isclose(left, right, rel_tol=1e-12, abs_tol=1e-12):
+        if not math.isclose(left, right, rel_tol=1e-12, abs_tol=1e-12):
             ts += [t, t]
             vs += [left, right]
         else:
