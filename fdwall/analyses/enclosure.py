@@ -404,6 +404,7 @@ def steady_duty(case: Case, t=None) -> dict:
         ``duty`` [-], ``reachable`` (False: full power cannot hold the setpoint),
         ``heater_power_W``, ``full_power_W`` (at the steady element temperature),
         ``chamber_K``, ``wall_loss_W`` {wall name: W through its outer face, bridges merged},
+        ``bridge_loss_W`` {bridged wall name: W through the bridge path's outer face},
         ``leakage_loss_W`` (leakage + extra UA), ``loss_W`` (total), ``balance_W`` (should be
         ~0), ``time_s`` and ``steady`` (the SteadyResult).
     """
@@ -413,9 +414,12 @@ def steady_duty(case: Case, t=None) -> dict:
     t = _hold_time(case) if t is None else float(t)
     st = solve_steady(case, t=t)
     sysm = st.system
-    walls = {}
+    walls, bridges = {}, {}
     for o, (name, js) in _case_walls(sysm).items():
         walls[name] = float(-sum(st.face_flow[2 * j + 1] for j in js))
+        bj = [j for j in js if sysm.is_bridge[j]]
+        if bj:
+            bridges[name] = float(-sum(st.face_flow[2 * j + 1] for j in bj))
     leak = float(st.chamber_loss)
     duty = float(st.duty)
     full = float(st.heater_power / duty) if duty > 0 else math.nan
@@ -426,6 +430,7 @@ def steady_duty(case: Case, t=None) -> dict:
         "full_power_W": full,
         "chamber_K": float(st.T[-1]),
         "wall_loss_W": walls,
+        "bridge_loss_W": bridges,
         "leakage_loss_W": leak,
         "loss_W": float(sum(walls.values()) + leak),
         "balance_W": float(st.balance),
