@@ -188,12 +188,24 @@ def _dumps(obj) -> str:
     return json.dumps(_clean(obj), indent=2, allow_nan=False)
 
 
+def _public_mode(path) -> None:
+    """Give a finished file the usual permissions (0666 less the umask); temporary files are
+    created private (0600)."""
+    mask = os.umask(0)
+    os.umask(mask)
+    try:
+        os.chmod(path, 0o666 & ~mask)
+    except OSError:  # pragma: no cover - e.g. a file system without permissions
+        pass
+
+
 def _write_text_atomic(path: Path, text: str) -> None:
     path.parent.mkdir(parents=True, exist_ok=True)
     fd, tmp = tempfile.mkstemp(prefix=".fdwall-", suffix=".part", dir=str(path.parent))
     try:
         with os.fdopen(fd, "w", encoding="utf-8") as fh:
             fh.write(text)
+        _public_mode(tmp)
         os.replace(tmp, path)
     except BaseException:
         if os.path.exists(tmp):
@@ -205,7 +217,7 @@ def _write_text_atomic(path: Path, text: str) -> None:
 
 def cmd_run(args) -> int:
     from .solver import run, solve_steady
-    from .report.text import format_summary, fmt_time
+    from .report.text import TOUCH_CAUTION, format_summary, fmt_time
     quiet = args.quiet
     case, warns = _load(args.case)
     for w in warns:
@@ -235,13 +247,16 @@ def cmd_run(args) -> int:
     files = [str(h5), str(js)]
     summary = result.summary()
     summary.update({"case_file": str(args.case), "fdwall_version": _version(),
-                    "input_warnings": warns})
+                    "input_warnings": warns, "caution": TOUCH_CAUTION})
     try:
         result.write_hdf5(h5)
+        _public_mode(h5)
         plots = []
         if not args.no_plots:
             from .report.plots import write_plots
             plots = write_plots(result, outdir, stem)
+            for p in plots:
+                _public_mode(p)
         files += [str(p) for p in plots]
         summary["files"] = files
         _write_text_atomic(js, _dumps(summary) + "\n")
@@ -263,7 +278,7 @@ def cmd_run(args) -> int:
 
 def cmd_steady(args) -> int:
     from .solver import solve_steady
-    from .report.text import format_steady
+    from .report.text import TOUCH_CAUTION, format_steady
     case, warns = _load(args.case)
     for w in warns:
         _warn(w)
@@ -279,6 +294,7 @@ def cmd_steady(args) -> int:
         out = {"case": case.name, "case_file": str(args.case), "time_s": float(st.time)}
         out.update(st.summary())
         out["input_warnings"] = warns
+        out["caution"] = TOUCH_CAUTION
         print(_dumps(out))
     else:
         print(format_steady(st, case), end="")

@@ -421,3 +421,33 @@ def test_bundled_case_runs(path, tmp_path, capsys):
     if d.get("steady"):
         flows = [abs(f["heat_in_W"]) for f in d["steady"]["faces"].values()]
         assert abs(d["steady"]["balance_W"]) <= 1e-6 * max(max(flows), 1.0) + 1e-6
+
+
+@needs_reader
+def test_subprocess_ctrl_c_exit_130_no_file(tmp_path):
+    """A real SIGINT during a long run: 'interrupted', exit 130, no result folder or file."""
+    import signal
+    import time
+    f = tmp_path / "long.toml"
+    # tiny steps make a run of tens of seconds (demo data)
+    f.write_text(SLAB_TOML.replace('duration = "6 h"', 'duration = "100 h"\nmax_step = "0.05 s"'))
+    out_dir = tmp_path / "o"
+    p = subprocess.Popen([sys.executable, "-m", "fdwall.cli", "run", str(f), "--out", str(out_dir),
+                          "--no-progress"], cwd=tmp_path, env=_env(), text=True,
+                         stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    time.sleep(8.0)
+    p.send_signal(signal.SIGINT)
+    out, err = p.communicate(timeout=120)
+    assert p.returncode == 130, err
+    assert "interrupted" in err and "Traceback" not in err
+    assert not out_dir.exists() or not any(out_dir.iterdir())
+
+
+def test_result_files_get_usual_permissions(fake_reader, capsys):
+    out_dir = fake_reader / "perm"
+    rc, out, err = _main(capsys, "run", fake_reader / "slab.toml", "--out", out_dir)
+    assert rc == 0, err
+    mask = os.umask(0)
+    os.umask(mask)
+    for f in out_dir.iterdir():
+        assert (f.stat().st_mode & 0o777) == (0o666 & ~mask), f

@@ -602,6 +602,8 @@ def format_case(case, system=None, warnings=()) -> str:
             L.append(f"  {ev.name or f'event{e + 1}'}: {wname}, "
                      f"{_event_where(ev, _case_wall(case, ev.wall))} crossing "
                      f"{fmt_temp(ev.threshold)}")
+        if any(_speaks_of_skin(f"{ev.name} {ev.where}") for ev in r.events):
+            L.append(_wrap(TOUCH_CAUTION, "  "))
     L += _heading("Warnings")
     if warnings:
         for w in warnings:
