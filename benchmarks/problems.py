@@ -79,26 +79,34 @@ def wall_case(geometry="slab", tolerance=0.01, refine=1.0, cells=None, thickness
     return Case(run, wall=wall, inner=inner, outer=outer, name=f"bench-{geometry}")
 
 
-def enclosure_case(tolerance=0.01, refine=1.0, duration=DURATION):
-    """Problem (c): a small furnace, five walls of the (a) construction around a chamber.
+def enclosure_spec():
+    """Data of problem (c) (DEMO DATA): a small furnace of five walls of the (a) construction.
 
-    Demo data: a 0.6 m cube furnace (door side counted with the walls), floor, roof and three
-    side walls as separate assemblies with different areas and outer film coefficients, a
-    12 kW chamber heater held by a thermostat at 800 K (band 10 K) for 5 h, then off (it
-    reaches the setpoint after about 2.5 h and then cycles every minute or so).
+    Floor, roof, sides, back and door as separate assemblies with their own areas [m2] and
+    outer film coefficients [W/m2/K]; inner film 15 W/m2/K to the chamber; chamber contents
+    20 kJ/K; 0.5 W/K of further losses; a 12 kW heater on a thermostat at 800 K (band 10 K)
+    for 5 h, then off (it reaches the setpoint after about 2.5 h and then cycles every minute
+    or so).
     """
-    areas = (0.36, 0.36, 0.72, 0.36, 0.36)
-    h_out = (6.0, 9.0, 8.0, 8.0, 8.0)   # floor, roof, two sides + back (as one), door, ...
-    names = ("floor", "roof", "sides", "back", "door")
+    return {"names": ("floor", "roof", "sides", "back", "door"),
+            "areas": (0.36, 0.36, 0.72, 0.36, 0.36), "h_out": (6.0, 9.0, 8.0, 8.0, 8.0),
+            "h_in": 15.0, "capacity": 20000.0, "extra_ua": 0.5, "power": 12000.0,
+            "setpoint": 800.0, "band": 10.0}
+
+
+def enclosure_case(tolerance=0.01, refine=1.0, duration=DURATION):
+    """Problem (c) as an fdwall Case (see :func:`enclosure_spec`)."""
+    sp = enclosure_spec()
     walls = []
-    for a, h, n in zip(areas, h_out, names):
+    for a, h, n in zip(sp["areas"], sp["h_out"], sp["names"]):
         w = Wall([Layer(m, t) for m, t in zip(MATERIALS, THICKNESS)], area=a, refine=refine,
                  name=n)
         walls.append(EnclosureWall(w, Face.exchange(T_AMB, h, emissivity=EPS_OUT,
-                                                    surroundings=T_AMB), inner_h=15.0))
-    chamber = Chamber(capacity=20000.0, ambient=T_AMB, leakage=0.0, extra_ua=0.5)
-    heater = Heater(power=12000.0, location="chamber")
-    control = Control(mode="thermostat", setpoint=800.0, band=10.0,
+                                                    surroundings=T_AMB), inner_h=sp["h_in"]))
+    chamber = Chamber(capacity=sp["capacity"], ambient=T_AMB, leakage=0.0,
+                      extra_ua=sp["extra_ua"])
+    heater = Heater(power=sp["power"], location="chamber")
+    control = Control(mode="thermostat", setpoint=sp["setpoint"], band=sp["band"],
                       enable=Schedule([0.0, HEAT_OFF, HEAT_OFF], [1.0, 1.0, 0.0]))
     run = RunSettings(duration=duration, initial=T0, output_interval=OUTPUT_INTERVAL,
                       tolerance=tolerance)

@@ -260,42 +260,90 @@ def matched(geometry, quick, repeats, use_fipy, compile_s):
 
 def enclosure(quick, repeats):
     from fdwall.solver import run
-    say("### (c) five-wall enclosure, thermostat (fdwall only)")
+    from .peers import be_enclosure
+    say("### (c) five-wall enclosure, thermostat")
     say()
     fine = run(P.enclosure_case(tolerance=1e-5, refine=M.BENCH_REFINE))
     ref = fine.face_T
     chref = fine.chamber_T
-    nf = ref.shape[1]
+    x = M.bench_nodes()
+
+    def errs(fT, Tc):
+        e = np.abs(fT - ref)
+        return (float(e[:, 0::2].max()), float(e[:, 1::2].max()),
+                float(np.abs(Tc - chref).max()))
+
     rows = []
-    chosen = None
+    tried = []
     for tol in FD_TOLS:
         case = P.enclosure_case(tolerance=tol, refine=M.BENCH_REFINE)
         r = run(case)
-        e = np.abs(r.face_T - ref)
-        e_in = float(e[:, 0::2].max())
-        e_out = float(e[:, 1::2].max())
-        e_ch = float(np.abs(r.chamber_T - chref).max())
-        ok = e_in <= M.TOL_INNER and e_out <= M.TOL_OUTER and e_ch <= M.TOL_INNER
-        if ok and chosen is None:
-            chosen = tol
+        e = errs(r.face_T, r.chamber_T)
+        tried.append(("fdwall", tol, e))
+        if M.passes(e[:2]):
             med, mn = median_time(lambda: run(case), repeats)
             mem = peak_memory(lambda: run(case))
             n = r.T.shape[1]
             steps = r.stats["accepted_steps"]
-            rows.append(("fdwall TR-BDF2", f"tolerance={tol:g} K", n, steps, fmt_ms(med),
-                         fmt_ms(mn), f"{med / (n * steps) * 1e9:.0f}", f"{mem / 1024:.0f}",
-                         f"{e_in:.3f}", f"{e_out:.4f}", f"{e_ch:.3f}"))
+            rows.append(["fdwall TR-BDF2", f"tolerance={tol:g} K", n, steps, med, mn,
+                         f"{med / (n * steps) * 1e9:.0f}", f"{mem / 1024:.0f}", e])
             break
-    say(f"Reference: the same mesh (5 walls x {fine.T.shape[1] // 5} nodes + chamber) with "
-        f"tolerance 1e-5 K (time error only; no independent peer for the enclosure). "
-        f"Thermostat cycling shows in the output: heater power differs between consecutive "
-        f"outputs {int(np.sum(np.abs(np.diff(fine.heater_power)) > 1))} times; the reference "
-        f"takes {fine.stats['accepted_steps']} steps.")
+    # fixed-step backward Euler with the thermostat sampled once per step
+    hit = None
+    lo, m = 0, 4
+    while m <= (64 if quick else 256):
+        _, fT, Tc, st = be_enclosure.solve(x, m)
+        e = errs(fT, Tc)
+        tried.append(("BE", m, e))
+        if M.passes(e[:2]):
+            hit = (m, e, st)
+            break
+        lo, m = m, 2 * m
+    if hit is not None:
+        hi = hit[0]
+        while hi - lo > 1 and not quick:
+            mid = (lo + hi) // 2
+            _, fT, Tc, st = be_enclosure.solve(x, mid)
+            e = errs(fT, Tc)
+            tried.append(("BE", mid, e))
+            if M.passes(e[:2]):
+                hi, hit = mid, (mid, e, st)
+            else:
+                lo = mid
+        m, e, st = hit
+        fn = lambda: be_enclosure.solve(x, m)
+        med, mn = median_time(fn, max(1, min(3, repeats)))
+        mem = peak_memory(fn)
+        n = st["nodes"]
+        rows.append(["fixed-step BE (numba)", f"dt={P.OUTPUT_INTERVAL / m:.3g} s", n,
+                     st["steps"], med, mn, f"{med / (n * st['steps']) * 1e9:.0f}",
+                     f"{mem / 1024:.0f}", e])
+    say(f"Reference: fdwall on the same mesh (5 walls x {fine.T.shape[1] // 5} nodes + chamber) "
+        f"with tolerance 1e-5 K ({fine.stats['accepted_steps']} steps); heater power differs "
+        f"between consecutive outputs {int(np.sum(np.abs(np.diff(fine.heater_power)) > 1))} "
+        f"times.  Criterion on the walls: every inner face within {M.TOL_INNER:g} K, every "
+        f"outer skin within {M.TOL_OUTER:g} K.  The chamber error is shown but not part of "
+        f"the criterion: once the thermostat cycles, the chamber temperature at an output time "
+        f"depends on the phase of the cycle, and a small shift of the switching times moves it "
+        f"by up to the band (10 K).")
+    if not quick:
+        _, fT, Tc, _ = be_enclosure.solve(x, 300)
+        e = errs(fT, Tc)
+        say(f"Cross-check of the reference: backward Euler at dt = 1 s differs from it by "
+            f"{e[0]:.3f} K (inner faces), {e[1]:.4f} K (outer skins), {e[2]:.2f} K (chamber, "
+            f"cycle phase).")
     say()
+    fd = rows[0][4] if rows and rows[0][0].startswith("fdwall") else None
     table(["method", "setting", "unknowns", "steps", "wall median [ms]", "wall min [ms]",
            "ns per node-step", "peak mem [KiB]", "err inner faces [K]", "err outer skins [K]",
-           "err chamber [K]"], rows)
-    return chosen
+           "err chamber [K]", "time / fdwall"],
+          [r[:4] + [fmt_ms(r[4]), fmt_ms(r[5])] + r[6:8]
+           + [f"{r[8][0]:.3f}", f"{r[8][1]:.4f}", f"{r[8][2]:.2f}",
+              f"{r[4] / fd:.1f}" if fd else "-"] for r in rows])
+    say("Settings tried, error inner/outer/chamber [K]: " + "; ".join(
+        f"{w} {k:g} -> {e[0]:.3g}/{e[1]:.3g}/{e[2]:.3g}" for w, k, e in tried))
+    say()
+    return rows
 
 
 # ---- (d) study ---------------------------------------------------------------------------------
