@@ -3,7 +3,7 @@
 The small public API::
 
     import fdwall
-    case = fdwall.load_case("cases/curing_oven_panel.toml")   # TOML with units -> Case (SI)
+    case = fdwall.load_case("cases/curing-oven-panel.toml")   # TOML with units -> Case (SI)
     res = fdwall.run(case)                                    # transient -> Result
     ss = fdwall.solve_steady(case)                            # steady state -> SteadyResult
     res.face_T[-1]            # face temperatures at the end [K]

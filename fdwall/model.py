@@ -434,8 +434,9 @@ class EnclosureWall:
         Conditions at the outer face.
     inner_h : float or Convection
         Film coefficient to the chamber air [W/m2/K] or a correlation.
-    inner_emissivity : float, optional
-        Emissivity of the inner face for radiation exchange with the chamber contents [-].
+    inner_emissivity : float or Schedule, optional
+        Emissivity of the inner face for radiation exchange with the chamber contents [-];
+        a Schedule is read as a table of emissivity against surface temperature [K].
     bridge : Bridge, optional
         A thermal bridge through the wall (parallel-path method).
     """
@@ -443,7 +444,7 @@ class EnclosureWall:
     wall: Wall
     outer: Face
     inner_h: Union[float, object] = 10.0
-    inner_emissivity: Optional[float] = None
+    inner_emissivity: Union[None, float, Schedule] = None
     bridge: Optional[Bridge] = None
 
     def __post_init__(self):
