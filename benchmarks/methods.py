@@ -133,7 +133,9 @@ def loosest(solve, knobs, ref, stop_when_stalled=False, budget_s=None):
     t0 = time.perf_counter()
     prev = None
     for kn in knobs:
+        t1 = time.perf_counter()
         T, st = solve(kn)
+        st = dict(st, wall_s=time.perf_counter() - t1)
         err = errors(T, ref)
         trials.append((kn, err, T))
         if passes(err):
