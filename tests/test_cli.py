@@ -418,9 +418,52 @@ def test_bundled_case_runs(path, tmp_path, capsys):
     # first law: heat in - stored energy small against the energy moved
     assert d["energy_residual_relative"] < 1e-3
     # steady state balances (sum of heat into the system ~ 0 against the flows)
-    if d.get("steady"):
-        flows = [abs(f["heat_in_W"]) for f in d["steady"]["faces"].values()]
-        assert abs(d["steady"]["balance_W"]) <= 1e-6 * max(max(flows), 1.0) + 1e-6
+    assert d.get("steady"), "run must attach the steady state"
+    flows = [abs(f["heat_in_W"]) for f in d["steady"]["faces"].values()]
+    assert abs(d["steady"]["balance_W"]) <= 1e-6 * max(max(flows), 1.0) + 1e-6
+    _check_steady_layers_by_fourier(path, d["steady"])
+
+
+def _check_steady_layers_by_fourier(path, st):
+    """Every layer of every wall carries the face heat flow at steady state.
+
+    Independent reference: Fourier's law with k(T) through the Kirchhoff transform,
+    q = G * integral of k dT between the layer's face temperatures, with the shape factor
+    G = A/L (slab), 2 pi L / ln(r2/r1) (cylinder), 4 pi / (1/r1 - 1/r2) (sphere)
+    (Incropera et al., Fundamentals of Heat and Mass Transfer, ch. 3; Carslaw & Jaeger,
+    Conduction of Heat in Solids, ch. 1).  The integral is taken with scipy.integrate.quad on
+    the material's k(T); the temperatures are the ones the CLI reported.
+    """
+    import math
+    from scipy.integrate import quad
+    from fdwall.case import load_case
+    from fdwall.system import build_system
+    case = load_case(path)
+    if case.heater is not None and case.heater.location == "interface":
+        return  # a heater between layers breaks the equal-flow property
+    sysm = build_system(case)
+    checked = 0
+    for j, w in enumerate(sysm.walls):
+        faces = st["faces"]
+        T = [faces[f"{w.name}:inner"]["T_K"]] + list(st["interfaces_K"][j]) + \
+            [faces[f"{w.name}:outer"]["T_K"]]
+        q_face = faces[f"{w.name}:inner"]["heat_in_W"]
+        r = w.radii()
+        for i, layer in enumerate(w.layers):
+            if i > 0 and w.contact[i - 1] > 0:
+                continue  # the reported interface temperature is the far side of a contact
+            kint, _ = quad(lambda t: float(layer.material.k(t)), T[i + 1], T[i], limit=200)
+            r1, r2 = float(r[i]), float(r[i + 1])
+            if w.geometry == "slab":
+                G = w.area / (r2 - r1)
+            elif w.geometry == "cylinder":
+                G = 2 * math.pi * w.length / math.log(r2 / r1)
+            else:
+                G = 4 * math.pi / (1 / r1 - 1 / r2)
+            assert G * kint == pytest.approx(q_face, rel=1e-5, abs=1e-6 + 1e-6 * abs(q_face)), \
+                (w.name, layer.label)
+            checked += 1
+    assert checked > 0
 
 
 @needs_reader
