@@ -18,7 +18,8 @@ import pytest
 from dataclasses import replace
 
 from fdwall.analyses import (
-    cooldown, energy_breakdown, size_heater, steady_duty, summarise_enclosure, warm_up_time,
+    cooldown, energy_breakdown, hold_duty, size_heater, steady_duty, summarise_enclosure,
+    warm_up_time,
 )
 from fdwall.materials import material_from_dict
 from fdwall.model import (
@@ -232,3 +233,19 @@ def test_summary_and_clear_errors():
         warm_up_time(plain)
     with pytest.raises(ModelError, match="t_off"):
         cooldown(plain)
+
+
+def test_hold_duty_is_energy_over_full_power_with_supply_voltage():
+    # Joule heating: element power scales with the square of the supply voltage, so at 90 %
+    # voltage the full power is 0.81 x rated; an averaged 40 % duty then delivers
+    # 0.4 x 0.81 x P x t and hold_duty reads back 0.4 (definition check).
+    case = lumped_case(1000.0, duration=7200.0, mode="duty", duty=0.4)
+    case = replace(case, heater=Heater(1000.0, voltage_ratio=0.9))
+    res = run(case)
+    assert res.heater_energy[-1] == pytest.approx(0.4 * 0.81 * 1000.0 * 7200.0, rel=1e-9)
+    assert hold_duty(res, 600.0, 7000.0) == pytest.approx(0.4, rel=1e-9)
+    # a rated-power schedule is integrated exactly: 1000 W for 1 h, then 500 W
+    sched = Schedule([0.0, 3600.0, 3600.0], [1000.0, 1000.0, 500.0])
+    res2 = run(replace(case, heater=Heater(sched)))
+    assert hold_duty(res2, 0.0) == pytest.approx(0.4, rel=1e-9)
+    check_ledger(res2)

@@ -747,7 +747,8 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
     band : float
         Allowance below the setpoint [K]; the target is ``setpoint - band``.
     p_lo, p_hi : float, optional
-        Starting bracket [W]; default ``p_min_W`` and twice that (widened as needed).
+        Starting bracket [W]; default ``p_min_W`` and twice that (widened as needed; a ``p_lo``
+        that already succeeds is lowered towards ``p_min_W``).
     rel_tol : float
         Relative width of the final bracket [-].
     control : {'case', 'full'}
@@ -835,7 +836,10 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
         return max(r2 * spare, 1e-12)
 
     lo = float(p_lo) if p_lo is not None else p_min
-    hi = float(p_hi) if p_hi is not None else max(2.0 * lo, 1e-3)
+    if p_hi is not None:
+        hi = float(p_hi)
+    else:
+        hi = 2.0 * lo if lo > 0 else max(_rated_max(case.heater), 1.0)
     if lo < p_min:
         lo = p_min
     g_lo = trial(lo) if lo > 0 else -(target - T_init[-1])
