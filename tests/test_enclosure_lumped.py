@@ -203,6 +203,10 @@ def test_size_heater_full_power_mode_and_bracket_hints():
     # with the case's PID the approach is throttled near the setpoint: needs more power
     c = size_heater(case, 5400.0, setpoint=sp, band=1.0)
     assert c["power_W"] > 0.99 * (sp - 1.0 - AMB) / (R * (1 - math.exp(-5400.0 / (R * C))))
+    # a setpoint ramp slower than the limit cannot be sized with the case's own control
+    slow = replace(case, control=replace(case.control, setpoint=Schedule([0.0, 7200.0], [AMB, sp])))
+    with pytest.raises(ModelError, match="control='full'"):
+        size_heater(slow, 5400.0)
 
 
 # ----------------------------------------------------------------------------- summary, errors

@@ -780,6 +780,17 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
         raise ModelError(f"size_heater: rel_tol must lie between 0 and 0.5, got {rel_tol!r}")
     sp = _default_setpoint(case, "size_heater") if setpoint is None else float(setpoint)
     target = sp - float(band)
+    spc = case.control.setpoint
+    if control == "case" and case.control.mode in ("thermostat", "pid") and spc is not None:
+        kt = np.asarray(spc.times, float)
+        t_sp = _first_crossing(np.concatenate([kt, [kt[-1] + 1.0]]),
+                               np.concatenate([spc.values, [spc.values[-1]]]), target, 0.0)
+        if not t_sp <= lim:
+            raise ModelError(
+                f"size_heater: the control setpoint of case '{case.name}' reaches the target "
+                f"{target:g} K only at {t_sp:g} s (or never), after the warm-up limit {lim:g} s, so "
+                "the controller itself holds the chamber back and no heater rating can meet the "
+                "limit. Use control='full' (heater fully on) or a longer warm_up_limit.")
     # a trial run ends at the deadline; outputs fine enough to time the crossing
     ctl = case.control if control == "case" else Control(mode="fixed", duty=1.0,
                                                            enable=case.control.enable)
