@@ -55,17 +55,22 @@ class Layer:
         Number of finite-volume cells across the layer; default chosen by :mod:`fdwall.mesh`.
     name : str
         Label used in reports (defaults to the material name).
+    initial : float, optional
+        Start temperature of this layer [K], overriding a uniform run start temperature.
     """
 
     material: object
     thickness: float
     cells: Optional[int] = None
     name: str = ""
+    initial: Optional[float] = None
 
     def __post_init__(self):
         _pos(f"thickness of layer '{self.label}'", self.thickness)
         if self.cells is not None and (int(self.cells) != self.cells or self.cells < 1):
             raise ModelError(f"cells of layer '{self.label}' must be a whole number >= 1")
+        if self.initial is not None:
+            _pos(f"start temperature of layer '{self.label}'", self.initial)
 
     @property
     def label(self) -> str:
@@ -246,6 +251,8 @@ class Chamber:
         Air flow through the chamber [m3/s], at room conditions (ventilation, leaks).
     extra_ua : float
         Further fixed losses as a conductance to ambient [W/K].
+    initial : float, optional
+        Start temperature of the chamber contents [K], overriding the run start temperature.
     box : tuple of float, optional
         Inner width, depth and height of a box-shaped enclosure [m].  When given, the
         conduction through the 12 edges and 8 corners is added by the conduction shape
@@ -259,6 +266,7 @@ class Chamber:
     leakage: float = 0.0
     extra_ua: float = 0.0
     box: Optional[tuple] = None
+    initial: Optional[float] = None
 
     def __post_init__(self):
         cap = self.capacity
@@ -268,6 +276,8 @@ class Chamber:
         object.__setattr__(self, "ambient", _sched("chamber ambient", self.ambient, True))
         _pos("chamber leakage flow", self.leakage, allow_zero=True)
         _pos("chamber extra UA", self.extra_ua, allow_zero=True)
+        if self.initial is not None:
+            _pos("chamber start temperature", self.initial)
         if self.box is not None:
             if len(self.box) != 3:
                 raise ModelError("chamber box needs three inner dimensions (width, depth, height) [m]")

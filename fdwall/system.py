@@ -144,10 +144,26 @@ class System:
         return slice(self.offsets[j], self.offsets[j] + self.meshes[j].n)
 
     def initial_vector(self, initial) -> np.ndarray:
-        """Initial temperatures of all unknowns [K] from a number or a full vector."""
+        """Initial temperatures of all unknowns [K] from a number or a full vector.
+
+        With a number, layers and a chamber that carry their own start temperature
+        (``Layer.initial``, ``Chamber.initial``) keep it; a node on an interface takes the
+        mean of its two layers.
+        """
         a = np.asarray(initial, dtype=float)
         if a.ndim == 0:
-            return np.full(self.n_unknowns, float(a))
+            T = np.full(self.n_unknowns, float(a))
+            lay = [l.initial if l.initial is not None else float(a)
+                   for w in self.walls for l in w.layers]
+            if any(l.initial is not None for w in self.walls for l in w.layers):
+                for n in range(self.n_nodes):
+                    ids = [g for g in self.layer_of_half[n] if g >= 0]
+                    if ids:
+                        T[n] = float(np.mean([lay[g] for g in ids]))
+            ch = self.case.chamber
+            if self.has_chamber and ch is not None and ch.initial is not None:
+                T[-1] = ch.initial
+            return T
         if a.shape != (self.n_unknowns,):
             raise ModelError(f"an initial profile must have one temperature per unknown "
                              f"({self.n_unknowns}), got shape {a.shape}")

@@ -22,6 +22,7 @@ import numpy as np
 import pytest
 import scipy.constants as sc
 
+from fdwall.system import build_system
 from fdwall.case import CaseError, case_from_dict, case_warnings, load_case
 from fdwall.materials import get_material
 from fdwall.physics.radiation import get_finish
@@ -93,9 +94,8 @@ def test_lab_furnace_heater_flux_per_layer_start_and_user_material():
     assert m.cp(t + C0) == pytest.approx(750.0 + 0.45 * t - 1.5e-4 * t * t)
     assert m.rho == 300.0 and m.t_max == pytest.approx(1000 + C0)
     # per-layer start temperatures: a vector over the nodes
-    from fdwall.system import build_system
     sysm = build_system(c)
-    T0 = np.asarray(c.run.initial)
+    T0 = build_system(c).initial_vector(c.run.initial)  # per-layer/chamber starts
     assert T0.shape == (sysm.n_unknowns,)
     starts = [150, 110, 60, 35]
     for i, (a, b) in enumerate(sysm.meshes[0].layer_nodes):

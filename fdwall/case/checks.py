@@ -127,8 +127,10 @@ def _service_warnings(case):
     init = np.asarray(case.run.initial, dtype=float)
     if init.ndim == 0:
         for w in walls:
-            for i in range(len(w.layers)):
-                _layer_service(out, w, i, float(init), "the start temperature")
+            for i, layer in enumerate(w.layers):
+                T0 = float(init) if layer.initial is None else layer.initial
+                _layer_service(out, w, i, T0, "the start temperature" if layer.initial is None
+                               else "its start temperature")
     else:
         try:
             from ..system import build_system

@@ -252,31 +252,14 @@ class _Loader:
             else:
                 case = Case(run=settings, walls=tuple(ews), chamber=chamber, heater=heater,
                             control=control, name=title, source=self.text)
-        return self._check_and_start(case, start, layer_starts,
-                                     ch_start if kind == "walls" else None)
+        return self._check(case)
 
-    def _check_and_start(self, case, start, layer_starts, ch_start):
-        """Assemble the system once (catches inconsistencies early) and set per-layer starts."""
+    def _check(self, case):
+        """Assemble the system once: catches inconsistencies early, with the file named."""
         from ..system import build_system
         with _model(self.file, "(case)", "the case"):
             sysm = build_system(case)
-        needs = any(s is not None for ls in layer_starts for s in ls) or ch_start is not None
-        if not needs:
-            return case
-        lay = []  # start temperature per global layer id of the system
-        for w, o in zip(sysm.walls, sysm.wall_origin):
-            for i in range(len(w.layers)):
-                v = layer_starts[o][i]
-                lay.append(start if v is None else v)
-        T = np.full(sysm.n_unknowns, float(start))
-        for n in range(sysm.n_nodes):
-            ids = [g for g in sysm.layer_of_half[n] if g >= 0]
-            if ids:
-                T[n] = float(np.mean([lay[g] for g in ids]))
-        if sysm.has_chamber and ch_start is not None:
-            T[-1] = ch_start
-        with _model(self.file, "run.start_temperature", "the start temperatures"):
-            return replace(case, run=replace(case.run, initial=T))
+        return case
 
     # ------------------------------------------------------------------ materials
     def _materials(self):
@@ -400,9 +383,11 @@ class _Loader:
             th = ls.quantity("thickness", "length", positive=True)
             cells = ls.integer("cells", None, minimum=1)
             lname = ls.text("name", "")
-            starts.append(ls.quantity("start_temperature", "temperature", None))
+            start_l = ls.quantity("start_temperature", "temperature", None)
+            starts.append(start_l)
             with _model(self.file, ls.path, "the layer"):
-                layers.append(Layer(material=mat, thickness=th, cells=cells, name=lname))
+                layers.append(Layer(material=mat, thickness=th, cells=cells, name=lname,
+                                    initial=start_l))
         n_if = len(layers) - 1
         contact = ()
         if sec.has("interface_resistance"):
@@ -695,7 +680,7 @@ class _Loader:
         start = sec.quantity("start_temperature", "temperature", None)
         with _model(self.file, sec.path, "the chamber"):
             ch = Chamber(capacity=cap, ambient=room, leakage=leak, extra_ua=extra,
-                         box=tuple(box) if box else None)
+                         box=tuple(box) if box else None, initial=start)
         return ch, start
 
     def _wall_ref(self, sec, key, default=0):
