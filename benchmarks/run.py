@@ -55,6 +55,22 @@ def median_time(fn, repeats):
     return float(np.median(ts)), float(np.min(ts))
 
 
+def round_robin(results, timers, repeats):
+    """Time several solvers in turns (one run of each per round) so that load from other
+    work on the shared machine falls on all of them alike; fills median and minimum [s]."""
+    for _, fn in timers:
+        fn()
+    ts = {i: [] for i, _ in timers}
+    for _ in range(repeats):
+        for i, fn in timers:
+            t0 = time.perf_counter()
+            fn()
+            ts[i].append(time.perf_counter() - t0)
+    for i, _ in timers:
+        results[i][4] = float(np.median(ts[i]))
+        results[i][5] = float(np.min(ts[i]))
+
+
 def peak_memory(fn):
     """Peak traced Python/numpy allocation during one call [bytes] (tracemalloc)."""
     tracemalloc.start()
@@ -158,6 +174,7 @@ def matched(geometry, quick, repeats, use_fipy, compile_s):
     say()
     results = []
     trials_txt = []
+    timers = []
 
     # fdwall
     kn, T, st, err, tr = M.loosest(lambda tol: M.solve_fdwall(geometry, tol), FD_TOLS, ref)
@@ -166,39 +183,40 @@ def matched(geometry, quick, repeats, use_fipy, compile_s):
         case = P.wall_case(geometry, tolerance=kn, refine=M.BENCH_REFINE)
         from fdwall.solver import run
         run(case)
-        med, mn = median_time(lambda: run(case), repeats)
+        timers.append((len(results), lambda case=case: run(case)))
         mem = peak_memory(lambda: run(case))
-        results.append(("fdwall TR-BDF2", f"tolerance={kn:g} K", n, st["steps"], med, mn, mem,
-                        err, compile_s.get("fdwall")))
+        results.append(["fdwall TR-BDF2", f"tolerance={kn:g} K", n, st["steps"], 0, 0, mem,
+                        err, compile_s.get("fdwall")])
         from fdwall.system import build_system
         sysm = build_system(case)
-        med, mn = median_time(lambda: run(case, system=sysm), repeats)
-        results.append(("fdwall, system prebuilt", f"tolerance={kn:g} K", n, st["steps"], med,
-                        mn, mem, err, None))
+        timers.append((len(results), lambda case=case, sysm=sysm: run(case, system=sysm)))
+        results.append(["fdwall, system prebuilt", f"tolerance={kn:g} K", n, st["steps"], 0,
+                        0, mem, err, None])
     # scipy BDF
     kn, T, st, err, tr = M.loosest(lambda r: M.solve_scipy(geometry, r, x=x), SCIPY_RTOLS, ref)
     trials_txt.append(("scipy rtol (atol = 300 K x rtol)", tr))
     if kn is not None:
-        fn = lambda: M.solve_scipy(geometry, kn, x=x)
-        med, mn = median_time(fn, repeats)
+        fn = lambda kn=kn: M.solve_scipy(geometry, kn, x=x)
+        timers.append((len(results), fn))
         mem = peak_memory(fn)
-        results.append(("scipy solve_ivp BDF", f"rtol={kn:g}", n, st["steps"], med, mn, mem, err,
-                        compile_s.get("scipy")))
-        fn = lambda: M.solve_scipy(geometry, kn, x=x, numpy_rhs=True)
+        results.append(["scipy solve_ivp BDF", f"rtol={kn:g}", n, st["steps"], 0, 0, mem, err,
+                        compile_s.get("scipy")])
+        fn = lambda kn=kn: M.solve_scipy(geometry, kn, x=x, numpy_rhs=True)
         T2, _ = fn()
-        med, mn = median_time(fn, repeats)
+        timers.append((len(results), fn))
         mem = peak_memory(fn)
-        results.append(("scipy BDF, numpy rhs", f"rtol={kn:g}", n, st["steps"], med, mn, mem,
-                        M.errors(T2, ref), None))
+        results.append(["scipy BDF, numpy rhs", f"rtol={kn:g}", n, st["steps"], 0, 0, mem,
+                        M.errors(T2, ref), None])
     # backward Euler kernel
     kn, T, st, err, tr = M.loosest_integer(lambda m: M.solve_be(geometry, m, x=x), ref)
     trials_txt.append(("BE steps per 5-min output", tr))
     if kn is not None:
-        fn = lambda: M.solve_be(geometry, kn, x=x)
-        med, mn = median_time(fn, repeats)
+        fn = lambda kn=kn: M.solve_be(geometry, kn, x=x)
+        timers.append((len(results), fn))
         mem = peak_memory(fn)
-        results.append(("fixed-step BE (numba)", f"dt={P.OUTPUT_INTERVAL / kn:.3g} s", n,
-                        st["steps"], med, mn, mem, err, compile_s.get("be")))
+        results.append(["fixed-step BE (numba)", f"dt={P.OUTPUT_INTERVAL / kn:.3g} s", n,
+                        st["steps"], 0, 0, mem, err, compile_s.get("be")])
+    round_robin(results, timers, repeats)
     # FiPy
     if use_fipy:
         knobs = (1, 2, 4, 8, 16, 32, 64) if not quick else (1, 2, 4)
@@ -236,18 +254,21 @@ def matched(geometry, quick, repeats, use_fipy, compile_s):
                             n, "-", float("nan"), float("nan"), 0, last[1], None))
     rows = []
     fd_time = results[0][4] if results and results[0][0].startswith("fdwall") else None
+    fd_min = results[0][5] if fd_time else None
     for name, knob, nn, steps, med, mn, mem, err, comp in results:
         ok = "yes" if M.passes(err) else "no"
         per = (f"{med / (nn * steps) * 1e9:.0f}" if isinstance(steps, int) and steps > 0
                and np.isfinite(med) else "-")
         ratio = f"{med / fd_time:.1f}" if fd_time and np.isfinite(med) else "-"
+        ratio_min = f"{mn / fd_min:.1f}" if fd_min and np.isfinite(mn) else "-"
         rows.append((name, knob, nn, steps, fmt_ms(med) if np.isfinite(med) else "-",
                      fmt_ms(mn) if np.isfinite(mn) else "-", per, f"{mem / 1024:.0f}",
                      f"{err[0]:.3f}", f"{err[1]:.4f}", ok,
-                     f"{comp:.1f}" if comp is not None and np.isfinite(comp) else "-", ratio))
+                     f"{comp:.1f}" if comp is not None and np.isfinite(comp) else "-", ratio,
+                     ratio_min))
     table(["method", "setting", "nodes", "steps", "wall median [ms]", "wall min [ms]",
            "ns per node-step", "peak mem [KiB]", "err inner [K]", "err outer [K]",
-           "meets", "compile [s]", "time / fdwall"], rows)
+           "meets", "compile [s]", "median / fdwall", "min / fdwall"], rows)
     say("Settings tried (loosest first), error inner/outer [K]:")
     say()
     for name, tr in trials_txt:
@@ -555,8 +576,10 @@ def main(argv=None):
         for peer, target in (("scipy solve_ivp BDF", 10.0), ("fixed-step BE (numba)", 1.0)):
             if fd and peer in r and np.isfinite(r[peer][4]):
                 ratio = r[peer][4] / fd[4]
-                say(f"- {peer} time / fdwall time = {ratio:.1f} (target >= {target:g}): "
-                    f"{'met' if ratio >= target else 'MISSED'}")
+                rmin = r[peer][5] / fd[5]
+                say(f"- {peer} time / fdwall time = {ratio:.1f} from medians, {rmin:.1f} from "
+                    f"minima (target >= {target:g}): "
+                    f"{'met' if min(ratio, rmin) >= target else 'MISSED' if max(ratio, rmin) < target else 'met on one measure only'}")
         say()
     if "c" in sections:
         enclosure(a.quick, repeats)
