@@ -154,8 +154,8 @@ def _build(case, path_arg):
         system = build_system(case)
         system.initial_vector(case.run.initial)
         try:  # validate the watched events (wall/interface indices) before running
-            from .solver.transient import _event_rows
-            _event_rows(system, case)
+            from .solver.transient import event_rows
+            event_rows(system, case)
         except ImportError:  # pragma: no cover
             pass
         return system

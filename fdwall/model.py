@@ -480,7 +480,8 @@ class Event:
     depth : float
         Depth below the inner face [m]; use ``where`` instead for named spots.
     where : str
-        'inner', 'outer', 'interface:N' (after layer N, 1-based) or '' to use ``depth``.
+        'inner', 'outer', 'interface:N' (after layer N, 1-based), 'chamber' (the chamber
+        node of an enclosure) or '' to use ``depth``.
     name : str
         Label.
     """
@@ -518,6 +519,9 @@ class RunSettings:
         more steps when outputs are dense).  By default outputs between steps are cubic
         Hermite interpolants of the step-end states (error well below ``tolerance``); the
         energy balance is checked at every step either way.
+    steady_at : float, optional
+        Time whose boundary conditions define the steady state reported with a run [s];
+        default the end of the run (give the hold time of a ramp-hold-cool schedule).
     """
 
     duration: float
@@ -528,6 +532,7 @@ class RunSettings:
     max_step: Optional[float] = None
     events: tuple = ()
     exact_outputs: bool = False
+    steady_at: Optional[float] = None
 
     def __post_init__(self):
         _pos("duration", self.duration)

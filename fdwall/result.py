@@ -93,6 +93,7 @@ class Result:
     message: str = ""
     wall_time: float = 0.0
     steady: object = None
+    control_state: object = None
 
     @classmethod
     def from_run(cls, case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out, stats,
@@ -124,6 +125,13 @@ class Result:
                    wall_time=wall_time)
 
     # ----------------------------------------------------------------- temperatures
+    # Wall arguments below count the 1-D *paths* solved: the case's walls in order, with the
+    # bridge path of a bridged wall inserted right after its clear path.  Without bridges the
+    # path index equals the case wall index; ``path_of(case_wall)`` maps one to the other.
+    def path_of(self, case_wall: int, bridge: bool = False) -> int:
+        """Path index of case wall ``case_wall`` (its clear path, or its bridge path)."""
+        return self.system.path_of(case_wall, bridge)
+
     @property
     def face_names(self):
         """Labels of the faces, '<wall>:inner' and '<wall>:outer'."""
@@ -312,6 +320,9 @@ class Result:
         try:
             with h5py.File(tmp, "w") as h:
                 self._write(h)
+            mask = os.umask(0)
+            os.umask(mask)
+            os.chmod(tmp, 0o666 & ~mask)
             os.replace(tmp, path)
         except BaseException:
             if os.path.exists(tmp):

@@ -124,10 +124,21 @@ class System:
 
     def chain_of(self, case_wall: int) -> int:
         """Index of the solved wall (clear path) for case wall ``case_wall``."""
+        return self.path_of(case_wall, False)
+
+    def path_of(self, case_wall: int, bridge: bool = False) -> int:
+        """Index of the solved 1-D path of case wall ``case_wall``: its clear path, or with
+        ``bridge=True`` its bridge path."""
         for j, (o, b) in enumerate(zip(self.wall_origin, self.is_bridge)):
-            if o == case_wall and not b:
+            if o == case_wall and b == bridge:
                 return j
-        raise ModelError(f"wall index {case_wall} does not exist")
+        what = "a bridge path" if bridge else "a path"
+        raise ModelError(f"case wall index {case_wall} has no {what} "
+                         f"(walls 0..{max(self.wall_origin)})")
+
+    def paths_of(self, case_wall: int) -> list:
+        """All solved path indices of case wall ``case_wall`` (clear first)."""
+        return [j for j, o in enumerate(self.wall_origin) if o == case_wall]
 
     @property
     def has_chamber(self) -> bool:

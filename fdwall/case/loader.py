@@ -238,13 +238,18 @@ class _Loader:
                                 allowed="times between 0 and the duration")
         tol = run.quantity("tolerance", "temperature_difference", 0.01, positive=True)
         max_step = run.quantity("max_step", "time", None, positive=True)
+        steady_at = run.quantity("steady_at", "time", None, nonnegative=True)
+        if steady_at is not None and steady_at > duration:
+            raise run.error("steady_at", f"{run.raw('steady_at')!r} lies after the end of the run "
+                                         f"({run.raw('duration')!r})",
+                            "a time between 0 and the duration")
         events = tuple(self._watch(w, i) for i, w in
                        enumerate(run.tables("watch", S.WATCH, "a [[run.watch]] entry", [])))
 
         with _model(self.file, "run", "the [run] table"):
             settings = RunSettings(duration=duration, initial=start, output_interval=out_every,
                                    profile_times=tuple(snaps), tolerance=tol, max_step=max_step,
-                                   events=events)
+                                   events=events, steady_at=steady_at)
         with _model(self.file, "(case)", "the case"):
             if kind == "wall":
                 case = Case(run=settings, wall=walls[0], inner=inner, outer=outer,
@@ -257,8 +262,11 @@ class _Loader:
     def _check(self, case):
         """Assemble the system once: catches inconsistencies early, with the file named."""
         from ..system import build_system
+        from ..solver.transient import event_rows
         with _model(self.file, "(case)", "the case"):
             sysm = build_system(case)
+        with _model(self.file, "run.watch", "a [[run.watch]] entry"):
+            event_rows(sysm, case)
         return case
 
     # ------------------------------------------------------------------ materials
@@ -785,9 +793,9 @@ class _Loader:
         which = sec.exclusive("at", "after_layer", "depth", required=True)
         wall = self.walls[j]
         if which == "at":
-            where = sec.text("at", choices=("inner", "outer"))
+            where = sec.text("at", choices=("inner", "outer", "chamber"))
             depth = 0.0
-            spot = f"{where} face"
+            spot = "chamber" if where == "chamber" else f"{where} face"
         elif which == "after_layer":
             n = len(wall.layers)
             k = sec.integer("after_layer")

@@ -26,13 +26,14 @@ RUN = {
     "snapshots": 'times of stored temperature profiles, e.g. ["1 h", "3 h"]',
     "tolerance": 'local error tolerance per step, e.g. "0.01 K" (default)',
     "max_step": 'upper limit of the time step, e.g. "60 s"',
+    "steady_at": 'time whose conditions define the reported steady state, e.g. "5 h" (default: end)',
     "watch": "array [[run.watch]]: temperature crossings to report",
 }
 
 WATCH = {
     "name": "text label",
     "wall": "wall index (0-based) or wall name (default 0)",
-    "at": '"inner" or "outer" face',
+    "at": '"inner" or "outer" face, or "chamber" (the chamber of an enclosure)',
     "after_layer": "interface after layer N (0-based layer index)",
     "depth": 'depth below the inner face, e.g. "25 mm"',
     "temperature": 'threshold, e.g. "60 degC"',

@@ -602,8 +602,11 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
                         de = (e - cs[CS_PREV]) / period
                     ui = cs[CS_INT] + ctl_f[3] * e * period
                     ufrac = ctl_f[2] * e + ui + ctl_f[4] * de
-                    # anti-windup: integrate only while unsaturated or when it unwinds
-                    if (ufrac < 1.0 and ufrac > 0.0) or (ufrac >= 1.0 and e < 0) or (ufrac <= 0.0 and e > 0):
+                    enabled = sched_eval(s_off, stab, ctl_i[7], t, False) > 0.0
+                    # anti-windup: integrate only while enabled and unsaturated, or when it
+                    # unwinds; the integral is frozen while the heater is switched off
+                    if enabled and ((ufrac < 1.0 and ufrac > 0.0) or (ufrac >= 1.0 and e < 0)
+                                    or (ufrac <= 0.0 and e > 0)):
                         cs[CS_INT] = ui
                     if ufrac > 1.0:
                         ufrac = 1.0

@@ -36,7 +36,9 @@ class SteadyResult:
     duty : float
         Heater on-fraction needed (controlled heaters) [-].
     reachable : bool
-        False when full heater power cannot hold the setpoint.
+        False when full heater power cannot hold the setpoint (or the heater is off).
+    heater_on : bool
+        False when the heater is disabled or rated at zero power at time ``time``.
     iterations : int
         Newton iterations of the last solve.
     """
@@ -52,6 +54,7 @@ class SteadyResult:
     reachable: bool
     iterations: int
     time: float
+    heater_on: bool = True
 
     def wall_T(self, wall: int = 0) -> np.ndarray:
         """Node temperatures of one wall [K]."""
@@ -89,6 +92,8 @@ class SteadyResult:
             "heater_power_W": float(self.heater_power),
             "duty": float(self.duty),
             "setpoint_reachable": bool(self.reachable),
+            "heater_on": bool(self.heater_on),
+            "time_s": float(self.time),
             "balance_W": self.balance,
             "newton_iterations": int(self.iterations),
         }
@@ -186,7 +191,8 @@ def solve_steady(case, t=None, system=None, guess=None, tol=1e-9) -> SteadyResul
     ----------
     case : Case
     t : float, optional
-        Time at which schedules are read [s]; default the end of the run.
+        Time at which schedules are read [s]; default ``case.run.steady_at`` or else the end
+        of the run.
     system : System, optional
         Prebuilt system of ``case``.
     guess : ndarray, optional
@@ -195,13 +201,21 @@ def solve_steady(case, t=None, system=None, guess=None, tol=1e-9) -> SteadyResul
         Newton stopping tolerance on the correction [K].
     """
     sysm = system if system is not None else build_system(case)
-    t = case.run.duration if t is None else float(t)
+    if t is None:
+        t = case.run.steady_at if case.run.steady_at is not None else case.run.duration
+    t = float(t)
     T0 = _guess(sysm, t) if guess is None else np.asarray(guess, float)
     mode = sysm.ctl_i[0]
     heater = sysm.ctl_i[1] >= 0
     if not heater:
         T, qf, hc, hr, ex, it = _solve(sysm, t, 0.0, T0, tol)
-        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, True, it, t)
+        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, True, it, t, False)
+    on = (K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[7], t, False) > 0.0
+          and K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[4], t, False) > 0.0)
+    if not on:
+        T, qf, hc, hr, ex, it = _solve(sysm, t, 0.0, T0, tol)
+        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, mode not in (2, 3, 4),
+                            it, t, False)
     if mode in (0, 1):
         u = -1.0 if mode == 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[5], t, False)
         T, qf, hc, hr, ex, it = _solve(sysm, t, u, T0, tol)

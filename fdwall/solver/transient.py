@@ -15,7 +15,7 @@ from ..model import Case
 from ..system import System, build_system
 from . import kernels as K
 
-__all__ = ["run", "output_times", "ConvergenceError"]
+__all__ = ["run", "output_times", "event_rows", "ConvergenceError"]
 
 
 class ConvergenceError(RuntimeError):
@@ -36,12 +36,24 @@ def output_times(case: Case) -> np.ndarray:
     return t
 
 
-def _event_rows(system: System, case: Case):
+def event_rows(system: System, case: Case):
+    """Kernel rows (node a, node b; weight on a, threshold [K]) of the case's events.
+
+    Raises ModelError for an event at a wall, interface or depth that does not exist, so it
+    also serves to validate a case's events before a run.
+    """
     evs = case.run.events
     ev_i = np.zeros((len(evs), 2), dtype=np.int64)
     ev_f = np.zeros((len(evs), 2))
     from ..system import locate_depth
     for e, ev in enumerate(evs):
+        if ev.where == "chamber":
+            if not system.has_chamber:
+                from ..model import ModelError
+                raise ModelError(f"event '{ev.name}' watches the chamber, but the case has none")
+            ev_i[e] = (system.n_nodes, system.n_nodes)
+            ev_f[e] = (1.0, ev.threshold)
+            continue
         j = system.chain_of(ev.wall)
         m, o = system.meshes[j], system.offsets[j]
         wall = system.walls[j]
@@ -67,7 +79,7 @@ def _event_rows(system: System, case: Case):
     return ev_i, ev_f
 
 
-def run(case, initial=None, progress=None, strict=True, system=None):
+def run(case, initial=None, progress=None, strict=True, system=None, control_state=None):
     """Run a transient case.
 
     Parameters
@@ -84,6 +96,10 @@ def run(case, initial=None, progress=None, strict=True, system=None):
         fails; otherwise return the partial result with ``complete = False``.
     system : System, optional
         A system already built from ``case`` (saves rebuilding when running variants).
+    control_state : ndarray, optional
+        ``Result.control_state`` of an earlier run to continue its controller (thermostat
+        state, PID integral and last error, time-proportioning cycle), e.g. for repeated
+        cycles; times in it count from the end of that run (mixed units: [-], [K], [s]).
 
     Returns
     -------
@@ -114,6 +130,16 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     qf, hc, hr = np.empty(nf), np.empty(nf), np.empty(nf)
     ctl = sysm.ctl_i
     u0 = _initial_u(sysm, T)
+    cs = np.zeros(K.N_CS)
+    if control_state is not None:
+        prev = np.asarray(control_state, dtype=float)
+        if prev.shape != cs.shape:
+            from ..model import ModelError
+            raise ModelError(f"control_state must be Result.control_state (length {cs.size})")
+        for i in (K.CS_U, K.CS_ON, K.CS_INT, K.CS_PREV, K.CS_NEXT, K.CS_OFF):
+            cs[i] = prev[i]
+        if sysm.ctl_i[0] == 2 and sysm.ctl_i[1] >= 0:
+            u0 = float(cs[K.CS_ON])
     K.assemble(T, 0.0, False, u0, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
                sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
                sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
@@ -127,7 +153,6 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     hc_out[0], hr_out[0] = hc, hr
     E_out[0] = 0.0
     P_out[0] = extra[0]
-    cs = np.zeros(K.N_CS)
     cs[K.CS_H] = min(1.0, r.duration * 1e-4, t_out[1] if n_out > 1 else r.duration)
     cs[K.CS_NEXT] = 0.0
     cs[K.CS_PREV] = -1e300
@@ -141,7 +166,7 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     stats = np.zeros(K.N_STATS)
     stats[K.ST_HMIN] = np.inf
     stats[K.ST_H0] = H_initial
-    ev_i, ev_f = _event_rows(sysm, case)
+    ev_i, ev_f = event_rows(sysm, case)
     ev_out = np.full((len(ev_i), 2), np.nan)
     max_step = r.max_step if r.max_step is not None else np.inf
     args = (t_out, None, None, bool(r.exact_outputs), sysm.breakpoints, r.tolerance, max_step, sysm.node_i,
@@ -186,6 +211,10 @@ def run(case, initial=None, progress=None, strict=True, system=None):
     res = Result.from_run(case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out,
                           stats, ev_out, complete=not failed,
                           wall_time=_time.perf_counter() - t0)
+    end = cs.copy()
+    end[K.CS_NEXT] -= stats[K.ST_T]
+    end[K.CS_OFF] -= stats[K.ST_T]
+    res.control_state = end
     if failed:
         msg = (f"the solver could not converge at t = {stats[K.ST_T]:.6g} s "
                f"({stats[K.ST_T] / 3600:.4g} h): the time step fell below its floor. "
@@ -210,3 +239,4 @@ def _initial_u(sysm, T):
         sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], 0.0, False)
         return 1.0 if y < sp else 0.0
     return 0.0
+
