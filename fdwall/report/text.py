@@ -521,7 +521,7 @@ def format_case(case, system=None, warnings=()) -> str:
             tmax = getattr(layer.material, "t_max", None)
             lab = layer.label if layer.label == layer.material.name else \
                 f"{layer.label} ({layer.material.name})"
-            row = [str(i + 1), lab, f"{layer.thickness * 1e3:.1f}",
+            row = [str(i), lab, f"{layer.thickness * 1e3:.1f}",
                    nodes, f"{k:.4g}", f"{R:.4g}"]
             if slab:
                 row.append(f"{R * w.area:.4g}")
@@ -563,9 +563,10 @@ def format_case(case, system=None, warnings=()) -> str:
             b = case.walls[j].bridge
             L.append(_wrap(f"thermal bridge: {b.fraction * 100:.1f} % of the area has "
                            f"{b.material.name} in place of layer(s) "
-                           f"{', '.join(str(i + 1) for i in b.layers)} (parallel paths)"))
-        L.append(_wrap("(nodes: mesh nodes in the layer, shared with its neighbours at "
-                       "interfaces; k and R at 20 degC, conduction only, without surface films)"))
+                           f"{', '.join(str(i) for i in b.layers)} (parallel paths)"))
+        L.append(_wrap("(#: layer index as in the case file, from 0; nodes: mesh nodes in the "
+                       "layer, shared with its neighbours at interfaces; k and R at 20 degC, "
+                       "conduction only, without surface films)"))
     if case.chamber is not None:
         ch = case.chamber
         cap = ch.capacity
