@@ -248,6 +248,12 @@ def cmd_run(args) -> int:
     summary = result.summary()
     summary.update({"case_file": str(args.case), "fdwall_version": _version(),
                     "input_warnings": warns, "caution": TOUCH_CAUTION})
+    if case.is_enclosure:
+        try:
+            from .analyses.enclosure import summarise_enclosure
+            summary["enclosure"] = summarise_enclosure(result, steady=False)
+        except Exception as exc:  # analyses must never lose the run's own results
+            _warn(f"enclosure analysis not available: {exc}")
     try:
         result.write_hdf5(h5)
         _public_mode(h5)

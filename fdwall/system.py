@@ -301,7 +301,7 @@ def _chains_of(case: Case):
         layers = list(w.layers)
         for i in ew.bridge.layers:
             layers[i] = replace(layers[i], material=ew.bridge.material,
-                                name=f"{layers[i].label} (bridge)")
+                                name=f"{ew.bridge.material.name} (bridge)")
         out.append((replace(w, area=w.area * (1 - f)), j, ew, False))
         out.append((replace(w, area=w.area * f, layers=tuple(layers), name=f"{w.name}~bridge"),
                     j, ew, True))

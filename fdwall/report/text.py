@@ -311,6 +311,8 @@ def format_summary(result) -> str:
         L.append("")
         L.append(f"  box edges and corners: slab wall areas multiplied by "
                  f"{summ['box_edge_corner_area_factor']:.3f} [-]")
+    if case.is_enclosure:
+        L += _enclosure_lines(result)
     warns = list(summ.get("warnings") or [])
     if warns:
         L += _heading("Warnings")
@@ -332,6 +334,42 @@ def format_summary(result) -> str:
         L += _steady_lines(result.steady, case, "Steady state (boundary conditions at t = "
                            f"{fmt_time(result.steady.time)})")
     return "\n".join(L) + "\n"
+
+
+def _enclosure_lines(result) -> list:
+    """Warm-up, hold duty, steady duty and where the heater energy went (enclosures)."""
+    from ..analyses.enclosure import summarise_enclosure
+    try:
+        s = summarise_enclosure(result, steady=True)
+    except Exception as exc:  # an analysis must never hide the run's own summary
+        return _heading("Heating") + [_wrap(f"(enclosure analysis not available: {exc})")]
+    L = _heading("Heating")
+    sp = s.get("setpoint_K")
+    if sp is not None and math.isfinite(sp):
+        wu = s.get("warm_up_s", float("nan"))
+        L.append(f"  setpoint {fmt_temp(sp)}; warm-up to it "
+                 + (fmt_time(wu) if math.isfinite(wu) else "not reached in the run"))
+        hd = s.get("hold_duty", float("nan"))
+        win = s.get("hold_window_s")
+        if math.isfinite(hd) and win:
+            L.append(f"  mean duty while holding ({fmt_time(win[0])} to {fmt_time(win[1])}): "
+                     f"{100 * hd:.1f} %")
+    sd = s.get("steady_duty", float("nan"))
+    if sd is not None and math.isfinite(sd):
+        L.append(f"  steady state: duty {100 * sd:.1f} %, loss {fmt_power(s.get('steady_loss_W', float('nan')))}"
+                 + ("" if s.get("steady_reachable", True) else " (setpoint NOT reachable at full power)"))
+    e = s.get("energy") or {}
+    if e:
+        rows = []
+        for wname, w in (e.get("walls") or {}).items():
+            rows.append([wname, fmt_energy(w.get("stored_J", 0.0)),
+                         fmt_energy(w.get("outer_loss_J", 0.0))])
+        rows.append(["chamber contents", fmt_energy(e.get("chamber_stored_J", 0.0)), ""])
+        rows.append(["leakage and extra UA", "", fmt_energy(e.get("leakage_loss_J", 0.0))])
+        L.append(f"  heater energy {fmt_energy(e.get('heater_J', 0.0))}; where it went:")
+        L += _table(["", "stored", "lost outside"], ["", "", ""], rows, indent="    ",
+                    align=["<", ">", ">"])
+    return L
 
 
 def _mean_power(result) -> float:
