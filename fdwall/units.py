@@ -42,8 +42,17 @@ from .case.errors import CaseError
 __all__ = ["ureg", "KINDS", "Kind", "parse_quantity", "parse_unit", "parse_leakage",
            "kind_names", "CaseError"]
 
+def _registry():
+    # pint caches its parsed definitions on disk (user cache folder): a tenth of a second less
+    # at every start of the command line.  Without a writable cache folder it parses afresh.
+    try:
+        return pint.UnitRegistry(cache_folder=":auto:")
+    except Exception:  # pragma: no cover - read-only home, old pint
+        return pint.UnitRegistry()
+
+
 #: The one unit registry of fdwall (pint objects from different registries do not mix).
-ureg = pint.UnitRegistry()
+ureg = _registry()
 
 
 @dataclass(frozen=True)
