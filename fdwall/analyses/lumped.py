@@ -1,0 +1,161 @@
+"""The lumped one-node model a wall or an enclosure implies, and fitting it to a curve.
+
+The one-node model is ``C dT/dt = P - (T - T_amb)/R``: one temperature T (the chamber, or the
+hot face of a wall), one heat capacity C [J/K] and one resistance R [K/W] to ambient.  Its
+step response from T0 is ``T(t) = T_amb + P R + (T0 - T_amb - P R) exp(-t / (R C))``.
+
+From the physics of a wall, fdwall derives:
+
+* ``R`` from the steady state: the temperature difference between the heated node and
+  ambient divided by the heat flow through the wall (exact for any k(T) and films);
+* ``C_stored``: the energy the walls and the chamber hold at that steady state, above ambient,
+  divided by the heated node's rise above ambient.  A one-node model with this C stores the
+  right energy at equilibrium; its time constant ``R C_stored`` is the one to compare with a
+  C fitted to a heating curve;
+* ``C_total``: the plain sum of all heat capacities (an upper bound on C_stored, since the
+  outer layers sit closer to ambient).
+
+A distributed wall does not follow one exponential: early on it takes heat like a
+semi-infinite solid, late it relaxes with its slowest mode.  :func:`fit_one_node` fits C
+(and optionally R) to a curve by least squares so the difference can be seen.
+"""
+from __future__ import annotations
+
+from dataclasses import replace
+
+import numpy as np
+
+__all__ = ["one_node_response", "implied_rc", "fit_one_node"]
+
+
+def one_node_response(t, P, R, C, T_amb, T0):
+    """Step response of the one-node model.
+
+    Parameters
+    ----------
+    t : array_like
+        Times since the power step [s].
+    P : float
+        Heater power [W].
+    R : float
+        Resistance to ambient [K/W].
+    C : float
+        Heat capacity [J/K].
+    T_amb : float
+        Ambient temperature [K].
+    T0 : float
+        Temperature at t = 0 [K].
+
+    Returns
+    -------
+    ndarray
+        Temperature [K].
+    """
+    t = np.asarray(t, dtype=float)
+    Tinf = T_amb + P * R
+    return Tinf + (T0 - Tinf) * np.exp(-t / (R * C))
+
+
+def implied_rc(case, t=None) -> dict:
+    """Lumped R and C that the walls (and chamber) of ``case`` imply at steady state.
+
+    For an enclosure the heated node is the chamber and the heat flow is what the heater
+    delivers (all losses: walls, leakage, extra UA).  For a single wall the heated node is the
+    inner face and the heat flow is what enters it; ambient is the outer fluid (or fixed)
+    temperature.
+
+    Parameters
+    ----------
+    case : Case
+        The problem; its heater (enclosure) or inner-face conditions (single wall) at time
+        ``t`` set the steady state.
+    t : float, optional
+        Time whose conditions are used [s] (default ``case.run.steady_at`` or the end).
+
+    Returns
+    -------
+    dict
+        ``R_K_per_W`` [K/W], ``C_stored_J_per_K`` [J/K], ``C_total_J_per_K`` [J/K] (at the
+        mean steady temperature), ``tau_s`` = R C_stored [s], ``T_hot_K`` and ``T_amb_K`` [K],
+        ``Q_W`` the heat flow [W], ``stored_J`` the energy held above ambient [J].
+    """
+    from ..solver.kernels import sched_eval
+    from ..solver.steady import solve_steady
+    from ..system import build_system
+    sysm = build_system(case)
+    st = solve_steady(case, t=t, system=sysm)
+    tt = st.time
+    if case.is_enclosure:
+        T_hot = float(st.T[-1])
+        T_amb = float(case.chamber.ambient(tt))
+        Q = float(st.heater_power)
+    else:
+        T_hot = float(st.face_T[0])
+        Q = float(st.face_flow[0])
+        f = sysm.face_i[1]
+        s = f[1] if f[1] >= 0 else f[3]
+        if s < 0:
+            raise ValueError("implied_rc needs a fixed or fluid temperature at the outer face")
+        T_amb = float(sched_eval(sysm.s_off, sysm.stab, s, tt, False))
+    if abs(Q) <= 0.0 or abs(T_hot - T_amb) < 1e-9:
+        raise ValueError("implied_rc needs a steady state with heat flowing (the heater or the "
+                         "inner face must drive the wall above ambient)")
+    R = (T_hot - T_amb) / Q
+    # energy held above ambient: enthalpy at the steady state minus enthalpy at ambient
+    T_amb_vec = np.full(sysm.n_unknowns, T_amb)
+    Hs = sysm.enthalpy(st.T)
+    Ha = sysm.enthalpy(T_amb_vec)
+    stored = float(Hs[0].sum() + Hs[1].sum() - Ha[0].sum() - Ha[1].sum())
+    C_stored = stored / (T_hot - T_amb)
+    C_total = float(sysm.capacities(0.5 * (st.T + T_amb)).sum())
+    return {"R_K_per_W": float(R), "C_stored_J_per_K": float(C_stored),
+            "C_total_J_per_K": C_total, "tau_s": float(R * C_stored), "T_hot_K": T_hot,
+            "T_amb_K": T_amb, "Q_W": Q, "stored_J": stored}
+
+
+def fit_one_node(t, T, P, T_amb, R=None, C0=None) -> dict:
+    """Fit the one-node model to a heating curve by least squares.
+
+    Parameters
+    ----------
+    t : array_like
+        Times since the power step [s].
+    T : array_like
+        Measured or computed temperatures [K]; ``T[0]`` is the start.
+    P : float
+        Constant heater power during the curve [W].
+    T_amb : float
+        Ambient temperature [K].
+    R : float, optional
+        Resistance to ambient [K/W], e.g. read off the equilibrium; fitted when None.
+    C0 : float, optional
+        Starting guess for C [J/K].
+
+    Returns
+    -------
+    dict
+        ``R_K_per_W`` [K/W], ``C_J_per_K`` [J/K], ``tau_s`` [s], ``rms_K`` residual [K].
+    """
+    from scipy.optimize import least_squares
+    t = np.asarray(t, dtype=float)
+    T = np.asarray(T, dtype=float)
+    if t.shape != T.shape or t.size < 3:
+        raise ValueError("fit_one_node needs at least 3 (time, temperature) points of equal count")
+    T0 = float(T[0])
+    rise = max(float(T.max() - T_amb), 1e-9)
+    R_guess = R if R is not None else rise / P * 1.2
+    C_guess = C0 if C0 is not None else (t[-1] - t[0]) / 3.0 / R_guess
+
+    if R is None:
+        def res(x):
+            return one_node_response(t, P, np.exp(x[0]), np.exp(x[1]), T_amb, T0) - T
+        sol = least_squares(res, [np.log(R_guess), np.log(C_guess)], method="lm")
+        Rf, Cf = np.exp(sol.x)
+    else:
+        def res(x):
+            return one_node_response(t, P, R, np.exp(x[0]), T_amb, T0) - T
+        sol = least_squares(res, [np.log(C_guess)], method="lm")
+        Rf, Cf = R, float(np.exp(sol.x[0]))
+    rms = float(np.sqrt(np.mean(sol.fun ** 2)))
+    return {"R_K_per_W": float(Rf), "C_J_per_K": float(Cf), "tau_s": float(Rf * Cf),
+            "rms_K": rms}
