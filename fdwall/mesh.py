@@ -110,46 +110,50 @@ def mesh_wall(wall) -> WallMesh:
         cells = [int(np.ceil(l.cells * wall.refine)) if l.cells is not None else c
                  for l, c in zip(wall.layers, cells)]
     edges = wall.radii()
-    xs, lay_l, lay_r, vl, vr, link_layer, link_g = [], [], [], [], [], [], []
-    interface_nodes, layer_nodes = [], []
     geo, A, L = wall.geometry, wall.area, wall.length
+    # node count: layer 0 has n0+1 nodes; each later layer adds n_j nodes, or n_j+1 when a
+    # contact resistance doubles its interface node
+    n_tot = cells[0] + 1 + sum(c + (1 if wall.contact[j - 1] > 0.0 else 0)
+                               for j, c in enumerate(cells) if j > 0)
+    x = np.empty(n_tot)
+    lay_l = np.full(n_tot, -1, dtype=np.int64)
+    lay_r = np.full(n_tot, -1, dtype=np.int64)
+    vl = np.zeros(n_tot)
+    vr = np.zeros(n_tot)
+    link_layer = np.full(n_tot, -2, dtype=np.int64)
+    link_g = np.zeros(n_tot)
+    interface_nodes, layer_nodes = [], []
+    pos = 0   # index of the first node of the current layer
     for j, layer in enumerate(wall.layers):
         n = cells[j]
+        if j > 0:
+            if wall.contact[j - 1] > 0.0:
+                # contact pair: a new node at the same radius joined by the contact conductance
+                link_layer[pos] = -1
+                link_g[pos] = wall.area_at(edges[j]) / wall.contact[j - 1]
+                interface_nodes.append(pos)
+                pos += 1
+            else:
+                interface_nodes.append(pos)
         s = np.linspace(0.0, 1.0, n + 1)
         beta = GRADING_BETA if n >= 3 else 0.0
         xi = edges[j] + (edges[j + 1] - edges[j]) * (s - beta * np.sin(2 * np.pi * s) / (2 * np.pi))
         xi[0], xi[-1] = edges[j], edges[j + 1]
-        if j > 0 and wall.contact[j - 1] > 0.0:
-            # contact pair: a new node at the same radius joined by the contact conductance
-            link_layer[-1] = -1
-            link_g[-1] = wall.area_at(edges[j]) / wall.contact[j - 1]
-            interface_nodes.append(len(xs) - 1)
-            start = 0
-        elif j > 0:
-            interface_nodes.append(len(xs) - 1)
-            start = 1
-        else:
-            start = 0
-        for i in range(start, n + 1):
-            xs.append(xi[i])
-            lay_l.append(-1)
-            lay_r.append(-1)
-            vl.append(0.0)
-            vr.append(0.0)
-            link_layer.append(-2)
-            link_g.append(0.0)
-        base = len(xs) - (n + 1)
-        for c in range(n):
-            a, b = base + c, base + c + 1
-            r1, r2 = xs[a], xs[b]
-            rm = 0.5 * (r1 + r2)
-            lay_r[a], vr[a] = j, _volume(geo, r1, rm, A, L)
-            lay_l[b], vl[b] = j, _volume(geo, rm, r2, A, L)
-            link_layer[a] = j
-            link_g[a] = _geometry(geo, r1, r2, A, L)
-        layer_nodes.append((base, len(xs) - 1))
+        sl = slice(pos, pos + n + 1)
+        x[sl] = xi
+        r1, r2 = xi[:-1], xi[1:]
+        rm = 0.5 * (r1 + r2)
+        a = slice(pos, pos + n)          # left node of each cell
+        b = slice(pos + 1, pos + n + 1)  # right node of each cell
+        lay_r[a] = j
+        vr[a] = _volume(geo, r1, rm, A, L)
+        lay_l[b] = j
+        vl[b] = _volume(geo, rm, r2, A, L)
+        link_layer[a] = j
+        link_g[a] = _geometry(geo, r1, r2, A, L)
+        layer_nodes.append((pos, pos + n))
+        pos += n
     return WallMesh(
-        x=np.array(xs), layer_of_node_left=np.array(lay_l, dtype=np.int64),
-        layer_of_node_right=np.array(lay_r, dtype=np.int64), vol_left=np.array(vl),
-        vol_right=np.array(vr), link_layer=np.array(link_layer, dtype=np.int64),
-        link_g=np.array(link_g), interface_nodes=interface_nodes, layer_nodes=layer_nodes)
+        x=x, layer_of_node_left=lay_l, layer_of_node_right=lay_r, vol_left=vl, vol_right=vr,
+        link_layer=link_layer, link_g=link_g, interface_nodes=interface_nodes,
+        layer_nodes=layer_nodes)

@@ -112,6 +112,7 @@ class System:
     dirich_sched: np.ndarray
     dirich_face: np.ndarray
     breakpoints: np.ndarray
+    breakpoint_jumps: np.ndarray                      # 1.0 where some schedule jumps there
     face_names: list
     external: np.ndarray
     layer_of_half: np.ndarray = field(default=None)   # (N, 2) global layer id per half, -1 none
@@ -328,14 +329,15 @@ def build_system(case: Case) -> System:
         for l in w.layers:
             layer_names.append(f"{w.name}/{l.label}")
             layer_wall.append(j)
-        for i in range(m.n):
-            node_i[o + i, 0] = mids[m.layer_of_node_left[i]] if m.layer_of_node_left[i] >= 0 else -1
-            node_i[o + i, 1] = mids[m.layer_of_node_right[i]] if m.layer_of_node_right[i] >= 0 else -1
-            ll = m.link_layer[i]
-            node_i[o + i, 2] = mids[ll] if ll >= 0 else ll
-            node_f[o + i] = (m.vol_left[i], m.vol_right[i], m.link_g[i])
-            layer_of_half[o + i, 0] = lid0 + m.layer_of_node_left[i] if m.layer_of_node_left[i] >= 0 else -1
-            layer_of_half[o + i, 1] = lid0 + m.layer_of_node_right[i] if m.layer_of_node_right[i] >= 0 else -1
+        mids_a = np.array(mids, dtype=np.int64)
+        sl = slice(o, o + m.n)
+        lo, ro, ll = m.layer_of_node_left, m.layer_of_node_right, m.link_layer
+        node_i[sl, 0] = np.where(lo >= 0, mids_a[np.maximum(lo, 0)], -1)
+        node_i[sl, 1] = np.where(ro >= 0, mids_a[np.maximum(ro, 0)], -1)
+        node_i[sl, 2] = np.where(ll >= 0, mids_a[np.maximum(ll, 0)], ll)
+        node_f[sl, 0], node_f[sl, 1], node_f[sl, 2] = m.vol_left, m.vol_right, m.link_g
+        layer_of_half[sl, 0] = np.where(lo >= 0, lid0 + lo, -1)
+        layer_of_half[sl, 1] = np.where(ro >= 0, lid0 + ro, -1)
         chains[j] = (o, o + m.n - 1)
     # faces
     rows_i, rows_f, rows_p, names, external = [], [], [], [], []
@@ -416,17 +418,21 @@ def build_system(case: Case) -> System:
     ctl_f[2], ctl_f[3], ctl_f[4] = ctl.kp, ctl.ki, ctl.kd
     ctl_f[9] = min(0.02, max(1e-3, 0.02 * ctl.band))
     # breakpoints: every knot of every time schedule
-    bps = set()
+    bps, jumps = set(), set()
     for s in _time_schedules(case):
         bps.update(s.breakpoints())
+        tk = s.times
+        jumps.update(a for a, b, va, vb in zip(tk[:-1], tk[1:], s.values[:-1], s.values[1:])
+                     if a == b and va != vb)
     dur = case.run.duration
     bp = np.array(sorted(t for t in bps if 0.0 < t < dur))
+    bpj = np.array([1.0 if t in jumps else 0.0 for t in bp])
     m_off, mtab, s_off, stab = tb.pack()
     return System(case=case, meshes=meshes, offsets=[int(o) for o in offsets], n_nodes=N,
                   node_i=node_i, node_f=node_f, chains=chains, face_i=face_i, face_f=face_f,
                   hpar=hpar, m_off=m_off, mtab=mtab, s_off=s_off, stab=stab, ch_i=ch_i,
                   ch_f=ch_f, ctl_i=ctl_i, ctl_f=ctl_f, dirich_node=dirich_node,
-                  dirich_sched=dirich_sched, dirich_face=dirich_face, breakpoints=bp,
+                  dirich_sched=dirich_sched, dirich_face=dirich_face, breakpoints=bp, breakpoint_jumps=bpj,
                   face_names=names, external=np.array(external), layer_of_half=layer_of_half,
                   layer_names=layer_names, layer_wall=layer_wall, walls=walls,
                   wall_origin=[sp[1] for sp in specs], is_bridge=[sp[3] for sp in specs],

@@ -96,7 +96,7 @@ def implied_rc(case, t=None) -> dict:
         s = f[1] if f[1] >= 0 else f[3]
         if s < 0:
             raise ValueError("implied_rc needs a fixed or fluid temperature at the outer face")
-        T_amb = float(sched_eval(sysm.s_off, sysm.stab, s, tt, False))
+        T_amb = float(sched_eval(sysm.s_off, sysm.stab, s, tt, 0.0))
     if abs(Q) <= 0.0 or abs(T_hot - T_amb) < 1e-9:
         raise ValueError("implied_rc needs a steady state with heat flowing (the heater or the "
                          "inner face must drive the wall above ambient)")

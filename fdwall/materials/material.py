@@ -114,12 +114,19 @@ class Material:
         cp : ndarray of float64
             Specific heat capacity at ``T`` [J/kg/K].
         """
-        Tk, _ = self.k.knots()
-        Tc, _ = self.cp.knots()
-        T = np.union1d(Tk, Tc).astype(np.float64)
-        k = np.asarray(self.k(T), dtype=np.float64)
-        cp = np.asarray(self.cp(T), dtype=np.float64)
-        return T, k, cp
+        cached = self.__dict__.get("_tables")
+        if cached is None:
+            Tk, _ = self.k.knots()
+            Tc, _ = self.cp.knots()
+            T = np.union1d(Tk, Tc).astype(np.float64)
+            k = np.asarray(self.k(T), dtype=np.float64)
+            cp = np.asarray(self.cp(T), dtype=np.float64)
+            for a in (T, k, cp):
+                a.setflags(write=False)
+            cached = (T, k, cp)
+            # the material is immutable, so its tables are computed once
+            object.__setattr__(self, "_tables", cached)
+        return cached
 
     def to_dict(self) -> dict:
         """Plain SI dict accepted by :func:`fdwall.materials.material_from_dict`."""

@@ -50,8 +50,8 @@ KERR = (-3.0 * GAMMA ** 2 + 4.0 * GAMMA - 2.0) / (12.0 * (2.0 - GAMMA))
  ST_ASSEMBLE, ST_H0, ST_RESMAX, ST_SCALE) = range(13)
 N_STATS = 13
 # control-state layout
-CS_U, CS_ON, CS_INT, CS_PREV, CS_NEXT, CS_OFF, CS_H, CS_UPREV, CS_HSW = range(9)
-N_CS = 9
+CS_U, CS_ON, CS_INT, CS_PREV, CS_NEXT, CS_OFF, CS_H, CS_UPREV, CS_HSW, CS_HJ = range(10)
+N_CS = 10
 
 
 @njit(cache=True)
@@ -393,10 +393,10 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
         T[i] = Tguess[i]
     nd = dirich_node.shape[0]
     for k in range(nd):
-        T[dirich_node[k]] = sched_eval(s_off, stab, dirich_sched[k], t, True)
+        T[dirich_node[k]] = sched_eval(s_off, stab, dirich_sched[k], t, 1.0)
     prev = 1e300
     for it in range(12):
-        assemble(T, t, True, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+        assemble(T, t, 1.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
                  s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc,
                  hr, extra)
         stats[ST_ASSEMBLE] += 1
@@ -432,7 +432,7 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
                 T[i] = 1.0
         if mx < tol:
             # values at the converged point for the caller
-            assemble(T, t, True, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
+            assemble(T, t, 1.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
                      mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,
                      Jrow, qf, hc, hr, extra)
             stats[ST_ASSEMBLE] += 1
@@ -492,7 +492,7 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hcw, hrw, exa, exb
                            + h11 * hs * Fb[i] / Cb[i])
     nd = dirich_node.shape[0]
     for kk in range(nd):
-        T_out[k, dirich_node[kk]] = sched_eval(s_off, stab, dirich_sched[kk], tk, True)
+        T_out[k, dirich_node[kk]] = sched_eval(s_off, stab, dirich_sched[kk], tk, 1.0)
     for f in range(nf):
         qf_out[k, f] = (1 - th) * qa[f] + th * qb[f]
         hc_out[k, f] = hcw[f]
@@ -510,7 +510,7 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hcw, hrw, exa, exb
 
 
 @njit(cache=True)
-def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step, node_i, node_f, chains,
+def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_step, node_i, node_f, chains,
               face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
               dirich_node, dirich_sched, dirich_face, qd_state, ev_i, ev_f, ev_out,
               T_out, qf_out, E_out, P_out, hc_out, hr_out):
@@ -519,7 +519,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
     State carried between calls: T [K], cs (control state, cs[CS_H] the next step [s]),
     acc (cumulative energies [J]: per face into the wall, then heater, then loss from the
     chamber), stats.  Outputs are written at rows k0..k1-1.  Breakpoints ``bp`` (sorted times
-    where forcing jumps or kinks) are landed on exactly.  Returns the number of outputs written.
+    where forcing jumps or kinks) are landed on exactly; after one where ``bpj`` > 0.5 (a
+    jump in a schedule) the step restarts from the one that followed the previous jump.  Returns the number of outputs written.
     ``ev_out[e, 0:2]`` gets the first upward / downward crossing time of event e.
     """
     N = node_i.shape[0]
@@ -574,6 +575,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
     hprev = 1.0
     have_prev = False
     reuse = False
+    after_jump = False
     u_last = -9.0
     acc_prev = acc.copy()
     qd_b = np.zeros(nd)
@@ -583,26 +585,28 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
     while k < k1:
         t_target = t_out[k] if land_outputs else t_out[k1 - 1]
         jump_target = False
+        target_bp = -1
         if ibp < nbp and bp[ibp] < t_target:
             t_target = bp[ibp]
             jump_target = True
+            target_bp = ibp
         # controller: sampling and switching times
         u = -1.0
         if mode == 1 or mode == 3 or mode == 4:
             if t >= cs[CS_NEXT] - 1e-9 * period:
                 sp = 0.0
                 if mode == 1:
-                    ufrac = sched_eval(s_off, stab, ctl_i[5], t, False)
+                    ufrac = sched_eval(s_off, stab, ctl_i[5], t, 0.0)
                 else:
                     y = _sensor(T, ctl_i, ctl_f)
-                    sp = sched_eval(s_off, stab, ctl_i[6], t, False)
+                    sp = sched_eval(s_off, stab, ctl_i[6], t, 0.0)
                     e = sp - y
                     de = 0.0
                     if cs[CS_PREV] > -1e299:
                         de = (e - cs[CS_PREV]) / period
                     ui = cs[CS_INT] + ctl_f[3] * e * period
                     ufrac = ctl_f[2] * e + ui + ctl_f[4] * de
-                    enabled = sched_eval(s_off, stab, ctl_i[7], t, False) > 0.0
+                    enabled = sched_eval(s_off, stab, ctl_i[7], t, 0.0) > 0.0
                     # anti-windup: integrate only while enabled and unsaturated, or when it
                     # unwinds; the integral is frozen while the heater is switched off
                     if enabled and ((ufrac < 1.0 and ufrac > 0.0) or (ufrac >= 1.0 and e < 0)
@@ -631,7 +635,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
                     u = 0.0
         elif mode == 2:
             y = _sensor(T, ctl_i, ctl_f)
-            sp = sched_eval(s_off, stab, ctl_i[6], t, False)
+            sp = sched_eval(s_off, stab, ctl_i[6], t, 0.0)
             half = 0.5 * ctl_f[1]
             if cs[CS_ON] > 0.5 and y >= sp + half - ev_tol:
                 cs[CS_ON] = 0.0
@@ -643,6 +647,9 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
         cs[CS_UPREV] = u
         if switched and h > cs[CS_HSW]:
             h = cs[CS_HSW]
+        restart = after_jump
+        if restart and h > cs[CS_HJ]:
+            h = cs[CS_HJ]
         hs = h
         if hs > max_step:
             hs = max_step
@@ -666,7 +673,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
             ex0[0] = ex1[0]
             ex0[1] = ex1[1]
         else:
-            assemble(T, t, False, u, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+            assemble(T, t, 0.0, u, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
                      s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, Jd, Jl, Ju, Jcol, Jrow,
                      q0, hcw, hrw, ex0)
             stats[ST_ASSEMBLE] += 1
@@ -750,7 +757,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
             if mode == 2:
                 y0 = _sensor(T, ctl_i, ctl_f)
                 y1 = _sensor(T1, ctl_i, ctl_f)
-                sp1 = sched_eval(s_off, stab, ctl_i[6], t1, True)
+                sp1 = sched_eval(s_off, stab, ctl_i[6], t1, 1.0)
                 half = 0.5 * ctl_f[1]
                 thr = sp1 + half if u > 0.5 else sp1 - half
                 over = (y1 - thr) if u > 0.5 else (thr - y1)
@@ -771,6 +778,9 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, tol, max_step,
             accepted = True
         if switched:
             cs[CS_HSW] = hs
+        if restart:
+            cs[CS_HJ] = hs
+        after_jump = land and target_bp >= 0 and bpj[target_bp] > 0.5
         # accept the step: ledger with the step's quadrature weights
         for f in range(nf):
             acc[f] += hs * (W0 * (q0[f] + qg[f]) + W2 * q1[f])
@@ -888,10 +898,10 @@ def steady(T, t, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mta
     wz = np.empty(nun)
     nd = dirich_node.shape[0]
     for k in range(nd):
-        T[dirich_node[k]] = sched_eval(s_off, stab, dirich_sched[k], t, False)
+        T[dirich_node[k]] = sched_eval(s_off, stab, dirich_sched[k], t, 0.0)
     mx = 0.0
     for it in range(max_iter):
-        assemble(T, t, False, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+        assemble(T, t, 0.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
                  s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc,
                  hr, extra)
         for i in range(nun):
@@ -924,7 +934,7 @@ def steady(T, t, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mta
             if T[i] < 1.0:
                 T[i] = 1.0
         if mx < tol:
-            assemble(T, t, False, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
+            assemble(T, t, 0.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
                      mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,
                      Jrow, qf, hc, hr, extra)
             return it + 1, mx

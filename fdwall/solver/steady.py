@@ -109,11 +109,11 @@ def _guess(sysm: System, t: float) -> np.ndarray:
         for col in (1, 3, 4):
             s = sysm.face_i[f, col]
             if s >= 0:
-                temps.append(K.sched_eval(sysm.s_off, sysm.stab, s, t, False))
+                temps.append(K.sched_eval(sysm.s_off, sysm.stab, s, t, 0.0))
     if sysm.has_chamber:
-        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ch_i[2], t, False))
+        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ch_i[2], t, 0.0))
     if sysm.ctl_i[0] in (2, 3, 4) and sysm.ctl_i[1] >= 0:
-        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], t, False))
+        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], t, 0.0))
     T0 = float(np.mean(temps)) if temps else 293.15
     return np.full(sysm.n_unknowns, T0)
 
@@ -141,7 +141,7 @@ def _solve(sysm, t, u, T0, tol):
     # face flow of Dirichlet faces from the node balance
     F = np.empty(sysm.n_unknowns)
     scratch = [np.empty(sysm.n_unknowns) for _ in range(7)]
-    K.assemble(T, t, False, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f,
+    K.assemble(T, t, 0.0, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f,
                sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i, sysm.ch_f,
                sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
     for k, i in enumerate(sysm.dirich_node):
@@ -163,7 +163,7 @@ def _continuation(sysm, t, u, T0, tol):
     qf, hc, hr, extra = np.empty(nf), np.empty(nf), np.empty(nf), np.zeros(2)
     scratch = [np.empty(nun) for _ in range(7)]
     for _ in range(200):
-        K.assemble(T, t, False, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
+        K.assemble(T, t, 0.0, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
                    sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab,
                    sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, Cap, H, *scratch[:5], qf, hc,
                    hr, extra)
@@ -210,19 +210,19 @@ def solve_steady(case, t=None, system=None, guess=None, tol=1e-9) -> SteadyResul
     if not heater:
         T, qf, hc, hr, ex, it = _solve(sysm, t, 0.0, T0, tol)
         return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, True, it, t, False)
-    on = (K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[7], t, False) > 0.0
-          and K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[4], t, False) > 0.0)
+    on = (K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[7], t, 0.0) > 0.0
+          and K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[4], t, 0.0) > 0.0)
     if not on:
         T, qf, hc, hr, ex, it = _solve(sysm, t, 0.0, T0, tol)
         return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, mode not in (2, 3, 4),
                             it, t, False)
     if mode in (0, 1):
-        u = -1.0 if mode == 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[5], t, False)
+        u = -1.0 if mode == 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[5], t, 0.0)
         T, qf, hc, hr, ex, it = _solve(sysm, t, u, T0, tol)
-        duty = u if u >= 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[5], t, False)
+        duty = u if u >= 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[5], t, 0.0)
         return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], duty, True, it, t)
     # controlled: find u in [0, 1] holding the sensor at the setpoint
-    sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], t, False)
+    sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], t, 0.0)
     w = sysm.ctl_f[5]
     a, b = sysm.ctl_i[2], sysm.ctl_i[3]
     cache = {}

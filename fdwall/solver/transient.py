@@ -114,7 +114,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     T = sysm.initial_vector(r.initial if initial is None else initial)
     T_start = T.copy()
     for k, i in enumerate(sysm.dirich_node):
-        T[i] = K.sched_eval(sysm.s_off, sysm.stab, sysm.dirich_sched[k], 0.0, False)
+        T[i] = K.sched_eval(sysm.s_off, sysm.stab, sysm.dirich_sched[k], 0.0, 0.0)
     n_out = t_out.size
     T_out = np.full((n_out, nun), np.nan)
     qf_out = np.full((n_out, nf), np.nan)
@@ -140,7 +140,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
             cs[i] = prev[i]
         if sysm.ctl_i[0] == 2 and sysm.ctl_i[1] >= 0:
             u0 = float(cs[K.CS_ON])
-    K.assemble(T, 0.0, False, u0, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
+    K.assemble(T, 0.0, 0.0, u0, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
                sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
                sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
     H_after = scratch[1].copy()
@@ -159,6 +159,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     cs[K.CS_ON] = 1.0 if u0 > 0.5 else 0.0
     cs[K.CS_UPREV] = -2.0
     cs[K.CS_HSW] = cs[K.CS_H]
+    cs[K.CS_HJ] = cs[K.CS_H]
     acc = np.zeros(nf + 3)
     for f, dh in jump.items():
         acc[f] += dh
@@ -169,7 +170,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     ev_i, ev_f = event_rows(sysm, case)
     ev_out = np.full((len(ev_i), 2), np.nan)
     max_step = r.max_step if r.max_step is not None else np.inf
-    args = (t_out, None, None, bool(r.exact_outputs), sysm.breakpoints, r.tolerance, max_step, sysm.node_i,
+    args = (t_out, None, None, bool(r.exact_outputs), sysm.breakpoints, sysm.breakpoint_jumps, r.tolerance, max_step, sysm.node_i,
             sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f, sysm.hpar, sysm.m_off,
             sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f,
             sysm.dirich_node, sysm.dirich_sched, sysm.dirich_face, qd_state, ev_i, ev_f, ev_out, T_out,
@@ -236,7 +237,7 @@ def _initial_u(sysm, T):
     if mode == 2:
         w = sysm.ctl_f[5]
         y = w * T[sysm.ctl_i[2]] + (1 - w) * T[sysm.ctl_i[3]]
-        sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], 0.0, False)
+        sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], 0.0, 0.0)
         return 1.0 if y < sp else 0.0
     return 0.0
 
