@@ -16,6 +16,8 @@ HDF5 layout (one file per run; every dataset carries a ``units`` attribute)
 /faces/h_convective    film coefficient (n_time, n_faces) [W/m2/K]
 /faces/h_radiative     linearised radiative coefficient (n_time, n_faces) [W/m2/K]
 /faces/temperature     face temperatures (n_time, n_faces) [K]
+/interfaces/wall_<j>   interface temperatures of solved wall j (n_time, n_interfaces) [K];
+                       attrs wall, between (the two layers of each interface)
 /energy/stored         total stored energy relative to the start (n_time) [J]
 /energy/stored_layers  per layer (n_time, n_layers) [J]; attrs layer_names
 /energy/stored_chamber chamber contents [J]
@@ -364,6 +366,12 @@ class Result:
             ds(wg, "layer_last", [b for a, b in m.layer_nodes], "1")
             ds(wg, "interface_nodes", np.array(m.interface_nodes, dtype=int), "1")
             wg.attrs["layers"] = json.dumps([l.label for l in w.layers])
+        ig = h.create_group("interfaces")
+        for j, w in enumerate(sysm.walls):
+            d = ds(ig, f"wall_{j}", self.interface_T(j).reshape(len(self.times), -1), "K")
+            d.attrs["wall"] = w.name
+            d.attrs["between"] = json.dumps([f"{a.label} | {b.label}"
+                                             for a, b in zip(w.layers[:-1], w.layers[1:])])
         ds(h, "time", self.times, "s")
         ds(h, "temperature", self.T, "K")
         fg = h.create_group("faces")

@@ -64,3 +64,20 @@ def test_controller_state_carries_over_between_runs():
     e = second.heater_energy
     mean_power = (e[-1] - e[0]) / second.times[-1]
     assert mean_power == pytest.approx((sp - T_AMB) / R, rel=0.02)
+
+
+def test_impossible_case_stops_with_partial_result():
+    """Drawing 1 MW/m2 out of an adiabatic 50 mm slab (rho c = 1e6 J/m3/K) at 300 K empties
+    its heat content above 0 K in rho c L T / q = 15 s (energy conservation): the solver must
+    stop before then with a clear message and keep what it computed, marked incomplete."""
+    from fdwall import ConvergenceError
+    m = Material(name="x", k=Constant(1.0), cp=Constant(1000.0), rho=1000.0)
+    c = Case(run=RunSettings(duration=3600.0, initial=300.0),
+             wall=Wall(layers=(Layer(m, 0.05),)), inner=Face(flux=-1e6), outer=Face())
+    with pytest.raises(ConvergenceError) as info:
+        run(c)
+    res = info.value.result
+    assert res is not None and not res.complete
+    assert "could not converge at t =" in str(info.value)
+    assert res.stats["reached_s"] < 15.0
+    assert res.times.size >= 1 and res.T[0, 0] == 300.0
