@@ -215,8 +215,6 @@ class Face:
             vals = e.values if isinstance(e, Schedule) else (float(e),)
             if min(vals) < 0 or max(vals) > 1:
                 raise ModelError(f"emissivity must lie between 0 and 1, got {vals}")
-        if self.convection is not None and self.fluid is None and not getattr(self, "_chamber", False):
-            pass  # checked where the face is used (a chamber face takes the chamber as its fluid)
 
     @classmethod
     def adiabatic(cls) -> "Face":
