@@ -20,6 +20,18 @@ __all__ = ["System", "build_system"]
 MODE_CODES = {"fixed": 0, "duty": 1, "thermostat": 2, "pid": 3}
 
 
+def _integrated(T, k, c):
+    """Rows T [K], k [W/m/K], K = int k dT [W/m], c [J/m3/K], H = int c dT [J/m3]."""
+    if T.size < 2:
+        T, k, c = np.array([1.0, 6000.0]), np.repeat(k, 2), np.repeat(c, 2)
+    dT = np.diff(T)
+    K = np.zeros_like(T)
+    H = np.zeros_like(T)
+    np.cumsum(0.5 * (k[1:] + k[:-1]) * dT, out=K[1:])
+    np.cumsum(0.5 * (c[1:] + c[:-1]) * dT, out=H[1:])
+    return np.vstack([T, k, K, c, H])
+
+
 class _Tables:
     """Collects material tables and schedules into flat arrays, de-duplicated."""
 
@@ -31,9 +43,15 @@ class _Tables:
         key = id(m)
         if key in self.mat_keys:
             return self.mat_keys[key]
-        T, k, cp = m.tables()
-        T = np.asarray(T, float)
-        self._add_mat(key, T, np.asarray(k, float), np.asarray(cp, float) * float(m.rho))
+        tab = m.__dict__.get("_kernel_table")
+        if tab is None:
+            T, k, cp = m.tables()
+            tab = _integrated(np.asarray(T, float), np.asarray(k, float),
+                              np.asarray(cp, float) * float(m.rho))
+            # materials are immutable: the integrated table is computed once per material
+            object.__setattr__(m, "_kernel_table", tab)
+        self.mats.append(tab)
+        self.mat_keys[key] = len(self.mats) - 1
         return self.mat_keys[key]
 
     def capacity(self, cap) -> int:
@@ -48,20 +66,19 @@ class _Tables:
         return len(self.mats) - 1
 
     def _add_mat(self, key, T, k, c):
-        if T.size < 2:
-            T, k, c = np.array([1.0, 6000.0]), np.repeat(k, 2), np.repeat(c, 2)
-        K = np.concatenate([[0.0], np.cumsum(0.5 * (k[1:] + k[:-1]) * np.diff(T))])
-        H = np.concatenate([[0.0], np.cumsum(0.5 * (c[1:] + c[:-1]) * np.diff(T))])
-        self.mats.append(np.vstack([T, k, K, c, H]))
+        self.mats.append(_integrated(T, k, c))
         self.mat_keys[key] = len(self.mats) - 1
 
     def schedule(self, s) -> int:
         if s is None:
             return -1
-        s = Schedule.coerce(s)
-        key = (s.times, s.values)
+        if isinstance(s, Schedule):
+            key = (s.times, s.values)
+        else:
+            v = float(s)
+            key = ((0.0,), (v,))
         if key not in self.sched_keys:
-            self.scheds.append(np.vstack([np.asarray(s.times), np.asarray(s.values)]))
+            self.scheds.append(np.array(key, dtype=float))
             self.sched_keys[key] = len(self.scheds) - 1
         return self.sched_keys[key]
 

@@ -299,8 +299,6 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
             F[nc_idx] -= qx
             Jrow[i] -= dqc_s + dqr_s
             Jd[nc_idx] -= dq_o
-        elif face_i[f, 3] < 0:
-            pass
     # chamber capacity and losses
     extra[0] = 0.0
     extra[1] = 0.0
@@ -378,6 +376,29 @@ def solve_arrow(Md, Ml, Mu, Mcol, Mrow, chains, N, has_ch, rhs, x, wc, wy, wz):
 
 
 @njit(cache=True)
+def _apply_correction(T, dx, cap):
+    """Add the Newton correction ``dx`` [K] to ``T``, scaled down so no node moves more than
+    ``cap`` [K] and no temperature falls below 1 K.  Returns the largest |dx| [K], or -1 when
+    the correction is not finite."""
+    n = T.shape[0]
+    mx = 0.0
+    for i in range(n):
+        a = abs(dx[i])
+        if not (a < 1e200):
+            return -1.0
+        if a > mx:
+            mx = a
+    lim = 1.0
+    if mx > cap:
+        lim = cap / mx
+    for i in range(n):
+        T[i] += lim * dx[i]
+        if T[i] < 1.0:
+            T[i] = 1.0
+    return mx
+
+
+@njit(cache=True)
 def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
                   node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab,
                   ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc, hr, extra,
@@ -416,20 +437,9 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
             Jcol[i] = 0.0
         solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
         stats[ST_NEWTON] += 1
-        mx = 0.0
-        for i in range(nun):
-            a = abs(dx[i])
-            if not (a < 1e200):
-                return False
-            if a > mx:
-                mx = a
-        lim = 1.0
-        if mx > 200.0:
-            lim = 200.0 / mx
-        for i in range(nun):
-            T[i] += lim * dx[i]
-            if T[i] < 1.0:
-                T[i] = 1.0
+        mx = _apply_correction(T, dx, 200.0)
+        if mx < 0.0:
+            return False
         if mx < tol:
             # values at the converged point for the caller
             assemble(T, t, 1.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
@@ -919,20 +929,9 @@ def steady(T, t, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mta
             Ju[i] = 0.0
             Jcol[i] = 0.0
         solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
-        mx = 0.0
-        for i in range(nun):
-            a = abs(dx[i])
-            if not (a < 1e200):
-                return -1, 1e300
-            if a > mx:
-                mx = a
-        lim = 1.0
-        if mx > 100.0:
-            lim = 100.0 / mx
-        for i in range(nun):
-            T[i] += lim * dx[i]
-            if T[i] < 1.0:
-                T[i] = 1.0
+        mx = _apply_correction(T, dx, 100.0)
+        if mx < 0.0:
+            return -1, 1e300
         if mx < tol:
             assemble(T, t, 0.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
                      mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,

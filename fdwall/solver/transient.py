@@ -144,10 +144,14 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
                sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
     H_after = scratch[1].copy()
-    Hh, Hc = sysm.enthalpy(T_start)
-    H_initial = float(Hh.sum() + Hc.sum())
-    jump = {int(f): float(H_after[i] - Hh[0, i].sum())
-            for i, f in zip(sysm.dirich_node, sysm.dirich_face)}
+    if len(sysm.dirich_node):
+        Hh, Hc = sysm.enthalpy(T_start)
+        H_initial = float(Hh.sum() + Hc.sum())
+        jump = {int(f): float(H_after[i] - Hh[0, i].sum())
+                for i, f in zip(sysm.dirich_node, sysm.dirich_face)}
+    else:
+        H_initial = float(H_after.sum())
+        jump = {}
     T_out[0] = T_start
     qf_out[0] = qf
     hc_out[0], hr_out[0] = hc, hr
@@ -178,7 +182,10 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     k = 1
     bar = None
     t0 = _time.perf_counter()
-    chunk = 1
+    import sys
+    # a bar is shown only on a terminal (or when asked); otherwise one kernel call does all
+    may_show = bool(progress) or (progress is None and sys.stderr.isatty())
+    chunk = 1 if may_show else n_out
     failed = False
     try:
         while k < n_out:
