@@ -25,6 +25,7 @@ HDF5 layout (one file per run; every dataset carries a ``units`` attribute)
 /energy/loss_chamber   cumulative loss from the chamber by leakage/extra UA [J]
 /energy/residual       heat in - heat out - change in stored energy [J]
 /heater/power          heater power at output times [W]
+/heater/duty           mean heater duty over each output interval [-] (first entry 0)
 /events/names, /events/up, /events/down   first upward/downward crossing times [s] (NaN: none)
 /solver                attrs: accepted, rejected, newton_failures, newton_iterations, ...
 /steady/temperature    steady-state temperatures of all unknowns [K] (when solved)
@@ -167,6 +168,21 @@ class Result:
         """Temperature profile nearest to time ``t`` [s]: (depth [m], T [K], actual time [s])."""
         k = int(np.argmin(np.abs(self.times - t)))
         return self.x(wall), self.wall_T(wall)[k], float(self.times[k])
+
+    @property
+    def duty(self) -> np.ndarray:
+        """Mean heater duty over each output interval (n_time; first entry 0) [-]: heater
+        energy in the interval over what the element would give fully on (rated-power
+        schedule times the voltage ratio squared).  Zeros without a heater."""
+        out = np.zeros(self.times.size)
+        hz = getattr(self.case, "heater", None)
+        if hz is None:
+            return out
+        for k in range(1, self.times.size):
+            full = hz.power.integral(self.times[k - 1], self.times[k]) * hz.voltage_ratio ** 2
+            if full > 0:
+                out[k] = (self.heater_energy[k] - self.heater_energy[k - 1]) / full
+        return out
 
     # ----------------------------------------------------------------- energy
     def _enthalpy(self):
@@ -392,6 +408,7 @@ class Result:
         ds(eg, "residual", self.residual, "J")
         hg = h.create_group("heater")
         ds(hg, "power", self.heater_power, "W")
+        ds(hg, "duty", self.duty, "1")
         evg = h.create_group("events")
         names = list(self.events)
         evg.create_dataset("names", data=np.array(names, dtype=object), dtype=h5py.string_dtype())

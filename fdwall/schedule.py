@@ -8,6 +8,7 @@ versus surface temperature), where "time" is read as temperature.
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -40,21 +41,25 @@ class Schedule:
     values: tuple = field()
 
     def __post_init__(self):
-        t = np.atleast_1d(np.asarray(self.times, dtype=float))
-        v = np.atleast_1d(np.asarray(self.values, dtype=float))
-        if t.ndim != 1 or v.ndim != 1 or t.size != v.size or t.size == 0:
+        try:
+            t = [float(x) for x in np.atleast_1d(np.asarray(self.times, dtype=float)).ravel()]
+            v = [float(x) for x in np.atleast_1d(np.asarray(self.values, dtype=float)).ravel()]
+            ndim_ok = np.ndim(self.times) <= 1 and np.ndim(self.values) <= 1
+        except (TypeError, ValueError):
+            raise ValueError("schedule times and values must be numbers") from None
+        if not ndim_ok or len(t) != len(v) or not t:
             raise ValueError("a schedule needs equally many times and values (at least one knot)")
-        if not (np.all(np.isfinite(t)) and np.all(np.isfinite(v))):
+        if not all(math.isfinite(x) for x in t + v):
             raise ValueError("schedule times and values must be finite numbers")
-        if np.any(np.diff(t) < 0):
-            i = int(np.argmax(np.diff(t) < 0))
-            raise ValueError(
-                f"schedule times go backwards at knot {i + 2} ({t[i + 1]:g} after {t[i]:g}); "
-                "times must be non-decreasing (repeat a time to make a step)")
-        if t.size >= 3 and np.any((t[2:] == t[1:-1]) & (t[1:-1] == t[:-2])):
-            raise ValueError("a schedule may repeat a time at most twice (one step per instant)")
-        object.__setattr__(self, "times", tuple(float(x) for x in t))
-        object.__setattr__(self, "values", tuple(float(x) for x in v))
+        for i in range(len(t) - 1):
+            if t[i + 1] < t[i]:
+                raise ValueError(
+                    f"schedule times go backwards at knot {i + 2} ({t[i + 1]:g} after {t[i]:g}); "
+                    "times must be non-decreasing (repeat a time to make a step)")
+            if i + 2 < len(t) and t[i] == t[i + 1] == t[i + 2]:
+                raise ValueError("a schedule may repeat a time at most twice (one step per instant)")
+        object.__setattr__(self, "times", tuple(t))
+        object.__setattr__(self, "values", tuple(v))
 
     @classmethod
     def constant(cls, value: float) -> "Schedule":
@@ -96,6 +101,16 @@ class Schedule:
     def scaled(self, factor: float) -> "Schedule":
         """The same schedule with every value multiplied by ``factor`` [-]."""
         return Schedule(self.times, tuple(v * factor for v in self.values))
+
+    def integral(self, a: float, b: float) -> float:
+        """Exact integral of the schedule over [a, b] [value x s] (0 when b <= a)."""
+        if b <= a:
+            return 0.0
+        pts = sorted({float(a), float(b)} | {t for t in self.times if a < t < b})
+        total = 0.0
+        for p, q in zip(pts[:-1], pts[1:]):
+            total += 0.5 * (float(self(p, "right")) + float(self(q, "left"))) * (q - p)
+        return total
 
     def breakpoints(self):
         """Knot times where the slope or the value may jump [s]."""

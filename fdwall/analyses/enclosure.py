@@ -119,13 +119,7 @@ def _interp_rows(times, arr, t) -> np.ndarray:
 
 def _integrate_schedule(s, a: float, b: float) -> float:
     """Exact integral of a piecewise-linear :class:`Schedule` over [a, b] [value x s]."""
-    if b <= a:
-        return 0.0
-    pts = sorted({a, b} | {t for t in s.times if a < t < b})
-    total = 0.0
-    for p, q in zip(pts[:-1], pts[1:]):
-        total += 0.5 * (float(s(p, "right")) + float(s(q, "left"))) * (q - p)
-    return total
+    return s.integral(float(a), float(b))
 
 
 def _off_instant(s, duration: float):

@@ -309,8 +309,10 @@ def format_summary(result) -> str:
         L.append(_wrap(TOUCH_CAUTION, "  "))
     if summ.get("box_edge_corner_area_factor"):
         L.append("")
-        L.append(f"  box edges and corners: slab wall areas multiplied by "
-                 f"{summ['box_edge_corner_area_factor']:.3f} [-]")
+        fac = summ['box_edge_corner_area_factor']
+        L.append(_wrap(f"box edges and corners (conduction shape factors): the slab walls' "
+                       f"areas are multiplied by {fac:.3f} [-], i.e. edges and corners add "
+                       f"{100 * (fac - 1):.1f} % to the heat the walls conduct and store"))
     if case.is_enclosure:
         L += _enclosure_lines(result)
     warns = list(summ.get("warnings") or [])
