@@ -81,3 +81,14 @@ def test_impossible_case_stops_with_partial_result():
     assert "could not converge at t =" in str(info.value)
     assert res.stats["reached_s"] < 15.0
     assert res.times.size >= 1 and res.T[0, 0] == 300.0
+
+
+def test_tiny_bore_warning():
+    """A sphere with a bore of 1e-5 of its radius triggers the accuracy warning; a realistic
+    vessel (bore 80 % of the outer radius) does not (common practice, no source)."""
+    from fdwall.case import case_warnings
+    m = Material(name="x", k=Constant(1.0), cp=Constant(1000.0), rho=1000.0)
+    tiny = Wall(layers=(Layer(m, 0.1),), geometry="sphere", inner_radius=1e-6)
+    vessel = Wall(layers=(Layer(m, 0.1),), geometry="sphere", inner_radius=0.4)
+    assert any("inner radius" in w for w in case_warnings(Case(run=RunSettings(duration=1.0), wall=tiny)))
+    assert not case_warnings(Case(run=RunSettings(duration=1.0), wall=vessel))
