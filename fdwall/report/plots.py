@@ -220,13 +220,13 @@ def plot_profiles(result, path, times=None) -> str:
         chars_across = 80 if ncol == 2 else 130   # label characters that fit across the axes
         for i, layer in enumerate(w.layers):
             width = edges[i + 1] - edges[i]
-            label = f"{i + 1}: {layer.label}"
+            label = f"{i}: {layer.label}"
             narrow = (width / total) * chars_across < len(label) + 3
             ax.text(0.5 * (edges[i] + edges[i + 1]), ytop,
-                    f"{i + 1}" if narrow else label,
+                    f"{i}" if narrow else label,
                     ha="center", va="top", fontsize=8, color="#333333", zorder=6, clip_on=True)
             if narrow:
-                narrow_names.append(f"{i + 1}: {layer.label} ({layer.thickness * 1e3:g} mm)")
+                narrow_names.append(f"{i}: {layer.label} ({layer.thickness * 1e3:g} mm)")
         geo = "" if w.geometry == "slab" else f" ({w.geometry})"
         ttl = f"wall '{w.name}'{geo}"
         if narrow_names:
