@@ -348,18 +348,23 @@ def solve_arrow(Md, Ml, Mu, Mcol, Mrow, chains, N, has_ch, rhs, x, wc, wy, wz):
     for j in range(nch):
         a = chains[j, 0]
         b = chains[j, 1]
-        # forward sweep
-        beta = Md[a]
-        wy[a] = rhs[a] / beta
-        wz[a] = Mcol[a] / beta
+        # forward sweep (one division per row); the chamber column only when there is one
+        ib = 1.0 / Md[a]
+        wy[a] = rhs[a] * ib
+        if has_ch:
+            wz[a] = Mcol[a] * ib
         for i in range(a + 1, b + 1):
-            wc[i - 1] = Mu[i - 1] / beta
-            beta = Md[i] - Ml[i] * wc[i - 1]
-            wy[i] = (rhs[i] - Ml[i] * wy[i - 1]) / beta
-            wz[i] = (Mcol[i] - Ml[i] * wz[i - 1]) / beta
+            c = Mu[i - 1] * ib
+            wc[i - 1] = c
+            l = Ml[i]
+            ib = 1.0 / (Md[i] - l * c)
+            wy[i] = (rhs[i] - l * wy[i - 1]) * ib
+            if has_ch:
+                wz[i] = (Mcol[i] - l * wz[i - 1]) * ib
         for i in range(b - 1, a - 1, -1):
             wy[i] -= wc[i] * wy[i + 1]
-            wz[i] -= wc[i] * wz[i + 1]
+            if has_ch:
+                wz[i] -= wc[i] * wz[i + 1]
     if has_ch:
         s = Md[N]
         r = rhs[N]
