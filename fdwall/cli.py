@@ -14,7 +14,6 @@ import json
 import math
 import os
 import sys
-import tempfile
 import textwrap
 from pathlib import Path
 
@@ -188,29 +187,11 @@ def _dumps(obj) -> str:
     return json.dumps(_clean(obj), indent=2, allow_nan=False)
 
 
-def _public_mode(path) -> None:
-    """Give a finished file the usual permissions (0666 less the umask); temporary files are
-    created private (0600)."""
-    mask = os.umask(0)
-    os.umask(mask)
-    try:
-        os.chmod(path, 0o666 & ~mask)
-    except OSError:  # pragma: no cover - e.g. a file system without permissions
-        pass
-
-
 def _write_text_atomic(path: Path, text: str) -> None:
-    path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=".fdwall-", suffix=".part", dir=str(path.parent))
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
+    from .atomic import atomic_path
+    with atomic_path(path) as tmp:
+        with open(tmp, "w", encoding="utf-8") as fh:
             fh.write(text)
-        _public_mode(tmp)
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.remove(tmp)
-        raise
 
 
 # --------------------------------------------------------------------------- commands
@@ -256,13 +237,10 @@ def cmd_run(args) -> int:
             _warn(f"enclosure analysis not available: {exc}")
     try:
         result.write_hdf5(h5)
-        _public_mode(h5)
         plots = []
         if not args.no_plots:
             from .report.plots import write_plots
             plots = write_plots(result, outdir, stem)
-            for p in plots:
-                _public_mode(p)
         files += [str(p) for p in plots]
         summary["files"] = files
         _write_text_atomic(js, _dumps(summary) + "\n")

@@ -34,7 +34,6 @@ from __future__ import annotations
 
 import json
 import os
-import tempfile
 from dataclasses import dataclass, field, asdict
 from datetime import datetime, timezone
 
@@ -330,22 +329,11 @@ class Result:
     def write_hdf5(self, path) -> str:
         """Write the run to ``path`` atomically (a temporary file renamed when complete)."""
         import h5py
+        from .atomic import atomic_path
         path = os.fspath(path)
-        d = os.path.dirname(os.path.abspath(path))
-        os.makedirs(d, exist_ok=True)
-        fd, tmp = tempfile.mkstemp(prefix=".fdwall-", suffix=".h5.part", dir=d)
-        os.close(fd)
-        try:
+        with atomic_path(path, ".h5.part") as tmp:
             with h5py.File(tmp, "w") as h:
                 self._write(h)
-            mask = os.umask(0)
-            os.umask(mask)
-            os.chmod(tmp, 0o666 & ~mask)
-            os.replace(tmp, path)
-        except BaseException:
-            if os.path.exists(tmp):
-                os.remove(tmp)
-            raise
         return path
 
     def _write(self, h):

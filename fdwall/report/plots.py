@@ -9,7 +9,6 @@ energy in [MJ].
 from __future__ import annotations
 
 import os
-import tempfile
 
 import numpy as np
 
@@ -32,18 +31,10 @@ def _figure(w=9.0, h=5.5, rows=1, cols=1, sharex=False):
 
 def _save(fig, path) -> str:
     """Write ``fig`` as PNG to ``path`` atomically; return the path."""
+    from ..atomic import atomic_path
     path = os.fspath(path)
-    d = os.path.dirname(os.path.abspath(path))
-    os.makedirs(d, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=".fdwall-", suffix=".png.part", dir=d)
-    os.close(fd)
-    try:
+    with atomic_path(path, ".png.part") as tmp:
         fig.savefig(tmp, format="png")
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.remove(tmp)
-        raise
     return path
 
 
