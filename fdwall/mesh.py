@@ -59,9 +59,14 @@ class WallMesh:
         return int(self.x.size)
 
 
-def _k_mid(material) -> float:
-    T, k, cp = material.tables()
-    return float(np.interp(400.0, T, k))
+def _props_500(m):
+    """Conductivity [W/m/K] and volumetric heat capacity [J/m3/K] at 500 K, cached per material."""
+    v = m.__dict__.get("_props_500")
+    if v is None:
+        T, k, cp = m.tables()
+        v = (float(np.interp(500.0, T, k)), float(np.interp(500.0, T, cp)) * m.rho)
+        object.__setattr__(m, "_props_500", v)   # materials are immutable
+    return v
 
 
 def default_cells(wall) -> list:
@@ -72,12 +77,9 @@ def default_cells(wall) -> list:
     """
     res, tau = [], []
     for l in wall.layers:
-        m = l.material
-        T, k, cp = m.tables()
-        k4 = float(np.interp(500.0, T, k))
-        c4 = float(np.interp(500.0, T, cp)) * m.rho
-        res.append(l.thickness / k4)
-        tau.append(l.thickness ** 2 * c4 / k4)
+        k5, c5 = _props_500(l.material)
+        res.append(l.thickness / k5)
+        tau.append(l.thickness ** 2 * c5 / k5)
     res, tau = np.array(res), np.array(tau)
     share = np.sqrt(np.maximum(res / res.max(), tau / tau.max()))
     cells = np.clip(np.round(4 + 16 * share), 2, 24).astype(int)
@@ -111,48 +113,59 @@ def mesh_wall(wall) -> WallMesh:
                  for l, c in zip(wall.layers, cells)]
     edges = wall.radii()
     geo, A, L = wall.geometry, wall.area, wall.length
-    # node count: layer 0 has n0+1 nodes; each later layer adds n_j nodes, or n_j+1 when a
-    # contact resistance doubles its interface node
-    n_tot = cells[0] + 1 + sum(c + (1 if wall.contact[j - 1] > 0.0 else 0)
-                               for j, c in enumerate(cells) if j > 0)
+    nl = len(cells)
+    n_c = np.asarray(cells, dtype=np.int64)
+    contact = np.asarray((0.0,) + tuple(wall.contact))          # contact before layer j
+    doubled = (contact > 0.0).astype(np.int64)
+    # first node of each layer: layers share their interface node unless a contact resistance
+    # doubles it (two nodes at the same radius joined by the contact conductance)
+    base = np.zeros(nl, dtype=np.int64)
+    if nl > 1:
+        base[1:] = np.cumsum(n_c[:-1] + doubled[1:])
+    n_tot = int(base[-1] + n_c[-1] + 1)
+    # every cell at once: its layer, its index in the layer, its two end nodes
+    lay = np.repeat(np.arange(nl), n_c)
+    first_cell = np.concatenate([[0], np.cumsum(n_c)[:-1]])
+    loc = np.arange(lay.size) - first_cell[lay]
+    nn = n_c[lay].astype(float)
+    beta = np.where(n_c >= 3, GRADING_BETA, 0.0)[lay]
+    e0, e1 = edges[:-1][lay], edges[1:][lay]
+
+    def place(s):
+        x = e0 + (e1 - e0) * (s - beta * np.sin(2 * np.pi * s) / (2 * np.pi))
+        x = np.where(s <= 0.0, e0, x)
+        return np.where(s >= 1.0, e1, x)
+
+    r1 = place(loc / nn)
+    r2 = place((loc + 1) / nn)
+    rm = 0.5 * (r1 + r2)
+    left = base[lay] + loc
+    right = left + 1
     x = np.empty(n_tot)
+    x[left] = r1
+    x[right] = r2
     lay_l = np.full(n_tot, -1, dtype=np.int64)
     lay_r = np.full(n_tot, -1, dtype=np.int64)
     vl = np.zeros(n_tot)
     vr = np.zeros(n_tot)
     link_layer = np.full(n_tot, -2, dtype=np.int64)
     link_g = np.zeros(n_tot)
-    interface_nodes, layer_nodes = [], []
-    pos = 0   # index of the first node of the current layer
-    for j, layer in enumerate(wall.layers):
-        n = cells[j]
-        if j > 0:
-            if wall.contact[j - 1] > 0.0:
-                # contact pair: a new node at the same radius joined by the contact conductance
-                link_layer[pos] = -1
-                link_g[pos] = wall.area_at(edges[j]) / wall.contact[j - 1]
-                interface_nodes.append(pos)
-                pos += 1
-            else:
-                interface_nodes.append(pos)
-        s = np.linspace(0.0, 1.0, n + 1)
-        beta = GRADING_BETA if n >= 3 else 0.0
-        xi = edges[j] + (edges[j + 1] - edges[j]) * (s - beta * np.sin(2 * np.pi * s) / (2 * np.pi))
-        xi[0], xi[-1] = edges[j], edges[j + 1]
-        sl = slice(pos, pos + n + 1)
-        x[sl] = xi
-        r1, r2 = xi[:-1], xi[1:]
-        rm = 0.5 * (r1 + r2)
-        a = slice(pos, pos + n)          # left node of each cell
-        b = slice(pos + 1, pos + n + 1)  # right node of each cell
-        lay_r[a] = j
-        vr[a] = _volume(geo, r1, rm, A, L)
-        lay_l[b] = j
-        vl[b] = _volume(geo, rm, r2, A, L)
-        link_layer[a] = j
-        link_g[a] = _geometry(geo, r1, r2, A, L)
-        layer_nodes.append((pos, pos + n))
-        pos += n
+    lay_r[left] = lay
+    vr[left] = _volume(geo, r1, rm, A, L)
+    lay_l[right] = lay
+    vl[right] = _volume(geo, rm, r2, A, L)
+    link_layer[left] = lay
+    link_g[left] = _geometry(geo, r1, r2, A, L)
+    interface_nodes = []
+    for j in range(1, nl):
+        if doubled[j]:
+            i = int(base[j] - 1)
+            link_layer[i] = -1
+            link_g[i] = wall.area_at(edges[j]) / contact[j]
+            interface_nodes.append(i)
+        else:
+            interface_nodes.append(int(base[j]))
+    layer_nodes = [(int(base[j]), int(base[j] + n_c[j])) for j in range(nl)]
     return WallMesh(
         x=x, layer_of_node_left=lay_l, layer_of_node_right=lay_r, vol_left=vl, vol_right=vr,
         link_layer=link_layer, link_g=link_g, interface_nodes=interface_nodes,

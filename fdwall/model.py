@@ -143,8 +143,13 @@ class Wall:
 
     def radii(self):
         """Radius (or depth for a slab) of each face and interface, inner first [m]."""
-        x0 = 0.0 if self.geometry == "slab" else float(self.inner_radius)
-        return x0 + np.concatenate([[0.0], np.cumsum([l.thickness for l in self.layers])])
+        r = self.__dict__.get("_radii")
+        if r is None:
+            x0 = 0.0 if self.geometry == "slab" else float(self.inner_radius)
+            r = x0 + np.concatenate([[0.0], np.cumsum([l.thickness for l in self.layers])])
+            r.setflags(write=False)
+            object.__setattr__(self, "_radii", r)   # the wall is immutable
+        return r
 
     def area_at(self, x) -> float:
         """Heat-flow area at radius/depth ``x`` [m2]."""

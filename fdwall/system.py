@@ -426,6 +426,9 @@ def build_system(case: Case) -> System:
     if ctl.sensor == "chamber" and case.chamber is not None:
         ctl_i[2] = ctl_i[3] = N
         ctl_f[5] = 1.0
+    elif hz is None or ctl.mode not in ("thermostat", "pid"):
+        ctl_i[2] = ctl_i[3] = 0          # no sensor is read
+        ctl_f[5] = 1.0
     else:
         j = _chain_index(specs, ctl.sensor_wall, "sensor")
         a, b, wgt = locate_depth(walls[j], meshes[j], ctl.sensor_depth)
