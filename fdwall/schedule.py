@@ -41,12 +41,16 @@ class Schedule:
     values: tuple = field()
 
     def __post_init__(self):
-        try:
-            t = [float(x) for x in np.atleast_1d(np.asarray(self.times, dtype=float)).ravel()]
-            v = [float(x) for x in np.atleast_1d(np.asarray(self.values, dtype=float)).ravel()]
-            ndim_ok = np.ndim(self.times) <= 1 and np.ndim(self.values) <= 1
-        except (TypeError, ValueError):
-            raise ValueError("schedule times and values must be numbers") from None
+        t, v = self.times, self.values
+        if isinstance(t, (int, float)) and isinstance(v, (int, float)):
+            t, v, ndim_ok = [float(t)], [float(v)], True       # one knot: a constant
+        else:
+            try:
+                ndim_ok = np.ndim(t) <= 1 and np.ndim(v) <= 1
+                t = [float(x) for x in np.atleast_1d(np.asarray(t, dtype=float)).ravel()]
+                v = [float(x) for x in np.atleast_1d(np.asarray(v, dtype=float)).ravel()]
+            except (TypeError, ValueError):
+                raise ValueError("schedule times and values must be numbers") from None
         if not ndim_ok or len(t) != len(v) or not t:
             raise ValueError("a schedule needs equally many times and values (at least one knot)")
         if not all(math.isfinite(x) for x in t + v):
@@ -64,7 +68,7 @@ class Schedule:
     @classmethod
     def constant(cls, value: float) -> "Schedule":
         """A schedule holding ``value`` at all times (SI unit of the quantity)."""
-        return cls((0.0,), (float(value),))
+        return cls(0.0, float(value))
 
     @classmethod
     def coerce(cls, x) -> "Schedule":
