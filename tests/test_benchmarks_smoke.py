@@ -3,7 +3,7 @@ a coarse setting, solved by fdwall and by every available peer, each checked aga
 converged reference within the suite's accuracy criterion (inner face 1 K, outer skin 0.1 K
 at every output time).  Correctness only: no timing is asserted.
 
-The reference is external to fdwall: scipy's BDF integrator (rtol 1e-8) on a fine uniform
+Source: the reference is external to fdwall: scipy's BDF integrator (rtol 1e-8) on a fine uniform
 mesh assembled by the benchmark's own finite-volume code; it is itself checked against a
 second, independent fine solution (fdwall on a fine graded mesh).
 """

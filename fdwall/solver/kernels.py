@@ -381,6 +381,26 @@ def solve_arrow(Md, Ml, Mu, Mcol, Mrow, chains, N, has_ch, rhs, x, wc, wy, wz):
 
 
 @njit(cache=True)
+def _newton_matrix(Cap, cw, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R):
+    """Turn the Jacobian dF/dT held in Jd, Jl, Ju, Jcol, Jrow into the Newton matrix
+    ``cw*diag(Cap) - dh*J`` in place (cw = 1 for a time stage, 0 with dh = 1 for the steady
+    state); fixed-temperature rows become identity rows with a zero right-hand side in R."""
+    for i in range(Jd.shape[0]):
+        Jd[i] = cw * Cap[i] - dh * Jd[i]
+        Jl[i] = -dh * Jl[i]
+        Ju[i] = -dh * Ju[i]
+        Jcol[i] = -dh * Jcol[i]
+        Jrow[i] = -dh * Jrow[i]
+    for k in range(dirich_node.shape[0]):
+        i = dirich_node[k]
+        R[i] = 0.0
+        Jd[i] = 1.0
+        Jl[i] = 0.0
+        Ju[i] = 0.0
+        Jcol[i] = 0.0
+
+
+@njit(cache=True)
 def _apply_correction(T, dx, cap):
     """Add the Newton correction ``dx`` [K] to ``T``, scaled down so no node moves more than
     ``cap`` [K] and no temperature falls below 1 K.  Returns the largest |dx| [K], or -1 when
@@ -428,18 +448,7 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
         stats[ST_ASSEMBLE] += 1
         for i in range(nun):
             R[i] = -(H[i] - Hbase[i] - dh * F[i])
-            Jd[i] = Cap[i] - dh * Jd[i]
-            Jl[i] = -dh * Jl[i]
-            Ju[i] = -dh * Ju[i]
-            Jcol[i] = -dh * Jcol[i]
-            Jrow[i] = -dh * Jrow[i]
-        for k in range(nd):
-            i = dirich_node[k]
-            R[i] = 0.0
-            Jd[i] = 1.0
-            Jl[i] = 0.0
-            Ju[i] = 0.0
-            Jcol[i] = 0.0
+        _newton_matrix(Cap, 1.0, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R)
         solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
         stats[ST_NEWTON] += 1
         mx = _apply_correction(T, dx, 200.0)
@@ -735,19 +744,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
             for i in range(nun):
                 R[i] = 2.0 * KERR * hs * (F0[i] / GAMMA - Fg[i] / (GAMMA * (1.0 - GAMMA))
                                           + F1[i] / (1.0 - GAMMA))
-            for i in range(nun):
-                Jd[i] = Cap[i] - dh * Jd[i]
-                Jl[i] = -dh * Jl[i]
-                Ju[i] = -dh * Ju[i]
-                Jcol[i] = -dh * Jcol[i]
-                Jrow[i] = -dh * Jrow[i]
-            for kk in range(nd):
-                i = dirich_node[kk]
-                R[i] = 0.0
-                Jd[i] = 1.0
-                Jl[i] = 0.0
-                Ju[i] = 0.0
-                Jcol[i] = 0.0
+            _newton_matrix(Cap, 1.0, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R)
             solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
             err = 0.0
             for i in range(nun):
@@ -921,18 +918,7 @@ def steady(T, t, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mta
                  hr, extra)
         for i in range(nun):
             R[i] = F[i]
-            Jd[i] = -Jd[i]
-            Jl[i] = -Jl[i]
-            Ju[i] = -Ju[i]
-            Jcol[i] = -Jcol[i]
-            Jrow[i] = -Jrow[i]
-        for k in range(nd):
-            i = dirich_node[k]
-            R[i] = 0.0
-            Jd[i] = 1.0
-            Jl[i] = 0.0
-            Ju[i] = 0.0
-            Jcol[i] = 0.0
+        _newton_matrix(Cap, 0.0, 1.0, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R)
         solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
         mx = _apply_correction(T, dx, 100.0)
         if mx < 0.0:
