@@ -47,8 +47,10 @@ KERR = (-3.0 * GAMMA ** 2 + 4.0 * GAMMA - 2.0) / (12.0 * (2.0 - GAMMA))
 
 # stats layout
 (ST_ACC, ST_REJ, ST_NFAIL, ST_NEWTON, ST_EVRETRY, ST_STATUS, ST_T, ST_HMIN, ST_HMAX,
- ST_ASSEMBLE, ST_H0, ST_RESMAX, ST_SCALE) = range(13)
-N_STATS = 13
+ ST_ASSEMBLE, ST_H0, ST_RESMAX, ST_SCALE, ST_COLD, ST_STALL) = range(15)
+N_STATS = 15
+# ST_STATUS: 0 running/done, 1 step size fell below its floor, 2 steps stalled (no progress)
+# ST_COLD counts Newton solutions rejected for reaching the 1 K floor (heat the wall lacks)
 # control-state layout
 CS_U, CS_ON, CS_INT, CS_PREV, CS_NEXT, CS_OFF, CS_H, CS_UPREV, CS_HSW, CS_HJ = range(10)
 N_CS = 10
@@ -441,7 +443,7 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
     for k in range(nd):
         T[dirich_node[k]] = sched_eval(s_off, stab, dirich_sched[k], t, 1.0)
     prev = 1e300
-    for it in range(12):
+    for it in range(24):
         assemble(T, t, 1.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
                  s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc,
                  hr, extra)
@@ -455,13 +457,21 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
         if mx < 0.0:
             return False
         if mx < tol:
+            # a solution pinned at the 1 K floor is no solution: more heat was taken than the
+            # wall holds; the caller shortens the step (and reports it if that fails)
+            for i in range(nun):
+                if T[i] <= 1.0:
+                    stats[ST_COLD] += 1
+                    return False
             # values at the converged point for the caller
             assemble(T, t, 1.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
                      mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,
                      Jrow, qf, hc, hr, extra)
             stats[ST_ASSEMBLE] += 1
             return True
-        if it >= 3 and mx > 0.7 * prev:
+        # diverging: corrections stop shrinking (a correction cut to the 200 K cap still
+        # makes steady progress and does not count)
+        if it >= 3 and mx <= 200.0 and mx > 0.7 * prev:
             return False
         prev = mx
     return False
@@ -588,7 +598,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     newton_tol = 1e-3 * tol
     t = acc[acc.shape[0] - 1]     # current time is kept in the last accumulator slot
     h = cs[CS_H]
-    hmin = 1e-9 * max(1.0, t_out[t_out.shape[0] - 1])
+    # [s]: fast start-up layers (a huge film coefficient on a low-capacity face) need tiny steps
+    hmin = 1e-14 * max(1.0, t_out[t_out.shape[0] - 1])
     nbp = bp.shape[0]
     ibp = 0
     while ibp < nbp and bp[ibp] <= t:
@@ -826,6 +837,16 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
         reuse = not (land and jump_target)
         t = t + hs if not land else t_target
         stats[ST_ACC] += 1
+        # stalled: many steps in a row far below the run's time scale make no real progress
+        if hs < 1e-9 * t_out[t_out.shape[0] - 1]:
+            stats[ST_STALL] += 1
+            if stats[ST_STALL] > 20000:
+                stats[ST_STATUS] = 2
+                stats[ST_T] = t
+                acc[acc.shape[0] - 1] = t
+                return k - k0
+        else:
+            stats[ST_STALL] = 0
         if hs < stats[ST_HMIN]:
             stats[ST_HMIN] = hs
         if hs > stats[ST_HMAX]:

@@ -224,10 +224,15 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     end[K.CS_OFF] -= stats[K.ST_T]
     res.control_state = end
     if failed:
+        why = ("the time step fell below its floor" if stats[K.ST_STATUS] == 1 else
+               "the time steps stalled (tens of thousands of steps without real progress)")
+        if stats[K.ST_COLD] > 0:
+            why += ("; temperatures were driven towards absolute zero: the case takes more heat "
+                    "out than the wall holds (check the signs of fluxes and heater powers)")
         msg = (f"the solver could not converge at t = {stats[K.ST_T]:.6g} s "
-               f"({stats[K.ST_T] / 3600:.4g} h): the time step fell below its floor. "
-               "Results up to that time are kept and marked incomplete. Check for unphysical "
-               "inputs (huge film coefficients or fluxes, a heater with no path for its heat).")
+               f"({stats[K.ST_T] / 3600:.4g} h): {why}. Results up to that time are kept and "
+               "marked incomplete. Check for unphysical inputs (huge film coefficients or "
+               "fluxes, a heater with no path for its heat).")
         res.message = msg
         if strict:
             raise ConvergenceError(msg, res)
