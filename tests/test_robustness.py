@@ -1,10 +1,10 @@
 """Randomised robustness: many random walls and enclosures must run to the end and solve their
 steady state, each conserving energy.
 
-Reference: the first law. Every transient run's ledger (heat in through the faces, heater,
-chamber losses) must equal the change of stored enthalpy to 1e-8 relative, and every steady
-state must balance to 1e-6 of its largest heat flow. Randomised testing itself is common
-practice, no source. The draws include thin conductive skins under huge film coefficients,
+Source: the first law of thermodynamics (energy conservation). Every transient run's ledger
+(heat in through the faces, heater, chamber losses) must equal the change of stored enthalpy
+to 1e-8 relative, and every steady state must balance to 1e-6 of its largest heat flow.
+Randomised testing itself: common practice, no source. The draws include thin conductive skins under huge film coefficients,
 fixed-temperature ramps that start away from the initial temperature, flux steps, radiation,
 correlations, contact resistances, cylinders and spheres, bridges, box corrections and every
 control mode: the cases that once made the step size collapse at t = 0.
