@@ -384,7 +384,42 @@ def build_parser() -> argparse.ArgumentParser:
     m.add_argument("name", metavar="NAME", nargs="?", default=None, help="material name")
     m.add_argument("--json", action="store_true", help="print JSON (SI units)")
     m.set_defaults(func=cmd_materials)
+
+    k = sub.add_parser("compile", help="compile the numerical kernels ahead of time (once per "
+                       "install)", description="Compile the numerical kernels into an extension "
+                       "module beside the package, so that no run waits for just-in-time "
+                       "compilation (about 10 s on the first run otherwise). Needs a C compiler; "
+                       "without one fdwall keeps compiling just in time and works the same. "
+                       "Run it again after upgrading numba or numpy.")
+    k.add_argument("--status", action="store_true",
+                   help="only say whether the ahead-of-time kernels are in use")
+    k.add_argument("--strict", action="store_true",
+                   help="exit with code 1 if the kernels cannot be compiled")
+    k.set_defaults(func=cmd_compile)
     return p
+
+
+def cmd_compile(args) -> int:
+    """``fdwall compile``: build the ahead-of-time kernel module, or report its status."""
+    from .solver import native
+    if args.status:
+        print(f"kernels: {'ahead-of-time' if native.MODE == 'aot' else 'just-in-time'}"
+              f" ({native.STATUS})")
+        return EXIT_OK
+    import time as _t
+    t0 = _t.perf_counter()
+    print("fdwall: compiling the kernels ahead of time (tens of seconds) ...", flush=True)
+    try:
+        path = native.build()
+    except Exception as exc:  # no compiler, read-only install, numba without pycc ...
+        msg = (f"fdwall: the kernels could not be compiled ahead of time "
+               f"({type(exc).__name__}: {str(exc).strip().splitlines()[-1] if str(exc).strip() else 'no detail'}). "
+               "fdwall still works: it compiles them just in time on first use (about 10 s, "
+               "once per machine). A C compiler and a writable install folder are needed.")
+        print(msg, file=sys.stderr)
+        return EXIT_WRITE if args.strict else EXIT_OK
+    print(f"fdwall: kernels compiled in {_t.perf_counter() - t0:.0f} s: {path}")
+    return EXIT_OK
 
 
 def main(argv=None) -> int:

@@ -100,7 +100,7 @@ class Result:
     @classmethod
     def from_run(cls, case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out, stats,
                  ev_out, complete, wall_time):
-        from .solver import kernels as K
+        from .solver import native as K
         n = len(t_out)
         if not complete:
             n = int(np.sum(np.isfinite(T_out[:, 0])))

@@ -203,7 +203,7 @@ class System:
 
         Links after the last node of a wall are 0.  Uses the Kirchhoff mean conductivity.
         """
-        from .solver.kernels import mat_eval
+        from .solver.native import mat_eval
         T = np.full(self.n_nodes, 293.15) if T is None else np.asarray(T, float)
         G = np.zeros(self.n_nodes)
         for i in range(self.n_nodes):
@@ -223,7 +223,7 @@ class System:
 
     def capacities(self, T=None) -> np.ndarray:
         """Heat capacity of every unknown [J/K] at temperatures ``T`` [K] (default 293.15 K)."""
-        from .solver.kernels import mat_eval
+        from .solver.native import mat_eval
         n = self.n_unknowns
         T = np.full(n, 293.15) if T is None else np.asarray(T, float)
         C = np.zeros(n)
@@ -241,7 +241,7 @@ class System:
 
         Returns an array (n_out, N, 2) for wall node halves and (n_out,) for the chamber.
         """
-        from .solver.post import half_enthalpy
+        from .solver.native import half_enthalpy
         T = np.atleast_2d(np.asarray(T, float))
         Hh, Hc = half_enthalpy(T, self.node_i, self.node_f, self.m_off, self.mtab, self.ch_i)
         return Hh, Hc

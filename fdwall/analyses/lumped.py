@@ -79,7 +79,7 @@ def implied_rc(case, t=None) -> dict:
         mean steady temperature), ``tau_s`` = R C_stored [s], ``T_hot_K`` and ``T_amb_K`` [K],
         ``Q_W`` the heat flow [W], ``stored_J`` the energy held above ambient [J].
     """
-    from ..solver.kernels import sched_eval
+    from ..solver.native import sched_eval
     from ..solver.steady import solve_steady
     from ..system import build_system
     sysm = build_system(case)

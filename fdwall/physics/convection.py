@@ -1042,10 +1042,15 @@ class Convection:
         float or numpy.ndarray
             Film coefficient [W/m2/K].
         """
+        from ..solver import native   # compiled ahead of time when built
+        par = np.array(self.par, dtype=float)
         if np.ndim(Ts) == 0 and np.ndim(Tf) == 0:
-            return float(h_conv(self.par, float(Ts), float(Tf)))
+            return float(native.h_conv(par, float(Ts), float(Tf)))
         ts, tf = np.broadcast_arrays(np.asarray(Ts, float), np.asarray(Tf, float))
-        return h_conv_array(self.par, np.ascontiguousarray(ts), np.ascontiguousarray(tf))
+        shape = ts.shape
+        out = native.h_conv_array(par, np.array(ts, dtype=float).ravel(),
+                                  np.array(tf, dtype=float).ravel())
+        return out.reshape(shape)
 
     # ------------------------------------------------------------------ diagnostics
     def validity_warnings(self, Ts, Tf):
@@ -1066,7 +1071,9 @@ class Convection:
         out = []
         if self.kind == "fixed":
             return out
-        ra, gr, re, pr, tfilm = dimensionless_numbers(self.par, float(Ts), float(Tf))
+        from ..solver import native
+        ra, gr, re, pr, tfilm = native.dimensionless_numbers(np.array(self.par, dtype=float),
+                                                             float(Ts), float(Tf))
         lo, hi = T_PROPS_VALID
         if not (lo <= tfilm <= hi):
             out.append(

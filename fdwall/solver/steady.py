@@ -13,7 +13,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..system import System, build_system
-from . import kernels as K
+from . import native as K
 from .transient import ConvergenceError
 
 __all__ = ["solve_steady", "SteadyResult"]
@@ -155,7 +155,7 @@ def _continuation(sysm, t, u, T0, tol):
     C = sysm.capacities(T)
     tau = 1.0
     nf = sysm.face_i.shape[0]
-    from .kernels import _newton_stage, N_STATS
+    from .native import _newton_stage, N_STATS
     stats = np.zeros(N_STATS)
     nun = sysm.n_unknowns
     work = [np.empty(nun) for _ in range(14)]

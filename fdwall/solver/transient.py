@@ -13,7 +13,7 @@ import numpy as np
 
 from ..model import Case
 from ..system import System, build_system
-from . import kernels as K
+from . import native as K
 
 __all__ = ["run", "output_times", "event_rows", "ConvergenceError"]
 

@@ -1,0 +1,106 @@
+"""Ahead-of-time kernels (fdwall.solver.native): same answers as the just-in-time kernels,
+safe fallback for arguments of other types, stale builds ignored.
+
+The physics of both paths is checked by the rest of the suite (which runs through
+``fdwall.solver.native``, i.e. the ahead-of-time module when it is built, as in `.ci/run`);
+here the two compiled forms of the same source are held to each other, and the guard rails
+that keep a wrong or stale module from being called are exercised.
+"""
+from __future__ import annotations
+
+import os
+import pathlib
+
+import numpy as np
+import pytest
+
+from fdwall.case import load_case
+from fdwall.solver import native, run
+
+CASES = sorted((pathlib.Path(__file__).resolve().parent.parent / "cases").glob("*.toml"))
+needs_aot = pytest.mark.skipif(native.MODE != "aot",
+                               reason=f"ahead-of-time kernels not in use: {native.STATUS}")
+
+
+def test_ci_uses_the_ahead_of_time_kernels():
+    # .ci/run builds the module and sets FDWALL_EXPECT_AOT=1: there the module must load
+    if os.environ.get("FDWALL_EXPECT_AOT") != "1":
+        pytest.skip("FDWALL_EXPECT_AOT not set (only .ci/run requires the built module)")
+    assert native.MODE == "aot", native.STATUS
+
+
+def _jit_everywhere(monkeypatch):
+    for name, fn in native._jit_functions().items():
+        monkeypatch.setattr(native, name, fn)
+
+
+@needs_aot
+@pytest.mark.parametrize("path", CASES, ids=lambda p: p.stem)
+def test_ahead_of_time_and_just_in_time_runs_agree(path, monkeypatch):
+    case = load_case(path)
+    native.FALLBACKS.clear()
+    a = run(case, progress=False)
+    # a standard run passes exactly the compiled types: nothing fell back to the JIT path
+    assert native.FALLBACKS == {}
+    _jit_everywhere(monkeypatch)
+    b = run(case, progress=False)
+    assert a.T.shape == b.T.shape
+    # same source, same compiler: identical up to rounding of a different instruction order
+    assert np.max(np.abs(a.T - b.T)) < 1e-9
+    assert np.max(np.abs(a.heater_power - b.heater_power)) <= 1e-9 * max(
+        1.0, np.max(np.abs(b.heater_power)))
+
+
+@needs_aot
+def test_steady_and_helpers_agree(monkeypatch):
+    from fdwall.solver import solve_steady
+    case = load_case(CASES[0])
+    a = solve_steady(case)
+    _jit_everywhere(monkeypatch)
+    b = solve_steady(case)
+    assert np.max(np.abs(a.T - b.T)) < 1e-9
+
+
+def test_other_argument_types_fall_back_to_the_jit_kernel():
+    # schedule of two knots: 0 s -> 300 K, 100 s -> 500 K; at 25 s linear interpolation gives
+    # 350 K (hand arithmetic)
+    s_off = np.array([0, 2], dtype=np.int64)
+    stab = np.array([[0.0, 100.0], [300.0, 500.0]])
+    native.FALLBACKS.clear()
+    assert native.sched_eval(s_off, stab, 0, 25.0, 0.0) == pytest.approx(350.0)
+    assert native.FALLBACKS.get("sched_eval", 0) == 0
+    # int32 offsets, a Fortran-ordered table, a read-only table: not the compiled types
+    ro = stab.copy()
+    ro.flags.writeable = False
+    for so, st in ((s_off.astype(np.int32), stab), (s_off, np.asfortranarray(stab)),
+                   (s_off, ro)):
+        assert native.sched_eval(so, st, 0, 25.0, 0.0) == pytest.approx(350.0)
+    if native.MODE == "aot":
+        assert native.FALLBACKS["sched_eval"] == 3
+
+
+@needs_aot
+def test_a_module_built_from_other_sources_is_ignored(monkeypatch):
+    monkeypatch.setattr(native, "fingerprint", lambda: 12345)
+    mod, why = native._load_extension()
+    assert mod is None and "other sources" in why
+
+
+def test_forcing_jit_by_environment(monkeypatch):
+    monkeypatch.setenv("FDWALL_JIT", "1")
+    mod, why = native._load_extension()
+    assert mod is None and "FDWALL_JIT" in why
+
+
+def test_fingerprint_follows_the_sources(tmp_path, monkeypatch):
+    # a copy of the package sources with one kernel file changed gets another fingerprint
+    fp = native.fingerprint()
+    assert fp == native.fingerprint() and 0 <= fp < 2 ** 63
+    pkg = tmp_path / "fdwall"
+    for rel in native.SOURCES:
+        (pkg / rel).parent.mkdir(parents=True, exist_ok=True)
+        (pkg / rel).write_bytes((native._PKG / rel).read_bytes())
+    monkeypatch.setattr(native, "_PKG", pkg)
+    assert native.fingerprint() == fp
+    (pkg / "solver/kernels.py").write_bytes((pkg / "solver/kernels.py").read_bytes() + b"\n")
+    assert native.fingerprint() != fp
