@@ -36,7 +36,8 @@ def main(which):
     t2 = time.perf_counter()
     fn()
     t3 = time.perf_counter()
-    print(json.dumps({"import_s": t1 - t0, "first_s": t2 - t1, "second_s": t3 - t2,
+    from fdwall.solver import native
+    print(json.dumps({"mode": native.MODE, "import_s": t1 - t0, "first_s": t2 - t1, "second_s": t3 - t2,
                       "process_s": t3 - T_START}))
 
 

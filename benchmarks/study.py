@@ -5,7 +5,9 @@ flux varied), solved one after another with fdwall, reusing nothing but the comp
 
 Prints one JSON line with the timings (imports, first variant with compilation or cache
 load, the loop) and a digest of the answers (hottest skin and inner face over the study).
-Run by :mod:`benchmarks.run` in fresh processes, cold (empty numba cache) and warm.
+Run by :mod:`benchmarks.run` in fresh processes: with the ahead-of-time kernels
+(``fdwall compile``), and with just-in-time kernels (``FDWALL_JIT=1``) cold (empty numba
+cache) and warm.
 """
 from __future__ import annotations
 
@@ -49,7 +51,8 @@ def main(argv=None):
     t2 = time.perf_counter()
     skin, inner = study(a.n, a.tolerance, a.refine)
     t3 = time.perf_counter()
-    print(json.dumps({"n": a.n, "import_s": t1 - t0, "first_s": t2 - t1, "loop_s": t3 - t2,
+    from fdwall.solver import native
+    print(json.dumps({"n": a.n, "mode": native.MODE, "import_s": t1 - t0, "first_s": t2 - t1, "loop_s": t3 - t2,
                       "process_s": t3 - T_START, "skin_max_K": float(skin.max()),
                       "skin_min_K": float(skin.min()), "inner_max_K": float(inner.max())}))
 
