@@ -412,8 +412,9 @@ def cmd_compile(args) -> int:
     try:
         path = native.build()
     except Exception as exc:  # no compiler, read-only install, numba without pycc ...
+        detail = next((ln.strip() for ln in str(exc).splitlines() if ln.strip()), "no detail")
         msg = (f"fdwall: the kernels could not be compiled ahead of time "
-               f"({type(exc).__name__}: {str(exc).strip().splitlines()[-1] if str(exc).strip() else 'no detail'}). "
+               f"({type(exc).__name__}: {detail[:300]}). "
                "fdwall still works: it compiles them just in time on first use (about 10 s, "
                "once per machine). A C compiler and a writable install folder are needed.")
         print(msg, file=sys.stderr)

@@ -104,3 +104,24 @@ def test_fingerprint_follows_the_sources(tmp_path, monkeypatch):
     assert native.fingerprint() == fp
     (pkg / "solver/kernels.py").write_bytes((pkg / "solver/kernels.py").read_bytes() + b"\n")
     assert native.fingerprint() != fp
+
+
+def test_compile_status_and_a_failed_build(monkeypatch, capsys):
+    from fdwall.cli import main
+    assert main(["compile", "--status"]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("kernels: ") and ("ahead-of-time" in out or "just-in-time" in out)
+    # no usable C compiler: a clear message, exit 0 (fdwall still runs just in time), exit 1
+    # with --strict, and any module built before is left as it was
+    before = sorted((p.name, p.stat().st_mtime) for p in
+                    pathlib.Path(native.__file__).parent.glob(native.MODULE + ".*"))
+    monkeypatch.setenv("CC", "/nonexistent/cc")
+    assert main(["compile"]) == 0
+    err = capsys.readouterr().err
+    assert "could not be compiled ahead of time" in err and "just in time" in err
+    assert "Traceback" not in err
+    assert main(["compile", "--strict"]) == 1
+    after = sorted((p.name, p.stat().st_mtime) for p in
+                   pathlib.Path(native.__file__).parent.glob(native.MODULE + ".*"))
+    assert after == before
+    assert not list(pathlib.Path(native.__file__).parent.glob(".build-*"))
