@@ -134,8 +134,9 @@ class FVProblem:
     """Vertex-centred finite-volume arrays of problem (a)/(b), built here independently of
     fdwall's assembly from node positions only.
 
-    Nodes sit on both faces and on both interfaces; each control volume is split at its
-    midpoints, each half belongs to one layer.  Conductance of the link i -> i+1 is
+    Nodes sit on both faces and on both interfaces; each cell is split between its two nodes
+    at its midpoint (slab) or geometric-mean radius (cylinder), each half belongs to one
+    layer.  Conductance of the link i -> i+1 is
     ``g[i] * (K(T_i) - K(T_i+1)) / (T_i - T_i+1)`` (Kirchhoff mean), K = int k dT.
     """
 
@@ -212,8 +213,13 @@ def fv_problem(x_nodes, geometry="slab", thickness=THICKNESS, flux=FLUX, t_off=H
 
     vl, vr = np.zeros(n), np.zeros(n)
     ml, mr = np.full(n, -1), np.full(n, -1)
-    vr[:-1] = vol(x[:-1], mid)
-    vl[1:] = vol(mid, x[1:])
+    # each cell split between its nodes at the midpoint in the coordinate of uniform steady
+    # conduction (x; ln r: geometric mean; -1/r: harmonic mean), as fdwall's mesh does, so
+    # that every solver works on the same spatial discretisation
+    a_, b_ = x[:-1], x[1:]
+    split = {"slab": mid, "cylinder": np.sqrt(a_ * b_)}.get(geometry, 2 * a_ * b_ / (a_ + b_))
+    vr[:-1] = vol(x[:-1], split)
+    vl[1:] = vol(split, x[1:])
     mr[:-1] = mlink
     ml[1:] = mlink
     g = gfac(x[:-1], x[1:])

@@ -40,8 +40,10 @@ STEEL = Material("demo-steel", k=Constant(45.0), cp=Table([300.0, 900.0], [470.0
 
 
 def _half_volumes(geometry, r, area=1.0, length=1.0):
-    """Node control volumes of a vertex-centred mesh: half of each adjacent cell, split at the
-    cell midpoint (slab A dx, cylinder pi L (r2^2 - r1^2), sphere 4/3 pi (r2^3 - r1^3))."""
+    """Node control volumes of a vertex-centred mesh: each cell split between its two nodes at
+    the midpoint in the coordinate of uniform steady conduction (slab: x; cylinder: ln r, the
+    geometric mean; sphere: -1/r, the harmonic mean) as DEVELOPERS.md states; volumes
+    slab A dx, cylinder pi L (r2^2 - r1^2), sphere 4/3 pi (r2^3 - r1^3)."""
     def vol(a, b):
         if geometry == "slab":
             return area * (b - a)
@@ -51,7 +53,9 @@ def _half_volumes(geometry, r, area=1.0, length=1.0):
     left = np.zeros(r.size)
     right = np.zeros(r.size)
     for i in range(r.size - 1):
-        m = 0.5 * (r[i] + r[i + 1])
+        a, b = r[i], r[i + 1]
+        m = {"slab": 0.5 * (a + b), "cylinder": math.sqrt(a * b)}.get(geometry,
+                                                                       2 * a * b / (a + b))
         right[i] = vol(r[i], m)
         left[i + 1] = vol(m, r[i + 1])
     return left, right

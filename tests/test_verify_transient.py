@@ -120,29 +120,32 @@ def test_long_cylinder_convective_cooling(Bi):
 
 @pytest.mark.parametrize("Bi", [0.5, 5.0])
 def test_sphere_convective_cooling(Bi):
-    # 80 cells: the inner-face node of a sphere with a tiny hole converges slowly (see the
-    # xfail below); with 80 cells the whole profile, centre included, is within 0.1 %.
+    # 80 cells: at 40 the centre is within 0.12 % (Bi = 5, Fo = 0.2), just outside the 0.1 %
+    # tolerance; the error falls with the square of the cell size (convergence tests)
     res = run(_cooling_case("sphere", Bi, cells=80))
     _check_series(res, "sphere", Bi)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "solver defect: for a sphere (and, weakly, a cylinder) whose inner radius is tiny against "
-    "the outer one, the inner-face node is linked to its neighbour by the exact shell "
-    "conductance 4 pi k r1 r2/(r2 - r1) ~ 4 pi k r1 -> 0 while it keeps a finite half-cell "
-    "capacity, so it lags the true temperature; the error at that node grows without bound "
-    "as r_i/r_o -> 0 at a fixed mesh (27 % of the driving difference at r_i/r_o = 1e-6, "
-    "40 cells, Bi = 10, Fo = 0.2)"))
-def test_sphere_with_pinhole_centre_temperature():
-    # Exact: a hollow sphere with an adiabatic hole of r_i = 1e-6 r_o differs from the solid
-    # sphere by ~ (r_i/r_o)^3; Incropera eq. 5.53 (series, tests/reference.py).
-    hole = 1e-6
-    case = _cooling_case("sphere", 10.0, cells=40, hole=hole)
+@pytest.mark.parametrize("geometry", ["sphere", "cylinder"])
+@pytest.mark.parametrize("hole", [1e-6, 1e-9])
+def test_pinhole_centre_temperature(geometry, hole):
+    """A solid body modelled with a pinhole: the inner-face node must give the centre value.
+
+    Exact: a hollow sphere (cylinder) with an adiabatic hole of r_i differs from the solid
+    body by ~ (r_i/r_o)^3 (^2); Incropera eqs. 5.53 / 5.50 (series, tests/reference.py).
+    With the control volumes split at the arithmetic midpoint, the node on a pinhole of
+    1e-6 r_o lagged by 27 % of the driving difference (sphere, 40 cells, Bi = 10, Fo = 0.2);
+    tolerance here 0.5 %, with the whole profile checked as well.
+    """
+    case = _cooling_case(geometry, 10.0, cells=40, hole=hole)
     res = run(case)
-    Fo = 0.2
-    x, T, _ = res.profile(Fo * L * L / ALPHA)
-    T_ref = T_FLUID + (T_INIT - T_FLUID) * ref.sphere_theta(hole, Fo, 10.0)
-    assert abs(T[0] - T_ref) < 0.01 * (T_INIT - T_FLUID)
+    series = {"sphere": ref.sphere_theta, "cylinder": ref.cylinder_theta}[geometry]
+    dT = T_INIT - T_FLUID
+    for Fo in (0.05, 0.2):
+        x, T, _ = res.profile(Fo * L * L / ALPHA)
+        T_ref = T_FLUID + dT * series((x + hole * L) / L, Fo, 10.0)
+        assert abs(T[0] - T_ref[0]) < 5e-3 * dT, f"{geometry} centre at Fo={Fo}"
+        assert np.max(np.abs(T - T_ref)) < 5e-3 * dT, f"{geometry} profile at Fo={Fo}"
 
 
 # ----------------------------------------------------------------------------- semi-infinite

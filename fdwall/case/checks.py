@@ -207,25 +207,6 @@ def case_warnings(case) -> list:
         One paragraph per warning: materials whose maximum service temperature [K] is below a
         temperature the case imposes on them (fixed face temperature, air or surroundings
         temperature at the face, setpoint, start temperature), then convection correlations
-        used outside their data range, then curved walls whose bore is tiny against their
-        outer radius.  Empty when nothing was found.
+        used outside their data range.  Empty when nothing was found.
     """
-    return _service_warnings(case) + _convection_warnings(case) + _bore_warnings(case)
-
-
-def _bore_warnings(case):
-    """Cylinders and spheres with an inner radius below 1e-3 of the outer one: the node on the
-    inner face sits where the shell conductance tends to zero while its half cell keeps a
-    finite heat capacity, so it lags (about 0.3 % of the driving difference at a ratio of
-    1e-4 for a sphere; measured against the series solution, Incropera eq. 5.51)."""
-    out = []
-    for w in case.wall_list:
-        if w.geometry in ("cylinder", "sphere"):
-            ro = w.inner_radius + w.thickness
-            if w.inner_radius < 1e-3 * ro:
-                out.append(f"wall '{w.name}': the inner radius ({w.inner_radius:g} m) is below "
-                           f"1/1000 of the outer radius ({ro:g} m); the temperature of the inner "
-                           "face is then less accurate than elsewhere. For a solid body, "
-                           "model a bore of about 1 % of the outer radius with an adiabatic "
-                           "inner face.")
-    return out
+    return _service_warnings(case) + _convection_warnings(case)
