@@ -40,6 +40,7 @@ def test_ahead_of_time_and_just_in_time_runs_agree(path, monkeypatch):
     case = load_case(path)
     native.FALLBACKS.clear()
     a = run(case, progress=False)
+    a.summary()                 # post-processing: stored energy per layer, steady state ...
     # a standard run passes exactly the compiled types: nothing fell back to the JIT path
     assert native.FALLBACKS == {}
     _jit_everywhere(monkeypatch)
