@@ -10,7 +10,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from ..system import System, build_system
 from . import native as K
@@ -241,6 +240,7 @@ def solve_steady(case, t=None, system=None, guess=None, tol=1e-9) -> SteadyResul
     if g0 >= 0:
         T, qf, hc, hr, ex, it = cache[0.0]
         return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, True, it, t)
+    from scipy.optimize import brentq   # imported here: scipy.optimize takes ~0.3 s to load
     u = brentq(gap, 0.0, 1.0, xtol=1e-12, rtol=1e-12)
     T, qf, hc, hr, ex, it = _solve(sysm, t, u, cache["T"], tol)
     return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], u, True, it, t)
