@@ -251,7 +251,10 @@ class Chamber:
     ambient : Schedule or float
         Temperature of the room air that leakage and extra losses go to [K].
     leakage : float
-        Air flow through the chamber [m3/s], at room conditions (ventilation, leaks).
+        Air flow through the chamber [m3/s], at room conditions (ventilation, leaks): room air
+        enters at the ambient temperature and leaves at the chamber temperature, a loss of
+        rho cp leakage (T - T_ambient) with rho and cp of dry air at the ambient temperature
+        and 1 atm.
     extra_ua : float
         Further fixed losses as a conductance to ambient [W/K].
     initial : float, optional
@@ -287,12 +290,6 @@ class Chamber:
             for x in self.box:
                 _pos("chamber box dimension", float(x))
             object.__setattr__(self, "box", tuple(float(x) for x in self.box))
-
-    @property
-    def leakage_ua(self) -> float:
-        """Leakage as a conductance to ambient [W/K] (room air, 1.2 kg/m3, 1006 J/kg/K)."""
-        # Air at 20 degC and 1 atm: rho = 1.204 kg/m3, cp = 1006 J/kg/K (Incropera, Table A.4).
-        return float(self.leakage) * 1.204 * 1006.0
 
 
 @dataclass(frozen=True)

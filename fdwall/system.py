@@ -221,6 +221,16 @@ class System:
             G[i] = self.node_f[i, 2] * k
         return G
 
+    def chamber_ua(self, t: float = 0.0) -> float:
+        """Conductance from the chamber to the room at time ``t`` [s]: extra UA plus the
+        leakage air flow times rho*cp of room air at that time's room temperature [W/K]
+        (0 without a chamber)."""
+        if not self.has_chamber:
+            return 0.0
+        from .solver import native
+        T_room = native.sched_eval(self.s_off, self.stab, int(self.ch_i[2]), float(t), 0.0)
+        return float(self.ch_f[0] + self.ch_f[1] * native.rho_cp(T_room, 101325.0))
+
     def capacities(self, T=None) -> np.ndarray:
         """Heat capacity of every unknown [J/K] at temperatures ``T`` [K] (default 293.15 K)."""
         from .solver.native import mat_eval
@@ -387,11 +397,12 @@ def build_system(case: Case) -> System:
     dirich_face = np.array([d[2] for d in dn], dtype=np.int64)
     # chamber
     ch_i = np.zeros(3, dtype=np.int64)
-    ch_f = np.zeros(1)
+    ch_f = np.zeros(2)
     if case.chamber is not None:
         ch = case.chamber
         ch_i[:] = (1, tb.capacity(ch.capacity), tb.schedule(ch.ambient))
-        ch_f[0] = ch.leakage_ua + ch.extra_ua
+        ch_f[0] = ch.extra_ua
+        ch_f[1] = ch.leakage
     # heater and control
     ctl_i = np.full(10, -1, dtype=np.int64)
     ctl_f = np.zeros(10)

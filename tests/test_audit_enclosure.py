@@ -133,18 +133,15 @@ def test_thermostat_on_off_times_match_exponential_pieces():
 
 
 # ============================================================== 2. leakage at a warm room
-@pytest.mark.xfail(strict=True, reason=(
-    "Chamber.leakage is documented as a flow 'at room conditions', but Chamber.leakage_ua "
-    "uses fixed 20 degC air (1.204 kg/m3 x 1006 J/kg/K) whatever the room temperature: at a "
-    "35 degC room the leakage loss is 5.0 % above rho(T_room) cp Vdot (T - T_room)"))
 def test_leakage_loss_uses_air_at_room_conditions():
     """Air leaking out at the chamber temperature, replaced by room air: the enthalpy flow is
     m_dot cp (T_c - T_room) with m_dot = rho(T_room, 1 atm) Vdot for a flow given at room
     conditions (first law for an open system, INC 1.3.1, from memory; rho and cp from
     CoolProp).  Room at 35 degC (a hot workshop), chamber held at 180 degC.  Tolerance
     0.5 %: cp of air from 20 to 35 degC changes by < 0.1 % and any reasonable air data agree
-    within that.  Measured: fdwall 526.9 W against 501.8 W (+5.0 %, the ratio
-    rho(20 degC)/rho(35 degC) = 308.15/293.15)."""
+    within that.  Measured when the audit found it: fdwall 526.9 W against 501.8 W (+5.0 %,
+    the ratio rho(20 degC)/rho(35 degC) = 308.15/293.15: air was taken at 20 degC whatever
+    the room temperature); fixed since."""
     from CoolProp.CoolProp import PropsSI
     T_room, Vdot, sp = 308.15, 0.003, 453.15
     sd = steady_duty(one_node_box(amb=T_room, leak=Vdot, extra=0.0, mode="thermostat",

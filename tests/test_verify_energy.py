@@ -209,11 +209,14 @@ def test_enclosure_thermostat_heater_and_leakage():
     assert 0.0 < res.heater_energy[-1] < 3000.0 * case.run.duration
     assert set(np.unique(np.round(res.heater_power[1:], 6))) <= {0.0, 3000.0}
     # leakage + extra UA loss against a trapezoid over the 30 s outputs of the chamber
-    # temperature (UA = V rho cp + extra; air at 20 degC, Incropera Table A.4: 1.204 kg/m3,
-    # 1006 J/kg/K)
-    ua = 0.002 * 1.204 * 1006.0 + 0.5
+    # temperature (UA = V rho cp + extra, room air at 295 K and 1 atm from CoolProp; fdwall's
+    # ideal-gas air is within 0.25 % of it at room temperature, test_physics_air)
+    from CoolProp.CoolProp import PropsSI
+    rho_cp = PropsSI("D", "T", 295.0, "P", 101325.0, "Air") * PropsSI("C", "T", 295.0, "P",
+                                                                       101325.0, "Air")
+    ua = 0.002 * rho_cp + 0.5
     loss = trapezoid(ua * (Tc - 295.0), res.times)
-    assert res.loss_energy[-1] == pytest.approx(loss, rel=2e-3)
+    assert res.loss_energy[-1] == pytest.approx(loss, rel=4e-3)
     # walls + chamber store what the heater put in less what left (first law)
     ext = [f for f, e in enumerate(res.system.external) if e]
     left = res.face_energy[-1, ext].sum()

@@ -165,6 +165,13 @@ def density(T, p=P_ATM):
 
 
 @njit(cache=True)
+def rho_cp(T, p=P_ATM):
+    """Heat capacity per volume of dry air, rho * cp [J/m3/K], at ``T`` [K] and ``p`` [Pa]
+    (default 1 atm): what a volume flow of air [m3/s] carries per kelvin."""
+    return density(T, p) * specific_heat(T, p)
+
+
+@njit(cache=True)
 def _einstein(u):
     """Planck-Einstein heat-capacity function u^2 e^u / (e^u - 1)^2 [-], stable for all u > 0."""
     if u > 700.0:

@@ -614,7 +614,7 @@ def format_case(case, system=None, warnings=()) -> str:
                  f"{min(cap.values) / 1e3:.3g}..{max(cap.values) / 1e3:.3g} kJ/K (table vs T)")
         L += _heading("Chamber")
         L.append(_wrap(f"capacity {cap_t}; ambient {_sched_text(ch.ambient)}; leakage "
-                       f"{ch.leakage:.3g} m3/s ({ch.leakage_ua:.3g} W/K); extra UA "
+                       f"{ch.leakage:.3g} m3/s ({_leak_ua(ch):.3g} W/K with room air at the start); extra UA "
                        f"{ch.extra_ua:.3g} W/K"))
         if getattr(ch, "box", None):
             fac = getattr(system, "area_factor", None) if system is not None else None
@@ -735,3 +735,9 @@ def format_material(m) -> str:
     L.append("")
     L.append("  (linear between rows; held at the end values outside them)")
     return "\n".join(L) + "\n"
+
+
+def _leak_ua(ch):
+    """Leakage of a chamber as a conductance [W/K], room air at t = 0 (as the solver uses)."""
+    from ..solver import native
+    return float(ch.leakage) * native.rho_cp(float(ch.ambient(0.0)), 101325.0)

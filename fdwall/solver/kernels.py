@@ -22,7 +22,8 @@ m_off[nm+1], mtab[5, :] : material tables, rows T [K], k [W/m/K], K=int k dT [W/
                      c = rho*cp [J/m3/K], H = int c dT [J/m3]
 s_off[ns+1], stab[2, :] : schedules, rows time [s] (or T [K]) and value
 ch_i[3] int        : has chamber, capacity material (volume 1), ambient sched
-ch_f[1] float      : conductance to ambient (leakage + extra) [W/K]
+ch_f[2] float      : extra conductance to ambient [W/K], leakage air flow at room conditions
+                     [m3/s] (its heat-capacity flow rho*cp is taken at the room temperature)
 ctl_i[10] int      : mode, heater node (-1 none), sensor a, sensor b, rated-power sched,
                      duty sched, setpoint sched, enable sched
 ctl_f[10] float    : period [s], band [K], kp, ki, kd, sensor weight on a, alpha [1/K],
@@ -33,6 +34,7 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
+from ..physics.air import P_ATM, rho_cp
 from ..physics.convection import h_conv
 
 SIGMA = 5.670374419e-8          # Stefan-Boltzmann constant [W/m2/K4] (CODATA 2018)
@@ -310,7 +312,11 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
         Cap[nc_idx] = c
         H[nc_idx] = h
         Tamb = sched_eval(s_off, stab, ch_i[2], t, left)
+        # extra UA plus the air that leaks out at Tc and is replaced by room air: a mass flow
+        # rho(T_room) * V (the flow is given at room conditions) times cp(T_room), 1 atm
         ua = ch_f[0]
+        if ch_f[1] > 0.0:
+            ua += ch_f[1] * rho_cp(Tamb, P_ATM)
         loss = ua * (Tc - Tamb)
         F[nc_idx] -= loss
         Jd[nc_idx] -= ua

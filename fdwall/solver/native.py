@@ -54,6 +54,7 @@ ENTRIES = {
     "h_conv": ("convection", "F1 f f", "f"),
     "h_conv_array": ("convection", "F1 F1 F1", "F1"),
     "dimensionless_numbers": ("convection", "F1 f f", "(f,f,f,f,f)"),
+    "rho_cp": ("air", "f f", "f"),
 }
 
 
@@ -84,8 +85,8 @@ def fingerprint() -> int:
 
 def _jit_functions():
     from . import post
-    from ..physics import convection
-    mods = {"kernels": _kernels, "post": post, "convection": convection}
+    from ..physics import air, convection
+    mods = {"kernels": _kernels, "post": post, "convection": convection, "air": air}
     return {name: getattr(mods[m], name) for name, (m, _, _) in ENTRIES.items()}
 
 
