@@ -256,3 +256,22 @@ def test_hold_duty_is_energy_over_full_power_with_supply_voltage():
     res2 = run(replace(case, heater=Heater(sched)))
     assert hold_duty(res2, 0.0) == pytest.approx(0.4, rel=1e-9)
     check_ledger(res2)
+
+
+def test_chamber_ua_follows_the_room_temperature():
+    """System.chamber_ua(t) = extra UA + leakage x rho cp of room air at the room temperature
+    of that instant (CoolProp real gas; fdwall's ideal gas within 0.4 %); a room warming from
+    20 to 40 degC cuts the leakage conductance by the density ratio 293.15/313.15 (ideal gas,
+    from memory: rho = p / (R T))."""
+    from CoolProp.CoolProp import PropsSI
+    from fdwall.system import build_system
+    room = Schedule([0.0, 3600.0], [293.15, 313.15])
+    case = replace(network_case(900.0), chamber=Chamber(capacity=2e4, ambient=room,
+                                                        leakage=0.0015, extra_ua=0.8))
+    sysm = build_system(case)
+    for t, T in ((0.0, 293.15), (1800.0, 303.15), (3600.0, 313.15)):
+        rc = PropsSI("D", "T", T, "P", 101325.0, "Air") * PropsSI("C", "T", T, "P", 101325.0,
+                                                                 "Air")
+        assert sysm.chamber_ua(t) == pytest.approx(0.8 + 0.0015 * rc, rel=4e-3)
+    leak0, leak1 = sysm.chamber_ua(0.0) - 0.8, sysm.chamber_ua(3600.0) - 0.8
+    assert leak1 / leak0 == pytest.approx(293.15 / 313.15, rel=2e-3)
