@@ -23,6 +23,10 @@ above absolute zero.  In a temperature *difference* "degC" and "degF" are read a
 ("5 degC" = 5 K; "9 degF" = 5 K).  Bare numbers are accepted only for dimensionless kinds
 (emissivity, fractions); every other kind needs its unit.
 
+Every kind has a range of magnitudes fdwall accepts (``KINDS[kind].largest`` and, for values
+other than zero, ``KINDS[kind].smallest``, in SI), far outside any heated equipment: "1e300 m"
+or "1e-300 m" is refused rather than left to overflow or to round to nothing in the solver.
+
 Errors raise :class:`fdwall.case.errors.CaseError` with one paragraph naming the file and key
 path (when given), what was wrong and what is allowed.
 """
@@ -40,7 +44,7 @@ import pint
 from .case.errors import CaseError
 
 __all__ = ["ureg", "KINDS", "Kind", "parse_quantity", "parse_unit", "parse_leakage",
-           "kind_names", "CaseError"]
+           "check_magnitude", "kind_names", "CaseError"]
 
 def _registry():
     # pint caches its parsed definitions on disk (user cache folder): a tenth of a second less
@@ -57,47 +61,120 @@ ureg = _registry()
 
 @dataclass(frozen=True)
 class Kind:
-    """One kind of quantity: SI unit, a readable name and examples for messages."""
+    """One kind of quantity: SI unit, a readable name and examples for messages, and the range
+    of magnitudes a case file may give.
+
+    ``largest`` is the largest magnitude accepted and ``smallest`` the smallest non-zero
+    magnitude accepted, both in the SI unit (None: no limit); ``why_large`` and ``why_small``
+    say in a few words why (shown in messages).  The limits lie far outside any heated
+    equipment and keep the arithmetic finite; zero is not affected by ``smallest``.
+    """
 
     si: str
     label: str
     examples: str
+    largest: float | None = None
+    smallest: float | None = None
+    why_large: str = ""
+    why_small: str = ""
 
 
-#: Kinds understood by :func:`parse_quantity`: name -> Kind(SI unit, label, examples).
+#: Kinds understood by :func:`parse_quantity`: name -> Kind(SI unit, label, examples, range).
+#:
+#: Where the limits come from (all far outside heated equipment):
+#: - length >= 1 um: below about a micrometre a layer is no longer a continuum for heat
+#:   conduction (Incropera et al., Fundamentals of Heat and Mass Transfer, 7th ed., sec. 2.2.1,
+#:   micro- and nanoscale effects; from memory); a solid rod takes a 0.001 mm pinhole bore;
+#: - temperature <= 10 000 K: no solid exists that hot -- the highest melting points, of
+#:   refractory carbides, are near 4 200 K (from memory);
+#: - film coefficient <= 1e7 W/m2/K: 100 x the top of the typical range, boiling and
+#:   condensation up to 1e5 W/m2/K (Incropera Table 1.1);
+#: - conductivity 1e-6 .. 1e5 W/m/K: evacuated multilayer insulation ~1e-5 W/m/K, diamond
+#:   ~2 300 W/m/K (Incropera Fig. 2.4 / Table A.2; from memory);
+#: - density 0.01 .. 1e5 kg/m3: the lightest aerogels ~0.2 kg/m3, osmium 22 590 kg/m3
+#:   (CRC Handbook; from memory);
+#: - specific heat 10 .. 1e5 J/kg/K: lead ~129 J/kg/K, hydrogen gas 14 300 J/kg/K
+#:   (Incropera Tables A.1, A.4; from memory);
+#: - heat flux <= 1e9 W/m2: 15 x what the surface of the sun radiates, sigma (5772 K)^4 =
+#:   6.3e7 W/m2 (IAU 2015 nominal solar effective temperature);
+#: - contact resistance 1e-8 .. 1e3 m2K/W: tabulated joints start near 1e-6 m2K/W (Incropera
+#:   Tables 3.1-3.2; from memory) -- anything below acts as perfect contact (write 0), and
+#:   1e3 m2K/W insulates like some 40 m of mineral wool;
+#: - speed <= 1000 m/s: three times the speed of sound; the correlations are for low-speed air;
+#: - the rest (sizes, times, powers, gains): common practice, no source -- orders of magnitude
+#:   beyond any oven, furnace, kiln, tank or pipe, and still far inside double precision.
 KINDS = {
-    "length": Kind("m", "length [m]", '"50 mm", "2 in", "0.05 m"'),
-    "area": Kind("m**2", "area [m2]", '"1.5 m2", "16 ft2"'),
-    "volume": Kind("m**3", "volume [m3]", '"0.125 m3", "125 L"'),
-    "temperature": Kind("K", "absolute temperature [K]", '"250 degC", "480 degF", "523.15 K"'),
+    "length": Kind("m", "length [m]", '"50 mm", "2 in", "0.05 m"', 1e5, 1e-6,
+                   "100 km is beyond any heated equipment",
+                   "below 1 um a layer, bore or plate is no longer a continuum for heat "
+                   "conduction; a solid rod takes a 0.001 mm pinhole bore"),
+    "area": Kind("m**2", "area [m2]", '"1.5 m2", "16 ft2"', 1e10, 1e-12,
+                 "(100 km)^2 is beyond any heated equipment", "(1 um)^2 is the smallest face"),
+    "volume": Kind("m**3", "volume [m3]", '"0.125 m3", "125 L"', 1e15, 1e-18,
+                   "(100 km)^3 is beyond any heated equipment", "(1 um)^3 is the smallest"),
+    "temperature": Kind("K", "absolute temperature [K]", '"250 degC", "480 degF", "523.15 K"',
+                        1e4, None, "no solid exists that hot: the highest melting points are "
+                                   "near 4200 K"),
     "temperature_difference": Kind("K", "temperature difference [K]",
-                                   '"5 K", "5 delta_degC", "9 delta_degF"'),
-    "mass": Kind("kg", "mass [kg]", '"25 kg", "55 lb"'),
-    "time": Kind("s", "time [s]", '"4 h", "30 min", "90 s"'),
-    "power": Kind("W", "power [W]", '"2.5 kW", "800 W"'),
-    "energy": Kind("J", "energy [J]", '"3.6 MJ", "1 kWh"'),
-    "heat_flux": Kind("W/m**2", "heat flux [W/m2]", '"2 kW/m2", "350 W/m2"'),
+                                   '"5 K", "5 delta_degC", "9 delta_degF"', 1e4, 1e-9,
+                                   "no temperature in fdwall exceeds 10000 K",
+                                   "a billionth of a kelvin is below any thermometer and near "
+                                   "round-off"),
+    "mass": Kind("kg", "mass [kg]", '"25 kg", "55 lb"', 1e9, None,
+                 "a million tonnes is beyond any furnace load"),
+    "time": Kind("s", "time [s]", '"4 h", "30 min", "90 s"', 1e11, 1e-3,
+                 "1e11 s (about 3000 years) outlasts any equipment",
+                 "1 ms is the shortest step, period or schedule time"),
+    "power": Kind("W", "power [W]", '"2.5 kW", "800 W"', 1e10, None,
+                  "10 GW is beyond any heater or burner"),
+    "energy": Kind("J", "energy [J]", '"3.6 MJ", "1 kWh"', 1e16, None,
+                   "1e16 J is beyond any firing"),
+    "heat_flux": Kind("W/m**2", "heat flux [W/m2]", '"2 kW/m2", "350 W/m2"', 1e9, None,
+                      "1e9 W/m2 is 15 times what the surface of the sun radiates"),
     "film_coefficient": Kind("W/m**2/K", "film coefficient [W/m2/K]",
-                             '"10 W/m2/K", "10 W/(m2*K)", "2 Btu/h/ft2/degF"'),
+                             '"10 W/m2/K", "10 W/(m2*K)", "2 Btu/h/ft2/degF"', 1e7, None,
+                             "1e7 W/m2/K is 100 times the highest film coefficients, of boiling "
+                             "and condensation"),
     "conductivity": Kind("W/m/K", "thermal conductivity [W/m/K]",
-                         '"0.04 W/m/K", "0.3 Btu*in/h/ft2/degF"'),
+                         '"0.04 W/m/K", "0.3 Btu*in/h/ft2/degF"', 1e5, 1e-6,
+                         "the best conductor, diamond, has about 2300 W/m/K",
+                         "the best insulation, evacuated multilayer foil, has about 1e-5 W/m/K"),
     "specific_heat": Kind("J/kg/K", "specific heat capacity [J/kg/K]",
-                          '"840 J/kg/K", "0.84 kJ/kg/K"'),
-    "density": Kind("kg/m**3", "density [kg/m3]", '"128 kg/m3", "8 lb/ft3"'),
+                          '"840 J/kg/K", "0.84 kJ/kg/K"', 1e5, 10.0,
+                          "the highest is that of hydrogen, about 14300 J/kg/K",
+                          "the lowest are those of heavy metals such as lead, about 130 J/kg/K"),
+    "density": Kind("kg/m**3", "density [kg/m3]", '"128 kg/m3", "8 lb/ft3"', 1e5, 1e-2,
+                    "the densest material, osmium, has about 22600 kg/m3",
+                    "the lightest aerogels have about 0.2 kg/m3"),
     "contact_resistance": Kind("m**2*K/W", "contact resistance [m2*K/W]",
-                               '"0.002 m2*K/W", "0.002 m2K/W"'),
-    "heat_capacity": Kind("J/K", "heat capacity [J/K]", '"45 kJ/K", "800 J/K"'),
-    "volume_flow": Kind("m**3/s", "volume flow [m3/s]", '"120 m3/h", "2 L/s"'),
-    "speed": Kind("m/s", "speed [m/s]", '"3 m/s", "10 km/h"'),
-    "pressure": Kind("Pa", "pressure [Pa]", '"101.3 kPa", "1 atm"'),
-    "conductance": Kind("W/K", "thermal conductance [W/K]", '"1.5 W/K"'),
+                               '"0.002 m2*K/W", "0.002 m2K/W"', 1e3, 1e-8,
+                               "1000 m2K/W insulates like 40 m of mineral wool",
+                               "below 1e-8 m2K/W a joint is in perfect contact: write 0 m2K/W"),
+    "heat_capacity": Kind("J/K", "heat capacity [J/K]", '"45 kJ/K", "800 J/K"', 1e13, 1e-3,
+                          "1e13 J/K is twenty million tonnes of steel",
+                          "a millilitre of air holds 1e-3 J/K"),
+    "volume_flow": Kind("m**3/s", "volume flow [m3/s]", '"120 m3/h", "2 L/s"', 1e4, None,
+                        "1e4 m3/s is beyond any ventilation or leakage"),
+    "speed": Kind("m/s", "speed [m/s]", '"3 m/s", "10 km/h"', 1e3, None,
+                  "1000 m/s is three times the speed of sound; the correlations are for "
+                  "low-speed air"),
+    "pressure": Kind("Pa", "pressure [Pa]", '"101.3 kPa", "1 atm"', 1e9, None,
+                     "1e9 Pa is ten thousand atmospheres"),
+    "conductance": Kind("W/K", "thermal conductance [W/K]", '"1.5 W/K"', 1e9, None,
+                        "1e9 W/K is beyond any heat loss of heated equipment"),
     "dimensionless": Kind("dimensionless", "dimensionless number [-]", '0.85, "85 %"'),
-    "inverse_temperature": Kind("1/K", "coefficient per kelvin [1/K]", '"0.0002 1/K"'),
-    "rate": Kind("1/s", "rate [1/s]", '"2 1/h", "0.5 1/min"'),
+    "inverse_temperature": Kind("1/K", "coefficient per kelvin [1/K]", '"0.0002 1/K"', 10.0,
+                                None, "a coefficient of 10 per kelvin is beyond any material"),
+    "rate": Kind("1/s", "rate [1/s]", '"2 1/h", "0.5 1/min"', 1e3, None,
+                 "a thousand air changes a second is beyond any leakage"),
     "angle": Kind("rad", "angle [rad]", '"30 deg", "0.5 rad"'),
-    "proportional_gain": Kind("1/K", "proportional gain [1/K]", '"0.05 1/K", "5 %/K"'),
-    "integral_gain": Kind("1/K/s", "integral gain [1/K/s]", '"2e-4 1/K/s", "0.01 1/K/min"'),
-    "derivative_gain": Kind("s/K", "derivative gain [s/K]", '"10 s/K", "0.2 min/K"'),
+    "proportional_gain": Kind("1/K", "proportional gain [1/K]", '"0.05 1/K", "5 %/K"', 1e6,
+                              None, "a gain of 1e6 per kelvin already switches full power for a "
+                                    "micro-kelvin error"),
+    "integral_gain": Kind("1/K/s", "integral gain [1/K/s]", '"2e-4 1/K/s", "0.01 1/K/min"', 1e6,
+                          None, "a gain of 1e6 per kelvin second is beyond any controller"),
+    "derivative_gain": Kind("s/K", "derivative gain [s/K]", '"10 s/K", "0.2 min/K"', 1e9, None,
+                            "a gain of 1e9 s/K is beyond any controller"),
 }
 
 _SI_UNITS = {name: ureg.parse_units(k.si) for name, k in KINDS.items()}
@@ -217,7 +294,8 @@ def _split(value, kind, where, file):
 
 
 def parse_quantity(value, kind: str, where: str = "", *, file: str = "", positive: bool = False,
-                   nonnegative: bool = False, bare_si: bool = False) -> float:
+                   nonnegative: bool = False, bare_si: bool = False,
+                   check_range: bool = True) -> float:
     """Convert a number or a text with unit to a float in the SI unit of ``kind``.
 
     Parameters
@@ -243,6 +321,9 @@ def parse_quantity(value, kind: str, where: str = "", *, file: str = "", positiv
         Require a value >= 0.
     bare_si : bool, optional
         Accept a bare number as already in SI (for programmatic use; never for case files).
+    check_range : bool, optional
+        Refuse magnitudes outside the kind's range (``KINDS[kind].largest`` and, for non-zero
+        values, ``KINDS[kind].smallest``).  Default True; False for a bare unit factor.
 
     Returns
     -------
@@ -253,7 +334,8 @@ def parse_quantity(value, kind: str, where: str = "", *, file: str = "", positiv
     ------
     CaseError
         Unknown kind or unit, a unit of the wrong kind, a missing unit, a temperature at or
-        below absolute zero, or a sign that is not allowed.
+        below absolute zero, a sign that is not allowed, or a magnitude outside the kind's
+        range.
     """
     if kind not in KINDS:
         raise CaseError(f"unknown quantity kind {kind!r}", file=file, key=where,
@@ -282,7 +364,57 @@ def parse_quantity(value, kind: str, where: str = "", *, file: str = "", positiv
     if nonnegative and si < 0.0:
         raise CaseError(f"{_describe(value)} must not be negative", file=file, key=where,
                         allowed=f"zero or a positive {k.label.split(' [')[0]}, e.g. {k.examples}")
+    if check_range:
+        check_magnitude(si, kind, where, file=file, shown=_describe(value), positive=positive)
     return si
+
+
+def _si_symbol(k: Kind) -> str:
+    lab = k.label
+    return lab[lab.index("[") + 1:lab.index("]")] if "[" in lab else k.si
+
+
+def check_magnitude(si: float, kind: str, where: str = "", *, file: str = "", shown: str = "",
+                    positive: bool = False) -> None:
+    """Refuse an SI value whose magnitude lies outside the range of ``kind``.
+
+    Parameters
+    ----------
+    si : float
+        The value in the SI unit of ``kind``.
+    kind : str
+        One of :func:`kind_names`; its ``largest``/``smallest`` give the range (SI).
+    where, file : str, optional
+        Key path and file name for error messages.
+    shown : str, optional
+        The value as written in the file (default: the SI value).
+    positive : bool, optional
+        The value must be > 0 (so zero is not offered as an alternative in the message).
+
+    Raises
+    ------
+    CaseError
+        If ``|si|`` is above ``largest``, or not zero and below ``smallest``.
+    """
+    k = KINDS[kind]
+    noun = k.label.split(" [")[0]
+    sym = _si_symbol(k)
+    shown = shown or f"{si:g} {sym}"
+    a = abs(si)
+    size = " in magnitude" if si < 0 else ""
+    if k.largest is not None and not a <= k.largest:
+        why = f" ({k.why_large})" if k.why_large else ""
+        raise CaseError(
+            f"{shown} is {si:.3g} {sym}, more{size} than the largest {noun} fdwall accepts, "
+            f"{k.largest:g} {sym}{why}", file=file, key=where,
+            allowed=f"{_a(noun)} of at most {k.largest:g} {sym}{size}, e.g. {k.examples}")
+    if k.smallest is not None and a != 0.0 and a < k.smallest:
+        why = f" ({k.why_small})" if k.why_small else ""
+        raise CaseError(
+            f"{shown} is {si:.3g} {sym}, less{size} than the smallest {noun} fdwall accepts "
+            f"other than zero, {k.smallest:g} {sym}{why}", file=file, key=where,
+            allowed=("" if positive else "zero, or ")
+            + f"{_a(noun)} of at least {k.smallest:g} {sym}{size}, e.g. {k.examples}")
 
 
 def _convert(x, unit, unit_text, kind, where, file):
@@ -365,4 +497,8 @@ def parse_leakage(value, volume=None, where: str = "", *, file: str = "",
                         file=file, key=where, allowed=allowed)
     if flow < 0:
         raise CaseError(f"'{value}' must not be negative", file=file, key=where, allowed=allowed)
+    if unit.dimensionality == _DIMS["rate"]:
+        check_magnitude(float(ureg.Quantity(x, unit).to("1/s").magnitude), "rate", where,
+                        file=file, shown=_describe(value))
+    check_magnitude(flow, "volume_flow", where, file=file, shown=_describe(value))
     return flow
