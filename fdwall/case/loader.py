@@ -36,6 +36,18 @@ __all__ = ["load_case", "case_from_dict"]
 
 ROOM = 293.15  # default start/room temperature: 20 degC [K]
 
+# Limits on the size of the problem (common practice, no source): the default mesh has 2 to 24
+# cells per layer and is converged to second order, so these are orders of magnitude beyond
+# any accuracy need; they keep the arrays of a run within a few GB of memory.
+MAX_LAYER_CELLS = 10_000       # cells in one layer, after mesh_refine
+MAX_WALL_CELLS = 100_000       # cells in one wall, after mesh_refine
+MAX_REFINE = 100.0             # mesh_refine
+MAX_OUTPUTS = 1_000_000        # stored output times of a run
+MAX_STORED = 100_000_000       # stored temperatures: output times x nodes (0.8 GB as float64)
+# Other bounds on dimensionless factors (common practice, no source)
+MAX_VOLTAGE_RATIO = 10.0       # 10 x rated voltage = 100 x rated power: the element burns out
+MAX_MULTIPLIER = 100.0         # a factor of 100 on a correlation is no correction any more
+
 
 # ============================================================================ entry points
 
@@ -71,17 +83,28 @@ def load_case(path) -> Case:
                         allowed="the path of a TOML case file") from None
     except OSError as exc:
         raise CaseError(f"the file cannot be read ({exc.strerror or exc})", file=name) from None
+    if raw.startswith(b"\xef\xbb\xbf"):  # a UTF-8 byte-order mark, as some editors write
+        raw = raw[3:]
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:
-        raise CaseError(f"the file is not UTF-8 text (byte {exc.start})", file=name,
-                        allowed="a TOML file saved as UTF-8") from None
+        line = raw[:exc.start].count(b"\n") + 1
+        col = exc.start - (raw.rfind(b"\n", 0, exc.start) + 1) + 1
+        raise CaseError(f"the file is not UTF-8 text: byte 0x{raw[exc.start]:02x} at line {line}, "
+                        f"column {col} (byte {exc.start}) is not UTF-8", file=name,
+                        allowed="a TOML file saved as UTF-8 (re-save it as UTF-8 in the "
+                                "editor; degree signs and accents are fine in UTF-8)") from None
     try:
         data = _toml.loads(text)
     except _toml.TOMLDecodeError as exc:
         raise CaseError(f"the file is not valid TOML: {exc}", file=name,
                         allowed="TOML syntax: key = value lines, [table] and [[array]] "
                                 'headers; text values in quotes, e.g. thickness = "100 mm"') from None
+    if not data:
+        raise CaseError("the file holds no keys: it is empty or has only comments", file=name,
+                        allowed="a case file with a [run] table and a [wall] table (or [[walls]] "
+                                "with a [chamber]), as in the demo cases in cases/ and "
+                                "docs/case-file.md")
     return case_from_dict(data, name, text=text, stem=p.stem)
 
 
@@ -151,6 +174,15 @@ def _combine(func, *parts):
     return vs[0] if len(set(vs)) == 1 else Schedule(ts, vs)
 
 
+def _at_most(sec, name, default, hi, why):
+    """A positive dimensionless factor of ``sec`` no larger than ``hi``."""
+    x = sec.quantity(name, "dimensionless", default, positive=True)
+    if x > hi:
+        raise sec.error(name, f"{sec.raw(name)!r} is more than fdwall accepts for {name} "
+                              f"({hi:g}): {why}", f"a number above 0 and at most {hi:g}")
+    return x
+
+
 def _max(x) -> float:
     return max(x.values) if isinstance(x, Schedule) else float(x)
 
@@ -171,6 +203,7 @@ class _Loader:
         self.stem = stem or Path(self.file).stem or "case"
         self.top = Section(data, "", self.file, S.TOP, "the case file")
         self.user_materials = {}
+        self.n_nodes = 1  # temperatures solved for (estimate: wall nodes + chamber)
 
     # ------------------------------------------------------------------ whole case
     def case(self) -> Case:
@@ -236,6 +269,7 @@ class _Loader:
                                 f"the run ({run.raw('duration')!r})", file=self.file,
                                 key=join(run.key("snapshots"), i),
                                 allowed="times between 0 and the duration")
+        self._check_outputs(run, duration, out_every, len(snaps))
         tol = run.quantity("tolerance", "temperature_difference", 0.01, positive=True)
         max_step = run.quantity("max_step", "time", None, positive=True)
         steady_at = run.quantity("steady_at", "time", None, nonnegative=True)
@@ -258,6 +292,23 @@ class _Loader:
                 case = Case(run=settings, walls=tuple(ews), chamber=chamber, heater=heater,
                             control=control, name=title, source=self.text)
         return self._check(case)
+
+    def _check_outputs(self, run, duration, out_every, n_snaps):
+        """Refuse runs that would store more results than memory holds."""
+        dt = out_every if out_every is not None else duration / 200.0
+        n_out = duration / dt + 2 + n_snaps
+        key = "output_every" if run.has("output_every") else "duration"
+        if n_out > MAX_OUTPUTS:
+            raise run.error(key, f"a run of {run.raw('duration')!r} with results every "
+                                 f"{run.raw('output_every', f'{dt:g} s')!r} stores {n_out:.3g} "
+                                 f"output times, more than fdwall keeps ({MAX_OUTPUTS:g})",
+                            f"an output_every of at least the duration / {MAX_OUTPUTS:g} "
+                            f"({duration / MAX_OUTPUTS:.3g} s here)")
+        if n_out * self.n_nodes > MAX_STORED:
+            raise run.error(key, f"{n_out:.3g} output times x about {self.n_nodes} temperatures "
+                                 f"make {n_out * self.n_nodes:.3g} stored values, more than fdwall "
+                                 f"keeps ({MAX_STORED:g}, {MAX_STORED * 8 / 1e9:g} GB)",
+                            "a longer output_every, or fewer cells (cells, mesh_refine)")
 
     def _check(self, case):
         """Assemble the system once: catches inconsistencies early, with the file named."""
@@ -323,7 +374,8 @@ class _Loader:
                             "a list of numbers, ascending powers of T: [c0, c1, c2, ...]")
         tu = sec.text("temperature_unit", "K", choices=("K", "degC", "degF"))
         unit = sec.text("unit")
-        factor = parse_value(f"1 {unit}", kind, sec.key("unit"), self.file)
+        factor = U.parse_quantity(f"1 {unit}", kind, sec.key("unit"), file=self.file,
+                                  check_range=False)
         lo = sec.quantity("valid_from", "temperature")
         hi = sec.quantity("valid_to", "temperature")
         if not hi > lo:
@@ -332,7 +384,15 @@ class _Loader:
         # T_u = a T_K + b: the polynomial in T_u expanded in powers of T_K
         a, b = {"K": (1.0, 0.0), "degC": (1.0, -273.15), "degF": (1.8, -459.67)}[tu]
         p = np.polynomial.Polynomial([float(x) for x in c])(np.polynomial.Polynomial([b, a]))
-        return {"coeffs": [float(x) * factor for x in p.coef], "T_min": lo, "T_max": hi}
+        coeffs = [float(x) * factor for x in p.coef]
+        T = np.linspace(lo, hi, 201)
+        with np.errstate(all="ignore"):
+            vals = np.polynomial.polynomial.polyval(T, coeffs)
+        for Ti, v in zip(T, vals):
+            if v > 0 or not np.isfinite(v):  # sign: checked by the material itself
+                U.check_magnitude(float(v), kind, sec.key("coefficients"), file=self.file,
+                                  shown=f"the polynomial at {Ti:.6g} K", positive=True)
+        return {"coeffs": coeffs, "T_min": lo, "T_max": hi}
 
     def _material(self, name, key):
         if not isinstance(name, str) or not name.strip():
@@ -383,13 +443,19 @@ class _Loader:
                 r_in *= 0.5
             length = sec.quantity("length", "length", 1.0, positive=True)
             area = 1.0
-        refine = sec.quantity("mesh_refine", "dimensionless", 1.0, positive=True)
+        refine = _at_most(sec, "mesh_refine", 1.0, MAX_REFINE,
+                          "the default mesh is already converged; more cells only cost memory")
         lsecs = sec.tables("layers", S.LAYER, "a layer")
         layers, starts = [], []
         for i, ls in enumerate(lsecs):
             mat = self._material(ls.raw("material"), ls.key("material"))
             th = ls.quantity("thickness", "length", positive=True)
             cells = ls.integer("cells", None, minimum=1)
+            if cells is not None and cells > MAX_LAYER_CELLS:
+                raise ls.error("cells", f"{cells} cells is more than fdwall meshes in one layer "
+                                        f"({MAX_LAYER_CELLS}); the default of 2 to 24 cells is "
+                                        "already converged",
+                               f"a whole number from 1 to {MAX_LAYER_CELLS}, or leave cells out")
             lname = ls.text("name", "")
             start_l = ls.quantity("start_temperature", "temperature", None)
             starts.append(start_l)
@@ -411,6 +477,7 @@ class _Loader:
         with _model(self.file, sec.path, f"wall '{name}'"):
             wall = Wall(layers=tuple(layers), geometry=shape, area=area, inner_radius=r_in,
                         length=length, contact=contact, refine=refine, name=name)
+        nodes = self._check_mesh(sec, wall, lsecs)
         geo = dict(wall=wall, orientation=orientation)
         if not enclosure:
             if sec.has("bridge"):
@@ -436,10 +503,33 @@ class _Loader:
         bridge = None
         if sec.has("bridge"):
             bridge = self._bridge(sec.table("bridge", S.BRIDGE, "a thermal bridge"), wall)
+            self.n_nodes += nodes  # the bridge is a second path through the wall
         with _model(self.file, sec.path, f"wall '{name}'"):
             ew = EnclosureWall(wall=wall, outer=outer, inner_h=inner_h, inner_emissivity=inner_eps,
                                bridge=bridge)
         return ew, starts
+
+    def _check_mesh(self, sec, wall, lsecs):
+        """Refuse meshes too large to hold in memory; count the wall's nodes."""
+        from ..mesh import default_cells
+        refine = wall.refine
+        cells = [int(math.ceil(l.cells * refine)) if l.cells is not None else c
+                 for l, c in zip(wall.layers, default_cells(wall))]
+        for i, (l, c) in enumerate(zip(wall.layers, cells)):
+            if c > MAX_LAYER_CELLS:
+                raise lsecs[i].error("cells", f"{l.cells} cells times mesh_refine = {refine:g} "
+                                              f"makes {c} cells, more than fdwall meshes in one "
+                                              f"layer ({MAX_LAYER_CELLS})",
+                                     f"cells x mesh_refine up to {MAX_LAYER_CELLS}")
+        if sum(cells) > MAX_WALL_CELLS:
+            raise sec.error("mesh_refine" if sec.has("mesh_refine") else "layers",
+                            f"the wall's mesh would have {sum(cells)} cells, more than fdwall "
+                            f"meshes in one wall ({MAX_WALL_CELLS})",
+                            f"fewer cells or a smaller mesh_refine: up to {MAX_WALL_CELLS} cells "
+                            "per wall")
+        nodes = sum(cells) + len(cells) + 1
+        self.n_nodes += nodes
+        return nodes
 
     def _bridge(self, sec, wall):
         if wall.geometry != "slab":
@@ -535,7 +625,11 @@ class _Loader:
             w = geo["wall"]
             default_area = w.inner_area if side == "inner" else w.outer_area
             A = sec.quantity("heater_area", "area", default_area, positive=True)
-            fluxes.append(_combine(lambda p: p / A, P))
+            q = _combine(lambda p: p / A, P)
+            U.check_magnitude(max(abs(_max(q)), abs(_min(q))), "heat_flux",
+                              sec.key("heater_area" if sec.has("heater_area") else "heater_power"),
+                              file=self.file, shown="heater_power / heater_area")
+            fluxes.append(q)
         sol = [k for k in ("solar_absorptivity", "solar_irradiance") if sec.has(k)]
         if len(sol) == 1:
             other = "solar_irradiance" if sol[0] == "solar_absorptivity" else "solar_absorptivity"
@@ -595,7 +689,9 @@ class _Loader:
                                        "a vertical plate" if need == "height" else
                                        "a horizontal plate, area/perimeter") + ")")
         where = sec.exclusive("altitude", "pressure")
-        kw = {"multiplier": sec.quantity("multiplier", "dimensionless", 1.0, positive=True)}
+        kw = {"multiplier": _at_most(sec, "multiplier", 1.0, MAX_MULTIPLIER,
+                                     "a factor that large is no correction of the correlation "
+                                     "any more; give film_coefficient instead")}
         if where == "altitude":
             kw["altitude"] = sec.quantity("altitude", "length")
         elif where == "pressure":
@@ -741,8 +837,10 @@ class _Loader:
         with _model(self.file, sec.path, "the heater"):
             return Heater(power=P, location={"inner_face": "inner"}.get(placement, placement),
                           wall=j, interface=iface,
-                          voltage_ratio=sec.quantity("voltage_ratio", "dimensionless", 1.0,
-                                                     positive=True),
+                          voltage_ratio=_at_most(sec, "voltage_ratio", 1.0, MAX_VOLTAGE_RATIO,
+                                                 "an element on ten times its rated voltage "
+                                                 "takes a hundred times its rated power and "
+                                                 "burns out"),
                           alpha=sec.quantity("resistance_coefficient", "inverse_temperature",
                                              0.0, nonnegative=True),
                           t_ref=sec.quantity("rated_at", "temperature", ROOM))
