@@ -144,6 +144,17 @@ def _load(path_arg):
         raise InputError(f"cannot read case file '{path_arg}': {exc.strerror or exc}.") from None
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), path_arg)) from None
+    except (ArithmeticError, MemoryError) as exc:
+        raise InputError(_out_of_range(exc, path_arg)) from None
+
+
+def _out_of_range(exc, path_arg) -> str:
+    """Message for arithmetic that failed while a case was read or set up (nothing has run)."""
+    detail = " ".join(str(exc).split())[:200] or "no detail"
+    return (f"In case file '{path_arg}': the case could not be set up ({type(exc).__name__}: "
+            f"{detail}); a value in it is probably far outside what fdwall can compute with. "
+            "Check the sizes, properties, cell counts and times against docs/case-file.md; if "
+            "they are all sensible, please report this as a bug in fdwall.")
 
 
 def _build(case, path_arg):
@@ -160,6 +171,8 @@ def _build(case, path_arg):
         return system
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), path_arg)) from None
+    except (ArithmeticError, MemoryError) as exc:
+        raise InputError(_out_of_range(exc, path_arg)) from None
 
 
 # --------------------------------------------------------------------------- writing
