@@ -81,10 +81,20 @@ def test_other_argument_types_fall_back_to_the_jit_kernel():
 
 
 @needs_aot
-def test_a_module_built_from_other_sources_is_ignored(monkeypatch):
+def test_a_module_built_from_other_sources_is_ignored(monkeypatch, tmp_path):
     monkeypatch.setattr(native, "fingerprint", lambda: 12345)
     mod, why = native._load_extension()
     assert mod is None and "other sources" in why
+    # a stamp that matches while the module itself says otherwise is caught on import
+    stamp = tmp_path / "stamp"
+    stamp.write_text("12345\n")
+    monkeypatch.setattr(native, "_stamp_path", lambda: stamp)
+    mod, why = native._load_extension()
+    assert mod is None and "other sources" in why
+    # no stamp: not built, and the module is not even imported
+    monkeypatch.setattr(native, "_stamp_path", lambda: tmp_path / "missing")
+    mod, why = native._load_extension()
+    assert mod is None and "not built" in why
 
 
 def test_forcing_jit_by_environment(monkeypatch):

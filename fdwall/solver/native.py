@@ -151,10 +151,25 @@ def _make_caller(aot, jit, codes):
     return call
 
 
+def _stamp_path() -> pathlib.Path:
+    """Text file beside the module holding the fingerprint it was built with."""
+    return pathlib.Path(__file__).resolve().parent / f"{MODULE}.fingerprint"
+
+
 def _load_extension():
-    """The extension module if present, importable and built from these sources; else None."""
+    """The extension module if present, importable and built from these sources; else None.
+
+    The fingerprint is read from a text file beside the module before the module is even
+    imported (a module compiled for another CPU must not be loaded), then confirmed from the
+    module itself."""
     if os.environ.get("FDWALL_JIT", "") not in ("", "0"):
         return None, "FDWALL_JIT is set"
+    try:
+        stamp = int(_stamp_path().read_text().strip())
+    except (OSError, ValueError):
+        return None, "not built (run `fdwall compile`)"
+    if stamp != fingerprint():
+        return None, "built from other sources, versions or CPU (run `fdwall compile` again)"
     try:
         mod = importlib.import_module(f"{__package__}.{MODULE}")
     except ImportError:
@@ -236,7 +251,12 @@ def build(verbose: bool = False) -> pathlib.Path:
             raise RuntimeError(f"the compiler produced {[p.name for p in built]}, "
                                f"expected one {MODULE} extension module")
         final = dest_dir / built[0].name
+        stamp = pathlib.Path(tmp) / "stamp"
+        stamp.write_text(f"{fp}\n")
+        # the old stamp goes first: between the two moves no stamp matches a wrong module
+        _stamp_path().unlink(missing_ok=True)
         os.replace(built[0], final)
+        os.replace(stamp, _stamp_path())
     # stale modules under other names (another Python version) are left alone; clear any
     # leftover build folders of interrupted builds
     for p in dest_dir.glob(".build-*"):
