@@ -20,7 +20,10 @@ from .materials import Material, get_material, list_materials
 from .physics.convection import Convection
 from .system import build_system
 from .solver import ConvergenceError, run, solve_steady
-from .result import Result, read_result
+from .result import Result, read_result, _version
+
+#: Installed version of fdwall (from the package metadata; "0+unknown" from a bare source tree).
+__version__ = _version()
 
 __all__ = [
     "load_case", "run", "solve_steady", "read_result", "Result", "build_system",

@@ -1,34 +1,7 @@
 """Results of a run: arrays, derived quantities (stored energy, energy ledger), HDF5 archive.
 
-HDF5 layout (one file per run; every dataset carries a ``units`` attribute)
-------------------------------------------------------------------------
-/                      attrs: fdwall_version, case_name, complete, message, created, kind
-/input/case_text       the case file as given (string)
-/input/resolved_json   resolved SI inputs (JSON string)
-/mesh/wall_<j>/x       node radius/depth [m]; attrs name, geometry; datasets layer_first,
-                       layer_last, interface_nodes (node indices within the wall)
-/time                  output times [s]
-/temperature           all unknowns at output times (n_time, n_unknowns) [K]; the chamber,
-                       if any, is the last column
-/faces/names           face labels '<wall>:inner' / '<wall>:outer'
-/faces/heat_flow       heat into the wall at each face (n_time, n_faces) [W]
-/faces/energy          cumulative heat into the wall at each face [J]
-/faces/h_convective    film coefficient (n_time, n_faces) [W/m2/K]
-/faces/h_radiative     linearised radiative coefficient (n_time, n_faces) [W/m2/K]
-/faces/temperature     face temperatures (n_time, n_faces) [K]
-/interfaces/wall_<j>   interface temperatures of solved wall j (n_time, n_interfaces) [K];
-                       attrs wall, between (the two layers of each interface)
-/energy/stored         total stored energy relative to the start (n_time) [J]
-/energy/stored_layers  per layer (n_time, n_layers) [J]; attrs layer_names
-/energy/stored_chamber chamber contents [J]
-/energy/heater         cumulative heater energy [J]
-/energy/loss_chamber   cumulative loss from the chamber by leakage/extra UA [J]
-/energy/residual       heat in - heat out - change in stored energy [J]
-/heater/power          heater power at output times [W]
-/heater/duty           mean heater duty over each output interval [-] (first entry 0)
-/events/names, /events/up, /events/down   first upward/downward crossing times [s] (NaN: none)
-/solver                attrs: accepted, rejected, newton_failures, newton_iterations, ...
-/steady/temperature    steady-state temperatures of all unknowns [K] (when solved)
+The HDF5 layout (groups, datasets, attributes, units) and the JSON summary are documented in
+docs/results.md, which tests/test_audit_results.py holds to the files actually written.
 """
 from __future__ import annotations
 

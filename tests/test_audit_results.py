@@ -261,12 +261,11 @@ def test_archive_round_trips_the_in_memory_result(run, tmp_path):
         _close(d[key], ref, key)
     for j in range(len(run.sysm.walls)):
         _close(d[f"interfaces/wall_{j}"], r.interface_T(j).reshape(len(r.times), -1), j)
-    # version: the installed distribution's metadata (outside the package code); fdwall has
-    # no __version__ attribute yet -- if one is added it must agree
+    # version: the installed distribution's metadata (outside the package code), the archive,
+    # the summary and fdwall.__version__ all agree
     from importlib.metadata import version
     assert d["attrs"]["fdwall_version"] == version("fdwall") == run.summary["fdwall_version"]
-    if hasattr(fdwall, "__version__"):
-        assert d["attrs"]["fdwall_version"] == fdwall.__version__
+    assert d["attrs"]["fdwall_version"] == fdwall.__version__
     # the case file text, exactly as on disk
     assert d["input/case_text"] == run.case_path.read_bytes().decode("utf-8")
     resolved = json.loads(d["input/resolved_json"])
@@ -527,9 +526,10 @@ def test_cumulative_energies_are_integrals_of_the_flows(run):
 def test_radiative_coefficient_follows_stefan_boltzmann(run):
     """h_rad = eps sigma (Ts^2 + Tr^2)(Ts + Tr) (Stefan-Boltzmann, linearised; Incropera,
     Fundamentals of Heat and Mass Transfer, eq. 1.9) on the outer faces with a constant
-    emissivity, sigma from scipy.constants (CODATA).  The coefficient stored is the one of the
-    step that spans the output (docs/results.md), so single outputs may be off by a few per
-    cent where the face temperature moves fast; most agree closely."""
+    emissivity, sigma from scipy.constants (CODATA).  Between solver steps the stored
+    coefficient is interpolated linearly between the step ends (docs/results.md), the
+    temperature by a cubic: measured at most 4e-4 apart (the pipe), tolerance 2e-3.  (Before
+    the interpolation, the step-end value was stored: up to 6.6 % off.)"""
     with h5py.File(run.h5, "r") as h:
         rj = json.loads(h["input/resolved_json"][()])
         t, Ts, hr = h["time"][()], h["faces/temperature"][()], h["faces/h_radiative"][()]
@@ -546,7 +546,7 @@ def test_radiative_coefficient_follows_stefan_boltzmann(run):
             if n.split("~")[0] == f"{wname}:outer" or n == f"{wname}~bridge:outer":
                 ref = eps * Stefan_Boltzmann * (Ts[:, f] ** 2 + Tr ** 2) * (Ts[:, f] + Tr)
                 err = np.abs(hr[:, f] / ref - 1.0)
-                assert np.median(err) < 1e-2 and err.max() < 0.1, (n, err.max())
+                assert np.median(err) < 1e-4 and err.max() < 2e-3, (n, err.max())
                 checked += 1
     assert checked >= 1
 

@@ -512,11 +512,12 @@ def _hermite_cross(y0, y1, d0, d1, h, thr):
 
 
 @njit(cache=True)
-def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hcw, hrw, exa, exb,
+def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hca, hra, hcb, hrb, exa, exb,
                acc_a, acc_b, qd_a, qd_b, dirich_node, dirich_sched, dirich_face, s_off, stab, nf,
                T_out, qf_out, E_out, P_out, hc_out, hr_out):
     """Write output row ``k`` at fraction ``th`` of the step: cubic Hermite in the states
-    (slopes F/C) and in the cumulative energies (slopes = the flows), linear in the flows."""
+    (slopes F/C) and in the cumulative energies (slopes = the flows), linear in the flows and
+    the film coefficients (step start ``a``, step end ``b``)."""
     nun = Ta.shape[0]
     s2 = th * th
     s3 = s2 * th
@@ -535,8 +536,8 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hcw, hrw, exa, exb
         T_out[k, dirich_node[kk]] = sched_eval(s_off, stab, dirich_sched[kk], tk, 1.0)
     for f in range(nf):
         qf_out[k, f] = (1 - th) * qa[f] + th * qb[f]
-        hc_out[k, f] = hcw[f]
-        hr_out[k, f] = hrw[f]
+        hc_out[k, f] = (1 - th) * hca[f] + th * hcb[f]
+        hr_out[k, f] = (1 - th) * hra[f] + th * hrb[f]
         E_out[k, f] = h00 * acc_a[f] + h10 * hs * qa[f] + h01 * acc_b[f] + h11 * hs * qb[f]
     for kk in range(nd):
         f = dirich_face[kk]
@@ -594,6 +595,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     q1 = np.empty(nf)
     hcw = np.empty(nf)
     hrw = np.empty(nf)
+    hc0 = np.empty(nf)
+    hr0 = np.empty(nf)
     ex0 = np.zeros(2)
     exg = np.zeros(2)
     ex1 = np.zeros(2)
@@ -718,6 +721,11 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                      s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, Jd, Jl, Ju, Jcol, Jrow,
                      q0, hcw, hrw, ex0)
             stats[ST_ASSEMBLE] += 1
+        # film coefficients at the start of the step (hcw/hrw hold the state just assembled,
+        # or the end of the previous step), for the outputs inside the step
+        for f in range(nf):
+            hc0[f] = hcw[f]
+            hr0[f] = hrw[f]
         accepted = False
         while not accepted:
             dh = D_COEF * hs
@@ -898,8 +906,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
             th = (t_out[k] - t0s) / hs
             if th >= 1.0 - 1e-12 or land and t_out[k] >= t_target:
                 th = 1.0
-            _write_row(k, th, hs, t_out[k], Tprev, T, F0, C0, F1, Cap, q0, q1, hcw,
-                       hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b, dirich_node, dirich_sched,
+            _write_row(k, th, hs, t_out[k], Tprev, T, F0, C0, F1, Cap, q0, q1, hc0, hr0,
+                       hcw, hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b, dirich_node, dirich_sched,
                        dirich_face, s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out, hr_out)
             k += 1
         for kk in range(nd):
