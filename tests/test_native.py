@@ -4,7 +4,10 @@ safe fallback for arguments of other types, stale builds ignored.
 The physics of both paths is checked by the rest of the suite (which runs through
 ``fdwall.solver.native``, i.e. the ahead-of-time module when it is built, as in `.ci/run`);
 here the two compiled forms of the same source are held to each other, and the guard rails
-that keep a wrong or stale module from being called are exercised.
+that keep a wrong or stale module from being called are exercised.  Source: none needed for
+the agreement of two builds of one source; the outside checks of the numbers are the
+verification tests (Carslaw & Jaeger, Incropera, CoolProp ...), which run on the compiled
+module in CI.
 """
 from __future__ import annotations
 
@@ -64,7 +67,7 @@ def test_steady_and_helpers_agree(monkeypatch):
 
 def test_other_argument_types_fall_back_to_the_jit_kernel():
     # schedule of two knots: 0 s -> 300 K, 100 s -> 500 K; at 25 s linear interpolation gives
-    # 350 K (hand arithmetic)
+    # 350 K (hand arithmetic; common practice, no source)
     s_off = np.array([0, 2], dtype=np.int64)
     stab = np.array([[0.0, 100.0], [300.0, 500.0]])
     native.FALLBACKS.clear()

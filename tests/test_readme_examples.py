@@ -5,6 +5,8 @@ absolute; the second block's ``daily_case`` (a placeholder in the README) is the
 heat-treat furnace.  Physics is checked elsewhere; here two outside facts keep the run
 honest: the energy ledger closes (first law) and the lab-furnace skin stays between room
 temperature and the furnace's inner face (second law: heat flows from hot to cold).
+Source: the first and second laws as stated in Incropera, Fundamentals of Heat and Mass
+Transfer, §1.3 (from memory).
 """
 import pathlib
 import re
