@@ -20,8 +20,17 @@ from dataclasses import dataclass
 import numpy as np
 
 from fdwall.materials import Material, Table
-from fdwall.model import (Case, Chamber, Control, EnclosureWall, Face, Heater, Layer,
-                          RunSettings, Wall)
+from fdwall.model import (
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Wall,
+)
 from fdwall.schedule import Schedule
 
 SIGMA = 5.670374419e-8          # Stefan-Boltzmann constant [W/m2/K4] (CODATA 2018)

@@ -333,6 +333,7 @@ def matched(geometry, quick, repeats, use_fipy, compile_s):
 
 def enclosure(quick, repeats):
     from fdwall.solver import run
+
     from .peers import be_enclosure
     say("### (c) five-wall enclosure, thermostat")
     say()
@@ -522,8 +523,8 @@ def cycling_case(cycles, tol):
         a = c * P.DURATION
         t += [a, a + P.HEAT_OFF, a + P.HEAT_OFF, a + P.DURATION]
         v += [P.FLUX, P.FLUX, 0.0, 0.0]
-    from fdwall.schedule import Schedule
     from fdwall.model import Face
+    from fdwall.schedule import Schedule
     # consecutive cycles meet as (end, 0), (start, FLUX): a repeated time is a step
     tt, vv = t, v
     case = P.wall_case(tolerance=tol, refine=M.BENCH_REFINE, duration=cycles * P.DURATION)
@@ -610,8 +611,9 @@ def exchange_cost(repeats, tol):
     prebuilt) measured in this run; the target is at most about 2x.
     """
     from dataclasses import replace
-    from fdwall import Convection, Face, build_system, run
+
     from benchmarks import problems as P
+    from fdwall import Convection, Face, build_system, run
     base = P.wall_case("slab", tolerance=tol)
     variants = [
         ("fixed h = 8 W/m2/K", base),

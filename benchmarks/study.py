@@ -22,6 +22,7 @@ def study(n, tolerance, refine):
     """Solve ``n`` variants; returns (peak skin [K] per variant, peak inner face [K], seconds
     spent in building the cases/systems, seconds in the solver kernel calls)."""
     from fdwall.solver import run
+
     from . import problems as P
     V = P.variants(n)
     skin = np.empty(n)
@@ -44,7 +45,9 @@ def main(argv=None):
     t0 = time.perf_counter()
     global np
     import numpy as np
+
     import fdwall.solver  # noqa: F401
+
     from . import problems  # noqa: F401
     t1 = time.perf_counter()
     study(1, a.tolerance, a.refine)          # first variant: compilation or cache load

@@ -13,14 +13,26 @@ The small public API::
 Cases can also be built in Python from :mod:`fdwall.model` objects (Wall, Layer, Face, ...),
 materials from :func:`get_material`, and film coefficients from :class:`Convection`.
 """
-from .model import (Bridge, Case, Chamber, Control, EnclosureWall, Event, Face, Heater, Layer,
-                    ModelError, RunSettings, Wall)
-from .schedule import Schedule
 from .materials import Material, get_material, list_materials
+from .model import (
+    Bridge,
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Event,
+    Face,
+    Heater,
+    Layer,
+    ModelError,
+    RunSettings,
+    Wall,
+)
 from .physics.convection import Convection
-from .system import build_system
+from .result import Result, _version, read_result
+from .schedule import Schedule
 from .solver import ConvergenceError, run, solve_steady
-from .result import Result, read_result, _version
+from .system import build_system
 
 #: Installed version of fdwall (from the package metadata; "0+unknown" from a bare source tree).
 __version__ = _version()

@@ -14,6 +14,7 @@ from typing import Optional, Union
 
 import numpy as np
 
+from .errors import InputError
 from .schedule import Schedule
 
 __all__ = [
@@ -22,7 +23,7 @@ __all__ = [
 ]
 
 
-class ModelError(ValueError):
+class ModelError(InputError):
     """An inconsistent or physically impossible model input."""
 
 

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import json
 import os
-from dataclasses import dataclass, field, asdict
+from dataclasses import dataclass
 from datetime import datetime, timezone
 
 import numpy as np
@@ -302,6 +302,7 @@ class Result:
     def write_hdf5(self, path) -> str:
         """Write the run to ``path`` atomically (a temporary file renamed when complete)."""
         import h5py
+
         from .atomic import atomic_path
         path = os.fspath(path)
         with atomic_path(path, ".h5.part") as tmp:

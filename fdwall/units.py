@@ -41,7 +41,7 @@ from dataclasses import dataclass
 
 import pint
 
-from .case.errors import CaseError
+from .errors import CaseError
 
 __all__ = ["ureg", "KINDS", "Kind", "parse_quantity", "parse_unit", "parse_leakage",
            "check_magnitude", "kind_names", "CaseError"]

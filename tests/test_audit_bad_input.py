@@ -32,10 +32,10 @@ import math
 import os
 import subprocess
 import sys
-import tomllib
 from pathlib import Path
 
 import pytest
+import tomllib
 
 import fdwall.cli as cli
 

@@ -32,18 +32,29 @@ import math
 
 import numpy as np
 import pytest
-from dataclasses import replace
 from scipy.integrate import quad
 from scipy.optimize import brentq
 
 from fdwall.analyses import (
-    hold_duty, periodic_state, steady_duty, summarise_enclosure, switch_on_times,
+    hold_duty,
+    periodic_state,
+    steady_duty,
+    summarise_enclosure,
+    switch_on_times,
     warm_up_time,
 )
 from fdwall.analyses.lumped import fit_one_node, implied_rc
 from fdwall.materials import material_from_dict
 from fdwall.model import (
-    Case, Chamber, Control, EnclosureWall, Face, Heater, Layer, RunSettings, Wall,
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Wall,
 )
 from fdwall.schedule import Schedule
 from fdwall.solver import run, solve_steady

@@ -20,7 +20,6 @@ import contextlib
 import io
 import json
 import math
-import os
 import re
 from pathlib import Path
 

@@ -19,8 +19,8 @@ _ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 if _ROOT not in sys.path:
     sys.path.insert(0, _ROOT)
 
-from benchmarks import methods as M        # noqa: E402
-from benchmarks import problems as P       # noqa: E402
+from benchmarks import methods as M  # noqa: E402
+from benchmarks import problems as P  # noqa: E402
 
 
 @pytest.fixture(scope="module")

@@ -16,9 +16,9 @@ import math
 import numpy as np
 import pytest
 
-from fdwall.system import build_system
 from fdwall.case import CaseError, load_case
 from fdwall.schedule import Schedule
+from fdwall.system import build_system
 
 C0 = 273.15  # K, SI Brochure
 

@@ -15,18 +15,18 @@ References outside fdwall, named beside each check:
 from __future__ import annotations
 
 import math
-import tomllib
 from pathlib import Path
 
 import numpy as np
 import pytest
 import scipy.constants as sc
+import tomllib
 
-from fdwall.system import build_system
 from fdwall.case import CaseError, case_from_dict, case_warnings, load_case
 from fdwall.materials import get_material
 from fdwall.physics.radiation import get_finish
 from fdwall.schedule import Schedule
+from fdwall.system import build_system
 
 CASES = Path(__file__).resolve().parents[1] / "cases"
 DEMOS = sorted(CASES.glob("*.toml"))

@@ -20,9 +20,20 @@ from pathlib import Path
 import pytest
 
 import fdwall.cli as cli
+import fdwall.cli.common as cli_common
 from fdwall.materials import get_material, material_from_dict
-from fdwall.model import (Case, Chamber, Control, EnclosureWall, Face, Layer, ModelError,
-                          RunSettings, Wall, Heater)
+from fdwall.model import (
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    ModelError,
+    RunSettings,
+    Wall,
+)
 
 K0 = 273.15
 REPO = Path(__file__).resolve().parents[1]
@@ -97,7 +108,7 @@ def fake_reader(monkeypatch, tmp_path):
 
     def load(path):
         return made[Path(path).stem](), ["demo warning from the reader"]
-    monkeypatch.setattr(cli, "_load_case", load)
+    monkeypatch.setattr(cli_common, "_load_case", load)
     for stem in made:
         (tmp_path / f"{stem}.toml").write_text("# placeholder\n")
     return tmp_path
@@ -225,7 +236,7 @@ def test_ctrl_c_leaves_no_file(fake_reader, capsys, monkeypatch):
 def test_model_error_from_reader_is_exit_2(monkeypatch, tmp_path, capsys):
     def bad(path):
         raise ModelError("emissivity must lie between 0 and 1, got (1.2,)")
-    monkeypatch.setattr(cli, "_load_case", bad)
+    monkeypatch.setattr(cli_common, "_load_case", bad)
     f = tmp_path / "broken.toml"
     f.write_text("# placeholder\n")
     rc, out, err = _main(capsys, "run", f, "--out", tmp_path / "o")
@@ -435,7 +446,9 @@ def _check_steady_layers_by_fourier(path, st):
     the material's k(T); the temperatures are the ones the CLI reported.
     """
     import math
+
     from scipy.integrate import quad
+
     from fdwall.case import load_case
     from fdwall.system import build_system
     case = load_case(path)

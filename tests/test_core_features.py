@@ -3,8 +3,21 @@ steady state with the heater switched off, per-layer start temperatures."""
 import numpy as np
 import pytest
 
-from fdwall import (Case, Chamber, Control, EnclosureWall, Event, Face, Heater, Layer,
-                    RunSettings, Schedule, Wall, run, solve_steady)
+from fdwall import (
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Event,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Schedule,
+    Wall,
+    run,
+    solve_steady,
+)
 from fdwall.materials import Constant, Material
 
 # A box of six thin, very conductive walls behaves as one lumped node (Incropera §5.2,

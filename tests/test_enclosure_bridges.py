@@ -11,14 +11,24 @@ Sources
   (Incropera, Table 4.1, cases 8 and 9).
 * First law per control volume (chamber node, each wall) for the energy breakdown.
 """
+from dataclasses import replace
+
 import numpy as np
 import pytest
-from dataclasses import replace
 
 from fdwall.analyses import energy_breakdown, steady_duty, summarise_enclosure
 from fdwall.materials import material_from_dict
 from fdwall.model import (
-    Bridge, Case, Chamber, Control, EnclosureWall, Face, Heater, Layer, RunSettings, Wall,
+    Bridge,
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Wall,
 )
 from fdwall.solver import run
 

@@ -19,11 +19,24 @@ import numpy as np
 import pytest
 
 from fdwall.analyses import (
-    energy_breakdown, hold_duty, settle_time, steady_duty, switch_on_times, warm_up_time,
+    energy_breakdown,
+    hold_duty,
+    settle_time,
+    steady_duty,
+    switch_on_times,
+    warm_up_time,
 )
 from fdwall.materials import material_from_dict
 from fdwall.model import (
-    Case, Chamber, Control, EnclosureWall, Face, Heater, Layer, RunSettings, Wall,
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Wall,
 )
 from fdwall.schedule import Schedule
 from fdwall.solver import run, solve_steady

@@ -11,14 +11,24 @@ Sources
   temperature: the transient part decays exponentially; from memory).
 * First law over the cycles: sum of (heater - losses) = rise of the stored enthalpy.
 """
+from dataclasses import replace
+
 import numpy as np
 import pytest
-from dataclasses import replace
 
 from fdwall.analyses import periodic_state
 from fdwall.materials import material_from_dict
 from fdwall.model import (
-    Case, Chamber, Control, EnclosureWall, Face, Heater, Layer, ModelError, RunSettings, Wall,
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    ModelError,
+    RunSettings,
+    Wall,
 )
 from fdwall.schedule import Schedule
 from fdwall.solver import run

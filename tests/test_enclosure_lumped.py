@@ -12,18 +12,32 @@ Sources
 * Air rho*cp for the leakage conductance: CoolProp (air at 293.15 K, 101325 Pa).
 """
 import math
+from dataclasses import replace
 
 import numpy as np
 import pytest
-from dataclasses import replace
 
 from fdwall.analyses import (
-    cooldown, energy_breakdown, hold_duty, size_heater, steady_duty, summarise_enclosure,
+    cooldown,
+    energy_breakdown,
+    hold_duty,
+    size_heater,
+    steady_duty,
+    summarise_enclosure,
     warm_up_time,
 )
 from fdwall.materials import material_from_dict
 from fdwall.model import (
-    Case, Chamber, Control, EnclosureWall, Face, Heater, Layer, ModelError, RunSettings, Wall,
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    ModelError,
+    RunSettings,
+    Wall,
 )
 from fdwall.schedule import Schedule
 from fdwall.solver import run, solve_steady
@@ -264,6 +278,7 @@ def test_chamber_ua_follows_the_room_temperature():
     20 to 40 degC cuts the leakage conductance by the density ratio 293.15/313.15 (ideal gas,
     from memory: rho = p / (R T))."""
     from CoolProp.CoolProp import PropsSI
+
     from fdwall.system import build_system
     room = Schedule([0.0, 3600.0], [293.15, 313.15])
     case = replace(network_case(900.0), chamber=Chamber(capacity=2e4, ambient=room,

@@ -3,8 +3,18 @@ capacitance; series resistances, Incropera ch. 3)."""
 import numpy as np
 import pytest
 
-from fdwall import (Case, Chamber, Control, EnclosureWall, Face, Heater, Layer, RunSettings,
-                    Wall, run)
+from fdwall import (
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Wall,
+    run,
+)
 from fdwall.analyses.lumped import fit_one_node, implied_rc, one_node_response
 from fdwall.materials import Constant, Material
 

@@ -14,9 +14,18 @@ import dataclasses
 import numpy as np
 import pytest
 
-from fdwall.materials import (Constant, Material, MaterialError, Polynomial, Table,
-                              check_service_temperature, get_material, list_materials,
-                              material_from_dict, read_library)
+from fdwall.materials import (
+    Constant,
+    Material,
+    MaterialError,
+    Polynomial,
+    Table,
+    check_service_temperature,
+    get_material,
+    list_materials,
+    material_from_dict,
+    read_library,
+)
 
 C2K = 273.15
 

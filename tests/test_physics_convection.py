@@ -18,9 +18,6 @@ import math
 import numpy as np
 import pytest
 from CoolProp.CoolProp import PropsSI
-from numba import njit
-from scipy.integrate import quad
-
 from ht.conv_external import (
     Nu_cylinder_Churchill_Bernstein,
     Nu_horizontal_plate_laminar_Baehr,
@@ -32,6 +29,8 @@ from ht.conv_free_immersed import (
     Nu_vertical_cylinder_Popiel_Churchill,
     Nu_vertical_plate_Churchill,
 )
+from numba import njit
+from scipy.integrate import quad
 
 from fdwall.physics import convection as cv
 from fdwall.physics.convection import PAR_LEN, Convection, combined_h, h_conv

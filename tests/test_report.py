@@ -12,11 +12,27 @@ import numpy as np
 import pytest
 
 from fdwall.materials import get_material, material_from_dict
-from fdwall.model import (Case, Chamber, Control, EnclosureWall, Event, Face, Heater, Layer,
-                          RunSettings, Wall)
+from fdwall.model import (
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Event,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Wall,
+)
 from fdwall.report import plots
-from fdwall.report.text import (TOUCH_CAUTION, format_case, format_material,
-                                format_material_list, format_steady, format_summary)
+from fdwall.report.text import (
+    TOUCH_CAUTION,
+    format_case,
+    format_material,
+    format_material_list,
+    format_steady,
+    format_summary,
+)
 from fdwall.solver import run, solve_steady
 from fdwall.system import build_system
 

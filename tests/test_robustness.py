@@ -12,8 +12,22 @@ control mode: the cases that once made the step size collapse at t = 0.
 import numpy as np
 import pytest
 
-from fdwall import (Bridge, Case, Chamber, Control, Convection, EnclosureWall, Face, Heater,
-                    Layer, RunSettings, Schedule, Wall, run, solve_steady)
+from fdwall import (
+    Bridge,
+    Case,
+    Chamber,
+    Control,
+    Convection,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Schedule,
+    Wall,
+    run,
+    solve_steady,
+)
 from fdwall.materials import get_material
 
 MATS = ["carbon-steel", "mineral-wool-128", "ceramic-fibre-blanket-96", "fireclay-brick-dense",

@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 from scipy.optimize import brentq
 
-from fdwall import Case, Convection, Face, Layer, RunSettings, Wall, solve_steady, run
+from fdwall import Case, Convection, Face, Layer, RunSettings, Wall, run, solve_steady
 from fdwall.materials import Constant, Material
 
 SIGMA = 5.670374419e-8  # CODATA 2018 Stefan-Boltzmann constant

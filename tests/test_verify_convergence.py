@@ -26,9 +26,9 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+import reference as ref
 from scipy.integrate import solve_ivp
 
-import reference as ref
 from fdwall.materials import Constant, Material, Table
 from fdwall.model import Case, Face, Layer, RunSettings, Wall
 from fdwall.schedule import Schedule

@@ -20,12 +20,21 @@ import math
 
 import numpy as np
 import pytest
+import reference as ref
 from scipy.integrate import quad, trapezoid
 
-import reference as ref
 from fdwall.materials import Constant, Material, Table
-from fdwall.model import (Case, Chamber, Control, EnclosureWall, Face, Heater, Layer,
-                          RunSettings, Wall)
+from fdwall.model import (
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Wall,
+)
 from fdwall.schedule import Schedule
 from fdwall.solver import run
 

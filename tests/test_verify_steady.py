@@ -13,8 +13,8 @@ import math
 
 import numpy as np
 import pytest
-
 import reference as ref
+
 from fdwall.materials import Constant, Material, Table
 from fdwall.model import Case, Face, Layer, RunSettings, Wall
 from fdwall.solver import run, solve_steady

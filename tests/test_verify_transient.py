@@ -20,8 +20,8 @@ import math
 
 import numpy as np
 import pytest
-
 import reference as ref
+
 from fdwall.materials import Constant, Material
 from fdwall.model import Case, Face, Layer, RunSettings, Wall
 from fdwall.solver import run

@@ -7,8 +7,8 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-from .fvkernel import assemble, thomas
 from .. import problems as P
+from .fvkernel import assemble, thomas
 
 
 @njit(cache=True)

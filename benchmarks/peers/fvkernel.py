@@ -7,7 +7,6 @@ Stefan-Boltzmann law.  Arrays only (see :class:`benchmarks.problems.FVProblem`).
 """
 from __future__ import annotations
 
-import numpy as np
 from numba import njit
 
 SIGMA = 5.670374419e-8   # Stefan-Boltzmann constant [W/m2/K4] (CODATA 2018)

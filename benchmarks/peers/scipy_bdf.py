@@ -10,8 +10,8 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.integrate import BDF, solve_ivp
 
-from .fvkernel import assemble
 from .. import problems as P
+from .fvkernel import assemble
 
 
 class CountingBDF(BDF):

@@ -21,8 +21,6 @@ semi-infinite solid, late it relaxes with its slowest mode.  :func:`fit_one_node
 """
 from __future__ import annotations
 
-from dataclasses import replace
-
 import numpy as np
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node"]

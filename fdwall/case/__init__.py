@@ -12,8 +12,8 @@ Quick use::
 
 The schema (tables, keys, units, defaults, examples) is documented in ``docs/case-file.md``.
 """
+from .checks import case_warnings
 from .errors import CaseError
 from .loader import case_from_dict, load_case
-from .checks import case_warnings
 
 __all__ = ["CaseError", "load_case", "case_from_dict", "case_warnings"]

@@ -12,7 +12,6 @@ from __future__ import annotations
 import contextlib
 import math
 import re
-from dataclasses import replace
 from pathlib import Path
 from typing import Mapping
 
@@ -25,8 +24,20 @@ except ModuleNotFoundError:  # pragma: no cover - Python 3.10
 
 from .. import units as U
 from ..materials import MaterialError, get_material, list_materials, material_from_dict
-from ..model import (Bridge, Case, Chamber, Control, EnclosureWall, Event, Face, Heater, Layer,
-                     ModelError, RunSettings, Wall)
+from ..model import (
+    Bridge,
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Event,
+    Face,
+    Heater,
+    Layer,
+    ModelError,
+    RunSettings,
+    Wall,
+)
 from ..schedule import Schedule
 from . import schema as S
 from .errors import CaseError
@@ -312,8 +323,8 @@ class _Loader:
 
     def _check(self, case):
         """Assemble the system once: catches inconsistencies early, with the file named."""
-        from ..system import build_system
         from ..solver.transient import event_rows
+        from ..system import build_system
         with _model(self.file, "(case)", "the case"):
             sysm = build_system(case)
         with _model(self.file, "run.watch", "a [[run.watch]] entry"):
@@ -359,7 +370,7 @@ class _Loader:
             for i, x in enumerate(vals):
                 if not x > 0:
                     raise CaseError(f"the value {v[i][1]!r} must be greater than zero", file=self.file,
-                                    key=join(join(k, i), 1), allowed=f"positive values")
+                                    key=join(join(k, i), 1), allowed="positive values")
             if len(T) == 1:
                 return vals[0]
             return {"T": T, "values": vals}

@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+from ..errors import InputError
 
-class MaterialError(ValueError):
+
+class MaterialError(InputError):
     """Bad material or property data: unknown name, bad value, bad table or dict.
 
     The message is one paragraph naming what was wrong and what is allowed.

@@ -1042,7 +1042,7 @@ class Convection:
         float or numpy.ndarray
             Film coefficient [W/m2/K].
         """
-        from ..solver import native   # compiled ahead of time when built
+        from ..solver import native  # compiled ahead of time when built
         par = np.array(self.par, dtype=float)
         if np.ndim(Ts) == 0 and np.ndim(Tf) == 0:
             return float(native.h_conv(par, float(Ts), float(Tf)))

@@ -13,6 +13,7 @@
 from __future__ import annotations
 
 import difflib
+
 try:
     import tomllib
 except ImportError:  # Python 3.10

@@ -21,8 +21,8 @@ _LAYER_FILLS = ["#f2efe9", "#e3e9f0"]
 
 
 def _figure(w=9.0, h=5.5, rows=1, cols=1, sharex=False):
-    from matplotlib.figure import Figure
     from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
     fig = Figure(figsize=(w, h), dpi=110, layout="constrained")
     FigureCanvasAgg(fig)
     axes = fig.subplots(rows, cols, sharex=sharex, squeeze=False)
@@ -173,7 +173,6 @@ def plot_profiles(result, path, times=None) -> str:
         The path written.
     """
     from matplotlib import colormaps
-    case = result.case
     walls = _walls(result)
     times = _profile_times(result, times)
     ncol = 1 if len(walls) <= 2 else 2
@@ -182,7 +181,6 @@ def plot_profiles(result, path, times=None) -> str:
     cmap = colormaps["viridis"]
     handles = None
     for j, (w, ax) in enumerate(zip(walls, axes)):
-        x_mm = result.x(j) * 1e3
         edges = np.concatenate([[0.0], np.cumsum([l.thickness for l in w.layers])]) * 1e3
         total = edges[-1]
         for i, layer in enumerate(w.layers):
@@ -248,7 +246,7 @@ def plot_energy(result, path) -> str:
     str
         The path written.
     """
-    case, sysm = result.case, result.system
+    sysm = result.system
     th = _hours(result)
     n_walls = len(_walls(result))
     outside = n_walls > 1

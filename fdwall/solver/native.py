@@ -84,8 +84,8 @@ def fingerprint() -> int:
 
 
 def _jit_functions():
-    from . import post
     from ..physics import air, convection
+    from . import post
     mods = {"kernels": _kernels, "post": post, "convection": convection, "air": air}
     return {name: getattr(mods[m], name) for name, (m, _, _) in ENTRIES.items()}
 
@@ -104,34 +104,34 @@ def _make_caller(aot, jit, codes):
     name = jit.__name__
     n = len(codes)
     names = [f"a{j}" for j in range(n)]
-    lines = [f"def call(*args):",
+    lines = ["def call(*args):",
              f"    if len(args) != {n}:",
-             f"        return fallback(args)",
+             "        return fallback(args)",
              f"    {', '.join(names)}{',' if n == 1 else ''} = args"]
     conv = []
     for a, c in zip(names, codes):
         if c == "f":
             lines.append(f"    if type({a}) is not float:")
             lines.append(f"        if not isinstance({a}, NUM) or isinstance({a}, BOOL):")
-            lines.append(f"            return fallback(args)")
+            lines.append("            return fallback(args)")
             lines.append(f"        {a} = float({a})")
         elif c == "i":
             lines.append(f"    if type({a}) is not int:")
             lines.append(f"        if not isinstance({a}, INT) or isinstance({a}, BOOL):")
-            lines.append(f"            return fallback(args)")
+            lines.append("            return fallback(args)")
             lines.append(f"        {a} = int({a})")
         elif c == "b":
             lines.append(f"    if not isinstance({a}, BOOL):")
-            lines.append(f"        return fallback(args)")
+            lines.append("        return fallback(args)")
             lines.append(f"    {a} = bool({a})")
         else:
             dt = "DF" if c[0] == "F" else "DI"
             lines.append(f"    if type({a}) is not ndarray or {a}.ndim != {int(c[1])} or "
                          f"({a}.dtype is not {dt} and {a}.dtype != {dt}):")
-            lines.append(f"        return fallback(args)")
+            lines.append("        return fallback(args)")
             lines.append(f"    fl = {a}.flags")
-            lines.append(f"    if not (fl.c_contiguous and fl.writeable):")
-            lines.append(f"        return fallback(args)")
+            lines.append("    if not (fl.c_contiguous and fl.writeable):")
+            lines.append("        return fallback(args)")
         conv.append(a)
     lines.append(f"    return aot({', '.join(conv)})")
 
@@ -223,6 +223,7 @@ def build(verbose: bool = False) -> pathlib.Path:
     interrupted build leaves any previous module untouched.  Takes tens of seconds.
     """
     import warnings
+
     from numba.core.errors import NumbaPendingDeprecationWarning
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", NumbaPendingDeprecationWarning)

@@ -151,10 +151,9 @@ def _solve(sysm, t, u, T0, tol):
 def _continuation(sysm, t, u, T0, tol):
     """Backward-Euler pseudo-time steps with growing step (a homotopy towards the steady state)."""
     T = T0.copy()
-    C = sysm.capacities(T)
     tau = 1.0
     nf = sysm.face_i.shape[0]
-    from .native import _newton_stage, N_STATS
+    from .native import N_STATS, _newton_stage
     stats = np.zeros(N_STATS)
     nun = sysm.n_unknowns
     work = [np.empty(nun) for _ in range(14)]
@@ -240,7 +239,7 @@ def solve_steady(case, t=None, system=None, guess=None, tol=1e-9) -> SteadyResul
     if g0 >= 0:
         T, qf, hc, hr, ex, it = cache[0.0]
         return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, True, it, t)
-    from scipy.optimize import brentq   # imported here: scipy.optimize takes ~0.3 s to load
+    from scipy.optimize import brentq  # imported here: scipy.optimize takes ~0.3 s to load
     u = brentq(gap, 0.0, 1.0, xtol=1e-12, rtol=1e-12)
     T, qf, hc, hr, ex, it = _solve(sysm, t, u, cache["T"], tol)
     return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], u, True, it, t)

@@ -11,19 +11,13 @@ import time as _time
 
 import numpy as np
 
+from ..errors import ConvergenceError
 from ..model import Case
 from ..system import System, build_system
 from . import native as K
 
 __all__ = ["run", "output_times", "event_rows", "ConvergenceError"]
 
-
-class ConvergenceError(RuntimeError):
-    """The solver could not continue; ``result`` holds what was computed (incomplete)."""
-
-    def __init__(self, message, result=None):
-        super().__init__(message)
-        self.result = result
 
 
 def output_times(case: Case) -> np.ndarray:
@@ -128,7 +122,6 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     extra = np.zeros(2)
     scratch = [np.empty(nun) for _ in range(7)]
     qf, hc, hr = np.empty(nf), np.empty(nf), np.empty(nf)
-    ctl = sysm.ctl_i
     u0 = _initial_u(sysm, T)
     cs = np.zeros(K.N_CS)
     if control_state is not None:
