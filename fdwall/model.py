@@ -19,8 +19,14 @@ from .schedule import Schedule
 
 __all__ = [
     "Layer", "Wall", "Face", "Chamber", "Heater", "Control", "EnclosureWall", "Bridge", "Event",
-    "RunSettings", "Case", "ModelError",
+    "RunSettings", "Case", "ModelError", "TOUCH_MARKS", "SURFACE_CLASSES",
 ]
+
+#: How reachable an outer face is, for touch-safety verdicts (fdwall.safety).
+TOUCH_MARKS = ("touchable", "guarded", "out-of-reach")
+
+#: Surface classes of the touch-safety threshold data (fdwall/analyses/touch_thresholds.toml).
+SURFACE_CLASSES = ("bare-metal", "coated-metal", "ceramic-glass-stone", "plastic", "wood")
 
 
 class ModelError(InputError):
@@ -200,6 +206,12 @@ class Face:
         radiation.
     surroundings : Schedule or float, optional
         Temperature of the radiant surroundings [K]; defaults to ``fluid``.
+    touch : {'touchable', 'guarded', 'out-of-reach'}
+        Whether people can touch this face (touch-safety verdicts skip guarded and
+        out-of-reach faces); default touchable.
+    surface_class : str, optional
+        Surface class for touch thresholds (one of :data:`SURFACE_CLASSES`); None: taken
+        from the outer layer's material and finish.
     """
 
     temperature: Optional[Schedule] = None
@@ -208,8 +220,15 @@ class Face:
     convection: Union[None, float, object] = None
     emissivity: Union[None, float, Schedule] = None
     surroundings: Optional[Schedule] = None
+    touch: str = "touchable"
+    surface_class: Optional[str] = None
 
     def __post_init__(self):
+        if self.touch not in TOUCH_MARKS:
+            raise ModelError(f"touch must be one of {', '.join(TOUCH_MARKS)}, got {self.touch!r}")
+        if self.surface_class is not None and self.surface_class not in SURFACE_CLASSES:
+            raise ModelError(f"surface class must be one of {', '.join(SURFACE_CLASSES)}, "
+                             f"got {self.surface_class!r}")
         object.__setattr__(self, "temperature", _sched("face temperature", self.temperature, True))
         object.__setattr__(self, "flux", _sched("face flux", self.flux))
         object.__setattr__(self, "fluid", _sched("fluid temperature", self.fluid, True))

@@ -569,8 +569,31 @@ class _Loader:
     def _face(self, sec, side, geo):
         if sec is None:
             return Face()
+        marks = self._touch_marks(sec, side)
+        face = self._face_conditions(sec, side, geo)
+        if marks:
+            from dataclasses import replace
+            face = replace(face, **marks)
+        return face
+
+    def _touch_marks(self, sec, side):
+        """``touch`` and ``surface_class`` of an outer face (fdwall touch), as Face fields."""
+        from ..model import SURFACE_CLASSES, TOUCH_MARKS
+        out = {}
+        for key, field_name, choices in (("touch", "touch", TOUCH_MARKS),
+                                         ("surface_class", "surface_class", SURFACE_CLASSES)):
+            if not sec.has(key):
+                continue
+            if side != "outer":
+                raise sec.error(key, f"'{key}' applies to outer faces only (the faces people "
+                                     "can touch)", f"{key} in the outer face's table")
+            out[field_name] = sec.text(key, choices=choices)
+        return out
+
+    def _face_conditions(self, sec, side, geo):
         if sec.has("fixed_temperature"):
-            others = [k for k in sec.data if k != "fixed_temperature"]
+            others = [k for k in sec.data if k not in ("fixed_temperature", "touch",
+                                                       "surface_class")]
             if others:
                 raise sec.error(others[0], f"'{others[0]}' has no effect: fixed_temperature "
                                            "holds the surface temperature and overrides every "

@@ -104,6 +104,9 @@ FACE = {
     "heater_area": "area the heater_power is spread over (default: the face area)",
     "solar_absorptivity": "solar absorptivity 0..1 (with solar_irradiance)",
     "solar_irradiance": 'solar irradiance on the face, e.g. "600 W/m2" or a schedule',
+    "touch": 'outer face only: "touchable" (default), "guarded" or "out-of-reach" (fdwall touch)',
+    "surface_class": 'outer face only: touch surface class "bare-metal", "coated-metal", '
+                     '"ceramic-glass-stone", "plastic" or "wood" (default: from the outer layer)',
 }
 
 CHAMBER_FACE = {
