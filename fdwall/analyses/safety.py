@@ -338,6 +338,26 @@ def _skin_layers():
     return tuple(out)
 
 
+def _resolved(wall_layers, skin, t_c, T_w, T_s):
+    """Wall and skin layers with cell counts that resolve the heated depth of a contact
+    lasting ``t_c`` [s] near the contact plane (cells of 0.07 sqrt(alpha t_c) within five
+    such depths of the plane; 4 to 600 cells per layer; other layers as meshed by default)."""
+    out = []
+    for side, lays, T in (("wall", wall_layers[::-1], T_w), ("skin", skin, T_s)):
+        depth = 0.0
+        res = []
+        for ly in lays:
+            k, rho, cp = _props(ly.material, T)
+            pen = math.sqrt(k / (rho * cp) * t_c)
+            if depth < 5 * pen:
+                n = int(min(600, max(4, math.ceil(ly.thickness / (0.07 * pen)))))
+                ly = replace(ly, cells=max(n, ly.cells or 0))
+            depth += ly.thickness
+            res.append(ly)
+        out.append(res[::-1] if side == "wall" else res)
+    return tuple(out[0]) + tuple(out[1])
+
+
 def _props(m, T):
     return float(m.k(T)), float(m.rho), float(m.cp(T))
 
@@ -381,7 +401,7 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
                      "contact time (the simulation covers short contacts)")
         t_c = MAX_SIMULATED_CONTACT
     nw = len(wall.layers)
-    layers = tuple(wall.layers) + skin
+    layers = _resolved(tuple(wall.layers), skin, t_c, T_wall[-1], Ts)
     contact = tuple(wall.contact) + (float(contact_resistance),) + (0.0,) * (len(skin) - 1)
     slab = Wall(layers=layers, geometry="slab", area=1.0, contact=contact,
                 name=f"{wall.name} + skin")

@@ -101,12 +101,15 @@ def _opt(args, name, kind, **kw):
 def cmd_touch(args) -> int:
     from ..safety import CRITERIA, DAMAGE_MODELS, SURFACE_CLASSES, evaluate_touch, write_touch_plots
     # options first: bad input must write nothing
-    if args.criterion not in CRITERIA:
-        from ..safety import _check_criterion
-        _check_criterion(args.criterion)
-    if args.surface is not None and args.surface not in SURFACE_CLASSES:
-        from ..safety import _check_class
-        _check_class(args.surface)
+    from ..analyses.safety import _check_class, _check_criterion
+    from ..errors import InputError as LibInputError
+    try:
+        if args.criterion not in CRITERIA:
+            _check_criterion(args.criterion)
+        if args.surface is not None and args.surface not in SURFACE_CLASSES:
+            _check_class(args.surface)
+    except LibInputError as exc:
+        raise InputError(str(exc)) from None
     if args.damage_model not in DAMAGE_MODELS:
         raise InputError(f"--damage-model: unknown coefficient set {args.damage_model!r}. "
                          f"Allowed: {', '.join(DAMAGE_MODELS)}.")
