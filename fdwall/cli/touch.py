@@ -99,10 +99,10 @@ def _opt(args, name, kind, **kw):
 
 
 def cmd_touch(args) -> int:
-    from ..safety import CRITERIA, DAMAGE_MODELS, SURFACE_CLASSES, evaluate_touch, write_touch_plots
     # options first: bad input must write nothing
     from ..analyses.safety import _check_class, _check_criterion
     from ..errors import InputError as LibInputError
+    from ..safety import CRITERIA, DAMAGE_MODELS, SURFACE_CLASSES, evaluate_touch, write_touch_plots
     try:
         if args.criterion not in CRITERIA:
             _check_criterion(args.criterion)
