@@ -905,17 +905,21 @@ def write_touch_plots(a: TouchAssessment, outdir, stem) -> list:
     paths = []
     if not a.faces:
         return paths
-    fig, ax = plt.subplots(figsize=(8, 4.5))
+    fig, ax = plt.subplots(figsize=(10, 4.8))
     scale, unit = (3600.0, "h") if a.faces[0].times[-1] > 7200 else (60.0, "min")
+    seen = set()
     for f in a.faces:
         ln, = ax.plot(f.times / scale, f.T - 273.15, label=f"{f.face} ({f.verdict})")
-        ax.axhline(f.limit_K - 273.15, color=ln.get_color(), ls="--", lw=1,
-                   label=f"limit {f.limit_K - 273.15:.1f} degC ({f.surface_class})")
+        key = round(f.limit_K, 3)
+        ax.axhline(f.limit_K - 273.15, color="k" if key not in seen else ln.get_color(),
+                   ls="--", lw=1, label=None if key in seen else
+                   f"limit {f.limit_K - 273.15:.1f} degC ({f.surface_class})")
+        seen.add(key)
     ax.set_xlabel(f"time [{unit}]")
     ax.set_ylabel("outer-face (skin) temperature [degC]")
     ax.set_title(f"Touch safety: {a.criterion} criterion, contact {a.contact_time_s:g} s")
     ax.grid(alpha=0.3)
-    ax.legend(fontsize=8)
+    ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
     fig.text(0.01, 0.01, "Engineering estimate: confirm by measurement.", fontsize=7)
     fig.tight_layout(rect=(0, 0.03, 1, 1))
     p = outdir / f"{stem}-touch.png"
@@ -925,7 +929,7 @@ def write_touch_plots(a: TouchAssessment, outdir, stem) -> list:
     paths.append(p)
     sims = [f for f in a.faces if f.contact_history is not None]
     if sims:
-        fig, ax = plt.subplots(figsize=(8, 4.5))
+        fig, ax = plt.subplots(figsize=(10, 4.8))
         for f in sims:
             h = f.contact_history
             ln, = ax.plot(h.times, h.T_surface - 273.15, label=f"{f.face}: skin surface")
@@ -937,7 +941,7 @@ def write_touch_plots(a: TouchAssessment, outdir, stem) -> list:
         ax.set_ylabel("temperature [degC]")
         ax.set_title(f"Contact simulation ({_damage_set(sims[0].contact_history.model)['title']})")
         ax.grid(alpha=0.3)
-        ax.legend(fontsize=8)
+        ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
         fig.text(0.01, 0.01, "Engineering indicator, not a medical prediction.", fontsize=7)
         fig.tight_layout(rect=(0, 0.03, 1, 1))
         p = outdir / f"{stem}-contact.png"
