@@ -109,3 +109,48 @@ def test_bad_case_key(tmp_path, capsys):
     p = _case(tmp_path, 'surface_class = "glas"')
     rc = main(["touch", str(p), "--out", str(tmp_path / "o")])
     assert rc == 2 and "surface_class" in capsys.readouterr().err
+
+
+def test_run_stopped_early_gives_unknown_and_exit_3(tmp_path, capsys, monkeypatch):
+    # a run that stops early (simulated here by marking the real result incomplete) gives
+    # verdict "unknown" for every face and exit code 3, as the interface promises
+    import dataclasses
+
+    import fdwall.solver as solver
+    real = solver.run
+
+    def stopped(*a, **kw):
+        r = real(*a, **kw)
+        return dataclasses.replace(r, complete=False, message="(test: stopped early)")
+    monkeypatch.setattr(solver, "run", stopped)
+    p = _case(tmp_path)
+    rc = main(["touch", str(p), "--out", str(tmp_path / "o"), "--json", "--no-plots"])
+    assert rc == 3
+    d = json.loads(capsys.readouterr().out)
+    assert d["complete"] is False
+    assert [f["verdict"] for f in d["faces"]] == ["unknown"]
+    assert d["faces"][0]["margin_K"] is None
+
+
+def test_weaver_stoll_set_selectable(tmp_path, capsys):
+    p = _case(tmp_path)
+    rc = main(["touch", str(p), "--out", str(tmp_path / "o"), "--json", "--no-plots",
+               "--damage-model", "weaver-stoll-1969", "--contact-resistance", "0.001 m2K/W"])
+    assert rc == 0
+    c = json.loads(capsys.readouterr().out)["faces"][0]["contact"]
+    assert c["damage_model"] == "weaver-stoll-1969" and len(c["damage_coefficients"]) == 2
+    assert c["contact_resistance_m2K_W"] == pytest.approx(0.001)
+
+
+@pytest.mark.parametrize("opts, words", [
+    (["--damage-model", "henriques"], "henriques-1947"),
+    (["--contact-resistance", "0.001"], "--contact-resistance"),
+    (["--ambient", "30"], "--ambient"),
+    (["--rise", "35 K"], "--criterion rise"),
+])
+def test_more_bad_options(tmp_path, capsys, opts, words):
+    p = _case(tmp_path)
+    out = tmp_path / "out"
+    assert main(["touch", str(p), "--out", str(out)] + opts) == 2
+    assert words in " ".join(capsys.readouterr().err.split())
+    assert not out.exists()
