@@ -787,7 +787,8 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
             ls = spreading_length(kk, outer_layer.thickness, hist.times[-1])
             thin = outer_layer.thickness < math.sqrt(alpha * hist.times[-1]) and len(wall.layers) > 1
             contact["spreading_length_m"] = ls
-            if thin and ls >= 0.3 * FINGERTIP_RADIUS:
+            hot = Tcont > skin_data()["basal_threshold_C"] + 273.15
+            if thin and hot and ls >= 0.3 * FINGERTIP_RADIUS:
                 msg = (f"{name}: the outer layer '{outer_layer.label}' is a thin conductive "
                        f"jacket (spreading length {ls * 1000:.3g} mm against a fingertip contact "
                        f"radius of about {FINGERTIP_RADIUS * 1000:.0f} mm): heat flows sideways "
