@@ -274,3 +274,46 @@ def test_json_is_plain_data():
     assert d["criterion"] == "table" and d["contact_time_s"] == 4.0
     c = d["faces"][0]["contact"]
     assert c["damage_model"] == "henriques-1947" and "basal_peak_K" in c and c["note"]
+
+
+def test_thin_jacket_against_thick_casting():
+    # Carslaw & Jaeger sec. 2.15: on a thick steel casting (b ~ 13400 >> b_skin ~ 1050) the
+    # skin surface stays near the instant contact temperature for the whole contact; a 1.5 mm
+    # jacket over insulation holds only rho c d (T - T_skin) per m2 and cools under the finger,
+    # so its skin and basal temperatures fall well below the casting's.
+    steel = _mat("steel", 50.0, 3.6e6)
+    wool = _mat("wool", 0.04, 1.0e5)
+    T = 70 + C
+    thick = Wall(layers=(Layer(steel, 0.1),))
+    thin = Wall(layers=(Layer(wool, 0.1), Layer(steel, 1.5e-3)))
+    r_thick = S.simulate_contact(thick, np.array([0.0, 0.1]), np.array([T, T]), 10.0)
+    r_thin = S.simulate_contact(thin, np.array([0.0, 0.1015]), np.array([T, T]), 10.0)
+    Tc = S.contact_temperature(T, math.sqrt(50.0 * 3.6e6))
+    assert np.all(np.abs(r_thick.T_surface[1:] - Tc) < 1.0)
+    assert r_thin.T_surface[-1] < Tc - 10.0
+    assert r_thin.T_basal.max() < r_thick.T_basal.max() - 5.0
+    assert r_thick.damage > r_thin.damage
+
+
+def test_surface_class_from_outer_layer():
+    # class rules of docs/touch-safety.md (common practice, no source): painted metal is
+    # coated, bright metal bare, glass ceramic-glass-stone
+    from fdwall.materials import get_material
+    steel = Layer(get_material("carbon-steel"), 2e-3)
+    glass = Layer(get_material("glass-soda-lime"), 5e-3)
+    assert S.surface_class_of(steel, Face(fluid=300.0, emissivity=0.9))[0] == "coated-metal"
+    assert S.surface_class_of(steel, Face(fluid=300.0, emissivity=0.1))[0] == "bare-metal"
+    assert S.surface_class_of(glass, Face(fluid=300.0, emissivity=0.9))[0] == \
+        "ceramic-glass-stone"
+
+
+def test_given_result_gives_the_same_answer():
+    # sizing and studies pass their own run: the answer must equal a fresh evaluation
+    from fdwall.solver import run, solve_steady
+    case = _slab_case(duration=1800.0)
+    r = run(case)
+    st = solve_steady(case)
+    a = S.evaluate_touch(case, result=r, steady=st, simulate_contact=False, sensitivity=False)
+    b = S.evaluate_touch(case, simulate_contact=False, sensitivity=False)
+    assert a.faces[0].T_max_K == pytest.approx(b.faces[0].T_max_K, abs=1e-9)
+    assert a.faces[0].margin_K == pytest.approx(b.faces[0].margin_K, abs=1e-9)
