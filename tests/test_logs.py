@@ -66,3 +66,33 @@ def test_reader_units():
                  file="x.csv")
     assert np.allclose(d["t_s"], [0, 60, 120])
     assert np.allclose(d["T_K"], [293.15, 298.15, 303.15])
+
+
+def test_cli_fit_recovers_R_and_bad_log_exit_2(tmp_path):
+    # Source: synthetic log from the closed-form one-node step response (Incropera sec. 5.3);
+    # exit codes as in fdwall.cli (common practice, no source).
+    import json
+    import subprocess
+    import sys
+    R, C, Ta = 0.05, 4e4, 293.15
+    t = np.arange(0, 14400, 60.0)
+    P = np.where(t < 7200, 2000.0, 0.0)
+    T = one_node_propagate(t, P, np.full(t.size, Ta), R, C, Ta)
+    T += np.random.default_rng(1).normal(0, 0.3, t.size)
+    lines = ["# invented data for a test", "time [s],oven [K],heater [W]"]
+    lines += [f"{a},{b:.3f},{c}" for a, b, c in zip(t, T, P)]
+    log = tmp_path / "log.csv"
+    log.write_text("\n".join(lines) + "\n")
+    cmd = [sys.executable, "-m", "fdwall.cli", "fit", str(log), "--time", "time",
+           "--temperature", "oven", "--power", "heater", "--ambient", "20 degC",
+           "--out", str(tmp_path / "o"), "--json"]
+    r = subprocess.run(cmd, capture_output=True, text=True)
+    assert r.returncode == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert abs(d["R_K_per_W"] - R) < 4 * d["R_stderr_K_per_W"]
+    assert (tmp_path / "o" / "log-fit.h5").exists()
+    log.write_text("time [s],oven [K],heater [W]\n0,300,1\n0,301,1\n2,302,1\n")
+    cmd[-2] = str(tmp_path / "bad")
+    r = subprocess.run(cmd, capture_output=True, text=True)
+    assert r.returncode == 2 and "duplicate" in r.stderr and "Traceback" not in r.stderr
+    assert not (tmp_path / "bad").exists()
