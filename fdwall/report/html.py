@@ -130,6 +130,12 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
     summary = _scalar_rows(data.get("summary", {}) or {}, units)
     tables = [_table(n, t, units) for n, t in (data.get("tables") or {}).items()
               if isinstance(t, dict)]
+    texts = []
+    for name, grp in data.items():  # long stored texts (case text, resolved case) as blocks
+        if isinstance(grp, dict):
+            for k in [k for k, v in grp.items() if isinstance(v, str) and len(v) > 120]:
+                texts.append((f"{name}.{k}", grp[k]))
+    long_keys = {t[0] for t in texts}
     for name, grp in data.items():  # other groups (run results): their 1-D columns as tables
         if name in skip or not isinstance(grp, dict):
             continue
@@ -137,7 +143,8 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         lens = {len(v) for v in cols.values()}
         if cols and len(lens) == 1:
             tables.append(_table(name, cols, units))
-        scal = {k: v for k, v in grp.items() if not isinstance(v, (np.ndarray, dict, list))}
+        scal = {k: v for k, v in grp.items() if not isinstance(v, (np.ndarray, dict, list))
+                and f"{name}.{k}" not in long_keys}
         summary += [(f"{name}.{n}", v, u) for n, v, u in _scalar_rows(scal, units)]
     inputs = data.get("inputs", {}) or {}
     case_text = inputs.get("case_text", "") if isinstance(inputs, dict) else ""
@@ -147,7 +154,7 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         case_name=attrs.get("case_name", h5_path.stem), caution=attrs.get("caution", ""),
         ident=[(k, ident.get(k) or "") for k in _IDENT_KEYS], summary=summary,
         inputs=_scalar_rows({k: v for k, v in inputs.items() if k != "case_text"}, units)
-        if isinstance(inputs, dict) else [], case_text=case_text, tables=tables,
+        if isinstance(inputs, dict) else [], case_text=case_text, texts=texts, tables=tables,
         images=_images(h5_path), warnings=_as_list(data.get("warnings")),
         references=_as_list(data.get("references")), notes=_as_list(data.get("notes")),
         version=attrs.get("fdwall_version", "not recorded"), kind=attrs.get("kind", "unknown"),
