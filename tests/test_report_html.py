@@ -120,3 +120,16 @@ def test_chromium_renders_not_blank(tmp_path):
     import matplotlib.image as mpimg
     img = mpimg.imread(str(png))
     assert np.var(img) > 1e-4
+
+
+def test_temperature_differences_are_not_shifted():
+    """A residual or standard error in kelvin is a difference: 1 K shows as 1 K (si) and as
+    1.8 degF (us), never as -272.15 degC (NIST SP 811: a kelvin difference equals a degC
+    difference and 1.8 degF differences, from memory); checked against pint's delta units."""
+    ureg = pint.UnitRegistry()
+    v, label = display(1.0, "K", "si", key="rms_K")
+    assert v == pytest.approx(1.0) and label == "K"
+    v, label = display(1.0, "K", "us", key="R_stderr_K")
+    assert v == pytest.approx(ureg.Quantity(1.0, "delta_degC").to("delta_degF").magnitude)
+    v, label = display(300.0, "K", "si", key="T_max_K")
+    assert v == pytest.approx(26.85) and label == "degC"

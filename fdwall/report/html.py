@@ -49,10 +49,10 @@ def _scalar_rows(d: dict, system: str):
             continue
         u = unit_of(k)
         if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool) and u:
-            conv, label = _units.display(float(v), u, system)
+            conv, label = _units.display(float(v), u, system, key=k)
             rows.append((_strip(k, u), _fmt(float(conv)), label))
         elif isinstance(v, np.ndarray) and v.dtype.kind in "fi" and u:
-            conv, label = _units.display(v, u, system)
+            conv, label = _units.display(v, u, system, key=k)
             rows.append((_strip(k, u), ", ".join(_fmt(x) for x in np.ravel(conv)[:20]), label))
         else:
             if isinstance(v, np.ndarray):
@@ -69,7 +69,7 @@ def _table(tname: str, cols: dict, system: str):
         arr = np.atleast_1d(np.asarray(v))
         u = unit_of(k)
         if arr.dtype.kind in "fi" and u:
-            arr, label = _units.display(arr, u, system)
+            arr, label = _units.display(arr, u, system, key=k)
             headers.append(f"{_strip(k, u)} [{label}]")
         else:
             headers.append(k)

@@ -34,11 +34,30 @@ def _reg():
     return _ureg
 
 
-def display(values, unit: str, system: str = "si"):
+#: Words in a key that mark a temperature *difference* (kelvin shown as K / degF difference,
+#: never shifted by 273.15): residuals, standard errors, margins, rises ...
+_DIFFERENCE_WORDS = ("rms", "residual", "stderr", "margin", "rise", "diff", "delta", "error",
+                     "band", "ripple", "std", "sigma", "dT", "span", "gap")
+
+
+def is_difference(key: str) -> bool:
+    """True when the result key ``key`` names a temperature difference rather than a level."""
+    low = key.lower()
+    return any(w.lower() in low for w in _DIFFERENCE_WORDS)
+
+
+def display(values, unit: str, system: str = "si", key: str = ""):
     """Convert SI ``values`` in ``unit`` (SUFFIX_UNITS text) to the display system.
 
-    Returns (converted values, label). Temperatures in K show as degC (si) or degF (us).
+    Returns (converted values, label). Temperatures in K show as degC (si) or degF (us);
+    temperature differences (``key`` names one, see :func:`is_difference`) as K or degF
+    difference.
     """
+    if unit == "K" and key and is_difference(key):
+        arr = np.asarray(values, dtype=float)
+        if system == "us":
+            return arr * 1.8, "degF (difference)"
+        return arr, "K"
     if system not in UNIT_SYSTEMS:
         raise ValueError(f"display units must be one of {UNIT_SYSTEMS}, not {system!r}")
     arr = np.asarray(values, dtype=float)
