@@ -39,6 +39,6 @@ def test_skin_with_correlation_and_radiation():
                 inner=Face(fluid=Ti, convection=1e7),
                 outer=Face(fluid=Ta, convection=Convection.natural_vertical(H), emissivity=EPS))
     r = size_layer(case, 0, [SkinTarget(Ts)])
-    # correlation property data differ between libraries: a few per cent (common practice)
-    assert r.thickness_exact_m == pytest.approx(L_ref, rel=0.03)
+    # correlation property data differ between libraries: measured 0.05 %, checked to 1 % (common practice)
+    assert r.thickness_exact_m == pytest.approx(L_ref, rel=0.01)
     assert math.isfinite(r.thickness_m)
