@@ -95,3 +95,26 @@ def test_failed_variant_recorded(tmp_path):
     _, rows = run_study(p, tmp_path, workers=1)
     bad = [r for r in rows if r["status"] == "failed"]
     assert len(bad) == 2 and all("thickness" in r["error"] for r in bad)
+
+
+def test_cli_and_read_table(tmp_path, capsys):
+    # closed form as in test_grid_against_series_resistance (Incropera sec. 3.1)
+    import json
+
+    import h5py
+
+    from fdwall.cli import main
+    from fdwall.study import read_table
+    p = _files(tmp_path)
+    assert main(["study", str(p), "--out", str(tmp_path / "o"), "--workers", "1",
+                 "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["summary"]["variants"] == 6 and d["summary"]["failed"] == 0
+    df = read_table(tmp_path / "o" / "s-study.csv")
+    assert len(df) == 6
+    q_max = 180.0 / (1 / 20 + 0.025 / 0.2 + 1 / 10)
+    assert df["loss [W]"].max() == pytest.approx(q_max, rel=1e-6)
+    with h5py.File(tmp_path / "o" / "s-study.h5") as h:
+        assert h.attrs["kind"] == "study"
+    assert main(["study", str(tmp_path / "missing.toml")]) == 2
+    assert main(["study", str(p), "--workers", "0"]) == 2

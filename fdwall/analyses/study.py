@@ -185,3 +185,13 @@ def run_study(path, out_dir=".", workers=None) -> tuple[str, list]:
         for r in rows:
             w.writerow([r[k] for k in keys])
     return csv_path, rows
+
+
+def read_table(path):
+    """Read a study table (DIR/<stem>-study.csv) into a pandas DataFrame.
+
+    Column names keep their ``name [unit]`` headers; the study hash line is skipped.
+    """
+    import pandas as pd   # optional heavy library, imported lazily
+    return pd.read_csv(path, comment="#", keep_default_na=False,
+                       na_values=["nan"])
