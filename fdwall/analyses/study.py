@@ -192,6 +192,6 @@ def read_table(path):
 
     Column names keep their ``name [unit]`` headers; the study hash line is skipped.
     """
-    import pandas as pd   # optional heavy library, imported lazily
+    import pandas as pd  # optional heavy library, imported lazily
     return pd.read_csv(path, comment="#", keep_default_na=False,
                        na_values=["nan"])
