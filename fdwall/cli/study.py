@@ -1,0 +1,83 @@
+"""``fdwall study STUDY.toml``: run a grid of case variants and write one table."""
+from __future__ import annotations
+
+import datetime
+import os
+from pathlib import Path
+
+from ..analyses.study import OUTPUTS, run_study
+from ..errors import InputError as LibInputError
+from ..h5tree import write_file
+from . import common
+from .common import InputError, WriteError
+
+
+def cmd_study(args) -> int:
+    if args.workers is not None and args.workers < 1:
+        raise InputError(f"--workers: {args.workers} is not allowed; give a whole number >= 1.")
+    if args.scheduler:
+        raise InputError("--scheduler: running on a Dask scheduler is not available yet in this "
+                         "version; leave the option out to run on local processes.")
+    stem = Path(args.study).stem
+    stem = stem[:-len("-study")] if stem.endswith("-study") else stem
+    outdir = common.output_dir(args, stem)
+    try:
+        outdir.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise WriteError(f"cannot create '{outdir}': {exc.strerror or exc}. Choose another "
+                         "folder with --out DIR.") from None
+    try:
+        csv_path, rows = run_study(args.study, outdir, workers=args.workers)
+    except LibInputError as exc:
+        raise InputError(str(exc)) from None
+    done = [r for r in rows if r["status"] == "done"]
+    keys = [k for k in rows[0] if k not in ("status", "error", "host", "worker")] if rows else []
+    table = {k.replace(".", "/") if k not in OUTPUTS else k: [r[k] for r in rows] for k in keys}
+    table.update(status=[r["status"] for r in rows], error=[r["error"] for r in rows])
+    summary = {"variants": len(rows), "done": len(done), "failed": len(rows) - len(done)}
+    for k in OUTPUTS:
+        vals = [r[k] for r in done]
+        if vals:
+            summary[f"{k[:-2]}_max{k[-2:]}"] = max(vals)
+            summary[f"{k[:-2]}_min{k[-2:]}"] = min(vals)
+    h5 = outdir / f"{stem}-study.h5"
+    try:
+        write_file(h5, {"inputs": {"study_file": str(args.study),
+                                   "workers": args.workers or os.cpu_count() or 1},
+                        "summary": summary, "tables": {"variants": table},
+                        "references": {"items": ["steady state by fdwall.solve_steady"]},
+                        "notes": {"items": ["every combination of the [[vary]] values is "
+                                            "one variant"]}},
+                   attrs={"kind": "study", "fdwall_version": common.version(),
+                          "case_name": stem,
+                          "created": datetime.datetime.now(datetime.UTC).isoformat()})
+    except OSError as exc:
+        raise WriteError(f"cannot write '{h5}': {exc.strerror or exc}.") from None
+    files = [str(csv_path), str(h5)]
+    report = common.write_report(args, h5)
+    if report:
+        files.append(str(report))
+    if args.json:
+        print(common.dumps({"summary": summary, "files": files}))
+    elif not args.quiet:
+        print(f"Study {args.study}: {summary['variants']} variants, {summary['done']} done, "
+              f"{summary['failed']} failed.")
+        for f in files:
+            print(f"  {f}")
+    return 0
+
+
+def register(sub) -> None:
+    p = sub.add_parser("study", help="run a grid of case variants (design study)",
+                       description="Run every variant of a study file and write one table "
+                                   "(CSV and HDF5) of steady answers per variant.")
+    p.add_argument("study", metavar="STUDY.toml", help="study file")
+    p.add_argument("--workers", type=int, default=None, metavar="N",
+                   help="local worker processes (default: all cores)")
+    p.add_argument("--scheduler", default=None, metavar="ADDRESS",
+                   help="Dask scheduler address (not available yet)")
+    p.add_argument("--seed", type=int, default=None, metavar="N",
+                   help="random seed (grids do not use it)")
+    p.add_argument("--restart", action="store_true", help="start the table over")
+    common.add_output_options(p)
+    p.set_defaults(func=cmd_study)
