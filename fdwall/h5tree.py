@@ -22,12 +22,13 @@ from __future__ import annotations
 
 import json
 import os
+from contextlib import contextmanager
 
 import numpy as np
 
-from .atomic import atomic_path
+from .atomic import write_bytes
 
-__all__ = ["write_tree", "read_tree", "add_group", "write_file", "unit_of", "SUFFIX_UNITS"]
+__all__ = ["h5_atomic", "write_tree", "read_tree", "add_group", "write_file", "unit_of", "SUFFIX_UNITS"]
 
 #: Key suffix -> unit text (longest suffix wins).
 SUFFIX_UNITS = {
@@ -150,36 +151,63 @@ def _read_member(g):
     return read_tree(g)
 
 
+@contextmanager
+def h5_atomic(path, source=None):
+    """Yield an in-memory HDF5 file; on success write its bytes to ``path`` atomically.
+
+    The file is built with h5py's ``core`` driver (no backing store), so a full disk or a
+    file-size limit can never hit h5py mid-write; the finished image goes through
+    :func:`fdwall.atomic.write_bytes` (OSError -> OutputError, no file left).  ``source``: an
+    existing file whose bytes start the image (to change a file), else the image starts empty.
+    """
+    import h5py
+    path = os.fspath(path)
+    if source is not None:
+        # core driver, no backing store: the file is read into memory, never written back
+        h = h5py.File(os.fspath(source), "r+", driver="core", backing_store=False)
+    else:
+        h = h5py.File(_MemName.next(), "w", driver="core", backing_store=False)
+    try:
+        yield h
+        h.flush()
+        data = h.id.get_file_image()
+    finally:
+        h.close()
+    write_bytes(path, data)
+
+
+class _MemName:
+    n = 0
+
+    @classmethod
+    def next(cls):
+        cls.n += 1
+        return f"fdwall-mem-{os.getpid()}-{cls.n}.h5"
+
+
 def add_group(path, name: str, data: dict, *, attrs: dict | None = None) -> str:
     """Add (or replace) the group ``name`` in the existing HDF5 file ``path``, atomically.
 
-    The file is copied to a temporary file beside it, changed there, and renamed over the
-    original, so a failure leaves the old file as it was.
+    The file is read into memory, changed there and written back through
+    :func:`h5_atomic`, so a failure leaves the old file as it was.
     """
-    import shutil
-
-    import h5py
     path = os.fspath(path)
-    with atomic_path(path, ".h5.part") as tmp:
-        shutil.copyfile(path, tmp)
-        with h5py.File(tmp, "a") as h:
-            if name in h:
-                del h[name]
-            g = h.create_group(name)
-            write_tree(g, data)
-            for k, v in (attrs or {}).items():
-                g.attrs[k] = v
+    with h5_atomic(path, source=path) as h:
+        if name in h:
+            del h[name]
+        g = h.create_group(name)
+        write_tree(g, data)
+        for k, v in (attrs or {}).items():
+            g.attrs[k] = v
     return path
 
 
 def write_file(path, groups: dict, *, attrs: dict | None = None) -> str:
     """Write a new HDF5 file atomically: one group per entry of ``groups``, root ``attrs``."""
-    import h5py
     path = os.fspath(path)
-    with atomic_path(path, ".h5.part") as tmp:
-        with h5py.File(tmp, "w") as h:
-            for k, v in (attrs or {}).items():
-                h.attrs[k] = v
-            for name, data in groups.items():
-                write_tree(h.create_group(name), data)
+    with h5_atomic(path) as h:
+        for k, v in (attrs or {}).items():
+            h.attrs[k] = v
+        for name, data in groups.items():
+            write_tree(h.create_group(name), data)
     return path

@@ -301,13 +301,10 @@ class Result:
 
     def write_hdf5(self, path) -> str:
         """Write the run to ``path`` atomically (a temporary file renamed when complete)."""
-        import h5py
-
-        from .atomic import atomic_path
+        from .h5tree import h5_atomic
         path = os.fspath(path)
-        with atomic_path(path, ".h5.part") as tmp:
-            with h5py.File(tmp, "w") as h:
-                self._write(h)
+        with h5_atomic(path) as h:
+            self._write(h)
         return path
 
     def _write(self, h):

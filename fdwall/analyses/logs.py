@@ -1,0 +1,202 @@
+"""Measured heating logs: reading them and fitting a one-node R/C model.
+
+Analyses layer (after lumped). SI inside: time in s, temperature in K, power in W,
+R in K/W, C in J/K. Column headers are ``name [unit]``; units follow the case-file grammar
+(parsed by :func:`fdwall.units.parse_unit`).
+"""
+from __future__ import annotations
+
+import io
+import re
+
+import numpy as np
+from scipy.optimize import least_squares
+
+from fdwall.errors import InputError
+from fdwall.units import parse_unit, ureg
+
+_HEADER = re.compile(r"^\s*([^\[\]]+?)\s*(?:\[([^\[\]]*)\])?\s*$")
+
+
+def _err(file, what, allowed=""):
+    msg = f"{file}: {what}"
+    if allowed:
+        msg += f"; allowed: {allowed}"
+    return InputError(msg)
+
+
+def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> dict:
+    """Read a CSV heating log into SI arrays.
+
+    Parameters
+    ----------
+    path_or_text : str or path
+        CSV file (lines starting with ``#`` are comments).
+    time : str
+        Name of the time column (part of the header before the bracket); unit s, min or h.
+    temperature : str or list of str
+        Temperature column name(s); several are averaged. Unit K or degC (degF).
+    power : str or float
+        Power column name, or a constant power in W.
+    ambient : str or float
+        Ambient column name, or a constant ambient temperature in K.
+
+    Returns
+    -------
+    dict
+        ``t_s``, ``T_K``, ``P_W``, ``T_amb_K`` as float arrays of equal length.
+
+    Raises
+    ------
+    InputError
+        For unreadable files, unknown columns, text in number columns, gaps, duplicate or
+        unsorted times; the message names the file, row and column.
+    """
+    import pandas as pd  # lazy: heavy optional dependency
+
+    name = str(file or path_or_text)
+    try:
+        if isinstance(path_or_text, str) and "\n" in path_or_text:
+            src = io.StringIO(path_or_text)
+        else:
+            src = path_or_text
+        df = pd.read_csv(src, comment="#", dtype=str, skipinitialspace=True)
+    except FileNotFoundError:
+        raise _err(name, "the log file does not exist") from None
+    except (UnicodeDecodeError, pd.errors.ParserError, pd.errors.EmptyDataError, OSError,
+            ValueError) as exc:
+        raise _err(name, f"cannot be read as CSV ({type(exc).__name__})",
+                   "comma-separated text with a header row 'name [unit],...'") from None
+    cols = {}
+    for raw in df.columns:
+        m = _HEADER.match(str(raw))
+        if not m:
+            raise _err(name, f"header {raw!r} is not 'name [unit]'", "headers like 'time [s]'")
+        key = m.group(1)
+        if key in cols:
+            raise _err(name, f"column name {key!r} appears twice")
+        cols[key] = (raw, m.group(2))
+    if len(df) < 3:
+        raise _err(name, f"has {len(df)} data rows", "at least 3 rows")
+
+    def column(key, kind):
+        if key not in cols:
+            raise _err(name, f"no column named {key!r}", "one of " + ", ".join(map(repr, cols)))
+        raw, unit = cols[key]
+        if not unit:
+            raise _err(name, f"column {key!r} has no unit in brackets",
+                       f"a header such as '{key} [{ {'time': 's', 'temperature': 'degC', 'power': 'W'}[kind]}]'")
+        try:
+            u = parse_unit(unit, where=key, file=name)
+        except InputError as exc:
+            raise _err(name, f"column {key!r}: {exc}") from None
+        vals = np.empty(len(df))
+        for i, s in enumerate(df[raw].tolist()):
+            row = i + 2  # header is row 1
+            if s is None or (isinstance(s, float) and np.isnan(s)) or str(s).strip() == "":
+                raise _err(name, f"row {row}, column {key!r}: empty cell (gap)",
+                           "a number in every cell")
+            try:
+                vals[i] = float(s)
+            except ValueError:
+                raise _err(name, f"row {row}, column {key!r}: {str(s)[:30]!r} is not a number",
+                           "a number in every cell") from None
+            if not np.isfinite(vals[i]):
+                raise _err(name, f"row {row}, column {key!r}: non-finite value", "finite numbers")
+        target = {"time": "s", "temperature": "K", "power": "W"}[kind]
+        try:
+            return np.asarray(ureg.Quantity(vals, u).to(target).magnitude, float)
+        except Exception:  # pint DimensionalityError and offset-unit errors
+            raise _err(name, f"column {key!r}: unit {unit!r} is not a {kind} unit") from None
+
+    t = column(time, "time")
+    d = np.diff(t)
+    if np.any(d == 0):
+        i = int(np.argmax(d == 0)) + 3
+        raise _err(name, f"row {i}, column {time!r}: duplicate time", "strictly increasing times")
+    if np.any(d < 0):
+        i = int(np.argmax(d < 0)) + 3
+        raise _err(name, f"row {i}, column {time!r}: time goes backwards (rows unsorted)",
+                   "strictly increasing times")
+    temps = [temperature] if isinstance(temperature, str) else list(temperature)
+    T = np.mean([column(c, "temperature") for c in temps], axis=0)
+    P = column(power, "power") if isinstance(power, str) else np.full(len(t), float(power))
+    Ta = (column(ambient, "temperature") if isinstance(ambient, str)
+          else np.full(len(t), float(ambient)))
+    return {"t_s": t, "T_K": T, "P_W": P, "T_amb_K": Ta}
+
+
+def one_node_propagate(t, P, T_amb, R, C, T0):
+    """Exact one-node response C dT/dt = P - (T - T_amb)/R, power held over each step.
+
+    Parameters in SI (s, W, K, K/W, J/K, K). ``P[i]`` and ``T_amb[i]`` act on [t[i], t[i+1]).
+    Returns temperatures in K at ``t``.
+    """
+    t = np.asarray(t, float)
+    T = np.empty_like(t)
+    T[0] = T0
+    tau = R * C
+    for i in range(len(t) - 1):
+        Tinf = T_amb[i] + P[i] * R
+        T[i + 1] = Tinf + (T[i] - Tinf) * np.exp(-(t[i + 1] - t[i]) / tau)
+    return T
+
+
+def _check_inputs(t, T, P, T_amb):
+    for nm, a in (("time", t), ("temperature", T), ("power", P), ("ambient", T_amb)):
+        if not np.all(np.isfinite(a)):
+            raise InputError(f"fit: {nm} holds non-finite values; allowed: finite numbers")
+    if np.any(np.diff(t) <= 0):
+        raise InputError("fit: times are not strictly increasing; allowed: sorted, unique times")
+    if np.nanmax(T) < 150.0:
+        raise InputError(f"fit: temperatures up to {np.max(T):.1f} K look like degC given as "
+                         "kelvin; allowed: K (or a degC column header)")
+    if np.all(P == 0):
+        raise InputError("fit: power is zero throughout, so R and C cannot be separated; "
+                         "allowed: a log with heating power (zero power gives the time constant "
+                         "only)")
+
+
+def fit_one_node_log(t, T, P, T_amb) -> dict:
+    """Fit R (K/W), C (J/K) and the start temperature to a log by least squares.
+
+    Standard errors are from the Jacobian, scaled by the residual variance and inflated for
+    lag-1 residual autocorrelation through the effective sample size n_eff = n (1-r1)/(1+r1).
+    Returns keys ``R_K_per_W``, ``R_stderr_K_per_W``, ``C_J_per_K``, ``C_stderr_J_per_K``,
+    ``tau_s``, ``rms_K``, ``lag1_autocorrelation``, ``n_eff``, ``correlation_RC``.
+    """
+    t, T, P, Ta = (np.asarray(a, float) for a in (t, T, P, T_amb))
+    _check_inputs(t, T, P, Ta)
+    Pm = max(np.mean(np.abs(P)), 1e-9)
+    R0 = max((np.max(T) - np.mean(Ta)) / np.max(np.abs(P)), 1e-6)
+    C0 = max((t[-1] - t[0]) / 3.0 / R0, 1e-6)
+
+    def res(x):
+        R, C = np.exp(x[0]), np.exp(x[1])
+        return one_node_propagate(t, P, Ta, R, C, x[2]) - T
+
+    sol = least_squares(res, [np.log(R0), np.log(C0), T[0]], x_scale=[1, 1, 1.0])
+    r = sol.fun
+    n, p = len(r), 3
+    rms = float(np.sqrt(np.mean(r ** 2)))
+    r1 = float(np.sum(r[1:] * r[:-1]) / max(np.sum(r ** 2), 1e-300)) if n > 2 else 0.0
+    r1c = min(max(r1, 0.0), 0.99)
+    n_eff = n * (1 - r1c) / (1 + r1c)
+    s2 = np.sum(r ** 2) / max(n - p, 1) * (n - p) / max(n_eff - p, 1.0)
+    J = sol.jac
+    try:
+        cov = np.linalg.inv(J.T @ J) * s2
+    except np.linalg.LinAlgError:
+        cov = np.full((3, 3), np.inf)
+    R, C = float(np.exp(sol.x[0])), float(np.exp(sol.x[1]))
+    sR, sC = float(np.sqrt(cov[0, 0])), float(np.sqrt(cov[1, 1]))
+    corr = float(cov[0, 1] / np.sqrt(cov[0, 0] * cov[1, 1])) if np.isfinite(cov).all() else 1.0
+    warnings = []
+    if abs(corr) > 0.95:
+        warnings.append(f"R and C are strongly correlated ({corr:+.2f}): the log may be too "
+                        "short to see equilibrium")
+    del Pm
+    return {"R_K_per_W": R, "R_stderr_K_per_W": R * sR, "C_J_per_K": C,
+            "C_stderr_J_per_K": C * sC, "tau_s": R * C, "T0_K": float(sol.x[2]),
+            "rms_K": rms, "lag1_autocorrelation": r1, "n_eff": float(n_eff),
+            "correlation_RC": corr, "warnings": warnings}

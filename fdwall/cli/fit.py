@@ -1,0 +1,110 @@
+"""``fdwall fit LOG.csv``: fit a one-node R/C model to a measured heating log."""
+from __future__ import annotations
+
+import datetime as _dt
+from pathlib import Path
+
+from . import common
+from .common import EXIT_OK, InputError, WriteError
+
+
+def _value_or_column(text, kind, option):
+    """A text that parses as a quantity with a unit is a value (SI); anything else a column."""
+    from ..errors import CaseError
+    from ..units import parse_quantity
+    try:
+        float(text)
+    except ValueError:
+        try:
+            return parse_quantity(text, kind, where=option)
+        except CaseError:
+            return str(text).strip()
+    return common.quantity(text, kind, option)  # bare number: rejected, naming the option
+
+
+def cmd_fit(args) -> int:
+    from ..analyses.logs import fit_one_node_log, read_log
+    from ..errors import InputError as LibInputError
+    if args.model != "one-node":
+        raise InputError(f"--model {args.model}: only one-node is available in this version. "
+                         "Allowed: one-node.")
+    power = _value_or_column(args.power, "power", "--power")
+    ambient = _value_or_column(args.ambient, "temperature", "--ambient")
+    temps = [c.strip() for c in args.temperature.split(",") if c.strip()]
+    if not temps:
+        raise InputError("--temperature: no column named. Allowed: COLUMN[,COLUMN...].")
+    try:
+        log = read_log(args.log, time=args.time, temperature=temps, power=power,
+                       ambient=ambient)
+        fit = fit_one_node_log(log["t_s"], log["T_K"], log["P_W"], log["T_amb_K"])
+    except LibInputError as exc:
+        raise InputError(str(exc)) from None
+    stem = Path(args.log).stem
+    outdir = common.output_dir(args, stem)
+    h5 = outdir / f"{stem}-fit.h5"
+    warns = fit.pop("warnings")
+    summary = {k: float(v) for k, v in fit.items()}
+    resid = log["T_K"] - _model(log, fit)
+    try:
+        from ..h5tree import write_file
+        outdir.mkdir(parents=True, exist_ok=True)
+        write_file(h5, {
+            "inputs": {"log": str(args.log), "time": args.time, "temperature": ",".join(temps),
+                       "power": str(args.power), "ambient": str(args.ambient),
+                       "model": args.model},
+            "summary": summary,
+            "tables": {"log": {"time_s": log["t_s"], "T_K": log["T_K"], "P_W": log["P_W"],
+                               "T_amb_K": log["T_amb_K"], "residual_K": resid}},
+            "warnings": {"items": warns or ["none"]},
+            "references": {"items": ["one-node lumped model, exact piecewise-constant-power propagation",
+                           "scipy.optimize.least_squares; standard errors from the Jacobian "
+                           "with an effective sample size n(1-r1)/(1+r1)"]},
+            "notes": {"items": ["R and C are the fitted lumped values of the whole equipment"]},
+        }, attrs={"kind": "fit", "fdwall_version": common.version(), "case_name": stem,
+                  "created": _dt.datetime.now(_dt.timezone.utc).isoformat()})
+    except OSError as exc:
+        raise WriteError(f"cannot write the results to '{outdir}': {exc.strerror or exc}. "
+                         "Choose another folder with --out DIR.") from None
+    files = [str(h5)]
+    report = common.write_report(args, h5)
+    if report:
+        files.append(str(report))
+    for w in warns:
+        common.warn(w)
+    if args.json:
+        print(common.dumps({**summary, "warnings": warns, "files": files}))
+    elif not args.quiet:
+        print(f"One-node fit of '{args.log}'")
+        print(f"  R    {fit['R_K_per_W']:.5g} +/- {fit['R_stderr_K_per_W']:.2g} K/W")
+        print(f"  C    {fit['C_J_per_K']:.5g} +/- {fit['C_stderr_J_per_K']:.2g} J/K")
+        print(f"  tau  {fit['tau_s']:.5g} s")
+        print(f"  residual RMS {fit['rms_K']:.3g} K, lag-1 autocorrelation "
+              f"{fit['lag1_autocorrelation']:.2f} (effective samples {fit['n_eff']:.0f})")
+        print("\nFiles written:")
+        for f in files:
+            print(f"  {f}")
+    return EXIT_OK
+
+
+def _model(log, fit):
+    from ..analyses.logs import one_node_propagate
+    return one_node_propagate(log["t_s"], log["P_W"], log["T_amb_K"], fit["R_K_per_W"],
+                              fit["C_J_per_K"], fit["T0_K"])
+
+
+def register(sub) -> None:
+    """Add the ``fit`` command."""
+    p = sub.add_parser("fit", help="fit a one-node R/C model to a measured heating log",
+                       description="Read a CSV heating log (headers 'name [unit]') and fit "
+                       "R (K/W) and C (J/K) of a one-node model over the whole power history.")
+    p.add_argument("log", metavar="LOG.csv", help="CSV log")
+    p.add_argument("--time", required=True, metavar="COLUMN", help="time column")
+    p.add_argument("--temperature", required=True, metavar="COLUMN[,COLUMN...]",
+                   help="temperature column(s); several are averaged")
+    p.add_argument("--power", required=True, metavar="COLUMN|VALUE",
+                   help='heater power column or a value, e.g. "2 kW"')
+    p.add_argument("--ambient", required=True, metavar="COLUMN|VALUE",
+                   help='ambient temperature column or a value, e.g. "20 degC"')
+    p.add_argument("--model", default="one-node", metavar="MODEL", help="one-node (default)")
+    common.add_output_options(p, plots=False, progress=False)
+    p.set_defaults(func=cmd_fit)

@@ -1,0 +1,109 @@
+"""``fdwall size CASE``: insulation thickness of one layer meeting steady targets."""
+from __future__ import annotations
+
+import re
+from datetime import datetime, timezone
+from pathlib import Path
+
+from . import common
+from .common import EXIT_OK, InputError, WriteError
+
+
+def _loss(text, geometry):
+    m = re.fullmatch(r"\s*([0-9.eE+-]+)\s*(W/m2|W/m|W)\s*", text or "")
+    want = {"slab": "W/m2", "cylinder": "W/m", "sphere": "W"}[geometry]
+    if not m or m.group(2) != want:
+        raise InputError(f"--loss-limit: {text!r} is not a heat loss for a {geometry} wall; "
+                         f"write it in {want}, e.g. \"50 {want}\".")
+    return float(m.group(1)), want
+
+
+def cmd_size(args) -> int:
+    from ..errors import InputError as LibInputError
+    from ..sizing import LossTarget, SkinTarget, size_layer
+    case, warns = common.load(args.case)
+    for w in warns:
+        common.warn(w)
+    if case.wall is None:
+        raise InputError(f"'{args.case}': sizing enclosure walls is not built yet; give a "
+                         "single-wall case.")
+    try:
+        layer = int(args.layer)
+    except ValueError:
+        names = [la.material.name for la in case.wall.layers]
+        if args.layer not in names:
+            import difflib
+            near = difflib.get_close_matches(args.layer, names)
+            raise InputError(f"--layer: no layer of material {args.layer!r} in '{args.case}'; "
+                             f"layers are {names}" + (f" (did you mean {near[0]}?)" if near
+                                                      else "") + ".") from None
+        layer = names.index(args.layer)
+    targets = []
+    if args.skin_limit:
+        targets.append(SkinTarget(common.quantity(args.skin_limit, "temperature",
+                                                  "--skin-limit")))
+    if args.loss_limit:
+        v, u = _loss(args.loss_limit, case.wall.geometry)
+        targets.append(LossTarget(v, unit=u))
+    if not targets:
+        raise InputError("give at least one target: --skin-limit TEMPERATURE or --loss-limit "
+                         "VALUE.")
+    step = stock = None
+    if args.stock:
+        stock = common.quantity_list(args.stock, "length", "--stock", positive=True)
+    else:
+        step = common.quantity(args.stock_step, "length", "--stock-step", positive=True)
+    tmin = common.quantity(args.min_thickness, "length", "--min-thickness", positive=True)
+    tmax = common.quantity(args.max_thickness, "length", "--max-thickness", positive=True)
+    try:
+        r = size_layer(case, layer, targets, t_min=tmin, t_max=tmax, step=step, stock=stock)
+    except LibInputError as exc:
+        raise InputError(f"'{args.case}': {exc}") from None
+    d = r.to_dict()
+    d.update({"case_file": str(args.case), "layer": layer})
+    stem = Path(args.case).stem
+    outdir = common.output_dir(args, stem)
+    h5 = outdir / f"{stem}-size.h5"
+    try:
+        from ..h5tree import write_file
+        outdir.mkdir(parents=True, exist_ok=True)
+        write_file(h5, {
+            "inputs": {"layer": layer, "t_min_m": tmin, "t_max_m": tmax},
+            "summary": {"thickness_m": r.thickness_m, "thickness_exact_m": r.thickness_exact_m},
+            "tables": {"tradeoff": r.table},
+            "text": {"warnings": r.warnings or ["none"],
+                     "references": ["grid bracket + scipy.optimize.brentq on the steady solve"],
+                     "notes": ["steady targets only"]}},
+            attrs={"kind": "size", "fdwall_version": common.version(),
+                   "case_name": stem, "caution": r.caution,
+                   "created": datetime.now(timezone.utc).isoformat()})
+    except OSError as exc:
+        raise WriteError(f"cannot write the results to '{outdir}': {exc}") from None
+    common.write_report(args, h5)
+    if args.json:
+        print(common.dumps(d))
+    elif not args.quiet:
+        print(f"Sizing layer {layer} of '{args.case}'")
+        print(f"  answer {r.thickness_m * 1000:.1f} mm (exact {r.thickness_exact_m * 1000:.2f}"
+              " mm)")
+        for t in r.targets:
+            print(f"  {t['name']}: {t['value']:.4g} {t['unit']} (limit {t['limit']:.4g}) "
+                  f"{t['verdict']}")
+        print(f"  {r.caution}")
+        print(f"Files written:\n  {h5}")
+    return EXIT_OK
+
+
+def register(sub) -> None:
+    """Add the ``size`` command."""
+    p = sub.add_parser("size", help="insulation thickness meeting steady skin / loss targets")
+    p.add_argument("case", metavar="CASE")
+    p.add_argument("--layer", required=True, metavar="N|MATERIAL")
+    p.add_argument("--skin-limit", metavar="TEMPERATURE")
+    p.add_argument("--loss-limit", metavar="VALUE")
+    p.add_argument("--stock-step", default="25 mm", metavar="LENGTH")
+    p.add_argument("--stock", metavar='"L1,L2,..."')
+    p.add_argument("--min-thickness", default="5 mm", metavar="LENGTH")
+    p.add_argument("--max-thickness", default="500 mm", metavar="LENGTH")
+    common.add_output_options(p)
+    p.set_defaults(func=cmd_size)

@@ -1,0 +1,175 @@
+"""Self-contained HTML calculation report rendered from an fdwall HDF5 result file.
+
+Layer: report (presents only, computes nothing). Reads the file with fdwall.h5tree, converts
+displayed numbers with fdwall.report.units and renders a Jinja2 template (CSS inline, images as
+base64 data URIs, no external resource). Files keep SI; display units are "si" (degC) or "us".
+"""
+from __future__ import annotations
+
+import base64
+from pathlib import Path
+
+import numpy as np
+
+from .. import atomic
+from ..errors import InputError
+from ..h5tree import read_tree, unit_of
+from . import units as _units
+
+__all__ = ["write_report", "render_report", "KINDS"]
+
+KINDS = ("transient", "steady", "touch", "size", "fit", "rc", "study")
+_IDENT_KEYS = ("project", "equipment", "author", "checker", "revision", "date")
+
+
+def _fmt(v) -> str:
+    if isinstance(v, (float, np.floating)):
+        return f"{float(v):.6g}"
+    return str(v)
+
+
+def _strip(key: str, unit: str) -> str:
+    for suf in sorted((s for s in _units_suffixes() if s), key=len, reverse=True):
+        if key.endswith(suf) and len(key) > len(suf):
+            return key[: -len(suf)]
+    return key
+
+
+def _units_suffixes():
+    from ..h5tree import SUFFIX_UNITS
+    return SUFFIX_UNITS.keys()
+
+
+def _scalar_rows(d: dict, system: str):
+    rows = []
+    for k, v in d.items():
+        if isinstance(v, dict):
+            for name, val, u in _scalar_rows(v, system):
+                rows.append((f"{k}.{name}", val, u))
+            continue
+        u = unit_of(k)
+        if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool) and u:
+            conv, label = _units.display(float(v), u, system, key=k)
+            rows.append((_strip(k, u), _fmt(float(conv)), label))
+        elif isinstance(v, np.ndarray) and v.dtype.kind in "fi" and u:
+            conv, label = _units.display(v, u, system, key=k)
+            rows.append((_strip(k, u), ", ".join(_fmt(x) for x in np.ravel(conv)[:20]), label))
+        else:
+            if isinstance(v, np.ndarray):
+                v = ", ".join(_fmt(x) for x in np.ravel(v)[:20])
+            elif isinstance(v, list):
+                v = ", ".join(_fmt(x) for x in v)
+            rows.append((k, _fmt(v), ""))
+    return rows
+
+
+def _table(tname: str, cols: dict, system: str):
+    headers, columns = [], []
+    for k, v in cols.items():
+        arr = np.atleast_1d(np.asarray(v))
+        u = unit_of(k)
+        if arr.dtype.kind in "fi" and u:
+            arr, label = _units.display(arr, u, system, key=k)
+            headers.append(f"{_strip(k, u)} [{label}]")
+        else:
+            headers.append(k)
+        columns.append([_fmt(x.decode() if isinstance(x, bytes) else x) for x in arr])
+    n = max((len(c) for c in columns), default=0)
+    rows = [[c[i] if i < len(c) else "" for c in columns] for i in range(n)]
+    return tname, headers, rows
+
+
+def _as_list(v):
+    if v is None:
+        return []
+    if isinstance(v, (list, tuple, np.ndarray)):
+        return [str(x) for x in v]
+    if isinstance(v, dict):  # a group holding one list (write_file groups are mappings)
+        return [x for item in v.values() for x in _as_list(item)]
+    return [str(v)]
+
+
+def read_result(h5_path) -> tuple[dict, dict]:
+    """Root attributes and groups of an fdwall result file; InputError when it is not one."""
+    import h5py
+    path = Path(h5_path)
+    try:
+        with h5py.File(path, "r") as f:
+            attrs = {k: (v.decode() if isinstance(v, bytes) else v) for k, v in f.attrs.items()}
+            data = read_tree(f)
+    except (OSError, ValueError) as exc:
+        raise InputError(f"'{path}' is not a readable HDF5 file ({exc}); give an fdwall result "
+                         "file (.h5) written by fdwall run, steady, touch, size, fit or study.") \
+            from None
+    if "fdwall_version" not in attrs and "kind" not in attrs:
+        raise InputError(f"'{path}' is not an fdwall result: it has no root attribute 'kind' or "
+                         "'fdwall_version'. Give a file written by an fdwall command.")
+    return attrs, data
+
+
+def _images(h5_path: Path):
+    """PNG plots written beside the result (<stem>*.png) as base64 data URIs."""
+    out = []
+    for png in sorted(h5_path.parent.glob(f"{h5_path.stem}*.png")):
+        uri = "data:image/png;base64," + base64.b64encode(png.read_bytes()).decode("ascii")
+        out.append((png.stem, uri))
+    return out
+
+
+def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
+    """The report of ``h5_path`` as one HTML string (display ``units`` "si" or "us")."""
+    import jinja2
+    if units not in _units.UNIT_SYSTEMS:
+        raise InputError(f"--units must be one of {', '.join(_units.UNIT_SYSTEMS)}, not "
+                         f"'{units}'.")
+    h5_path = Path(h5_path)
+    attrs, data = read_result(h5_path)
+    stored = data.get("report") if isinstance(data.get("report"), dict) else {}
+    ident = {**{k: stored.get(k, "") for k in _IDENT_KEYS}, **(ident or {})}
+    skip = {"inputs", "summary", "tables", "warnings", "references", "notes", "report"}
+    summary = _scalar_rows(data.get("summary", {}) or {}, units)
+    tables = [_table(n, t, units) for n, t in (data.get("tables") or {}).items()
+              if isinstance(t, dict)]
+    texts = []
+    for name, grp in data.items():  # long stored texts (case text, resolved case) as blocks
+        if isinstance(grp, dict):
+            for k in [k for k, v in grp.items() if isinstance(v, str) and len(v) > 120]:
+                texts.append((f"{name}.{k}", grp[k]))
+    long_keys = {t[0] for t in texts}
+    for name, grp in data.items():  # other groups (run results): their 1-D columns as tables
+        if name in skip or not isinstance(grp, dict):
+            continue
+        cols = {k: v for k, v in grp.items() if isinstance(v, np.ndarray) and v.ndim == 1}
+        lens = {len(v) for v in cols.values()}
+        if cols and len(lens) == 1:
+            tables.append(_table(name, cols, units))
+        scal = {k: v for k, v in grp.items() if not isinstance(v, (np.ndarray, dict, list))
+                and f"{name}.{k}" not in long_keys}
+        summary += [(f"{name}.{n}", v, u) for n, v, u in _scalar_rows(scal, units)]
+    inputs = data.get("inputs", {}) or {}
+    case_text = inputs.get("case_text", "") if isinstance(inputs, dict) else ""
+    env = jinja2.Environment(loader=jinja2.PackageLoader("fdwall.report", "templates"),
+                             autoescape=True)
+    return env.get_template("report.html.j2").render(
+        case_name=attrs.get("case_name", h5_path.stem), caution=attrs.get("caution", ""),
+        ident=[(k, ident.get(k) or "") for k in _IDENT_KEYS], summary=summary,
+        inputs=_scalar_rows({k: v for k, v in inputs.items() if k != "case_text"}, units)
+        if isinstance(inputs, dict) else [], case_text=case_text, texts=texts, tables=tables,
+        images=_images(h5_path), warnings=_as_list(data.get("warnings")),
+        references=_as_list(data.get("references")), notes=_as_list(data.get("notes")),
+        version=attrs.get("fdwall_version", "not recorded"), kind=attrs.get("kind", "unknown"),
+        created=attrs.get("created", "not recorded"),
+        sha=attrs.get("input_sha256") or "not recorded", source=h5_path.name)
+
+
+def write_report(h5_path, out, units: str = "si", ident: dict | None = None) -> Path:
+    """Write the HTML report of ``h5_path`` to ``out`` atomically; returns the path written."""
+    text = render_report(h5_path, units=units, ident=ident)
+    out = Path(out)
+    _write(out, text)
+    return out
+
+
+def _write(out: Path, text: str) -> None:
+    with atomic.atomic_path(out) as tmp:
+        Path(tmp).write_text(text, encoding="utf-8")

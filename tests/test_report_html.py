@@ -1,0 +1,135 @@
+"""HTML calculation report: structure, self-containment, values and display units.
+
+External references: the HTML5 parsing rules as implemented by html5lib/lxml (a real parser);
+unit conversions checked against pint (open library) and the exact definitions
+1 in = 0.0254 m, degF = degC * 9/5 + 32 (NIST SP 811, from memory).
+"""
+from __future__ import annotations
+
+import re
+import shutil
+import subprocess
+
+import h5py
+import numpy as np
+import pint
+import pytest
+
+from fdwall.cautions import SAFETY_CAUTION
+from fdwall.h5tree import write_file
+from fdwall.report import html as rhtml
+from fdwall.report.units import display
+
+
+def _fixture(path, kind="size", caution=True):
+    """A small result file in the common analysis layout (invented numbers)."""
+    attrs = {"kind": kind, "fdwall_version": "0.test", "case_name": "invented-oven",
+             "created": "2026-01-01T00:00:00Z"}
+    if caution:
+        attrs["caution"] = SAFETY_CAUTION
+    groups = {
+        "inputs": {"target": "60 degC", "target_K": 333.15},
+        "summary": {"thickness_m": 0.0254, "shell_temperature_K": 323.15, "loss_W": 1000.0},
+        "tables": {"sweep": {"thickness_m": np.array([0.01, 0.02, 0.03]),
+                             "shell_K": np.array([350.0, 330.0, 320.0])}},
+        "warnings": {"items": ["invented warning"]},
+        "references": {"items": ["Churchill-Chu (1975)"]},
+        "notes": {"items": ["invented scenario"]},
+    }
+    write_file(str(path), groups, attrs=attrs)
+    return path
+
+
+def _parse(text):
+    try:
+        import html5lib
+        parser = html5lib.HTMLParser(strict=True)
+        return parser.parse(text)
+    except ImportError:  # pragma: no cover
+        from lxml import html as lh
+        return lh.fromstring(text)
+
+
+def test_report_sections_valid_and_self_contained(tmp_path):
+    h5 = _fixture(tmp_path / "x-size.h5")
+    out = rhtml.write_report(h5, tmp_path / "r.html")
+    text = out.read_text()
+    _parse(text)  # a real HTML5 parser (html5lib strict) raises on parse errors
+    for sec in ("identification", "summary", "inputs", "tables", "warnings", "references",
+                "notes", "provenance", "caution"):
+        assert f'id="{sec}"' in text, sec
+    assert SAFETY_CAUTION in text
+    assert not re.search(r'(src|href)\s*=\s*"https?:', text)
+    assert "@import" not in text
+    assert "counter(page)" in text
+    assert "not recorded" in text  # no input_sha256 in the fixture
+
+
+def test_values_equal_file_and_us_units(tmp_path):
+    h5 = _fixture(tmp_path / "x-size.h5")
+    si = rhtml.render_report(h5, units="si")
+    with h5py.File(h5) as f:
+        g = f["summary"]
+        t = float(g.attrs["shell_temperature_K"] if "shell_temperature_K" in g.attrs
+                  else g["shell_temperature_K"][()])
+    assert f"{t - 273.15:.6g}" in si  # K -> degC: 50
+    us = rhtml.render_report(h5, units="us")
+    assert ">1<" in us.replace(" ", "")  # 0.0254 m = 1 in exactly (NIST definition)
+    assert "122" in us  # 50 degC = 122 degF
+    ureg = pint.UnitRegistry()
+    w, label = display(1000.0, "W", "us")
+    assert label == "Btu/h"
+    assert float(w) == pytest.approx(ureg.Quantity(1000.0, "W").to("Btu/hour").magnitude)
+    r, _ = display(1.0, "m2*K/W", "us")
+    assert float(r) == pytest.approx(5.678263, rel=1e-4)  # 1 m2K/W = 5.678 h ft2 F/Btu (ASHRAE)
+
+
+def test_not_a_result_is_input_error(tmp_path):
+    bad = tmp_path / "bad.h5"
+    with h5py.File(bad, "w") as f:
+        f["x"] = 1
+    with pytest.raises(rhtml.InputError):
+        rhtml.render_report(bad)
+    from fdwall.cli import main
+    assert main(["report", str(bad)]) == 2
+    assert main(["report", str(tmp_path / "missing.h5")]) == 2
+
+
+def test_cli_report_ident(tmp_path):
+    from fdwall.cli import main
+    h5 = _fixture(tmp_path / "x-size.h5")
+    out = tmp_path / "o.html"
+    assert main(["report", str(h5), "--out", str(out), "--project", "Invented P1",
+                 "--units", "us"]) == 0
+    assert "Invented P1" in out.read_text()
+
+
+def test_chromium_renders_not_blank(tmp_path):
+    exe = shutil.which("chromium") or shutil.which("chromium-browser")
+    if exe is None:
+        import os
+        if os.environ.get("CI") or os.environ.get("FDWALL_EXPECT_CHROMIUM"):
+            pytest.fail("chromium expected in CI but not found")
+        pytest.skip("chromium not installed")
+    h5 = _fixture(tmp_path / "x-size.h5")
+    out = rhtml.write_report(h5, tmp_path / "r.html")
+    png = tmp_path / "shot.png"
+    subprocess.run([exe, "--headless", "--no-sandbox", "--disable-gpu",
+                    f"--screenshot={png}", "--window-size=900,900", out.as_uri()],
+                   check=False, timeout=120, capture_output=True)
+    import matplotlib.image as mpimg
+    img = mpimg.imread(str(png))
+    assert np.var(img) > 1e-4
+
+
+def test_temperature_differences_are_not_shifted():
+    """A residual or standard error in kelvin is a difference: 1 K shows as 1 K (si) and as
+    1.8 degF (us), never as -272.15 degC (NIST SP 811: a kelvin difference equals a degC
+    difference and 1.8 degF differences, from memory); checked against pint's delta units."""
+    ureg = pint.UnitRegistry()
+    v, label = display(1.0, "K", "si", key="rms_K")
+    assert v == pytest.approx(1.0) and label == "K"
+    v, label = display(1.0, "K", "us", key="R_stderr_K")
+    assert v == pytest.approx(ureg.Quantity(1.0, "delta_degC").to("delta_degF").magnitude)
+    v, label = display(300.0, "K", "si", key="T_max_K")
+    assert v == pytest.approx(26.85) and label == "degC"

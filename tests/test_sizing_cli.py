@@ -1,0 +1,44 @@
+"""fdwall size on the command line (JSON keys of the issue's interface; bad input exit 2)."""
+import json
+import os
+import subprocess
+import sys
+
+import h5py
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+
+
+def _run(*a):
+    env = dict(os.environ, PYTHONPATH=ROOT)
+    return subprocess.run([sys.executable, "-m", "fdwall.cli", "size", *a], cwd=ROOT, env=env,
+                          capture_output=True, text=True, timeout=300)
+
+
+def test_json_and_h5(tmp_path):
+    # common practice, no source: the JSON keys and HDF5 kind are those of the interface;
+    # the answer must be a stock multiple at or above the exact root
+    p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50 degC",
+             "--out", str(tmp_path), "--json", "--no-plots")
+    assert p.returncode == 0, p.stderr
+    d = json.loads(p.stdout)
+    for k in ("thickness_m", "thickness_exact_m", "feasible_m", "targets", "table", "caution"):
+        assert k in d
+    assert d["thickness_m"] >= d["thickness_exact_m"]
+    assert abs(d["thickness_m"] / 0.025 - round(d["thickness_m"] / 0.025)) < 1e-9
+    assert d["targets"][0]["verdict"] == "pass"
+    with h5py.File(tmp_path / "curing-oven-panel-size.h5") as h:
+        assert h.attrs["kind"] == "size" and "caution" in h.attrs
+
+
+def test_bad_input_exit_2(tmp_path):
+    # common practice, no source: wrong unit for the geometry, unknown layer material
+    p = _run("cases/hot-oil-pipe.toml", "--layer", "1", "--loss-limit", "50 W/m2",
+             "--out", str(tmp_path))
+    assert p.returncode == 2 and "W/m" in p.stderr
+    p = _run("cases/hot-oil-pipe.toml", "--layer", "mineral-wool-12", "--loss-limit", "50 W/m",
+             "--out", str(tmp_path))
+    assert p.returncode == 2 and "mineral-wool-128" in p.stderr
+    p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50",
+             "--out", str(tmp_path))
+    assert p.returncode == 2
