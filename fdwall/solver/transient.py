@@ -180,15 +180,26 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     may_show = bool(progress) or (progress is None and sys.stderr.isatty())
     chunk = 1 if may_show else n_out
     failed = False
+    implausible = None
     try:
         while k < n_out:
             k1 = min(n_out, k + chunk)
             a = list(args)
             a[1], a[2] = k, k1
             done = K.integrate(T, cs, acc, stats, *a)
+            k0 = k
             k += done
             if stats[K.ST_STATUS] != 0:
                 failed = True
+                break
+            bad = _implausible(T_out, k0, k)
+            if bad is not None:
+                failed = True
+                implausible = bad
+                # keep only the plausible outputs before it: the rest are marked missing
+                for arr in (T_out, qf_out, E_out, P_out, hc_out, hr_out):
+                    arr[bad[0]:] = np.nan
+                stats[K.ST_T] = t_out[bad[0] - 1]
                 break
             el = _time.perf_counter() - t0
             frac = t_out[k - 1] / r.duration
@@ -216,6 +227,19 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     end[K.CS_NEXT] -= stats[K.ST_T]
     end[K.CS_OFF] -= stats[K.ST_T]
     res.control_state = end
+    if failed and implausible is not None:
+        i_out, peak = implausible
+        what = "not finite" if not np.isfinite(peak) else f"{peak:.6g} K"
+        msg = (f"the run was stopped at output {i_out} (t = {t_out[i_out]:.6g} s): a wall "
+               f"temperature reached {what}, beyond the plausibility ceiling of "
+               f"{PLAUSIBLE_CEILING_K:.0f} K (far above every property table and fluid "
+               "temperature fdwall knows). The heat put in is unphysical for this wall: check "
+               "the heater powers, imposed fluxes and radiation/fluid temperatures of the case. "
+               "Results before that time are kept and marked incomplete.")
+        res.message = msg
+        if strict:
+            raise ConvergenceError(msg, res)
+        return res
     if failed:
         why = ("the time step fell below its floor" if stats[K.ST_STATUS] == 1 else
                "the time steps stalled (tens of thousands of steps without real progress)")
@@ -230,6 +254,28 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
         if strict:
             raise ConvergenceError(msg, res)
     return res
+
+
+PLAUSIBLE_CEILING_K = 1.0e4
+"""Absolute temperature ceiling [K]: a wall temperature above it (or a non-finite one) stops
+the run as unphysical.  Every property table and fluid temperature fdwall handles lies far
+below it (common practice, no source: refractories are tabulated to about 2000 K)."""
+
+
+def _implausible(T_out, k0, k1):
+    """First output row in [k0, k1) whose temperatures [K] are non-finite or above the
+    ceiling, as (row, peak temperature [K]); None when all are plausible."""
+    block = T_out[k0:k1]
+    if block.size == 0:
+        return None
+    ok = np.isfinite(block).all(axis=1) & (np.nanmax(np.where(np.isfinite(block), block, np.inf),
+                                                    axis=1) <= PLAUSIBLE_CEILING_K)
+    if ok.all():
+        return None
+    j = int(np.argmin(ok))
+    row = block[j]
+    peak = float(np.max(row)) if np.isfinite(row).all() else float("nan")
+    return k0 + j, peak
 
 
 def _initial_u(sysm, T):
