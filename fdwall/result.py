@@ -424,7 +424,7 @@ class Result:
         ds(eg, "stored_chamber", self.stored_chamber, "J")
         ds(eg, "heater", self.heater_energy, "J")
         ds(eg, "loss_chamber", self.loss_energy, "J")
-        ds(eg, "residual", self.residual, "J")
+        ds(eg, "residual", self.residual, "J", relative_max=self.relative_residual)
         hg = h.create_group("heater")
         ds(hg, "power", self.heater_power, "W")
         ds(hg, "duty", self.duty, "1")
@@ -433,6 +433,8 @@ class Result:
         evg.create_dataset("names", data=np.array(names, dtype=object), dtype=h5py.string_dtype())
         ds(evg, "up", np.array([v[0] for v in self.events.values()]), "s")
         ds(evg, "down", np.array([v[1] for v in self.events.values()]), "s")
+        h.create_dataset("warnings", data=np.array(self.warnings(), dtype=object),
+                         dtype=h5py.string_dtype())
         sg = h.create_group("solver")
         for k, v in self.stats.items():
             sg.attrs[k] = v
