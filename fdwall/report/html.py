@@ -215,6 +215,7 @@ def _run_sections(data: dict, system: str) -> dict:
                           _q(f.get("margin_K"), "K", system, key="margin_K")[0],
                           _q(f.get("contact_temperature_K"), "K", system)[0]))
         out["touch"] = {"criterion": touch.get("criterion", ""),
+                        "ambient": _q(touch.get("ambient_K"), "K", system),
                         "contact_time": _q(touch.get("contact_time_s"), "s", system),
                         "faces": faces, "warnings": _as_list(touch.get("warnings")),
                         "caution": touch.get("caution", ""),
@@ -232,6 +233,7 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
     attrs, data = read_result(h5_path)
     stored = data.get("report") if isinstance(data.get("report"), dict) else {}
     ident = {**{k: stored.get(k, "") for k in _IDENT_KEYS}, **(ident or {})}
+    run = _run_sections(data, units) if attrs.get("kind") in ("transient", "steady") else {}
     skip = {"inputs", "summary", "tables", "warnings", "references", "notes", "report"}
     summary = _scalar_rows(data.get("summary", {}) or {}, units)
     tables = [_table(n, t, units) for n, t in (data.get("tables") or {}).items()
@@ -242,6 +244,8 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
             for k in [k for k, v in grp.items() if isinstance(v, str) and len(v) > 120]:
                 texts.append((f"{name}.{k}", grp[k]))
     long_keys = {t[0] for t in texts}
+    # groups whose scalars a run result shows in its dedicated sections
+    shown = {"solver", "energy", "touch", "mesh"} if run else set()
     for name, grp in data.items():  # other groups (run results): their 1-D columns as tables
         if name in skip or not isinstance(grp, dict):
             continue
@@ -250,9 +254,8 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         if cols and len(lens) == 1:
             tables.append(_table(name, cols, units))
         scal = {k: v for k, v in grp.items() if not isinstance(v, (np.ndarray, dict, list))
-                and f"{name}.{k}" not in long_keys}
+                and f"{name}.{k}" not in long_keys and name not in shown}
         summary += [(f"{name}.{n}", v, u) for n, v, u in _scalar_rows(scal, units)]
-    run = _run_sections(data, units) if attrs.get("kind") in ("transient", "steady") else {}
     if run.get("touch"):
         from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
         run["touch"]["caution"] = run["touch"]["caution"] or SAFETY_CAUTION
