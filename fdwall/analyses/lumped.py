@@ -28,7 +28,7 @@ import numpy as np
 from fdwall.errors import InputError
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
-           "time_to_level", "cooldown_time", "lumped_cooling"]
+           "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants"]
 
 SIGMA_SB = 5.670374419e-8  # Stefan-Boltzmann constant [W/(m2 K4)], CODATA 2018
 
@@ -266,3 +266,57 @@ def fit_one_node(t, T, P, T_amb, R=None, C0=None) -> dict:
     rms = float(np.sqrt(np.mean(sol.fun ** 2)))
     return {"R_K_per_W": float(Rf), "C_J_per_K": float(Cf), "tau_s": float(Rf * Cf),
             "rms_K": rms}
+
+
+def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
+    """Thermal time constants [s] of the linearised finite-volume system of ``case``.
+
+    The system is linearised at the operating point ``T_op`` [K] (one temperature per unknown;
+    default the steady state at time ``t`` [s]): the solver's own Jacobian dF/dT there holds
+    the conduction links with k(T) at that profile and the films and radiation linearised at
+    it.  With G = -(J + J^T)/2 (the symmetric part; exact for constant k) [W/K] and the
+    capacities C = dH/dT [J/K], the generalised eigenproblem ``G v = lambda C v``
+    (scipy.linalg.eigh) gives decay rates lambda [1/s]; nodes held by a fixed temperature are
+    removed.  Returns ``time_constants_s`` (1/lambda, slowest first), ``T_op_K`` and
+    ``n_unknowns``.  Heater power is taken as independent of temperature.
+    """
+    from scipy.linalg import eigh
+
+    from fdwall.solver import kernels
+    from fdwall.solver.steady import solve_steady
+    from fdwall.system import build_system
+
+    sys_ = build_system(case)
+    nun = sys_.n_unknowns
+    if T_op is None:
+        T_op = solve_steady(case, t=t, system=sys_).T
+    T = np.array(T_op, dtype=float)
+    if T.shape != (nun,):
+        raise InputError(f"wall_time_constants: T_op needs one temperature per unknown ({nun}) "
+                         f"in K, got shape {T.shape}.")
+    tt = 0.0 if t is None else float(t)
+    F, Cap, H, Jd, Jl, Ju, Jcol, Jrow = (np.zeros(nun) for _ in range(8))
+    nf = sys_.face_i.shape[0]
+    qf, hc, hr = np.zeros(nf), np.zeros(nf), np.zeros(nf)
+    extra = np.zeros(4)
+    kernels.assemble(T, tt, 0.0, 0.0, sys_.node_i, sys_.node_f, sys_.chains, sys_.face_i,
+                     sys_.face_f, sys_.hpar, sys_.m_off, sys_.mtab, sys_.s_off, sys_.stab,
+                     sys_.ch_i, sys_.ch_f, sys_.ctl_i, sys_.ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,
+                     Jrow, qf, hc, hr, extra)
+    N = sys_.n_nodes
+    J = np.diag(Jd.copy())
+    for i in range(1, N):
+        J[i, i - 1] = Jl[i]
+    for i in range(N - 1):
+        J[i, i + 1] = Ju[i]
+    if sys_.has_chamber:
+        J[:N, N] = Jcol[:N]
+        J[N, :N] = Jrow[:N]
+    keep = np.setdiff1d(np.arange(nun), np.asarray(sys_.dirich_node, dtype=int))
+    G = -0.5 * (J + J.T)[np.ix_(keep, keep)]
+    lam = eigh(G, np.diag(Cap[keep]), eigvals_only=True)
+    lam = np.sort(lam[lam > 0])
+    tau = 1.0 / lam
+    if n_modes is not None:
+        tau = tau[:n_modes]
+    return {"time_constants_s": tau, "T_op_K": T, "n_unknowns": int(nun)}
