@@ -54,3 +54,14 @@ def test_film_face_eigenvalue():
     assert tau[0] == pytest.approx(L * L / (z[0] ** 2 * ALPHA), rel=1e-3)
     assert tau[1] == pytest.approx(L * L / (z[1] ** 2 * ALPHA), rel=5e-3)
     assert np.all(np.diff(tau) < 0)
+
+
+def test_first_moment_flux_step_fixed_back():
+    # Source: derived from the steady profile (Carslaw & Jaeger Sec. 3.3, from memory): a flux q
+    # into x=0 of a slab held at x=L gives the steady rise theta(x) = q (L - x)/k.  The first moment
+    # of the step response is tau_1 = -Z'(0)/Z(0) = int rho c theta^2 dx / (q theta(0))
+    # = rho c L^3/(3 k^2) * k/L = L^2/(3 alpha); R = L/(k A) and C_eff = tau_1/R = rho c A L / 3.
+    r = wall_time_constants(_case(Face.adiabatic(), Face.fixed(300.0), 32))
+    assert r["first_moment_tau_s"] == pytest.approx(L * L / (3 * ALPHA), rel=1e-3)
+    assert r["R_heated_K_per_W"] == pytest.approx(L / 1.0, rel=1e-9)
+    assert r["C_effective_J_per_K"] == pytest.approx(1e6 * L / 3, rel=1e-3)

@@ -319,4 +319,17 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
     tau = 1.0 / lam
     if n_modes is not None:
         tau = tau[:n_modes]
-    return {"time_constants_s": tau, "T_op_K": T, "n_unknowns": int(nun)}
+    out = {"time_constants_s": tau, "T_op_K": T, "n_unknowns": int(nun)}
+    # first moment of the heated node's step response.  The heated node is the chamber when
+    # there is one, otherwise the inner-face node of the first wall.  With Z(s) = e^T (G + s C)^-1 e,
+    # R = Z(0) = e^T G^-1 e and the first moment tau_1 = int (1 - T(t)/T(inf)) dt = -Z'(0)/Z(0)
+    # = (G^-1 e)^T C (G^-1 e) / R; C_eff = tau_1 / R is the one-node C with that first moment.
+    heated = nun - 1 if sys_.has_chamber else int(sys_.face_i[0, 0])
+    if heated in keep:
+        e = (keep == heated).astype(float)
+        x = np.linalg.solve(G, e)
+        R = float(e @ x)
+        tau1 = float(x @ (Cap[keep] * x)) / R
+        out.update({"heated_node": heated, "R_heated_K_per_W": R, "first_moment_tau_s": tau1,
+                    "C_effective_J_per_K": tau1 / R})
+    return out
