@@ -23,6 +23,16 @@ def _version():
         return "0+unknown"
 
 
+def _heat_capacity(sysm, T0) -> float:
+    """Total heat capacity of walls and chamber at the start state [J/K]: the enthalpy it
+    takes to raise every node from ``T0`` [K] by 1 K (forward difference, so a start at the
+    1 K floor needs no property below it)."""
+    T0 = np.asarray(T0, float)
+    Hh, Hc = sysm.enthalpy(np.vstack([T0, T0 + 1.0]))
+    dH = float(Hh[1].sum() - Hh[0].sum()) + float(np.sum(Hc[1]) - np.sum(Hc[0]))
+    return dH if np.isfinite(dH) else 0.0
+
+
 @dataclass
 class Result:
     """Everything a transient run produced.
@@ -88,6 +98,7 @@ class Result:
             "nodes": int(sysm.n_unknowns),
             "energy_residual_max_J": float(stats[K.ST_RESMAX]),
             "energy_scale_J": float(stats[K.ST_SCALE]),
+            "heat_capacity_J_per_K": _heat_capacity(sysm, T_out[0]),
         }
         evs = {}
         for e, ev in enumerate(case.run.events):
@@ -203,15 +214,25 @@ class Result:
         return self.heat_in - self.stored
 
     @property
+    def residual_scale(self) -> float:
+        """Energy the residual is measured against [J]: the total heat capacity of walls and
+        chamber times 1 K (``heat_capacity_J_per_K`` x 1 K) plus the energy throughput (the
+        largest energy that crossed a face, was delivered by the heater or was stored,
+        ``energy_scale_J``).  The first term keeps the scale meaningful for a case at rest,
+        where no energy moves."""
+        cap = self.stats.get("heat_capacity_J_per_K", 0.0) * 1.0
+        return float(cap + self.stats.get("energy_scale_J", 0.0))
+
+    @property
     def relative_residual(self) -> float:
-        """Largest |energy residual| over all accepted steps, relative to the largest energy
-        that crossed a face, was delivered by the heater or was stored [-].
+        """Largest |energy residual| over all accepted steps over ``residual_scale`` [-]:
+        |residual| / (total heat capacity x 1 K + energy throughput).
 
         Checked inside the kernel at every step end, where the ledger is exact; the
         ``residual`` series at output times between steps also carries the interpolation
         error of the outputs (see ``RunSettings.exact_outputs``).
         """
-        scale = max(self.stats.get("energy_scale_J", 0.0), 1e-300)
+        scale = max(self.residual_scale, 1e-300)
         return float(self.stats.get("energy_residual_max_J", np.nan) / scale)
 
     def layer_max_T(self) -> list:
