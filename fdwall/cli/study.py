@@ -27,7 +27,7 @@ def cmd_study(args) -> int:
         raise WriteError(f"cannot create '{outdir}': {exc.strerror or exc}. Choose another "
                          "folder with --out DIR.") from None
     try:
-        csv_path, rows = run_study(args.study, outdir, workers=args.workers)
+        csv_path, rows = run_study(args.study, outdir, workers=args.workers, seed=args.seed)
     except LibInputError as exc:
         raise InputError(str(exc)) from None
     done = [r for r in rows if r["status"] == "done"]
@@ -77,7 +77,8 @@ def register(sub) -> None:
     p.add_argument("--scheduler", default=None, metavar="ADDRESS",
                    help="Dask scheduler address (not available yet)")
     p.add_argument("--seed", type=int, default=None, metavar="N",
-                   help="random seed (grids do not use it)")
+                   help="random seed of an [[uncertain]] sample (same seed, same table; "
+                        "grids do not use it)")
     p.add_argument("--restart", action="store_true", help="start the table over")
     common.add_output_options(p)
     p.set_defaults(func=cmd_study)
