@@ -375,3 +375,139 @@ def read_table(path):
     import pandas as pd  # optional heavy library, imported lazily
     return pd.read_csv(path, comment="#", keep_default_na=False,
                        na_values=["nan"])
+
+
+def quantile_interval(n: int, p: float, confidence: float = 0.95):
+    """Distribution-free interval of the ``p`` quantile from a sample of ``n``.
+
+    Returns 1-based ranks (r, s) and the coverage: the order statistics X_(r) <= x_p <=
+    X_(s) hold the true quantile with probability F(s-1) - F(r-1), F the Binomial(n, p)
+    CDF (order statistics; e.g. David & Nagaraja, Order Statistics, sec. 7.1).  ``r`` = 0
+    or ``s`` = n + 1 means that side is unbounded for this sample size.
+    """
+    a = 1.0 - confidence
+    b = stats.binom(n, p)
+    r = int(b.ppf(a / 2))                 # F(r - 1) < a/2
+    s = int(b.ppf(1 - a / 2)) + 1         # F(s - 1) >= 1 - a/2
+    cover = float(b.cdf(min(s, n + 1) - 1) - (b.cdf(r - 1) if r >= 1 else 0.0))
+    return r, s, cover
+
+
+def wilson_interval(k: int, n: int, confidence: float = 0.95):
+    """Wilson score interval (low, high) of a binomial proportion k/n (Wilson 1927)."""
+    if n == 0:
+        return float("nan"), float("nan")
+    z = float(stats.norm.ppf(0.5 + confidence / 2))
+    ph = k / n
+    den = 1 + z * z / n
+    mid = (ph + z * z / (2 * n)) / den
+    half = z / den * np.sqrt(ph * (1 - ph) / n + z * z / (4 * n * n))
+    return float(max(0.0, mid - half)), float(min(1.0, mid + half))
+
+
+def _samples_for_bounded(p: float, confidence: float) -> int:
+    n = 1
+    while True:
+        r, s, _ = quantile_interval(n, p, confidence)
+        if r >= 1 and s <= n:
+            return n
+        n += 1
+
+
+PERCENTS = (5, 50, 95)
+
+
+def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
+    """Uncertainty summary of a sampled study: dict(summary, tables, notes, references, json).
+
+    Per output (SI, unit suffix kept): mean, standard deviation, the 5/50/95 % quantiles with
+    order-statistic confidence intervals, the probability of exceeding each ``[exceed]``
+    limit with its Wilson interval, and a Spearman rank-correlation ranking of the inputs
+    (scipy.stats.spearmanr).  Failed variants are counted and left out.
+    """
+    done = [i for i, r in enumerate(rows) if r["status"] == "done"]
+    n, nf = len(done), len(rows) - len(done)
+    x = np.asarray(st["samples"])[done] if n else np.empty((0, len(st["uncertain"])))
+    summ = {"samples": len(rows), "done": n, "failed": nf,
+            "failed_fraction": nf / len(rows) if rows else float("nan"),
+            "confidence": confidence}
+    qt = {k: [] for k in ("output", "percent", "value_si", "ci_low_si", "ci_high_si",
+                          "ci_coverage", "unit")}
+    se = {k: [] for k in ("output", "input", "spearman_rho", "p_value", "rank")}
+    ex = {k: [] for k in ("output", "limit_si", "unit", "exceed_count", "probability",
+                          "ci_low", "ci_high")}
+    for out in OUTPUTS:
+        base, suf = out.rsplit("_", 1)
+        suf = "_" + suf
+        unit = suf[1:]
+        y = np.array([rows[i][out] for i in done], dtype=float)
+        ys = np.sort(y)
+        summ[f"{base}_mean{suf}"] = float(y.mean()) if n else float("nan")
+        summ[f"{base}_std{suf}"] = float(y.std(ddof=1)) if n > 1 else float("nan")
+        for pc in PERCENTS:
+            p = pc / 100
+            v = float(np.quantile(y, p)) if n else float("nan")
+            r, s, cover = quantile_interval(n, p, confidence) if n else (0, 1, float("nan"))
+            lo = float(ys[r - 1]) if r >= 1 else float("nan")
+            hi = float(ys[s - 1]) if s <= n else float("nan")
+            summ[f"{base}_p{pc:02d}{suf}"] = v
+            summ[f"{base}_p{pc:02d}_low{suf}"] = lo
+            summ[f"{base}_p{pc:02d}_high{suf}"] = hi
+            for k, val in zip(qt, (out, pc, v, lo, hi, cover, unit)):
+                qt[k].append(val)
+        if out in st.get("limits", {}):
+            lim = st["limits"][out]
+            k = int(np.sum(y > lim))
+            lo, hi = wilson_interval(k, n, confidence)
+            prob = k / n if n else float("nan")
+            summ[f"{base}_limit{suf}"] = lim
+            summ[f"{base}_exceed_probability"] = prob
+            summ[f"{base}_exceed_probability_low"] = lo
+            summ[f"{base}_exceed_probability_high"] = hi
+            for key, val in zip(ex, (out, lim, unit, k, prob, lo, hi)):
+                ex[key].append(val)
+        rho = []
+        for j, path in enumerate(st["uncertain"]):
+            if n >= 3 and np.ptp(y) > 0 and np.ptp(x[:, j]) > 0:
+                res = stats.spearmanr(x[:, j], y)
+                rho.append((path, float(res.statistic), float(res.pvalue)))
+            else:
+                rho.append((path, float("nan"), float("nan")))
+        order = sorted(range(len(rho)), key=lambda i: -abs(rho[i][1])
+                       if np.isfinite(rho[i][1]) else 0.0)
+        for rank, i in enumerate(order, 1):
+            for key, val in zip(se, (out, rho[i][0], rho[i][1], rho[i][2], rank)):
+                se[key].append(val)
+        if rho and np.isfinite(rho[order[0]][1]):
+            summ[f"{base}_top_input"] = rho[order[0]][0]
+    need = _samples_for_bounded(0.95, confidence)
+    summ["samples_for_bounded_p95_interval"] = need
+    notes = [f"random sample: {st['method']}, {len(rows)} variants, seed {st['seed']} "
+             "(the same seed gives the same table)",
+             f"quantiles p05/p50/p95 with {confidence:.0%} distribution-free intervals from "
+             "order statistics; NaN bounds mean the sample is too small for that side "
+             f"(at least {need} successful variants bound both sides of the 95 % quantile)",
+             "sensitivity: Spearman rank correlation of each input with each output; it "
+             "ranks monotone effects and misses effects that rise and fall"]
+    if nf:
+        notes.append(f"{nf} of {len(rows)} variants failed ({nf / len(rows):.1%}) and are left "
+                     "out of every figure above; if the failures gather in one part of the "
+                     "input range the quantiles and probabilities are biased towards the "
+                     "rest; see the error column of the table")
+    if ex["output"]:
+        notes.append("probability of exceeding a limit: fraction of successful variants "
+                     f"above it, with a {confidence:.0%} Wilson score interval")
+    refs = ["order-statistic confidence intervals of quantiles (binomial ranks; e.g. David & "
+            "Nagaraja, Order Statistics, 3rd ed., sec. 7.1)",
+            "Wilson score interval of a proportion (E. B. Wilson, JASA 22, 1927)",
+            "Spearman rank correlation, scipy.stats.spearmanr",
+            "Latin hypercube sampling, scipy.stats.qmc.LatinHypercube (McKay, Beckman & "
+            "Conover, Technometrics 21, 1979)"]
+    tables = {"quantiles": qt, "sensitivity": se}
+    if ex["output"]:
+        tables["exceedance"] = ex
+    js = {"quantiles": [dict(zip(qt, t)) for t in zip(*qt.values())],
+          "exceedance": [dict(zip(ex, t)) for t in zip(*ex.values())],
+          "sensitivity": [dict(zip(se, t)) for t in zip(*se.values())],
+          "failed": nf}
+    return dict(summary=summ, tables=tables, notes=notes, references=refs, json=js)
