@@ -138,11 +138,14 @@ def test_cli_writes_summary(tmp_path, capsys):
     d = json.loads(capsys.readouterr().out)
     assert {"quantiles", "exceedance", "sensitivity", "failed"} <= set(d["uncertainty"])
     assert d["summary"]["failed"] == d["uncertainty"]["failed"]
+    from fdwall.cautions import SAFETY_CAUTION
+    assert d["caution"] == SAFETY_CAUTION
     with h5py.File(out / "u-study.h5") as h:
         assert {"quantiles", "sensitivity", "exceedance", "variants"} <= set(h["tables"])
         assert h["summary"].attrs["outer_T_p95_K"] == pytest.approx(
             d["summary"]["outer_T_p95_K"])
         assert h["inputs"].attrs["seed"] == 4
+        assert h.attrs["caution"] == SAFETY_CAUTION
     assert main(["study", str(p), "--out", str(out), "--workers", "1", "--seed", "4",
                  "--json", "--no-plots"]) == 0
     assert json.loads(capsys.readouterr().out)["uncertainty"] == d["uncertainty"]

@@ -6,6 +6,7 @@ import os
 from pathlib import Path
 
 from ..analyses.study import OUTPUTS, read_study, run_study, uncertainty_summary
+from ..cautions import SAFETY_CAUTION
 from ..errors import InputError as LibInputError
 from ..h5tree import write_file
 from . import common
@@ -60,7 +61,7 @@ def cmd_study(args) -> int:
                         "references": {"items": refs},
                         "notes": {"items": notes}},
                    attrs={"kind": "study", "fdwall_version": common.version(),
-                          "case_name": stem,
+                          "case_name": stem, "caution": SAFETY_CAUTION,
                           "created": datetime.datetime.now(datetime.UTC).isoformat()})
     except OSError as exc:
         raise WriteError(f"cannot write '{h5}': {exc.strerror or exc}.") from None
@@ -69,7 +70,7 @@ def cmd_study(args) -> int:
     if report:
         files.append(str(report))
     if args.json:
-        out = {"summary": summary, "files": files}
+        out = {"summary": summary, "files": files, "caution": SAFETY_CAUTION}
         if unc:
             out["uncertainty"] = unc["json"]
         print(common.dumps(out))
@@ -87,6 +88,7 @@ def cmd_study(args) -> int:
                 top = summary.get(f"{o.rsplit('_', 1)[0]}_top_input")
                 if top:
                     print(f"  {o}: strongest input {top}")
+        print(f"  {SAFETY_CAUTION}")
         for f in files:
             print(f"  {f}")
     return 0
