@@ -18,6 +18,10 @@ from fdwall.units import parse_unit, ureg
 _HEADER = re.compile(r"^\s*([^\[\]]+?)\s*(?:\[([^\[\]]*)\])?\s*$")
 
 
+_EXAMPLE_UNIT = {"time": "s", "temperature": "degC", "power": "W", "duty": "1 or %",
+                 "state": "1"}
+
+
 def _err(file, what, allowed=""):
     msg = f"{file}: {what}"
     if allowed:
@@ -25,7 +29,8 @@ def _err(file, what, allowed=""):
     return InputError(msg)
 
 
-def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> dict:
+def read_log(path_or_text, *, time, temperature, power=None, ambient, duty=None, state=None,
+             rated_power=None, file=None) -> dict:
     """Read a CSV heating log into SI arrays.
 
     Parameters
@@ -36,8 +41,16 @@ def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> d
         Name of the time column (part of the header before the bracket); unit s, min or h.
     temperature : str or list of str
         Temperature column name(s); several are averaged. Unit K or degC (degF).
-    power : str or float
-        Power column name, or a constant power in W.
+    power : str or float, optional
+        Power column name, or a constant power in W.  Give exactly one of ``power``,
+        ``duty`` or ``state``.
+    duty : str, optional
+        Duty column name (a fraction 0..1, or % in the header unit); power = duty x
+        ``rated_power``.
+    state : str, optional
+        On/off column name (values 0 or 1 only); power = state x ``rated_power``.
+    rated_power : float, optional
+        Rated heater power in W, needed with ``duty`` or ``state``.
     ambient : str or float
         Ambient column name, or a constant ambient temperature in K.
 
@@ -85,7 +98,7 @@ def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> d
         raw, unit = cols[key]
         if not unit:
             raise _err(name, f"column {key!r} has no unit in brackets",
-                       f"a header such as '{key} [{ {'time': 's', 'temperature': 'degC', 'power': 'W'}[kind]}]'")
+                       f"a header such as '{key} [{_EXAMPLE_UNIT[kind]}]'")
         try:
             u = parse_unit(unit, where=key, file=name)
         except InputError as exc:
@@ -103,6 +116,12 @@ def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> d
                            "a number in every cell") from None
             if not np.isfinite(vals[i]):
                 raise _err(name, f"row {row}, column {key!r}: non-finite value", "finite numbers")
+        if kind in ("duty", "state"):
+            try:
+                return np.asarray(ureg.Quantity(vals, u).to("dimensionless").magnitude, float)
+            except Exception:  # pint DimensionalityError
+                raise _err(name, f"column {key!r}: unit {unit!r} is not a fraction",
+                           "[1] or [%]") from None
         target = {"time": "s", "temperature": "K", "power": "W"}[kind]
         try:
             return np.asarray(ureg.Quantity(vals, u).to(target).magnitude, float)
@@ -120,7 +139,29 @@ def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> d
                    "strictly increasing times")
     temps = [temperature] if isinstance(temperature, str) else list(temperature)
     T = np.mean([column(c, "temperature") for c in temps], axis=0)
-    P = column(power, "power") if isinstance(power, str) else np.full(len(t), float(power))
+    given = [k for k, v in (("power", power), ("duty", duty), ("state", state)) if v is not None]
+    if len(given) != 1:
+        raise _err(name, "heater input given as " + (", ".join(given) or "nothing"),
+                   "exactly one of a power (column or value), a duty column or a state column")
+    if power is not None:
+        P = column(power, "power") if isinstance(power, str) else np.full(len(t), float(power))
+    else:
+        if rated_power is None or not np.isfinite(rated_power) or rated_power <= 0:
+            raise _err(name, f"a {given[0]} column needs a positive rated power "
+                       f"(got {rated_power!r})", "a rated power > 0 W")
+        key = duty if duty is not None else state
+        f = column(key, "duty" if duty is not None else "state")
+        if duty is not None:
+            bad = np.flatnonzero((f < 0) | (f > 1))
+            if bad.size:
+                raise _err(name, f"row {bad[0] + 2}, column {key!r}: duty {f[bad[0]]:g} is "
+                           "outside 0..1", "a fraction 0..1 (or 0..100 with a [%] header)")
+        else:
+            bad = np.flatnonzero((f != 0) & (f != 1))
+            if bad.size:
+                raise _err(name, f"row {bad[0] + 2}, column {key!r}: state {f[bad[0]]:g} is "
+                           "not 0 or 1", "0 (off) or 1 (on)")
+        P = f * float(rated_power)
     Ta = (column(ambient, "temperature") if isinstance(ambient, str)
           else np.full(len(t), float(ambient)))
     return {"t_s": t, "T_K": T, "P_W": P, "T_amb_K": Ta}

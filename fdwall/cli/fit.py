@@ -28,14 +28,33 @@ def cmd_fit(args) -> int:
     if args.model != "one-node":
         raise InputError(f"--model {args.model}: only one-node is available in this version. "
                          "Allowed: one-node.")
-    power = _value_or_column(args.power, "power", "--power")
+    given = [o for o, v in (("--power", args.power), ("--duty", args.duty),
+                            ("--state", args.state)) if v is not None]
+    if len(given) != 1:
+        raise InputError("heater input: " + (" and ".join(given) + " given together"
+                         if given else "none given") + ". Allowed: exactly one of --power "
+                         "COLUMN|VALUE, --duty COLUMN --rated-power VALUE, --state COLUMN "
+                         "--rated-power VALUE.")
+    rated = None
+    if args.rated_power is not None:
+        if args.power is not None:
+            raise InputError("--rated-power goes with --duty or --state, not with --power. "
+                             "Allowed: --power alone, or --duty/--state with --rated-power.")
+        rated = common.quantity(args.rated_power, "power", "--rated-power")
+        if not rated > 0:
+            raise InputError(f"--rated-power {args.rated_power}: must be above 0 W. "
+                             'Allowed: a positive power such as "2 kW".')
+    elif args.power is None:
+        raise InputError(f"{given[0]} needs --rated-power VALUE (the heater's full power, "
+                         'e.g. "2 kW").')
+    power = None if args.power is None else _value_or_column(args.power, "power", "--power")
     ambient = _value_or_column(args.ambient, "temperature", "--ambient")
     temps = [c.strip() for c in args.temperature.split(",") if c.strip()]
     if not temps:
         raise InputError("--temperature: no column named. Allowed: COLUMN[,COLUMN...].")
     try:
         log = read_log(args.log, time=args.time, temperature=temps, power=power,
-                       ambient=ambient)
+                       ambient=ambient, duty=args.duty, state=args.state, rated_power=rated)
         fit = fit_one_node_log(log["t_s"], log["T_K"], log["P_W"], log["T_amb_K"])
     except LibInputError as exc:
         raise InputError(str(exc)) from None
@@ -50,7 +69,10 @@ def cmd_fit(args) -> int:
         outdir.mkdir(parents=True, exist_ok=True)
         write_file(h5, {
             "inputs": {"log": str(args.log), "time": args.time, "temperature": ",".join(temps),
-                       "power": str(args.power), "ambient": str(args.ambient),
+                       "power": str(args.power), "duty": str(args.duty),
+                       "state": str(args.state), "rated_power": str(args.rated_power),
+                       "rated_power_W": float(rated) if rated else 0.0,
+                       "ambient": str(args.ambient),
                        "model": args.model},
             "summary": summary,
             "tables": {"log": {"time_s": log["t_s"], "T_K": log["T_K"], "P_W": log["P_W"],
@@ -101,8 +123,14 @@ def register(sub) -> None:
     p.add_argument("--time", required=True, metavar="COLUMN", help="time column")
     p.add_argument("--temperature", required=True, metavar="COLUMN[,COLUMN...]",
                    help="temperature column(s); several are averaged")
-    p.add_argument("--power", required=True, metavar="COLUMN|VALUE",
+    p.add_argument("--power", metavar="COLUMN|VALUE",
                    help='heater power column or a value, e.g. "2 kW"')
+    p.add_argument("--duty", metavar="COLUMN",
+                   help="duty column (fraction 0..1, or a [%%] header); needs --rated-power")
+    p.add_argument("--state", metavar="COLUMN",
+                   help="heater on/off column (0 or 1); needs --rated-power")
+    p.add_argument("--rated-power", metavar="VALUE",
+                   help='full heater power for --duty/--state, e.g. "2 kW"')
     p.add_argument("--ambient", required=True, metavar="COLUMN|VALUE",
                    help='ambient temperature column or a value, e.g. "20 degC"')
     p.add_argument("--model", default="one-node", metavar="MODEL", help="one-node (default)")
