@@ -241,3 +241,68 @@ def fit_one_node_log(t, T, P, T_amb) -> dict:
             "C_stderr_J_per_K": C * sC, "tau_s": R * C, "T0_K": float(sol.x[2]),
             "rms_K": rms, "lag1_autocorrelation": r1, "n_eff": float(n_eff),
             "correlation_RC": corr, "warnings": warnings}
+
+
+def physics_check(fit: dict, implied: dict, log_duration_s: float) -> dict:
+    """Compare a one-node fit with the R and C the case's physics implies.
+
+    Parameters
+    ----------
+    fit : dict
+        From :func:`fit_one_node_log` (``R_K_per_W``, ``C_J_per_K``, ``tau_s``).
+    implied : dict
+        From :func:`fdwall.analyses.lumped.implied_rc` (``R_K_per_W`` [K/W],
+        ``C_stored_J_per_K`` and ``C_total_J_per_K`` [J/K], ``tau_s`` [s]).
+    log_duration_s : float
+        Length of the log [s].
+
+    Returns
+    -------
+    dict
+        ``physics`` (the implied values under their own keys), ``ratios`` (fitted / implied:
+        ``R``, ``C_stored``, ``C_total``, ``tau``, dimensionless), ``reading`` (list of
+        plain-language sentences) and ``warnings`` (list of strings).
+    """
+    phys = {k: float(implied[k]) for k in ("R_K_per_W", "C_stored_J_per_K", "C_total_J_per_K",
+                                           "tau_s")}
+    for k, v in phys.items():
+        if not (np.isfinite(v) and v > 0):
+            raise InputError(f"physics cross-check: the case implies {k} = {v!r}; allowed: a "
+                             "case whose heater drives it above ambient at steady state")
+    rR = fit["R_K_per_W"] / phys["R_K_per_W"]
+    rC = fit["C_J_per_K"] / phys["C_stored_J_per_K"]
+    ratios = {"R": rR, "C_stored": rC, "C_total": fit["C_J_per_K"] / phys["C_total_J_per_K"],
+              "tau": fit["tau_s"] / phys["tau_s"]}
+    reading, warns = [], []
+    n_tau = log_duration_s / fit["tau_s"]
+    if n_tau < 3.0:
+        warns.append(f"the log lasts {n_tau:.1f} fitted time constants (under about 3): it is "
+                     "too short to see equilibrium, so R is extrapolated and R and C trade off")
+        reading.append("Log too short to see equilibrium: the fitted R rests on extrapolation "
+                       "and the fitted C on the early, fast part of the warm-up.")
+    if abs(rR - 1) <= 0.1:
+        reading.append(f"R agrees with the physics within 10 % (fitted/implied {rR:.2f}).")
+    elif rR < 1:
+        reading.append(f"Fitted R is {100 * (1 - rR):.0f} % below the physics: the equipment "
+                       "loses more heat than its walls conduct. Leakage (door gaps, vents) adds "
+                       "to 1/R; so do edges, corners and fixings that the 1-D wall leaves out, "
+                       "or conductivity (k) data lower than the real, aged or damp material.")
+    else:
+        reading.append(f"Fitted R is {100 * (rR - 1):.0f} % above the physics: the case's "
+                       "films or k data may be pessimistic, or the sensor sits where the air is "
+                       "hotter than the chamber mean (sensor placement).")
+    if abs(rC - 1) <= 0.1:
+        reading.append(f"C agrees with the stored-energy C within 10 % (fitted/implied "
+                       f"{rC:.2f}).")
+    elif rC > 1:
+        reading.append(f"Fitted C is {100 * (rC - 1):.0f} % above the walls' stored-energy C: "
+                       "contents (load, racks, trays, heater mass) add to C, moisture being "
+                       "driven off absorbs heat, and a lagging sensor makes the warm-up look "
+                       "slower (sensor lag biases C upward).")
+    else:
+        reading.append(f"Fitted C is {100 * (1 - rC):.0f} % below the walls' stored-energy C: "
+                       "in a short log only the inner part of a thick lining has warmed "
+                       "(distributed capacity), or the sensor reads the fast air node rather "
+                       "than the walls (sensor placement).")
+    return {"physics": phys, "ratios": ratios, "reading": reading, "warnings": warns,
+            "log_time_constants": float(n_tau)}

@@ -58,12 +58,29 @@ def cmd_fit(args) -> int:
         fit = fit_one_node_log(log["t_s"], log["T_K"], log["P_W"], log["T_amb_K"])
     except LibInputError as exc:
         raise InputError(str(exc)) from None
+    check = None
+    if args.case:
+        case, case_warns = common._load(args.case)
+        from ..analyses.logs import physics_check
+        from ..analyses.lumped import implied_rc
+        try:
+            implied = implied_rc(case)
+            check = physics_check(fit, implied, float(log["t_s"][-1] - log["t_s"][0]))
+        except (LibInputError, ValueError) as exc:
+            raise InputError(f"--case {args.case}: {exc}") from None
+        fit["warnings"].extend(check["warnings"])
     stem = Path(args.log).stem
     outdir = common.output_dir(args, stem)
     h5 = outdir / f"{stem}-fit.h5"
     warns = fit.pop("warnings")
     summary = {k: float(v) for k, v in fit.items()}
     resid = log["T_K"] - _model(log, fit)
+    groups_extra, notes = {}, ["R and C are the fitted lumped values of the whole equipment"]
+    if check:
+        groups_extra["physics"] = check["physics"]
+        groups_extra["ratios"] = check["ratios"]
+        summary["log_time_constants"] = check["log_time_constants"]
+        notes += check["reading"]
     try:
         from ..h5tree import write_file
         outdir.mkdir(parents=True, exist_ok=True)
@@ -81,7 +98,8 @@ def cmd_fit(args) -> int:
             "references": {"items": ["one-node lumped model, exact piecewise-constant-power propagation",
                            "scipy.optimize.least_squares; standard errors from the Jacobian "
                            "with an effective sample size n(1-r1)/(1+r1)"]},
-            "notes": {"items": ["R and C are the fitted lumped values of the whole equipment"]},
+            "notes": {"items": notes},
+            **groups_extra,
         }, attrs={"kind": "fit", "fdwall_version": common.version(), "case_name": stem,
                   "created": _dt.datetime.now(_dt.timezone.utc).isoformat()})
     except OSError as exc:
@@ -94,7 +112,11 @@ def cmd_fit(args) -> int:
     for w in warns:
         common.warn(w)
     if args.json:
-        print(common.dumps({**summary, "warnings": warns, "files": files}))
+        out = {**summary, "warnings": warns, "files": files}
+        if check:
+            out.update(physics=check["physics"], ratios=check["ratios"],
+                       reading=check["reading"])
+        print(common.dumps(out))
     elif not args.quiet:
         print(f"One-node fit of '{args.log}'")
         print(f"  R    {fit['R_K_per_W']:.5g} +/- {fit['R_stderr_K_per_W']:.2g} K/W")
@@ -102,6 +124,15 @@ def cmd_fit(args) -> int:
         print(f"  tau  {fit['tau_s']:.5g} s")
         print(f"  residual RMS {fit['rms_K']:.3g} K, lag-1 autocorrelation "
               f"{fit['lag1_autocorrelation']:.2f} (effective samples {fit['n_eff']:.0f})")
+        if check:
+            ph, ra = check["physics"], check["ratios"]
+            print(f"Physics of '{args.case}' (implied):")
+            print(f"  R    {ph['R_K_per_W']:.5g} K/W        fitted/implied {ra['R']:.3f}")
+            print(f"  C    {ph['C_stored_J_per_K']:.5g} J/K (stored)  fitted/implied "
+                  f"{ra['C_stored']:.3f}; total {ph['C_total_J_per_K']:.5g} J/K")
+            print(f"  tau  {ph['tau_s']:.5g} s         fitted/implied {ra['tau']:.3f}")
+            for line in check["reading"]:
+                print(f"  - {line}")
         print("\nFiles written:")
         for f in files:
             print(f"  {f}")
@@ -133,6 +164,8 @@ def register(sub) -> None:
                    help='full heater power for --duty/--state, e.g. "2 kW"')
     p.add_argument("--ambient", required=True, metavar="COLUMN|VALUE",
                    help='ambient temperature column or a value, e.g. "20 degC"')
+    p.add_argument("--case", metavar="CASE",
+                   help="case file whose implied R and C the fit is compared with")
     p.add_argument("--model", default="one-node", metavar="MODEL", help="one-node (default)")
     common.add_output_options(p, plots=False, progress=False)
     p.set_defaults(func=cmd_fit)
