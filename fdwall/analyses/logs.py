@@ -306,3 +306,59 @@ def physics_check(fit: dict, implied: dict, log_duration_s: float) -> dict:
                        "than the walls (sensor placement).")
     return {"physics": phys, "ratios": ratios, "reading": reading, "warnings": warns,
             "log_time_constants": float(n_tau)}
+
+
+def predict_one_node(R, C, T_amb, *, setpoint=None, power=None, rated_power=None, T0=None,
+                     R_stderr=0.0) -> dict:
+    """Predictions of a fitted one-node model (closed forms of C dT/dt = P - (T - T_amb)/R).
+
+    Parameters
+    ----------
+    R, C : float
+        Fitted resistance [K/W] and capacity [J/K].
+    T_amb : float
+        Ambient temperature [K].
+    setpoint : float, optional
+        Setpoint [K]; gives the duty needed to hold it and, with ``power``, the time to reach
+        it from ``T0``.
+    power : float, optional
+        Heater power [W] for the steady temperature and the warm-up (default ``rated_power``).
+    rated_power : float, optional
+        Full heater power [W] for the duty at the setpoint.
+    T0 : float, optional
+        Start temperature [K] for the time to the setpoint (default ``T_amb``).
+    R_stderr : float
+        Standard error of R [K/W], carried to the steady temperature and duty (first order).
+
+    Returns
+    -------
+    dict
+        Any of ``steady_temperature_K`` (+ ``steady_temperature_stderr_K``),
+        ``time_to_setpoint_s`` (``inf`` when the setpoint lies beyond the steady temperature),
+        ``duty_at_setpoint`` (fraction; > 1 means the heater cannot hold it) with
+        ``duty_at_setpoint_stderr``, and ``power_at_setpoint_W``.
+    """
+    out = {}
+    P = power if power is not None else rated_power
+    T0 = T_amb if T0 is None else T0
+    if P is not None:
+        T_inf = T_amb + P * R
+        out["steady_temperature_K"] = float(T_inf)
+        out["steady_temperature_stderr_K"] = float(abs(P) * R_stderr)
+    if setpoint is not None:
+        out["power_at_setpoint_W"] = float((setpoint - T_amb) / R)
+        if rated_power:
+            duty = (setpoint - T_amb) / (R * rated_power)
+            out["duty_at_setpoint"] = float(duty)
+            out["duty_at_setpoint_stderr"] = float(abs(duty) * R_stderr / R)
+        if P is not None:
+            # T(t) = T_inf + (T0 - T_inf) exp(-t / RC)  =>  t = RC ln((T0 - T_inf)/(Tset - T_inf))
+            a, b = T0 - T_inf, setpoint - T_inf
+            if a * b <= 0 and setpoint != T0:  # setpoint at or beyond the steady temperature
+                t_set = float("inf") if (setpoint - T0) * (T_inf - T0) > 0 else 0.0
+            elif abs(b) >= abs(a):  # already at or past the setpoint
+                t_set = 0.0
+            else:
+                t_set = float(R * C * np.log(a / b))
+            out["time_to_setpoint_s"] = t_set
+    return out

@@ -58,6 +58,10 @@ def cmd_fit(args) -> int:
         fit = fit_one_node_log(log["t_s"], log["T_K"], log["P_W"], log["T_amb_K"])
     except LibInputError as exc:
         raise InputError(str(exc)) from None
+    setpoint = (None if args.setpoint is None
+                else common.quantity(args.setpoint, "temperature", "--setpoint"))
+    at_power = (None if args.at_power is None
+                else common.quantity(args.at_power, "power", "--at-power"))
     check = None
     if args.case:
         case, case_warns = common._load(args.case)
@@ -69,6 +73,17 @@ def cmd_fit(args) -> int:
         except (LibInputError, ValueError) as exc:
             raise InputError(f"--case {args.case}: {exc}") from None
         fit["warnings"].extend(check["warnings"])
+    import numpy as _np
+
+    from ..analyses.logs import predict_one_node
+    full = rated if rated else float(_np.max(log["P_W"]))
+    pred = predict_one_node(fit["R_K_per_W"], fit["C_J_per_K"], float(_np.mean(log["T_amb_K"])),
+                            setpoint=setpoint, power=at_power if at_power is not None else full,
+                            rated_power=full, T0=float(_np.mean(log["T_amb_K"])),
+                            R_stderr=fit["R_stderr_K_per_W"])
+    if pred.get("duty_at_setpoint", 0.0) > 1.0:
+        fit["warnings"].append(f"holding {args.setpoint} needs {pred['duty_at_setpoint']:.2f} of "
+                               f"the heater's {full:.4g} W: more than it can give")
     stem = Path(args.log).stem
     outdir = common.output_dir(args, stem)
     h5 = outdir / f"{stem}-fit.h5"
@@ -76,6 +91,10 @@ def cmd_fit(args) -> int:
     summary = {k: float(v) for k, v in fit.items()}
     resid = log["T_K"] - _model(log, fit)
     groups_extra, notes = {}, ["R and C are the fitted lumped values of the whole equipment"]
+    groups_extra["predictions"] = pred
+    notes.append("predictions use the one-node closed forms: steady T = T_amb + P R; time to "
+                 "a setpoint from ambient t = R C ln((T_inf - T_amb)/(T_inf - T_set)); duty = "
+                 f"(T_set - T_amb)/(R P_full) with P_full = {full:.6g} W")
     if check:
         groups_extra["physics"] = check["physics"]
         groups_extra["ratios"] = check["ratios"]
@@ -112,7 +131,7 @@ def cmd_fit(args) -> int:
     for w in warns:
         common.warn(w)
     if args.json:
-        out = {**summary, "warnings": warns, "files": files}
+        out = {**summary, "predictions": pred, "warnings": warns, "files": files}
         if check:
             out.update(physics=check["physics"], ratios=check["ratios"],
                        reading=check["reading"])
@@ -124,6 +143,12 @@ def cmd_fit(args) -> int:
         print(f"  tau  {fit['tau_s']:.5g} s")
         print(f"  residual RMS {fit['rms_K']:.3g} K, lag-1 autocorrelation "
               f"{fit['lag1_autocorrelation']:.2f} (effective samples {fit['n_eff']:.0f})")
+        if "steady_temperature_K" in pred:
+            print(f"  steady temperature at {at_power if at_power is not None else full:.4g} W: "
+                  f"{pred['steady_temperature_K'] - 273.15:.1f} degC")
+        if "duty_at_setpoint" in pred:
+            print(f"  at setpoint {args.setpoint}: duty {pred['duty_at_setpoint']:.3f}, "
+                  f"time from ambient {pred['time_to_setpoint_s'] / 60:.1f} min")
         if check:
             ph, ra = check["physics"], check["ratios"]
             print(f"Physics of '{args.case}' (implied):")
@@ -164,6 +189,11 @@ def register(sub) -> None:
                    help='full heater power for --duty/--state, e.g. "2 kW"')
     p.add_argument("--ambient", required=True, metavar="COLUMN|VALUE",
                    help='ambient temperature column or a value, e.g. "20 degC"')
+    p.add_argument("--setpoint", metavar="TEMPERATURE",
+                   help='setpoint for the predicted duty and warm-up time, e.g. "180 degC"')
+    p.add_argument("--at-power", metavar="POWER",
+                   help="power for the predicted steady temperature and warm-up (default: "
+                   "rated power, else the largest logged power)")
     p.add_argument("--case", metavar="CASE",
                    help="case file whose implied R and C the fit is compared with")
     p.add_argument("--model", default="one-node", metavar="MODEL", help="one-node (default)")
