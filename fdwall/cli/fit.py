@@ -147,8 +147,10 @@ def cmd_fit(args) -> int:
             print(f"  steady temperature at {at_power if at_power is not None else full:.4g} W: "
                   f"{pred['steady_temperature_K'] - 273.15:.1f} degC")
         if "duty_at_setpoint" in pred:
-            print(f"  at setpoint {args.setpoint}: duty {pred['duty_at_setpoint']:.3f}, "
-                  f"time from ambient {pred['time_to_setpoint_s'] / 60:.1f} min")
+            ts = pred["time_to_setpoint_s"]
+            when = (f"{ts / 60:.1f} min from ambient" if ts != float("inf")
+                    else "never reached at that power")
+            print(f"  at setpoint {args.setpoint}: duty {pred['duty_at_setpoint']:.3f}, {when}")
         if check:
             ph, ra = check["physics"], check["ratios"]
             print(f"Physics of '{args.case}' (implied):")
