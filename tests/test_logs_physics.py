@@ -108,3 +108,18 @@ def test_cli_case_gives_physics_object(tmp_path):
     assert d["ratios"]["R"] == pytest.approx(d["R_K_per_W"] / implied["R_K_per_W"])
     assert d["reading"]
     assert (tmp_path / "o" / "log-fit.h5").exists()
+
+
+@pytest.mark.parametrize("extra, match", [
+    (["--case", "no-such-case.toml"], "does not exist"),
+    (["--setpoint", "150"], "--setpoint"),
+    (["--at-power", "2 m"], "--at-power"),
+])
+def test_cli_bad_case_or_prediction_option_exit_2(tmp_path, extra, match):
+    # Source: exit codes and error style as in fdwall.cli (common practice, no source).
+    r = subprocess.run([sys.executable, "-m", "fdwall.cli", "fit", "cases/lab-oven-log.csv",
+                        "--time", "time", "--temperature", "chamber top", "--power", "heater",
+                        "--ambient", "20 degC", "--out", str(tmp_path / "o")] + extra,
+                       capture_output=True, text=True)
+    assert r.returncode == 2 and match in r.stderr and "Traceback" not in r.stderr, r.stderr
+    assert not (tmp_path / "o").exists()
