@@ -28,7 +28,8 @@ import numpy as np
 from fdwall.errors import InputError
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
-           "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants"]
+           "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
+           "rc_analysis"]
 
 SIGMA_SB = 5.670374419e-8  # Stefan-Boltzmann constant [W/(m2 K4)], CODATA 2018
 
@@ -332,4 +333,59 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
         tau1 = float(x @ (Cap[keep] * x)) / R
         out.update({"heated_node": heated, "R_heated_K_per_W": R, "first_moment_tau_s": tau1,
                     "C_effective_J_per_K": tau1 / R})
+    return out
+
+
+def _rc_notes(rc, modes, case) -> list:
+    """Plain-language readings of the R and C numbers (which C a logged fit should match)."""
+    tau1 = modes.get("first_moment_tau_s")
+    slow = float(modes["time_constants_s"][0]) if len(modes["time_constants_s"]) else None
+    notes = [
+        "Compare a C fitted to a full heating log (up to near equilibrium) with C_stored: a "
+        "one-node model with C_stored holds the same energy above ambient as the wall at the "
+        "steady state, so R C_stored is the time constant such a fit tends to.",
+        "C_total is every heat capacity summed; it is an upper bound, because the outer layers "
+        "sit closer to ambient and hold less of the rise. A fitted C near C_total means the log "
+        "or the model is off, not that the wall is well described.",
+        "C_effective is the one-node C whose step response has the same first moment (the "
+        "mean delay) as the heated node; a fit weighted to the early part of a log, or to a "
+        "short log, lands nearer C_effective than C_stored.",
+    ]
+    if slow is not None and tau1 is not None:
+        notes.append(f"The wall is not one exponential: its slowest time constant is "
+                     f"{slow:.4g} s, the first-moment time constant {tau1:.4g} s and R C_stored "
+                     f"{rc['tau_s']:.4g} s; a one-node fit can only match one of them.")
+    notes.append("R and C hold at this operating point only: radiation loss grows roughly as "
+                 "T^3 and k(T) of insulation rises with temperature, so R falls as the wall "
+                 "runs hotter, and cp(T) moves C. Compare a fit with the numbers at the "
+                 "temperatures the log ran at.")
+    return notes
+
+
+def rc_analysis(case, t=None) -> dict:
+    """Lumped R/C of ``case`` from the physics of its walls, with its time constants.
+
+    Gathers :func:`implied_rc` (at the steady state at time ``t`` [s], default as there) and
+    :func:`wall_time_constants` (linearised at that same steady state).
+
+    Returns
+    -------
+    dict
+        ``R_K_per_W`` [K/W], ``C_stored_J_per_K``, ``C_total_J_per_K`` [J/K], ``tau_s``
+        = R C_stored [s], ``T_hot_K``, ``T_amb_K`` [K], ``Q_W`` [W], ``stored_J`` [J],
+        ``time_constants_s`` (list, slowest first) [s], ``first_moment_tau_s`` [s] and
+        ``C_effective_J_per_K`` [J/K] of the heated node (None when it is held at a fixed
+        temperature), ``n_unknowns`` and ``notes`` (list of plain-language strings).
+    """
+    from fdwall.solver.steady import solve_steady
+    from fdwall.system import build_system
+
+    out = implied_rc(case, t=t)
+    st = solve_steady(case, t=t, system=build_system(case))
+    modes = wall_time_constants(case, T_op=st.T, t=st.time)
+    out.update({"time_constants_s": [float(x) for x in modes["time_constants_s"]],
+                "first_moment_tau_s": modes.get("first_moment_tau_s"),
+                "C_effective_J_per_K": modes.get("C_effective_J_per_K"),
+                "n_unknowns": modes["n_unknowns"]})
+    out["notes"] = _rc_notes(out, modes, case)
     return out
