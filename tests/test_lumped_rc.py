@@ -32,3 +32,28 @@ def test_rc_analysis_flux_in_fixed_back():
     assert r["C_effective_J_per_K"] == pytest.approx(1e6 * L / 3, rel=1e-3)
     text = " ".join(r["notes"])
     assert "C_stored" in text and "radiation" in text and "k(T)" in text
+
+
+def _slab_surface_rise(t, q=Q, k=1.0, m_max=400):
+    # Source: Carslaw & Jaeger, Conduction of Heat in Solids, 2nd ed., Sec. 3.3 (from memory):
+    # flux q into x=0, x=L held, from rest: theta(0,t) = q L/k [1 - sum_m 8/((2m-1)^2 pi^2)
+    # exp(-(2m-1)^2 pi^2 alpha t/(4 L^2))].  Its first moment is 32 L^2/(pi^4 alpha) *
+    # sum 1/(2m-1)^4 = L^2/(3 alpha) (sum = pi^4/96).
+    import numpy as np
+    j = 2 * np.arange(1, m_max + 1) - 1
+    w = 8 / (j ** 2 * math.pi ** 2)
+    return q * L / k * (1 - (w[None, :] * np.exp(-np.outer(t, j ** 2 * math.pi ** 2 * ALPHA
+                                                           / (4 * L * L)))).sum(1))
+
+
+def test_logged_fit_tends_to_C_effective_not_C_stored():
+    # The note's claim checked on the analytic step response above (not on the solver): a
+    # one-node fit with R fixed over a long log (10 slowest time constants) lands within 3 %
+    # of C_effective = rho c L/3 and far from C_stored = rho c L/2 (measured 32 670 J/K).
+    import numpy as np
+
+    from fdwall.analyses.lumped import fit_one_node
+    t = np.linspace(0.0, 40000.0, 2001)
+    f = fit_one_node(t, 293.15 + _slab_surface_rise(t), Q, 293.15, R=L / 1.0)
+    assert f["C_J_per_K"] == pytest.approx(1e6 * L / 3, rel=0.03)
+    assert f["C_J_per_K"] < 0.75 * (1e6 * L / 2)

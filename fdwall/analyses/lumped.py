@@ -10,8 +10,10 @@ From the physics of a wall, fdwall derives:
   ambient divided by the heat flow through the wall (exact for any k(T) and films);
 * ``C_stored``: the energy the walls and the chamber hold at that steady state, above ambient,
   divided by the heated node's rise above ambient.  A one-node model with this C stores the
-  right energy at equilibrium; its time constant ``R C_stored`` is the one to compare with a
-  C fitted to a heating curve;
+  right energy at equilibrium (what an energy count over a warm-up gives);
+* ``C_effective`` (:func:`wall_time_constants`): the one-node C with the same first moment
+  of the heated node's step response; a C fitted to the heated node's temperature over a
+  long heating curve tends to this one, not to C_stored;
 * ``C_total``: the plain sum of all heat capacities (an upper bound on C_stored, since the
   outer layers sit closer to ambient).
 
@@ -196,11 +198,14 @@ def implied_rc(case, t=None) -> dict:
         f = sysm.face_i[1]
         s = f[1] if f[1] >= 0 else f[3]
         if s < 0:
-            raise ValueError("implied_rc needs a fixed or fluid temperature at the outer face")
+            raise ValueError("the lumped R/C needs an ambient: a fixed_temperature or a "
+                             "fluid_temperature at the outer face, and this case has neither. "
+                             "Give the outer face one of them.")
         T_amb = float(sched_eval(sysm.s_off, sysm.stab, s, tt, 0.0))
     if abs(Q) <= 0.0 or abs(T_hot - T_amb) < 1e-9:
-        raise ValueError("implied_rc needs a steady state with heat flowing (the heater or the "
-                         "inner face must drive the wall above ambient)")
+        raise ValueError("the lumped R/C needs a steady state with heat flowing: the heater "
+                         "or the inner face must drive the wall above ambient at the time "
+                         "the steady state is taken (run.steady_at or the end of the run).")
     R = (T_hot - T_amb) / Q
     # energy held above ambient: enthalpy at the steady state minus enthalpy at ambient
     T_amb_vec = np.full(sysm.n_unknowns, T_amb)
@@ -341,15 +346,16 @@ def _rc_notes(rc, modes, case) -> list:
     tau1 = modes.get("first_moment_tau_s")
     slow = float(modes["time_constants_s"][0]) if len(modes["time_constants_s"]) else None
     notes = [
-        "Compare a C fitted to a full heating log (up to near equilibrium) with C_stored: a "
-        "one-node model with C_stored holds the same energy above ambient as the wall at the "
-        "steady state, so R C_stored is the time constant such a fit tends to.",
+        "A one-node C fitted to the heated node's temperature over a long heating log (run "
+        "to near equilibrium, R fitted or fixed) tends to C_effective: the one-node model "
+        "with that C has the same first moment (mean delay) of its step response as the "
+        "wall. Compare a logged fit with C_effective; a short log gives a smaller C still.",
+        "C_stored is the energy the wall holds above ambient at the steady state per kelvin "
+        "of the heated node's rise; it is what an energy count gives (heater energy in minus "
+        "losses, over a warm-up), not what a temperature-curve fit gives, and it is larger "
+        "than C_effective because the heat sits away from the heated node.",
         "C_total is every heat capacity summed; it is an upper bound, because the outer layers "
-        "sit closer to ambient and hold less of the rise. A fitted C near C_total means the log "
-        "or the model is off, not that the wall is well described.",
-        "C_effective is the one-node C whose step response has the same first moment (the "
-        "mean delay) as the heated node; a fit weighted to the early part of a log, or to a "
-        "short log, lands nearer C_effective than C_stored.",
+        "sit closer to ambient and hold less of the rise.",
     ]
     if slow is not None and tau1 is not None:
         notes.append(f"The wall is not one exponential: its slowest time constant is "
