@@ -31,7 +31,7 @@ from fdwall.errors import InputError
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
            "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
-           "rc_analysis"]
+           "rc_analysis", "step_response_from_modes", "foster_fit"]
 
 SIGMA_SB = 5.670374419e-8  # Stefan-Boltzmann constant [W/(m2 K4)], CODATA 2018
 
@@ -320,8 +320,11 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
         J[N, :N] = Jrow[:N]
     keep = np.setdiff1d(np.arange(nun), np.asarray(sys_.dirich_node, dtype=int))
     G = -0.5 * (J + J.T)[np.ix_(keep, keep)]
-    lam = eigh(G, np.diag(Cap[keep]), eigvals_only=True)
-    lam = np.sort(lam[lam > 0])
+    lam, V = eigh(G, np.diag(Cap[keep]))  # V^T C V = I
+    pos = lam > 0
+    lam, V = lam[pos], V[:, pos]
+    order = np.argsort(lam)
+    lam, V = lam[order], V[:, order]
     tau = 1.0 / lam
     if n_modes is not None:
         tau = tau[:n_modes]
@@ -336,8 +339,12 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
         x = np.linalg.solve(G, e)
         R = float(e @ x)
         tau1 = float(x @ (Cap[keep] * x)) / R
+        # modal expansion Z(s) = sum_i v_i[e]^2/(lambda_i + s): the step response to 1 W is
+        # sum_i r_i (1 - exp(-t/tau_i)) with r_i = v_i[e]^2 tau_i [K/W] (the exact Foster form)
+        r_modes = V[keep == heated, :][0] ** 2 / lam
         out.update({"heated_node": heated, "R_heated_K_per_W": R, "first_moment_tau_s": tau1,
-                    "C_effective_J_per_K": tau1 / R})
+                    "C_effective_J_per_K": tau1 / R,
+                    "mode_R_K_per_W": r_modes[:len(tau)]})
     return out
 
 
@@ -395,3 +402,71 @@ def rc_analysis(case, t=None) -> dict:
                 "n_unknowns": modes["n_unknowns"]})
     out["notes"] = _rc_notes(out, modes, case)
     return out
+
+
+def step_response_from_modes(t, time_constants_s, mode_R_K_per_W):
+    """Rise [K] of the heated node at times ``t`` [s] after a 1 W step, from its modes.
+
+    ``sum_i r_i (1 - exp(-t/tau_i))`` with ``time_constants_s`` tau_i [s] and
+    ``mode_R_K_per_W`` r_i [K/W] (as :func:`wall_time_constants` returns them).
+    """
+    t = np.asarray(t, dtype=float)
+    tau = np.asarray(time_constants_s, dtype=float)
+    r = np.asarray(mode_R_K_per_W, dtype=float)
+    return (r[None, :] * -np.expm1(-np.outer(t, 1.0 / tau))).sum(axis=1)
+
+
+def foster_fit(time_constants_s, mode_R_K_per_W, n_terms=4, per_decade=4, t=None):
+    """N-term Foster network (positive R_i, C_i) fitted to the heated node's step response.
+
+    The target is :func:`step_response_from_modes` at ``t`` [s] (default 200 log-spaced times
+    from a tenth of the fastest mode to ten times the slowest).  Positive resistances on a
+    grid of log-spaced time constants (``per_decade`` per decade over the span of ``t``) are
+    found by scipy.optimize.nnls; adjacent terms are then merged (R added, tau the R-weighted
+    mean, which keeps the first moment sum R tau), each time the pair whose merge refits
+    best, until ``n_terms`` remain, and the R are refitted by nnls on the merged time
+    constants.
+
+    Returns
+    -------
+    dict
+        ``R_K_per_W`` and ``C_J_per_K`` (arrays, C_i = tau_i/R_i), ``tau_s`` [s] (slowest
+        first), ``max_error_K_per_W`` the largest deviation from the target over ``t`` [K/W]
+        and ``max_error_fraction`` that divided by the total resistance [-].
+    """
+    from scipy.optimize import nnls
+    tau_m = np.asarray(time_constants_s, dtype=float)
+    r_m = np.asarray(mode_R_K_per_W, dtype=float)
+    if tau_m.size == 0 or tau_m.shape != r_m.shape or int(n_terms) < 1:
+        raise InputError("foster_fit: needs one resistance [K/W] per time constant [s] and "
+                         f"n_terms >= 1; got {tau_m.size} and {r_m.size}, n_terms={n_terms!r}.")
+    if t is None:
+        t = np.geomspace(tau_m.min() / 10.0, tau_m.max() * 10.0, 200)
+    t = np.asarray(t, dtype=float)
+    y = step_response_from_modes(t, tau_m, r_m)
+    n_grid = max(int(np.ceil(np.log10(t[-1] / t[0]) * per_decade)) + 1, 2)
+    grid = np.geomspace(t[0], t[-1], n_grid)
+
+    def basis(taus):
+        return -np.expm1(-np.outer(t, 1.0 / np.asarray(taus)))
+
+    R, _ = nnls(basis(grid), y)
+    keep = R > 0
+    taus, Rs = list(grid[keep]), list(R[keep])
+    while len(taus) > int(n_terms):
+        best = None
+        for i in range(len(taus) - 1):  # greedy: the merge whose refit fits best
+            Rn = Rs[i] + Rs[i + 1]
+            tn = (Rs[i] * taus[i] + Rs[i + 1] * taus[i + 1]) / Rn
+            tt = taus[:i] + [tn] + taus[i + 2:]
+            Rt, res = nnls(basis(tt), y)
+            if best is None or res < best[0]:
+                best = (res, tt, list(Rt))
+        _, taus, Rs = best
+    taus = np.asarray(taus)
+    Rs, _ = nnls(basis(taus), y)
+    ok = Rs > 0
+    taus, Rs = taus[ok][::-1], Rs[ok][::-1]
+    err = float(np.max(np.abs(basis(taus) @ Rs - y))) if taus.size else float(np.max(y))
+    return {"R_K_per_W": Rs, "C_J_per_K": taus / Rs, "tau_s": taus,
+            "max_error_K_per_W": err, "max_error_fraction": err / float(r_m.sum())}
