@@ -42,3 +42,19 @@ def test_bad_input_exit_2(tmp_path):
     p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50",
              "--out", str(tmp_path))
     assert p.returncode == 2
+
+
+def test_touch_target_cli(tmp_path):
+    # ISO 13732-1 bare metal, 10 s: lower edge 55 degC in the bundled table (from memory, not
+    # checked against the standard), read back through fdwall.safety.threshold
+    from fdwall.safety import threshold
+    p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--contact-time", "10 s",
+             "--surface", "bare-metal", "--out", str(tmp_path), "--json", "--no-plots")
+    assert p.returncode == 0, p.stderr
+    d = json.loads(p.stdout)
+    t = d["targets"][0]
+    assert t["name"] == "touch" and abs(t["limit"] - threshold("bare-metal", 10.0)[0]) < 1e-9
+    assert t["value"] <= t["limit"] and d["caution"]
+    p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--contact-time", "10 s",
+             "--out", str(tmp_path))
+    assert p.returncode == 2 and "--surface" in p.stderr

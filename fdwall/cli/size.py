@@ -20,7 +20,7 @@ def _loss(text, geometry):
 
 def cmd_size(args) -> int:
     from ..errors import InputError as LibInputError
-    from ..sizing import LossTarget, SkinTarget, size_layer
+    from ..sizing import LossTarget, SkinTarget, size_layer, touch_target
     case, warns = common.load(args.case)
     for w in warns:
         common.warn(w)
@@ -45,9 +45,18 @@ def cmd_size(args) -> int:
     if args.loss_limit:
         v, u = _loss(args.loss_limit, case.wall.geometry)
         targets.append(LossTarget(v, unit=u))
+    if (args.contact_time is None) != (args.surface is None):
+        raise InputError("--contact-time TIME and --surface CLASS go together (the touch "
+                         "target); give both or neither.")
+    if args.contact_time is not None:
+        tc = common.quantity(args.contact_time, "time", "--contact-time", positive=True)
+        try:
+            targets.append(touch_target(args.surface, tc))
+        except LibInputError as exc:
+            raise InputError(str(exc)) from None
     if not targets:
-        raise InputError("give at least one target: --skin-limit TEMPERATURE or --loss-limit "
-                         "VALUE.")
+        raise InputError("give at least one target: --skin-limit TEMPERATURE, --loss-limit "
+                         "VALUE, or --contact-time TIME with --surface CLASS.")
     step = stock = None
     if args.stock:
         stock = common.quantity_list(args.stock, "length", "--stock", positive=True)
@@ -86,6 +95,8 @@ def cmd_size(args) -> int:
         print(f"Sizing layer {layer} of '{args.case}'")
         print(f"  answer {r.thickness_m * 1000:.1f} mm (exact {r.thickness_exact_m * 1000:.2f}"
               " mm)")
+        for w in r.warnings:
+            print(f"  warning: {w}")
         for t in r.targets:
             print(f"  {t['name']}: {t['value']:.4g} {t['unit']} (limit {t['limit']:.4g}) "
                   f"{t['verdict']}")
@@ -101,6 +112,10 @@ def register(sub) -> None:
     p.add_argument("--layer", required=True, metavar="N|MATERIAL")
     p.add_argument("--skin-limit", metavar="TEMPERATURE")
     p.add_argument("--loss-limit", metavar="VALUE")
+    p.add_argument("--contact-time", metavar="TIME",
+                   help='touch target: contact time, e.g. "5 s" (with --surface)')
+    p.add_argument("--surface", metavar="CLASS",
+                   help="touch target: surface class of the outer face (with --contact-time)")
     p.add_argument("--stock-step", default="25 mm", metavar="LENGTH")
     p.add_argument("--stock", metavar='"L1,L2,..."')
     p.add_argument("--min-thickness", default="5 mm", metavar="LENGTH")
