@@ -58,3 +58,22 @@ def test_touch_target_cli(tmp_path):
     p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--contact-time", "10 s",
              "--out", str(tmp_path))
     assert p.returncode == 2 and "--surface" in p.stderr
+
+
+def test_service_limit_warning_cli(tmp_path):
+    # Gypsum board rated 52 degC (bundled library) behind a 200 degC oven liner: in steady series
+    # conduction (Incropera 7th ed., sec. 3.1) its hot-side interface lies between the skin
+    # and the oven air, far above 52 degC, so a warning naming both must appear (JSON and HDF5).
+    import re
+    src = open(os.path.join(ROOT, "cases", "curing-oven-panel.toml")).read()
+    case = tmp_path / "gypsum-panel.toml"
+    case.write_text(src.replace('"mineral-wool-64"', '"plasterboard-gypsum"'))
+    p = _run(str(case), "--layer", "1", "--skin-limit", "50 degC", "--out", str(tmp_path),
+             "--json", "--no-plots")
+    assert p.returncode == 0, p.stderr
+    w = [x for x in json.loads(p.stdout)["warnings"] if "plasterboard-gypsum" in x]
+    assert len(w) == 1 and "52.0 degC" in w[0]
+    T_int = float(re.search(r"interface temperature ([0-9.]+) degC", w[0]).group(1))
+    assert 50.0 < T_int < 200.0
+    with h5py.File(tmp_path / "gypsum-panel-size.h5") as h:
+        assert any(b"plasterboard-gypsum" in x for x in h["warnings/items"][()])

@@ -80,9 +80,12 @@ def cmd_size(args) -> int:
             "inputs": {"layer": layer, "t_min_m": tmin, "t_max_m": tmax},
             "summary": {"thickness_m": r.thickness_m, "thickness_exact_m": r.thickness_exact_m},
             "tables": {"tradeoff": r.table},
-            "text": {"warnings": r.warnings or ["none"],
-                     "references": ["grid bracket + scipy.optimize.brentq on the steady solve"],
-                     "notes": ["steady targets only"]}},
+            "warnings": {"items": r.warnings or ["none"]},
+            "references": {"items": ["grid bracket + scipy.optimize.brentq on the steady solve",
+                           "touch target: fdwall.safety.touch_limit (ISO 13732-1 table, from "
+                           "memory)"]},
+            "notes": {"items": ["steady targets only; service limits checked at the answer thickness "
+                      "against each material's maximum service temperature"]}},
             attrs={"kind": "size", "fdwall_version": common.version(),
                    "case_name": stem, "caution": r.caution,
                    "created": datetime.now(timezone.utc).isoformat()})
