@@ -77,3 +77,23 @@ def test_service_limit_warning_cli(tmp_path):
     assert 50.0 < T_int < 200.0
     with h5py.File(tmp_path / "gypsum-panel-size.h5") as h:
         assert any(b"plasterboard-gypsum" in x for x in h["warnings/items"][()])
+
+
+def test_energy_and_cost_cli(tmp_path):
+    # Hand computation (definitions, common practice, no source): annual supplied energy
+    # = loss [W/m2] * 6000 h * 3600 s/h / 0.8, cost = energy [GJ] * 9 per GJ.
+    p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50 degC",
+             "--hours-per-year", "6000 h", "--supply-efficiency", "80 %", "--energy-price",
+             "9 per GJ", "--max-thickness", "100 mm", "--out", str(tmp_path), "--json",
+             "--no-plots")
+    assert p.returncode == 0, p.stderr
+    t = json.loads(p.stdout)["table"]
+    for q, e, c in zip(t["loss"], t["energy_J_per_m2"], t["cost_per_year"]):
+        assert abs(e - q * 6000 * 3600 / 0.8) < 1e-6 * e
+        assert abs(c - e / 1e9 * 9) < 1e-6 * c
+    for bad in (["--energy-price", "0.1 kWh", "--hours-per-year", "8000 h"],
+                ["--supply-efficiency", "1.2", "--hours-per-year", "8000 h"],
+                ["--hours-per-year", "9000 h"], ["--energy-price", "0.1 /kWh"]):
+        p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50 degC",
+                 "--out", str(tmp_path), *bad)
+        assert p.returncode == 2 and "--" in p.stderr, (bad, p.stderr)

@@ -71,14 +71,15 @@ def test_annual_energy_and_cost_hand_computation():
     hours, eta, price_kwh = 8000.0, 0.85, 0.12
     en = Energy(hours=hours * 3600.0, efficiency=eta, price=price_kwh / 3.6e6)
     r = size_layer(_slab(), 0, [LossTarget(200.0)], step=0.025, t_max=0.2, energy=en)
-    for L, E, c in zip(r.table["thickness_m"], r.table["energy_J"], r.table["cost"]):
+    for L, E, c in zip(r.table["thickness_m"], r.table["energy_J_per_m2"],
+                        r.table["cost_per_year"]):
         q = (473.15 - 293.15) / (L / K_INS + 1 / 10.0 + 1e-6)
         kwh = q * hours / eta / 1000.0
         assert E / 3.6e6 == pytest.approx(kwh, rel=1e-3)
         assert c == pytest.approx(kwh * price_kwh, rel=1e-3)
     # 50 mm by hand: q = 180/(1.25 + 0.1) = 133.33 W/m2 -> 1254.9 kWh/m2/yr -> 150.59 per m2/yr
     i = [round(x, 6) for x in r.table["thickness_m"]].index(0.05)
-    assert r.table["cost"][i] == pytest.approx(150.59, rel=1e-3)
+    assert r.table["cost_per_year"][i] == pytest.approx(150.59, rel=1e-3)
     with pytest.raises(ValueError, match="efficiency"):
         Energy(hours=1.0, efficiency=1.5)
     assert math.isfinite(r.thickness_m)

@@ -165,8 +165,9 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
     Targets are bracketed on a grid, then each sign change is refined with scipy brentq; the
     sized layer's cell count is held fixed during the search so the root finder sees no steps.
     Feasible intervals (all targets met) are reported, so non-monotone targets are handled.
-    With ``energy`` the trade-off table gains annual supplied energy ``energy_J`` [J per m2 slab,
-    per m cylinder, per piece sphere] and, with a price, ``cost`` [money per year per same unit].
+    With ``energy`` the trade-off table gains annual supplied energy ``energy_J_per_m2`` (slab),
+    ``energy_J_per_m`` (cylinder) or ``energy_J`` (sphere) and, with a price, ``cost_per_year``
+    [money per year, per m2 / per m / per piece].
     Layers driven above their maximum service temperature at the answer are warned about.
     """
     if case.wall is None:
@@ -223,10 +224,12 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
     else:
         rows = list(np.arange(step, t_max + 1e-12, step))
     tab = {"thickness_m": [], "skin_K": [], "loss": [], "all_pass": []}
+    ekey = {"slab": "energy_J_per_m2", "cylinder": "energy_J_per_m"}.get(case.wall.geometry,
+                                                                          "energy_J")
     if energy is not None:
-        tab["energy_J"] = []
+        tab[ekey] = []
         if energy.price is not None:
-            tab["cost"] = []
+            tab["cost_per_year"] = []
     for x in rows:
         sx, m = margins(x)
         tab["thickness_m"].append(float(x))
@@ -236,8 +239,8 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
         tab["all_pass"].append(bool(min(m) >= 0))
         if energy is not None:
             e = energy.annual(q)
-            tab["energy_J"].append(e)
+            tab[ekey].append(e)
             if energy.price is not None:
-                tab["cost"].append(e * energy.price)
+                tab["cost_per_year"].append(e * energy.price)
     warns = service_warnings(s, case.wall)
     return SizingResult(ans, float(exact), feasible, tlist, tab, SAFETY_CAUTION, warns)
