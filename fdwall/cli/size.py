@@ -5,7 +5,6 @@ import re
 from datetime import datetime, timezone
 from pathlib import Path
 
-from ..sizing import Energy, LossTarget, SkinTarget, size_layer, touch_target
 from . import common
 from .common import EXIT_OK, InputError, WriteError
 
@@ -62,11 +61,14 @@ def _energy(args):
                          "(8784 h); give operating hours per year, e.g. \"8000 h\".")
     eta = _efficiency(args.supply_efficiency) if args.supply_efficiency is not None else 1.0
     price = _price(args.energy_price) if args.energy_price is not None else None
+    # lazy like the other commands: keeps the start-up of every command light
+    from ..sizing import Energy
     return Energy(hours=hours, efficiency=eta, price=price)
 
 
 def cmd_size(args) -> int:
     from ..errors import InputError as LibInputError
+    from ..sizing import LossTarget, SkinTarget, size_layer, touch_target
     case, warns = common.load(args.case)
     for w in warns:
         common.warn(w)
