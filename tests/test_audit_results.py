@@ -128,7 +128,7 @@ class Run:
         s = self.sysm
         d = {"n_time": len(self.res.times), "n_unknowns": s.n_unknowns,
              "n_faces": len(s.face_names), "n_layers": len(s.layer_names),
-             "n_events": len(self.case.run.events)}
+             "n_events": len(self.case.run.events), "n_warnings": len(self.res.warnings())}
         if j is not None:
             nl = len(s.walls[j].layers)
             d.update(n_nodes_j=s.meshes[j].n, n_layers_j=nl, n_interfaces_j=nl - 1)
