@@ -155,12 +155,17 @@ def cmd_size(args) -> int:
         for w in r.warnings:
             print(f"  warning: {w}")
         for t in r.targets:
-            print(f"  {t['name']}: {t['value']:.4g} {t['unit']} (limit {t['limit']:.4g}) "
-                  f"{t['verdict']}")
+            if t["unit"] == "K":   # temperatures shown in degC, as case files write them
+                print(f"  {t['name']}: {t['value'] - 273.15:.1f} degC (limit "
+                      f"{t['limit'] - 273.15:.1f} degC) {t['verdict']}")
+            else:
+                print(f"  {t['name']}: {t['value']:.4g} {t['unit']} (limit {t['limit']:.4g}) "
+                      f"{t['verdict']}")
         ekey = next((k for k in r.table if k.startswith("energy_J")), None)
         if ekey:
             per = {"energy_J_per_m2": "m2", "energy_J_per_m": "m"}.get(ekey, "piece")
-            print(f"  thickness  loss  energy/yr [kWh/{per}]" +
+            lunit = {"m2": "W/m2", "m": "W/m"}.get(per, "W")
+            print(f"  thickness  loss [{lunit}]  energy/yr [kWh/{per}]" +
                   ("  cost/yr" if "cost_per_year" in r.table else ""))
             for i, x in enumerate(r.table["thickness_m"]):
                 line = (f"  {x * 1000:7.1f} mm  {r.table['loss'][i]:8.4g}  "
