@@ -119,3 +119,26 @@ def test_bad_headers_are_refused(header):
     with pytest.raises(InputError) as ei:
         parse_header_unit(header, file="log.csv")
     assert "log.csv" in str(ei.value)
+
+
+@pytest.mark.parametrize("bad", ["50 mm*", "50 mm = 1", "50 (mm", "50 pi mm"])
+def test_cli_run_refuses_a_case_with_a_bad_unit_exit_2_nothing_written(tmp_path, bad):
+    # exit code 2 for bad input and nothing written: the project's command-line rule
+    # (common practice, no source)
+    import os
+    import subprocess
+    import sys
+    root = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+    text = open(os.path.join(root, "cases", "lab-furnace-wall.toml"), encoding="utf-8").read()
+    assert 'thickness = "50 mm"' in text
+    case = tmp_path / "bad.toml"
+    case.write_text(text.replace('thickness = "50 mm"', f'thickness = "{bad}"', 1))
+    out = tmp_path / "out"
+    p = subprocess.run([sys.executable, "-m", "fdwall.cli", "run", str(case), "--out", str(out)],
+                       capture_output=True, text=True, cwd=root, timeout=120,
+                       env=dict(os.environ, PYTHONPATH=root))
+    err = " ".join(p.stderr.split())
+    assert p.returncode == 2, p.stderr
+    assert "Traceback" not in p.stderr
+    assert "thickness" in err and bad.split(" ", 1)[1] in err and "bad.toml" in err
+    assert not out.exists() or not os.listdir(out)
