@@ -21,9 +21,111 @@ semi-infinite solid, late it relaxes with its slowest mode.  :func:`fit_one_node
 """
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
-__all__ = ["one_node_response", "implied_rc", "fit_one_node"]
+from fdwall.errors import InputError
+
+__all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
+           "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants"]
+
+SIGMA_SB = 5.670374419e-8  # Stefan-Boltzmann constant [W/(m2 K4)], CODATA 2018
+
+
+def _check_curve(t, T, P, T_amb, where="fit_one_node"):
+    """Validate a (time [s], temperature [K]) curve; raise InputError with one paragraph."""
+    t = np.asarray(t, dtype=float).ravel()
+    T = np.asarray(T, dtype=float).ravel()
+    if t.shape != T.shape or t.size < 3:
+        raise InputError(f"{where}: needs at least 3 (time, temperature) points of equal count; "
+                         f"got {t.size} times and {T.size} temperatures.")
+    for name, arr, unit in (("time", t, "s"), ("temperature", T, "K")):
+        bad = np.flatnonzero(~np.isfinite(arr))
+        if bad.size:
+            kind = "NaN" if np.isnan(arr[bad[0]]) else "infinite value"
+            raise InputError(f"{where}: {name} point {int(bad[0])} is a {kind} ({bad.size} "
+                             f"non-finite {name} value(s) in all); every {name} must be a "
+                             f"finite number in {unit}. Drop or fill the missing rows first.")
+    if not (np.isfinite(P) and np.isfinite(T_amb)):
+        raise InputError(f"{where}: power P={P!r} W and ambient T_amb={T_amb!r} K must be finite.")
+    dt = np.diff(t)
+    if np.any(dt <= 0):
+        i = int(np.flatnonzero(dt <= 0)[0]) + 1
+        raise InputError(f"{where}: times must be sorted and strictly increasing [s]; time "
+                         f"point {i} ({t[i]:g} s) does not come after point {i - 1} "
+                         f"({t[i - 1]:g} s). Sort the curve and remove duplicate times.")
+    if T_amb <= 0 or T_amb > 2000:
+        raise InputError(f"{where}: ambient T_amb={T_amb:g} K is not a plausible absolute "
+                         f"temperature; give kelvin (e.g. 293.15 K for 20 degC).")
+    if np.any(T <= 0):
+        raise InputError(f"{where}: temperatures must be absolute, in kelvin, and above 0 K; "
+                         f"the lowest is {T.min():g}.")
+    if T_amb >= 200 and np.all(T < 200):
+        raise InputError(f"{where}: every temperature is below 200 K (highest {T.max():g}) "
+                         f"while ambient is {T_amb:g} K: the curve looks like degC. "
+                         f"Temperatures must be in kelvin (add 273.15 to degC values).")
+    return t, T
+
+
+def time_constant(R, C):
+    """One-node time constant ``tau = R C`` [s] from R [K/W] and C [J/K]."""
+    if not (R > 0 and C > 0):
+        raise InputError(f"time_constant: R={R!r} K/W and C={C!r} J/K must both be positive.")
+    return float(R) * float(C)
+
+
+def time_to_level(T_level, P, R, C, T_amb, T0):
+    """Time [s] for the one-node model to reach ``T_level`` [K] from ``T0`` [K].
+
+    The node heads for ``T_inf = T_amb + P R`` (P [W], R [K/W], C [J/K], temperatures [K]), so
+    ``t = R C ln((T0 - T_inf) / (T_level - T_inf))``.  Returns ``inf`` when the level lies at
+    or beyond ``T_inf`` (never reached) and 0 when ``T0`` is already at the level.
+    """
+    tau = time_constant(R, C)
+    T_inf = T_amb + P * R
+    a = T0 - T_inf
+    b = T_level - T_inf
+    if b == 0 or a == 0:
+        return 0.0 if a == b else math.inf
+    ratio = a / b
+    if ratio <= 0:
+        return math.inf  # the level lies beyond T_inf: never reached
+    return tau * math.log(ratio) if ratio >= 1 else 0.0  # ratio < 1: already past the level
+
+
+def cooldown_time(T_level, R, C, T_amb, T0):
+    """Time [s] for an unpowered node to cool from ``T0`` to ``T_level`` [K] (R [K/W], C [J/K])."""
+    return time_to_level(T_level, 0.0, R, C, T_amb, T0)
+
+
+def lumped_cooling(t, C, A, T0, T_amb, h=0.0, emissivity=0.0, a_n=0.0, n=0.25, P=0.0,
+                   T_surr=None):
+    """Lumped node with linear film, power-law film and radiation, integrated by solve_ivp.
+
+    ``C dT/dt = P - A [h (T - T_amb) + a_n |T - T_amb|^n (T - T_amb)
+    + emissivity sigma (T^4 - T_surr^4)]``.
+
+    t [s] (sorted output times from 0), C [J/K], A [m2], T0, T_amb, T_surr [K] (T_surr defaults
+    to T_amb), h [W/(m2 K)], a_n [W/(m2 K^(1+n))] the power-law film coefficient
+    (h = a_n |T - T_amb|^n), n [-], P [W].  Returns T [K] at ``t``.
+    """
+    from scipy.integrate import solve_ivp
+    t = np.asarray(t, dtype=float)
+    Ts = T_amb if T_surr is None else T_surr
+    if not (C > 0 and A > 0):
+        raise InputError(f"lumped_cooling: C={C!r} J/K and A={A!r} m2 must be positive.")
+
+    def rhs(_t, y):
+        d = y[0] - T_amb
+        q = h * d + a_n * abs(d) ** n * d + emissivity * SIGMA_SB * (y[0] ** 4 - Ts ** 4)
+        return [(P - A * q) / C]
+
+    sol = solve_ivp(rhs, (0.0, float(t[-1])), [float(T0)], t_eval=t, method="LSODA",
+                    rtol=1e-10, atol=1e-10)
+    if not sol.success:  # pragma: no cover - LSODA on a scalar smooth ODE
+        raise InputError(f"lumped_cooling: integration failed: {sol.message}")
+    return sol.y[0]
 
 
 def one_node_response(t, P, R, C, T_amb, T0):
@@ -135,11 +237,18 @@ def fit_one_node(t, T, P, T_amb, R=None, C0=None) -> dict:
         ``R_K_per_W`` [K/W], ``C_J_per_K`` [J/K], ``tau_s`` [s], ``rms_K`` residual [K].
     """
     from scipy.optimize import least_squares
-    t = np.asarray(t, dtype=float)
-    T = np.asarray(T, dtype=float)
-    if t.shape != T.shape or t.size < 3:
-        raise ValueError("fit_one_node needs at least 3 (time, temperature) points of equal count")
+    t, T = _check_curve(t, T, P, T_amb)
     T0 = float(T[0])
+    if P == 0:
+        # no power: the curve carries only tau (cooling towards T_amb); R from the caller if given
+        def res0(x):
+            return T_amb + (T0 - T_amb) * np.exp(-(t - t[0]) / np.exp(x[0])) - T
+        sol = least_squares(res0, [np.log(max(t[-1] - t[0], 1e-9) / 3.0)], method="lm")
+        tau = float(np.exp(sol.x[0]))
+        rms = float(np.sqrt(np.mean(sol.fun ** 2)))
+        return {"R_K_per_W": None if R is None else float(R),
+                "C_J_per_K": None if R is None else tau / float(R), "tau_s": tau, "rms_K": rms,
+                "note": "zero power: only the time constant follows from the curve"}
     rise = max(float(T.max() - T_amb), 1e-9)
     R_guess = R if R is not None else rise / P * 1.2
     C_guess = C0 if C0 is not None else (t[-1] - t[0]) / 3.0 / R_guess
@@ -157,3 +266,70 @@ def fit_one_node(t, T, P, T_amb, R=None, C0=None) -> dict:
     rms = float(np.sqrt(np.mean(sol.fun ** 2)))
     return {"R_K_per_W": float(Rf), "C_J_per_K": float(Cf), "tau_s": float(Rf * Cf),
             "rms_K": rms}
+
+
+def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
+    """Thermal time constants [s] of the linearised finite-volume system of ``case``.
+
+    The system is linearised at the operating point ``T_op`` [K] (one temperature per unknown;
+    default the steady state at time ``t`` [s]): the solver's own Jacobian dF/dT there holds
+    the conduction links with k(T) at that profile and the films and radiation linearised at
+    it.  With G = -(J + J^T)/2 (the symmetric part; exact for constant k) [W/K] and the
+    capacities C = dH/dT [J/K], the generalised eigenproblem ``G v = lambda C v``
+    (scipy.linalg.eigh) gives decay rates lambda [1/s]; nodes held by a fixed temperature are
+    removed.  Returns ``time_constants_s`` (1/lambda, slowest first), ``T_op_K`` and
+    ``n_unknowns``.  Heater power is taken as independent of temperature.
+    """
+    from scipy.linalg import eigh
+
+    from fdwall.solver import kernels
+    from fdwall.solver.steady import solve_steady
+    from fdwall.system import build_system
+
+    sys_ = build_system(case)
+    nun = sys_.n_unknowns
+    if T_op is None:
+        T_op = solve_steady(case, t=t, system=sys_).T
+    T = np.array(T_op, dtype=float)
+    if T.shape != (nun,):
+        raise InputError(f"wall_time_constants: T_op needs one temperature per unknown ({nun}) "
+                         f"in K, got shape {T.shape}.")
+    tt = 0.0 if t is None else float(t)
+    F, Cap, H, Jd, Jl, Ju, Jcol, Jrow = (np.zeros(nun) for _ in range(8))
+    nf = sys_.face_i.shape[0]
+    qf, hc, hr = np.zeros(nf), np.zeros(nf), np.zeros(nf)
+    extra = np.zeros(4)
+    kernels.assemble(T, tt, 0.0, 0.0, sys_.node_i, sys_.node_f, sys_.chains, sys_.face_i,
+                     sys_.face_f, sys_.hpar, sys_.m_off, sys_.mtab, sys_.s_off, sys_.stab,
+                     sys_.ch_i, sys_.ch_f, sys_.ctl_i, sys_.ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,
+                     Jrow, qf, hc, hr, extra)
+    N = sys_.n_nodes
+    J = np.diag(Jd.copy())
+    for i in range(1, N):
+        J[i, i - 1] = Jl[i]
+    for i in range(N - 1):
+        J[i, i + 1] = Ju[i]
+    if sys_.has_chamber:
+        J[:N, N] = Jcol[:N]
+        J[N, :N] = Jrow[:N]
+    keep = np.setdiff1d(np.arange(nun), np.asarray(sys_.dirich_node, dtype=int))
+    G = -0.5 * (J + J.T)[np.ix_(keep, keep)]
+    lam = eigh(G, np.diag(Cap[keep]), eigvals_only=True)
+    lam = np.sort(lam[lam > 0])
+    tau = 1.0 / lam
+    if n_modes is not None:
+        tau = tau[:n_modes]
+    out = {"time_constants_s": tau, "T_op_K": T, "n_unknowns": int(nun)}
+    # first moment of the heated node's step response.  The heated node is the chamber when
+    # there is one, otherwise the inner-face node of the first wall.  With Z(s) = e^T (G + s C)^-1 e,
+    # R = Z(0) = e^T G^-1 e and the first moment tau_1 = int (1 - T(t)/T(inf)) dt = -Z'(0)/Z(0)
+    # = (G^-1 e)^T C (G^-1 e) / R; C_eff = tau_1 / R is the one-node C with that first moment.
+    heated = nun - 1 if sys_.has_chamber else int(sys_.face_i[0, 0])
+    if heated in keep:
+        e = (keep == heated).astype(float)
+        x = np.linalg.solve(G, e)
+        R = float(e @ x)
+        tau1 = float(x @ (Cap[keep] * x)) / R
+        out.update({"heated_node": heated, "R_heated_K_per_W": R, "first_moment_tau_s": tau1,
+                    "C_effective_J_per_K": tau1 / R})
+    return out
