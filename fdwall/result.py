@@ -25,6 +25,16 @@ def _version():
         return "0+unknown"
 
 
+def _heat_capacity(sysm, T0) -> float:
+    """Total heat capacity of walls and chamber at the start state [J/K]: the enthalpy it
+    takes to raise every node from ``T0`` [K] by 1 K (forward difference, so a start at the
+    1 K floor needs no property below it)."""
+    T0 = np.asarray(T0, float)
+    Hh, Hc = sysm.enthalpy(np.vstack([T0, T0 + 1.0]))
+    dH = float(Hh[1].sum() - Hh[0].sum()) + float(np.sum(Hc[1]) - np.sum(Hc[0]))
+    return dH if np.isfinite(dH) else 0.0
+
+
 @dataclass
 class Result:
     """Everything a transient run produced.
@@ -90,6 +100,7 @@ class Result:
             "nodes": int(sysm.n_unknowns),
             "energy_residual_max_J": float(stats[K.ST_RESMAX]),
             "energy_scale_J": float(stats[K.ST_SCALE]),
+            "heat_capacity_J_per_K": _heat_capacity(sysm, T_out[0]),
         }
         evs = {}
         for e, ev in enumerate(case.run.events):
@@ -205,15 +216,25 @@ class Result:
         return self.heat_in - self.stored
 
     @property
+    def residual_scale(self) -> float:
+        """Energy the residual is measured against [J]: the total heat capacity of walls and
+        chamber times 1 K (``heat_capacity_J_per_K`` x 1 K) plus the energy throughput (the
+        largest energy that crossed a face, was delivered by the heater or was stored,
+        ``energy_scale_J``).  The first term keeps the scale meaningful for a case at rest,
+        where no energy moves."""
+        cap = self.stats.get("heat_capacity_J_per_K", 0.0) * 1.0
+        return float(cap + self.stats.get("energy_scale_J", 0.0))
+
+    @property
     def relative_residual(self) -> float:
-        """Largest |energy residual| over all accepted steps, relative to the largest energy
-        that crossed a face, was delivered by the heater or was stored [-].
+        """Largest |energy residual| over all accepted steps over ``residual_scale`` [-]:
+        |residual| / (total heat capacity x 1 K + energy throughput).
 
         Checked inside the kernel at every step end, where the ledger is exact; the
         ``residual`` series at output times between steps also carries the interpolation
         error of the outputs (see ``RunSettings.exact_outputs``).
         """
-        scale = max(self.stats.get("energy_scale_J", 0.0), 1e-300)
+        scale = max(self.residual_scale, 1e-300)
         return float(self.stats.get("energy_residual_max_J", np.nan) / scale)
 
     def layer_max_T(self) -> list:
@@ -301,6 +322,66 @@ class Result:
             out["steady"] = self.steady.summary()
         return out
 
+    # ----------------------------------------------------------------- notebooks
+    def faces_frame(self):
+        """Face series as a pandas DataFrame: index time [s], for every face its temperature
+        [K], heat flow into the wall [W], cumulative energy [J] and film coefficients [W/m2/K];
+        columns are named ``'<face> <quantity> [<unit>]'``."""
+        import pandas as pd
+        cols = {}
+        for f, name in enumerate(self.face_names):
+            cols[f"{name} T [K]"] = self.face_T[:, f]
+            cols[f"{name} heat_flow [W]"] = self.face_flow[:, f]
+            cols[f"{name} energy [J]"] = self.face_energy[:, f]
+            cols[f"{name} h_conv [W/m2/K]"] = self.h_conv[:, f]
+            cols[f"{name} h_rad [W/m2/K]"] = self.h_rad[:, f]
+        return pd.DataFrame(cols, index=pd.Index(self.times, name="time [s]"))
+
+    def interfaces_frame(self):
+        """Interface temperatures of every wall as a pandas DataFrame: index time [s], one
+        column ``'<wall>: <layer> | <layer> [K]'`` per interface [K]."""
+        import pandas as pd
+        cols = {}
+        for j, w in enumerate(self.system.walls):
+            Ti = self.interface_T(j).reshape(len(self.times), -1)
+            for i, (a, b) in enumerate(zip(w.layers[:-1], w.layers[1:])):
+                cols[f"{w.name}: {a.label} | {b.label} [K]"] = Ti[:, i]
+        return pd.DataFrame(cols, index=pd.Index(self.times, name="time [s]"))
+
+    def to_xarray(self, wall: int = 0):
+        """Node temperatures of one wall as an xarray Dataset: variable ``T`` [K] on dims
+        ``time`` [s] x ``x`` (depth from the inner face) [m].  Needs xarray (optional)."""
+        try:
+            import xarray as xr
+        except ImportError as exc:
+            raise ImportError("Result.to_xarray needs the optional package xarray, which is "
+                              "not installed; install it with 'pip install xarray' or use "
+                              "faces_frame() / interfaces_frame() (pandas) instead.") from exc
+        w = self.system.walls[wall]
+        return xr.Dataset(
+            {"T": (("time", "x"), self.wall_T(wall), {"units": "K",
+                                                      "long_name": "node temperature"})},
+            coords={"time": ("time", self.times, {"units": "s"}),
+                    "x": ("x", self.x(wall), {"units": "m",
+                                              "long_name": "depth from the inner face"})},
+            attrs={"case": self.case.name, "wall": w.name, "geometry": w.geometry})
+
+    def _repr_html_(self) -> str:
+        """Short summary table for notebooks (final and peak face temperatures in degC)."""
+        from html import escape
+        state = "complete" if self.complete else f"stopped early: {escape(self.message)}"
+        rows = "".join(
+            f"<tr><td>{escape(n)}</td><td>{self.face_T[-1, f] - 273.15:.2f}</td>"
+            f"<td>{np.max(self.face_T[:, f]) - 273.15:.2f}</td>"
+            f"<td>{self.face_flow[-1, f]:.4g}</td></tr>"
+            for f, n in enumerate(self.face_names))
+        return (f"<div><b>fdwall result: {escape(str(self.case.name))}</b> "
+                f"({state}; {self.times[-1]:.6g} s, {self.times.size} outputs, "
+                f"energy residual {self.relative_residual:.2e} relative)"
+                "<table><thead><tr><th>face</th><th>final T [degC]</th>"
+                "<th>max T [degC]</th><th>final heat flow into wall [W]</th></tr></thead>"
+                f"<tbody>{rows}</tbody></table></div>")
+
     def write_hdf5(self, path) -> str:
         """Write the run to ``path`` atomically (a temporary file renamed when complete)."""
         from .h5tree import h5_atomic
@@ -367,7 +448,7 @@ class Result:
         ds(eg, "stored_chamber", self.stored_chamber, "J")
         ds(eg, "heater", self.heater_energy, "J")
         ds(eg, "loss_chamber", self.loss_energy, "J")
-        ds(eg, "residual", self.residual, "J")
+        ds(eg, "residual", self.residual, "J", relative_max=self.relative_residual)
         hg = h.create_group("heater")
         ds(hg, "power", self.heater_power, "W")
         ds(hg, "duty", self.duty, "1")
@@ -376,6 +457,8 @@ class Result:
         evg.create_dataset("names", data=np.array(names, dtype=object), dtype=h5py.string_dtype())
         ds(evg, "up", np.array([v[0] for v in self.events.values()]), "s")
         ds(evg, "down", np.array([v[1] for v in self.events.values()]), "s")
+        h.create_dataset("warnings", data=np.array(self.warnings(), dtype=object),
+                         dtype=h5py.string_dtype())
         sg = h.create_group("solver")
         for k, v in self.stats.items():
             sg.attrs[k] = v

@@ -133,3 +133,116 @@ def test_temperature_differences_are_not_shifted():
     assert v == pytest.approx(ureg.Quantity(1.0, "delta_degC").to("delta_degF").magnitude)
     v, label = display(300.0, "K", "si", key="T_max_K")
     assert v == pytest.approx(26.85) and label == "degC"
+
+
+# ----------------------------------------------------------------- run results (kind transient)
+RUN_CASE = """
+title = "invented report panel"
+[run]
+duration = "2 h"
+start_temperature = "20 degC"
+output_every = "5 min"
+[materials.test-board]
+conductivity = "0.05 W/m/K"
+specific_heat = "1000 J/kg/K"
+density = "100 kg/m3"
+source = "invented test data"
+[wall]
+name = "panel"
+[[wall.layers]]
+material = "test-board"
+thickness = "50 mm"
+[wall.inner_face]
+fixed_temperature = "200 degC"
+[wall.outer_face]
+fluid_temperature = "20 degC"
+film_coefficient = "10 W/m2/K"
+"""
+
+
+def _rows(text, section):
+    """(cells of each row) of the tables inside section ``id=section`` (html5lib tree)."""
+    import xml.etree.ElementTree as ET
+    doc = _parse(text)
+    ns = "{http://www.w3.org/1999/xhtml}"
+    sec = [s for s in doc.iter(f"{ns}section") if s.get("id") == section]
+    assert sec, section
+    out = []
+    for tr in sec[0].iter(f"{ns}tr"):
+        out.append(["".join(ET.tostring(c, method="text", encoding="unicode")).strip()
+                    for c in tr if c.tag in (f"{ns}td", f"{ns}th")])
+    return out
+
+
+def test_run_report_energy_balance_and_mesh_equal_file(tmp_path, capsys):
+    from fdwall.cli import main
+    p = tmp_path / "panel.toml"
+    p.write_text(RUN_CASE)
+    out = tmp_path / "out"
+    assert main(["run", str(p), "--out", str(out), "--report", "--no-plots", "--quiet"]) == 0
+    text = (out / "panel-report.html").read_text()
+    with h5py.File(out / "panel.h5") as h:
+        res_max = float(h["solver"].attrs["energy_residual_max_J"])
+        scale = float(h["solver"].attrs["energy_scale_J"])
+        rel = float(h["energy/residual"].attrs["relative_max"])
+        stored = float(h["energy/stored"][-1])
+        n_nodes = h["mesh/wall_0/x"].shape[0]
+        accepted = int(h["solver"].attrs["accepted_steps"])
+    energy = {r[0]: r[1:] for r in _rows(text, "energy-balance")}
+    assert float(energy["largest residual at a step end"][0]) == pytest.approx(res_max, rel=1e-5)
+    assert float(energy["energy stored at the end"][0]) == pytest.approx(stored, rel=1e-5)
+    assert energy["energy stored at the end"][1] == "J"
+    assert float(energy["largest residual relative to the energy scale"][0]) == \
+        pytest.approx(rel, rel=1e-2)
+    # first law (energy conservation): the stored residual is tiny beside the energy that moved
+    assert rel == pytest.approx(res_max / scale) and rel < 1e-6
+    # stored energy from the closed form: for an initially uniform slab heated to a profile
+    # between T0 and the end profile, E = rho cp A int (T - T0) dx; bounded above by the
+    # steady linear profile's content rho cp A L (T_mean_steady - T0) (Incropera ch. 3, 5)
+    Ts = 20 + 180 * 0.1 / 1.1
+    e_steady = 100 * 1000 * 1.0 * 0.05 * ((200 + Ts) / 2 - 20)
+    assert 0 < stored < e_steady
+    mesh = _rows(text, "mesh-steps")
+    assert mesh[1][0] == "panel" and int(mesh[1][2]) == n_nodes
+    steps = {r[0]: r[1:] for r in mesh}
+    assert int(steps["steps accepted"][0]) == accepted
+    assert float(steps["duration"][0]) == 7200.0 and steps["duration"][1] == "s"
+    # a tolerance is a temperature difference: 0.01 K, never shifted to -273.14 degC
+    assert steps["local error tolerance per step"] == ["0.01", "K"]
+    assert 'id="touch"' not in text
+    us = rhtml.render_report(out / "panel.h5", units="us")
+    steps_us = {r[0]: r[1:] for r in _rows(us, "mesh-steps")}
+    # 1 K difference = 1.8 degF difference (pint delta_degF)
+    tol_f = pint.UnitRegistry().Quantity(0.01, "delta_degC").to("delta_degF").magnitude
+    assert float(steps_us["local error tolerance per step"][0]) == pytest.approx(tol_f)
+
+
+def test_run_report_touch_verdicts_with_caution(tmp_path, capsys):
+    from fdwall.cautions import BURN_INDICATOR_NOTE
+    from fdwall.cli import main
+    p = tmp_path / "panel.toml"
+    p.write_text(RUN_CASE)
+    out = tmp_path / "out"
+    assert main(["touch", str(p), "--criterion", "limit", "--limit", "35 degC", "--out",
+                 str(out), "--no-plots", "--contact-time", "4 s", "--quiet"]) == 0
+    capsys.readouterr()
+    rep = rhtml.write_report(out / "panel.h5", tmp_path / "t.html")
+    text = rep.read_text()
+    assert SAFETY_CAUTION in text and BURN_INDICATOR_NOTE in text
+    with h5py.File(out / "panel.h5") as h:
+        f0 = h["touch/faces/0"]
+        tmax = float(f0.attrs["T_max_K"])
+        margin = float(f0.attrs["margin_K"])
+        verdict = f0.attrs["verdict"]
+        Tsteady = float(f0.attrs["T_steady_K"])
+    # steady skin temperature by the composite-wall formula (Incropera sec. 3.1)
+    assert Tsteady == pytest.approx(293.15 + 180 * 0.1 / 1.1, abs=1e-5)
+    rows = _rows(text, "touch")
+    assert rows[0][:3] == ["face", "surface class", "verdict"]
+    r = rows[1]
+    assert r[2] == verdict == "fail"
+    # degC = K - 273.15 (definition of the Celsius scale, NIST SP 811)
+    assert float(r[3]) == pytest.approx(tmax - 273.15, abs=1e-4)
+    assert float(r[4]) == pytest.approx(35.0, abs=1e-6)
+    assert float(r[5]) == pytest.approx(margin, abs=1e-4)   # a difference: not shifted
+    assert r[7] == "degC"

@@ -42,3 +42,58 @@ def test_bad_input_exit_2(tmp_path):
     p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50",
              "--out", str(tmp_path))
     assert p.returncode == 2
+
+
+def test_touch_target_cli(tmp_path):
+    # ISO 13732-1 bare metal, 10 s: lower edge 55 degC in the bundled table (from memory, not
+    # checked against the standard), read back through fdwall.safety.threshold
+    from fdwall.safety import threshold
+    p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--contact-time", "10 s",
+             "--surface", "bare-metal", "--out", str(tmp_path), "--json", "--no-plots")
+    assert p.returncode == 0, p.stderr
+    d = json.loads(p.stdout)
+    t = d["targets"][0]
+    assert t["name"] == "touch" and abs(t["limit"] - threshold("bare-metal", 10.0)[0]) < 1e-9
+    assert t["value"] <= t["limit"] and d["caution"]
+    p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--contact-time", "10 s",
+             "--out", str(tmp_path))
+    assert p.returncode == 2 and "--surface" in p.stderr
+
+
+def test_service_limit_warning_cli(tmp_path):
+    # Gypsum board rated 52 degC (bundled library) behind a 200 degC oven liner: in steady series
+    # conduction (Incropera 7th ed., sec. 3.1) its hot-side interface lies between the skin
+    # and the oven air, far above 52 degC, so a warning naming both must appear (JSON and HDF5).
+    import re
+    src = open(os.path.join(ROOT, "cases", "curing-oven-panel.toml")).read()
+    case = tmp_path / "gypsum-panel.toml"
+    case.write_text(src.replace('"mineral-wool-64"', '"plasterboard-gypsum"'))
+    p = _run(str(case), "--layer", "1", "--skin-limit", "50 degC", "--out", str(tmp_path),
+             "--json", "--no-plots")
+    assert p.returncode == 0, p.stderr
+    w = [x for x in json.loads(p.stdout)["warnings"] if "plasterboard-gypsum" in x]
+    assert len(w) == 1 and "52.0 degC" in w[0]
+    T_int = float(re.search(r"interface temperature ([0-9.]+) degC", w[0]).group(1))
+    assert 50.0 < T_int < 200.0
+    with h5py.File(tmp_path / "gypsum-panel-size.h5") as h:
+        assert any(b"plasterboard-gypsum" in x for x in h["warnings/items"][()])
+
+
+def test_energy_and_cost_cli(tmp_path):
+    # Hand computation (definitions, common practice, no source): annual supplied energy
+    # = loss [W/m2] * 6000 h * 3600 s/h / 0.8, cost = energy [GJ] * 9 per GJ.
+    p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50 degC",
+             "--hours-per-year", "6000 h", "--supply-efficiency", "80 %", "--energy-price",
+             "9 per GJ", "--max-thickness", "100 mm", "--out", str(tmp_path), "--json",
+             "--no-plots")
+    assert p.returncode == 0, p.stderr
+    t = json.loads(p.stdout)["table"]
+    for q, e, c in zip(t["loss"], t["energy_J_per_m2"], t["cost_per_year"]):
+        assert abs(e - q * 6000 * 3600 / 0.8) < 1e-6 * e
+        assert abs(c - e / 1e9 * 9) < 1e-6 * c
+    for bad in (["--energy-price", "0.1 kWh", "--hours-per-year", "8000 h"],
+                ["--supply-efficiency", "1.2", "--hours-per-year", "8000 h"],
+                ["--hours-per-year", "9000 h"], ["--energy-price", "0.1 /kWh"]):
+        p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50 degC",
+                 "--out", str(tmp_path), *bad)
+        assert p.returncode == 2 and "--" in p.stderr, (bad, p.stderr)

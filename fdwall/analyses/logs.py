@@ -18,6 +18,10 @@ from fdwall.units import parse_unit, ureg
 _HEADER = re.compile(r"^\s*([^\[\]]+?)\s*(?:\[([^\[\]]*)\])?\s*$")
 
 
+_EXAMPLE_UNIT = {"time": "s", "temperature": "degC", "power": "W", "duty": "1 or %",
+                 "state": "1"}
+
+
 def _err(file, what, allowed=""):
     msg = f"{file}: {what}"
     if allowed:
@@ -25,7 +29,8 @@ def _err(file, what, allowed=""):
     return InputError(msg)
 
 
-def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> dict:
+def read_log(path_or_text, *, time, temperature, power=None, ambient, duty=None, state=None,
+             rated_power=None, file=None) -> dict:
     """Read a CSV heating log into SI arrays.
 
     Parameters
@@ -36,8 +41,16 @@ def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> d
         Name of the time column (part of the header before the bracket); unit s, min or h.
     temperature : str or list of str
         Temperature column name(s); several are averaged. Unit K or degC (degF).
-    power : str or float
-        Power column name, or a constant power in W.
+    power : str or float, optional
+        Power column name, or a constant power in W.  Give exactly one of ``power``,
+        ``duty`` or ``state``.
+    duty : str, optional
+        Duty column name (a fraction 0..1, or % in the header unit); power = duty x
+        ``rated_power``.
+    state : str, optional
+        On/off column name (values 0 or 1 only); power = state x ``rated_power``.
+    rated_power : float, optional
+        Rated heater power in W, needed with ``duty`` or ``state``.
     ambient : str or float
         Ambient column name, or a constant ambient temperature in K.
 
@@ -85,7 +98,7 @@ def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> d
         raw, unit = cols[key]
         if not unit:
             raise _err(name, f"column {key!r} has no unit in brackets",
-                       f"a header such as '{key} [{ {'time': 's', 'temperature': 'degC', 'power': 'W'}[kind]}]'")
+                       f"a header such as '{key} [{_EXAMPLE_UNIT[kind]}]'")
         try:
             u = parse_unit(unit, where=key, file=name)
         except InputError as exc:
@@ -103,6 +116,12 @@ def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> d
                            "a number in every cell") from None
             if not np.isfinite(vals[i]):
                 raise _err(name, f"row {row}, column {key!r}: non-finite value", "finite numbers")
+        if kind in ("duty", "state"):
+            try:
+                return np.asarray(ureg.Quantity(vals, u).to("dimensionless").magnitude, float)
+            except Exception:  # pint DimensionalityError
+                raise _err(name, f"column {key!r}: unit {unit!r} is not a fraction",
+                           "[1] or [%]") from None
         target = {"time": "s", "temperature": "K", "power": "W"}[kind]
         try:
             return np.asarray(ureg.Quantity(vals, u).to(target).magnitude, float)
@@ -120,7 +139,29 @@ def read_log(path_or_text, *, time, temperature, power, ambient, file=None) -> d
                    "strictly increasing times")
     temps = [temperature] if isinstance(temperature, str) else list(temperature)
     T = np.mean([column(c, "temperature") for c in temps], axis=0)
-    P = column(power, "power") if isinstance(power, str) else np.full(len(t), float(power))
+    given = [k for k, v in (("power", power), ("duty", duty), ("state", state)) if v is not None]
+    if len(given) != 1:
+        raise _err(name, "heater input given as " + (", ".join(given) or "nothing"),
+                   "exactly one of a power (column or value), a duty column or a state column")
+    if power is not None:
+        P = column(power, "power") if isinstance(power, str) else np.full(len(t), float(power))
+    else:
+        if rated_power is None or not np.isfinite(rated_power) or rated_power <= 0:
+            raise _err(name, f"a {given[0]} column needs a positive rated power "
+                       f"(got {rated_power!r})", "a rated power > 0 W")
+        key = duty if duty is not None else state
+        f = column(key, "duty" if duty is not None else "state")
+        if duty is not None:
+            bad = np.flatnonzero((f < 0) | (f > 1))
+            if bad.size:
+                raise _err(name, f"row {bad[0] + 2}, column {key!r}: duty {f[bad[0]]:g} is "
+                           "outside 0..1", "a fraction 0..1 (or 0..100 with a [%] header)")
+        else:
+            bad = np.flatnonzero((f != 0) & (f != 1))
+            if bad.size:
+                raise _err(name, f"row {bad[0] + 2}, column {key!r}: state {f[bad[0]]:g} is "
+                           "not 0 or 1", "0 (off) or 1 (on)")
+        P = f * float(rated_power)
     Ta = (column(ambient, "temperature") if isinstance(ambient, str)
           else np.full(len(t), float(ambient)))
     return {"t_s": t, "T_K": T, "P_W": P, "T_amb_K": Ta}
@@ -200,3 +241,124 @@ def fit_one_node_log(t, T, P, T_amb) -> dict:
             "C_stderr_J_per_K": C * sC, "tau_s": R * C, "T0_K": float(sol.x[2]),
             "rms_K": rms, "lag1_autocorrelation": r1, "n_eff": float(n_eff),
             "correlation_RC": corr, "warnings": warnings}
+
+
+def physics_check(fit: dict, implied: dict, log_duration_s: float) -> dict:
+    """Compare a one-node fit with the R and C the case's physics implies.
+
+    Parameters
+    ----------
+    fit : dict
+        From :func:`fit_one_node_log` (``R_K_per_W``, ``C_J_per_K``, ``tau_s``).
+    implied : dict
+        From :func:`fdwall.analyses.lumped.implied_rc` (``R_K_per_W`` [K/W],
+        ``C_stored_J_per_K`` and ``C_total_J_per_K`` [J/K], ``tau_s`` [s]).
+    log_duration_s : float
+        Length of the log [s].
+
+    Returns
+    -------
+    dict
+        ``physics`` (the implied values under their own keys), ``ratios`` (fitted / implied:
+        ``R``, ``C_stored``, ``C_total``, ``tau``, dimensionless), ``reading`` (list of
+        plain-language sentences) and ``warnings`` (list of strings).
+    """
+    phys = {k: float(implied[k]) for k in ("R_K_per_W", "C_stored_J_per_K", "C_total_J_per_K",
+                                           "tau_s")}
+    for k, v in phys.items():
+        if not (np.isfinite(v) and v > 0):
+            raise InputError(f"physics cross-check: the case implies {k} = {v!r}; allowed: a "
+                             "case whose heater drives it above ambient at steady state")
+    rR = fit["R_K_per_W"] / phys["R_K_per_W"]
+    rC = fit["C_J_per_K"] / phys["C_stored_J_per_K"]
+    ratios = {"R": rR, "C_stored": rC, "C_total": fit["C_J_per_K"] / phys["C_total_J_per_K"],
+              "tau": fit["tau_s"] / phys["tau_s"]}
+    reading, warns = [], []
+    n_tau = log_duration_s / fit["tau_s"]
+    if n_tau < 3.0:
+        warns.append(f"the log lasts {n_tau:.1f} fitted time constants (under about 3): it is "
+                     "too short to see equilibrium, so R is extrapolated and R and C trade off")
+        reading.append("Log too short to see equilibrium: the fitted R rests on extrapolation "
+                       "and the fitted C on the early, fast part of the warm-up.")
+    if abs(rR - 1) <= 0.1:
+        reading.append(f"R agrees with the physics within 10 % (fitted/implied {rR:.2f}).")
+    elif rR < 1:
+        reading.append(f"Fitted R is {100 * (1 - rR):.0f} % below the physics: the equipment "
+                       "loses more heat than its walls conduct. Leakage (door gaps, vents) adds "
+                       "to 1/R; so do edges, corners and fixings that the 1-D wall leaves out, "
+                       "or conductivity (k) data lower than the real, aged or damp material.")
+    else:
+        reading.append(f"Fitted R is {100 * (rR - 1):.0f} % above the physics: the case's "
+                       "films or k data may be pessimistic, or the sensor sits where the air is "
+                       "hotter than the chamber mean (sensor placement).")
+    if abs(rC - 1) <= 0.1:
+        reading.append(f"C agrees with the stored-energy C within 10 % (fitted/implied "
+                       f"{rC:.2f}).")
+    elif rC > 1:
+        reading.append(f"Fitted C is {100 * (rC - 1):.0f} % above the walls' stored-energy C: "
+                       "contents (load, racks, trays, heater mass) add to C, moisture being "
+                       "driven off absorbs heat, and a lagging sensor makes the warm-up look "
+                       "slower (sensor lag biases C upward).")
+    else:
+        reading.append(f"Fitted C is {100 * (1 - rC):.0f} % below the walls' stored-energy C: "
+                       "in a short log only the inner part of a thick lining has warmed "
+                       "(distributed capacity), or the sensor reads the fast air node rather "
+                       "than the walls (sensor placement).")
+    return {"physics": phys, "ratios": ratios, "reading": reading, "warnings": warns,
+            "log_time_constants": float(n_tau)}
+
+
+def predict_one_node(R, C, T_amb, *, setpoint=None, power=None, rated_power=None, T0=None,
+                     R_stderr=0.0) -> dict:
+    """Predictions of a fitted one-node model (closed forms of C dT/dt = P - (T - T_amb)/R).
+
+    Parameters
+    ----------
+    R, C : float
+        Fitted resistance [K/W] and capacity [J/K].
+    T_amb : float
+        Ambient temperature [K].
+    setpoint : float, optional
+        Setpoint [K]; gives the duty needed to hold it and, with ``power``, the time to reach
+        it from ``T0``.
+    power : float, optional
+        Heater power [W] for the steady temperature and the warm-up (default ``rated_power``).
+    rated_power : float, optional
+        Full heater power [W] for the duty at the setpoint.
+    T0 : float, optional
+        Start temperature [K] for the time to the setpoint (default ``T_amb``).
+    R_stderr : float
+        Standard error of R [K/W], carried to the steady temperature and duty (first order).
+
+    Returns
+    -------
+    dict
+        Any of ``steady_temperature_K`` (+ ``steady_temperature_stderr_K``),
+        ``time_to_setpoint_s`` (``inf`` when the setpoint lies beyond the steady temperature),
+        ``duty_at_setpoint`` (fraction; > 1 means the heater cannot hold it) with
+        ``duty_at_setpoint_stderr``, and ``power_at_setpoint_W``.
+    """
+    out = {}
+    P = power if power is not None else rated_power
+    T0 = T_amb if T0 is None else T0
+    if P is not None:
+        T_inf = T_amb + P * R
+        out["steady_temperature_K"] = float(T_inf)
+        out["steady_temperature_stderr_K"] = float(abs(P) * R_stderr)
+    if setpoint is not None:
+        out["power_at_setpoint_W"] = float((setpoint - T_amb) / R)
+        if rated_power:
+            duty = (setpoint - T_amb) / (R * rated_power)
+            out["duty_at_setpoint"] = float(duty)
+            out["duty_at_setpoint_stderr"] = float(abs(duty) * R_stderr / R)
+        if P is not None:
+            # T(t) = T_inf + (T0 - T_inf) exp(-t / RC)  =>  t = RC ln((T0 - T_inf)/(Tset - T_inf))
+            a, b = T0 - T_inf, setpoint - T_inf
+            if a * b <= 0 and setpoint != T0:  # setpoint at or beyond the steady temperature
+                t_set = float("inf") if (setpoint - T0) * (T_inf - T0) > 0 else 0.0
+            elif abs(b) >= abs(a):  # already at or past the setpoint
+                t_set = 0.0
+            else:
+                t_set = float(R * C * np.log(a / b))
+            out["time_to_setpoint_s"] = t_set
+    return out

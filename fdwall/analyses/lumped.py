@@ -10,8 +10,10 @@ From the physics of a wall, fdwall derives:
   ambient divided by the heat flow through the wall (exact for any k(T) and films);
 * ``C_stored``: the energy the walls and the chamber hold at that steady state, above ambient,
   divided by the heated node's rise above ambient.  A one-node model with this C stores the
-  right energy at equilibrium; its time constant ``R C_stored`` is the one to compare with a
-  C fitted to a heating curve;
+  right energy at equilibrium (what an energy count over a warm-up gives);
+* ``C_effective`` (:func:`wall_time_constants`): the one-node C with the same first moment
+  of the heated node's step response; a C fitted to the heated node's temperature over a
+  long heating curve tends to this one, not to C_stored;
 * ``C_total``: the plain sum of all heat capacities (an upper bound on C_stored, since the
   outer layers sit closer to ambient).
 
@@ -28,7 +30,8 @@ import numpy as np
 from fdwall.errors import InputError
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
-           "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants"]
+           "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
+           "rc_analysis", "step_response_from_modes", "foster_fit"]
 
 SIGMA_SB = 5.670374419e-8  # Stefan-Boltzmann constant [W/(m2 K4)], CODATA 2018
 
@@ -195,11 +198,14 @@ def implied_rc(case, t=None) -> dict:
         f = sysm.face_i[1]
         s = f[1] if f[1] >= 0 else f[3]
         if s < 0:
-            raise ValueError("implied_rc needs a fixed or fluid temperature at the outer face")
+            raise ValueError("the lumped R/C needs an ambient: a fixed_temperature or a "
+                             "fluid_temperature at the outer face, and this case has neither. "
+                             "Give the outer face one of them.")
         T_amb = float(sched_eval(sysm.s_off, sysm.stab, s, tt, 0.0))
     if abs(Q) <= 0.0 or abs(T_hot - T_amb) < 1e-9:
-        raise ValueError("implied_rc needs a steady state with heat flowing (the heater or the "
-                         "inner face must drive the wall above ambient)")
+        raise ValueError("the lumped R/C needs a steady state with heat flowing: the heater "
+                         "or the inner face must drive the wall above ambient at the time "
+                         "the steady state is taken (run.steady_at or the end of the run).")
     R = (T_hot - T_amb) / Q
     # energy held above ambient: enthalpy at the steady state minus enthalpy at ambient
     T_amb_vec = np.full(sysm.n_unknowns, T_amb)
@@ -314,8 +320,11 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
         J[N, :N] = Jrow[:N]
     keep = np.setdiff1d(np.arange(nun), np.asarray(sys_.dirich_node, dtype=int))
     G = -0.5 * (J + J.T)[np.ix_(keep, keep)]
-    lam = eigh(G, np.diag(Cap[keep]), eigvals_only=True)
-    lam = np.sort(lam[lam > 0])
+    lam, V = eigh(G, np.diag(Cap[keep]))  # V^T C V = I
+    pos = lam > 0
+    lam, V = lam[pos], V[:, pos]
+    order = np.argsort(lam)
+    lam, V = lam[order], V[:, order]
     tau = 1.0 / lam
     if n_modes is not None:
         tau = tau[:n_modes]
@@ -330,6 +339,134 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
         x = np.linalg.solve(G, e)
         R = float(e @ x)
         tau1 = float(x @ (Cap[keep] * x)) / R
+        # modal expansion Z(s) = sum_i v_i[e]^2/(lambda_i + s): the step response to 1 W is
+        # sum_i r_i (1 - exp(-t/tau_i)) with r_i = v_i[e]^2 tau_i [K/W] (the exact Foster form)
+        r_modes = V[keep == heated, :][0] ** 2 / lam
         out.update({"heated_node": heated, "R_heated_K_per_W": R, "first_moment_tau_s": tau1,
-                    "C_effective_J_per_K": tau1 / R})
+                    "C_effective_J_per_K": tau1 / R,
+                    "mode_R_K_per_W": r_modes[:len(tau)]})
     return out
+
+
+def _rc_notes(rc, modes, case) -> list:
+    """Plain-language readings of the R and C numbers (which C a logged fit should match)."""
+    tau1 = modes.get("first_moment_tau_s")
+    slow = float(modes["time_constants_s"][0]) if len(modes["time_constants_s"]) else None
+    notes = [
+        "A one-node C fitted to the heated node's temperature over a long heating log (run "
+        "to near equilibrium, R fitted or fixed) tends to C_effective: the one-node model "
+        "with that C has the same first moment (mean delay) of its step response as the "
+        "wall. Compare a logged fit with C_effective; a short log gives a smaller C still.",
+        "C_stored is the energy the wall holds above ambient at the steady state per kelvin "
+        "of the heated node's rise; it is what an energy count gives (heater energy in minus "
+        "losses, over a warm-up), not what a temperature-curve fit gives, and it is larger "
+        "than C_effective because the heat sits away from the heated node.",
+        "C_total is every heat capacity summed; it is an upper bound, because the outer layers "
+        "sit closer to ambient and hold less of the rise.",
+    ]
+    if slow is not None and tau1 is not None:
+        notes.append(f"The wall is not one exponential: its slowest time constant is "
+                     f"{slow:.4g} s, the first-moment time constant {tau1:.4g} s and R C_stored "
+                     f"{rc['tau_s']:.4g} s; a one-node fit can only match one of them.")
+    notes.append("R and C hold at this operating point only: radiation loss grows roughly as "
+                 "T^3 and k(T) of insulation rises with temperature, so R falls as the wall "
+                 "runs hotter, and cp(T) moves C. Compare a fit with the numbers at the "
+                 "temperatures the log ran at.")
+    return notes
+
+
+def rc_analysis(case, t=None) -> dict:
+    """Lumped R/C of ``case`` from the physics of its walls, with its time constants.
+
+    Gathers :func:`implied_rc` (at the steady state at time ``t`` [s], default as there) and
+    :func:`wall_time_constants` (linearised at that same steady state).
+
+    Returns
+    -------
+    dict
+        ``R_K_per_W`` [K/W], ``C_stored_J_per_K``, ``C_total_J_per_K`` [J/K], ``tau_s``
+        = R C_stored [s], ``T_hot_K``, ``T_amb_K`` [K], ``Q_W`` [W], ``stored_J`` [J],
+        ``time_constants_s`` (list, slowest first) [s], ``first_moment_tau_s`` [s] and
+        ``C_effective_J_per_K`` [J/K] of the heated node (None when it is held at a fixed
+        temperature), ``n_unknowns`` and ``notes`` (list of plain-language strings).
+    """
+    from fdwall.solver.steady import solve_steady
+    from fdwall.system import build_system
+
+    out = implied_rc(case, t=t)
+    st = solve_steady(case, t=t, system=build_system(case))
+    modes = wall_time_constants(case, T_op=st.T, t=st.time)
+    out.update({"time_constants_s": [float(x) for x in modes["time_constants_s"]],
+                "first_moment_tau_s": modes.get("first_moment_tau_s"),
+                "C_effective_J_per_K": modes.get("C_effective_J_per_K"),
+                "n_unknowns": modes["n_unknowns"]})
+    out["notes"] = _rc_notes(out, modes, case)
+    return out
+
+
+def step_response_from_modes(t, time_constants_s, mode_R_K_per_W):
+    """Rise [K] of the heated node at times ``t`` [s] after a 1 W step, from its modes.
+
+    ``sum_i r_i (1 - exp(-t/tau_i))`` with ``time_constants_s`` tau_i [s] and
+    ``mode_R_K_per_W`` r_i [K/W] (as :func:`wall_time_constants` returns them).
+    """
+    t = np.asarray(t, dtype=float)
+    tau = np.asarray(time_constants_s, dtype=float)
+    r = np.asarray(mode_R_K_per_W, dtype=float)
+    return (r[None, :] * -np.expm1(-np.outer(t, 1.0 / tau))).sum(axis=1)
+
+
+def foster_fit(time_constants_s, mode_R_K_per_W, n_terms=4, per_decade=4, t=None):
+    """N-term Foster network (positive R_i, C_i) fitted to the heated node's step response.
+
+    The target is :func:`step_response_from_modes` at ``t`` [s] (default 200 log-spaced times
+    from a tenth of the fastest mode to ten times the slowest).  Positive resistances on a
+    grid of log-spaced time constants (``per_decade`` per decade over the span of ``t``) are
+    found by scipy.optimize.nnls; adjacent terms are then merged (R added, tau the R-weighted
+    mean, which keeps the first moment sum R tau), each time the pair whose merge refits
+    best, until ``n_terms`` remain, and the R are refitted by nnls on the merged time
+    constants.
+
+    Returns
+    -------
+    dict
+        ``R_K_per_W`` and ``C_J_per_K`` (arrays, C_i = tau_i/R_i), ``tau_s`` [s] (slowest
+        first), ``max_error_K_per_W`` the largest deviation from the target over ``t`` [K/W]
+        and ``max_error_fraction`` that divided by the total resistance [-].
+    """
+    from scipy.optimize import nnls
+    tau_m = np.asarray(time_constants_s, dtype=float)
+    r_m = np.asarray(mode_R_K_per_W, dtype=float)
+    if tau_m.size == 0 or tau_m.shape != r_m.shape or int(n_terms) < 1:
+        raise InputError("foster_fit: needs one resistance [K/W] per time constant [s] and "
+                         f"n_terms >= 1; got {tau_m.size} and {r_m.size}, n_terms={n_terms!r}.")
+    if t is None:
+        t = np.geomspace(tau_m.min() / 10.0, tau_m.max() * 10.0, 200)
+    t = np.asarray(t, dtype=float)
+    y = step_response_from_modes(t, tau_m, r_m)
+    n_grid = max(int(np.ceil(np.log10(t[-1] / t[0]) * per_decade)) + 1, 2)
+    grid = np.geomspace(t[0], t[-1], n_grid)
+
+    def basis(taus):
+        return -np.expm1(-np.outer(t, 1.0 / np.asarray(taus)))
+
+    R, _ = nnls(basis(grid), y)
+    keep = R > 0
+    taus, Rs = list(grid[keep]), list(R[keep])
+    while len(taus) > int(n_terms):
+        best = None
+        for i in range(len(taus) - 1):  # greedy: the merge whose refit fits best
+            Rn = Rs[i] + Rs[i + 1]
+            tn = (Rs[i] * taus[i] + Rs[i + 1] * taus[i + 1]) / Rn
+            tt = taus[:i] + [tn] + taus[i + 2:]
+            Rt, res = nnls(basis(tt), y)
+            if best is None or res < best[0]:
+                best = (res, tt, list(Rt))
+        _, taus, Rs = best
+    taus = np.asarray(taus)
+    Rs, _ = nnls(basis(taus), y)
+    ok = Rs > 0
+    taus, Rs = taus[ok][::-1], Rs[ok][::-1]
+    err = float(np.max(np.abs(basis(taus) @ Rs - y))) if taus.size else float(np.max(y))
+    return {"R_K_per_W": Rs, "C_J_per_K": taus / Rs, "tau_s": taus,
+            "max_error_K_per_W": err, "max_error_fraction": err / float(r_m.sum())}

@@ -15,7 +15,9 @@ from scipy.optimize import brentq
 
 from ..cautions import SAFETY_CAUTION
 from ..errors import InputError
+from ..materials import check_service_temperature
 from ..solver.steady import solve_steady
+from .safety import touch_limit
 
 
 def critical_radius_cylinder(k: float, h: float) -> float:
@@ -53,6 +55,56 @@ class LossTarget:
 
     def value(self, s, wall) -> float:
         return loss_per_unit(s, wall)
+
+
+def touch_target(surface_class: str, contact_time: float, criterion: str = "table",
+                 **kw) -> SkinTarget:
+    """Skin target at the touch threshold ``fdwall.safety.touch_limit(surface_class,
+    contact_time, criterion, **kw)`` [K] (contact time [s]); its name is "touch"."""
+    return SkinTarget(limit=touch_limit(surface_class, contact_time, criterion, **kw),
+                      name="touch")
+
+
+def service_warnings(s, wall) -> list:
+    """Warnings for layers whose hottest node of the steady solve ``s`` exceeds the material's
+    maximum service temperature [K]; each names the interface temperature and the limit."""
+    out = []
+    T = np.asarray(s.wall_T(0))
+    for j, (a, b) in enumerate(s.system.meshes[0].layer_nodes):
+        mat = wall.layers[j].material
+        Tj = float(np.max(T[a:b + 1]))
+        msg = check_service_temperature(mat, Tj)
+        if msg:
+            out.append(f"layer {j} ({mat.name}): hot-side interface temperature "
+                       f"{Tj - 273.15:.1f} degC is above its maximum service temperature "
+                       f"{mat.t_max - 273.15:.1f} degC. " + msg)
+    return out
+
+
+@dataclass(frozen=True)
+class Energy:
+    """Annual energy and cost of the heat loss.
+
+    hours : operating hours per year [s] (SI: 8000 h = 2.88e7 s);
+    efficiency : efficiency of the heat supply (0 < eta <= 1, dimensionless);
+    price : energy price [money per J] of purchased (supplied) energy, or None for no cost.
+    Annual supplied energy per unit = loss [W/m2, W/m or W] * hours / efficiency [J/m2, J/m, J].
+    """
+    hours: float
+    efficiency: float = 1.0
+    price: float | None = None
+
+    def __post_init__(self):
+        if not self.hours > 0:
+            raise InputError("operating hours per year must be positive")
+        if not 0 < self.efficiency <= 1:
+            raise InputError(f"efficiency must lie in (0, 1], got {self.efficiency:g}")
+        if self.price is not None and self.price < 0:
+            raise InputError("energy price must not be negative")
+
+    def annual(self, loss: float) -> float:
+        """Supplied energy per year [J per m2 / m / piece] for a steady ``loss``."""
+        return float(loss) * self.hours / self.efficiency
 
 
 def loss_per_unit(s, wall) -> float:
@@ -106,12 +158,17 @@ class SizingResult:
 
 
 def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0.5,
-               step: float | None = 0.025, stock=None, n_grid: int = 24) -> SizingResult:
+               step: float | None = 0.025, stock=None, n_grid: int = 24,
+               energy: Energy | None = None) -> SizingResult:
     """Smallest thickness [m] of layer ``layer`` in [t_min, t_max] meeting all ``targets``.
 
     Targets are bracketed on a grid, then each sign change is refined with scipy brentq; the
     sized layer's cell count is held fixed during the search so the root finder sees no steps.
     Feasible intervals (all targets met) are reported, so non-monotone targets are handled.
+    With ``energy`` the trade-off table gains annual supplied energy ``energy_J_per_m2`` (slab),
+    ``energy_J_per_m`` (cylinder) or ``energy_J`` (sphere) and, with a price, ``cost_per_year``
+    [money per year, per m2 / per m / per piece].
+    Layers driven above their maximum service temperature at the answer are warned about.
     """
     if case.wall is None:
         raise InputError("sizing of enclosure walls is not built yet; give a single-wall case")
@@ -167,10 +224,23 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
     else:
         rows = list(np.arange(step, t_max + 1e-12, step))
     tab = {"thickness_m": [], "skin_K": [], "loss": [], "all_pass": []}
+    ekey = {"slab": "energy_J_per_m2", "cylinder": "energy_J_per_m"}.get(case.wall.geometry,
+                                                                          "energy_J")
+    if energy is not None:
+        tab[ekey] = []
+        if energy.price is not None:
+            tab["cost_per_year"] = []
     for x in rows:
         sx, m = margins(x)
         tab["thickness_m"].append(float(x))
         tab["skin_K"].append(float(sx.face_T[1]))
-        tab["loss"].append(loss_per_unit(sx, case.wall))
+        q = loss_per_unit(sx, case.wall)
+        tab["loss"].append(q)
         tab["all_pass"].append(bool(min(m) >= 0))
-    return SizingResult(ans, float(exact), feasible, tlist, tab, SAFETY_CAUTION, [])
+        if energy is not None:
+            e = energy.annual(q)
+            tab[ekey].append(e)
+            if energy.price is not None:
+                tab["cost_per_year"].append(e * energy.price)
+    warns = service_warnings(s, case.wall)
+    return SizingResult(ans, float(exact), feasible, tlist, tab, SAFETY_CAUTION, warns)

@@ -1,7 +1,7 @@
 """Design studies: a grid of case variants, run in parallel, one table of answers.
 
-First slice (grid of explicit values, steady outputs, local processes, CSV table).
-Sampling, uncertainty summaries, Dask and resume are not built yet.
+Grids of explicit values (``[[vary]]``) or random samples (``[[uncertain]]``), steady
+outputs, local processes, CSV table.  Dask and resume are not built yet.
 
 A study file (TOML)::
 
@@ -10,7 +10,26 @@ A study file (TOML)::
     path = "wall.layers[1].thickness"         # case-file path, as in loader messages
     values = ["100 mm", "150 mm"]            # written with units as in case files
 
-Every combination of the ``values`` of all ``[[vary]]`` entries is one variant.  A variant
+Every combination of the ``values`` of all ``[[vary]]`` entries is one variant.
+
+Random sampling instead of a grid::
+
+    method = "latin-hypercube"               # or "monte-carlo"
+    samples = 200
+    [[uncertain]]
+    path = "materials.demo-board.conductivity"
+    distribution = "lognormal"               # uniform | normal | lognormal | triangular
+    median = "0.1 W/m/K"                     # lognormal: median, log_spread (sigma of ln x)
+    log_spread = 0.2
+    low = "0.05 W/m/K"                       # optional truncation (normal, lognormal)
+    [exceed]                                 # optional limits for exceedance probabilities
+    outer_T_K = "60 degC"
+
+Parameters per distribution: uniform ``low``, ``high``; normal ``mean``, ``spread``
+(standard deviation), optional ``low``/``high``; lognormal ``median``, ``log_spread``,
+optional ``low``/``high``; triangular ``low``, ``mode``, ``high``.  All parameters of one
+entry are written in one unit (as in case files); the sampled value goes into the case in
+that unit.  A variant
 edits the parsed TOML of the base case and goes through the normal loader, so validation
 lives in one place.  Outputs per variant (SI, unit suffixes): ``outer_T_K`` (steady
 temperature of the last face), ``loss_W`` (steady heat flow out of the last face).
@@ -28,12 +47,16 @@ import socket
 import time
 from concurrent.futures import ProcessPoolExecutor
 
+import numpy as np
 import tomllib
+from scipy import stats
+from scipy.stats import qmc
 
 from ..atomic import atomic_path
 from ..case.loader import case_from_dict
 from ..errors import FdwallError, InputError
 from ..solver import solve_steady
+from ..units import parse_quantity
 
 _STEP = re.compile(r"([A-Za-z_][A-Za-z0-9_\-]*)(\[(\d+)\])?$")
 OUTPUTS = ("outer_T_K", "loss_W")
@@ -80,7 +103,156 @@ def _set(data: dict, path: str, value, file: str) -> None:
             node = node[s]
 
 
-def read_study(path) -> dict:
+METHODS = ("monte-carlo", "latin-hypercube")
+_PARAMS = {"uniform": (("low", "high"), ()),
+           "normal": (("mean", "spread"), ("low", "high")),
+           "lognormal": (("median", "log_spread"), ("low", "high")),
+           "triangular": (("low", "mode", "high"), ())}
+_NUM = re.compile(r"^\s*([-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?)\s*(.*?)\s*$")
+
+
+def _number(v, where: str, file: str):
+    """(value, unit text) of a parameter written as in case files ('0.1 W/m/K' or 0.1)."""
+    if isinstance(v, bool) or not isinstance(v, (int, float, str)):
+        raise InputError(f"{file}: {where} must be a number or a value with its unit "
+                         "(e.g. \"0.1 W/m/K\").")
+    if not isinstance(v, str):
+        return float(v), ""
+    m = _NUM.match(v)
+    if not m:
+        raise InputError(f"{file}: {where} = {v!r} is not a number followed by a unit "
+                         "(e.g. \"0.1 W/m/K\").")
+    return float(m.group(1)), m.group(4)
+
+
+def _distribution(entry: dict, i: int, file: str):
+    """(frozen scipy distribution, low cdf, high cdf, unit) of uncertain[i]; checks params."""
+    key = f"uncertain[{i}]"
+    name = entry.get("distribution")
+    if name not in _PARAMS:
+        raise InputError(f"{file}: {key}.distribution = {name!r} is not known; allowed: "
+                         f"{', '.join(_PARAMS)}.")
+    need, optional = _PARAMS[name]
+    extra = set(entry) - {"path", "distribution", *need, *optional}
+    if extra:
+        raise InputError(f"{file}: {key}: key(s) {', '.join(sorted(extra))} not allowed for a "
+                         f"{name} distribution; allowed: {', '.join(need + optional)}.")
+    p, units = {}, set()
+    for k in need + optional:
+        if k not in entry:
+            if k in need:
+                raise InputError(f"{file}: {key}.{k} is missing; a {name} distribution needs "
+                                 f"{', '.join(need)}.")
+            continue
+        x, u = _number(entry[k], f"{key}.{k}", file)
+        if not np.isfinite(x):
+            raise InputError(f"{file}: {key}.{k} must be a finite number.")
+        p[k] = x
+        if k != "log_spread":
+            units.add(u)
+    if len(units) > 1:
+        raise InputError(f"{file}: {key}: the parameters are written in different units "
+                         f"({', '.join(sorted(units))}); write all of one entry in one unit.")
+    unit = units.pop() if units else ""
+    lo, hi = p.get("low"), p.get("high")
+    if lo is not None and hi is not None and not lo < hi:
+        raise InputError(f"{file}: {key}: low ({lo:g}) must be below high ({hi:g}).")
+    if name == "uniform":
+        dist = stats.uniform(loc=lo, scale=hi - lo)
+    elif name == "triangular":
+        if not lo <= p["mode"] <= hi:
+            raise InputError(f"{file}: {key}.mode ({p['mode']:g}) must lie between low "
+                             f"({lo:g}) and high ({hi:g}).")
+        dist = stats.triang(c=(p["mode"] - lo) / (hi - lo), loc=lo, scale=hi - lo)
+    elif name == "normal":
+        if not p["spread"] > 0:
+            raise InputError(f"{file}: {key}.spread ({p['spread']:g}) must be positive (it is "
+                             "the standard deviation).")
+        dist = stats.norm(loc=p["mean"], scale=p["spread"])
+    else:
+        if not p["median"] > 0:
+            raise InputError(f"{file}: {key}.median ({p['median']:g}) must be positive for a "
+                             "lognormal distribution.")
+        if not p["log_spread"] > 0:
+            raise InputError(f"{file}: {key}.log_spread ({p['log_spread']:g}) must be positive "
+                             "(it is the standard deviation of ln x).")
+        dist = stats.lognorm(s=p["log_spread"], scale=p["median"])
+    c_lo = float(dist.cdf(lo)) if lo is not None and name in ("normal", "lognormal") else 0.0
+    c_hi = float(dist.cdf(hi)) if hi is not None and name in ("normal", "lognormal") else 1.0
+    if not c_hi - c_lo > 1e-12:
+        raise InputError(f"{file}: {key}: the truncation low/high leaves no probability; "
+                         "widen it or move it towards the centre of the distribution.")
+    return dict(dist=dist, c_lo=c_lo, c_hi=c_hi, unit=unit, name=name)
+
+
+def sample_inputs(dists: list, method: str, n: int, seed: int) -> np.ndarray:
+    """``n`` x len(dists) sample (numbers in each entry's unit) by ``method``, seeded.
+
+    Monte Carlo draws independent uniforms; Latin hypercube (scipy.stats.qmc) puts one point
+    in each of ``n`` equal-probability strata per input.  Uniforms map through the inverse
+    CDF, restricted to [F(low), F(high)] for a truncated entry.
+    """
+    rng = np.random.default_rng(seed)
+    d = len(dists)
+    u = (qmc.LatinHypercube(d=d, seed=rng).random(n) if method == "latin-hypercube"
+         else rng.random((n, d)))
+    out = np.empty((n, d))
+    for j, dd in enumerate(dists):
+        out[:, j] = dd["dist"].ppf(dd["c_lo"] + u[:, j] * (dd["c_hi"] - dd["c_lo"]))
+    return out
+
+
+def _read_sampling(doc: dict, file: str, base_data: dict, seed) -> dict:
+    unc = doc["uncertain"]
+    if not isinstance(unc, list) or not unc:
+        raise InputError(f"{file}: 'uncertain' must be a list of [[uncertain]] tables, each "
+                         "with path, distribution and its parameters.")
+    if "vary" in doc:
+        raise InputError(f"{file}: give either [[vary]] (grid) or [[uncertain]] (random "
+                         "sample), not both.")
+    method = doc.get("method", "latin-hypercube")
+    if method not in METHODS:
+        raise InputError(f"{file}: method = {method!r} is not known; allowed: "
+                         f"{', '.join(METHODS)}.")
+    n = doc.get("samples")
+    if isinstance(n, bool) or not isinstance(n, int) or n < 1:
+        raise InputError(f"{file}: samples = {n!r}: give a whole number >= 1 of variants to "
+                         "draw (e.g. samples = 200).")
+    paths, dists = [], []
+    for i, e in enumerate(unc):
+        if not isinstance(e, dict) or not isinstance(e.get("path"), str):
+            raise InputError(f"{file}: uncertain[{i}].path is missing or not a string.")
+        dists.append(_distribution(e, i, file))
+        _set(copy.deepcopy(base_data), e["path"], 1.0, file)   # path check up front
+        if e["path"] in paths:
+            raise InputError(f"{file}: uncertain[{i}].path {e['path']!r} is given twice.")
+        paths.append(e["path"])
+    if seed is None:
+        seed = int(np.random.SeedSequence().entropy % (2**63))
+    x = sample_inputs(dists, method, n, seed)
+    variants = [{p: (f"{v:.12g} {dd['unit']}".strip() if dd["unit"] else float(v))
+                 for p, v, dd in zip(paths, row, dists)} for row in x]
+    return dict(method=method, seed=seed, samples=x, uncertain=paths, variants=variants,
+                vary=[(p, None) for p in paths],
+                distributions=[dd["name"] for dd in dists])
+
+
+def _read_limits(doc: dict, file: str) -> dict:
+    lim = doc.get("exceed", {})
+    if not isinstance(lim, dict):
+        raise InputError(f"{file}: [exceed] must be a table of output = limit "
+                         "(e.g. outer_T_K = \"60 degC\").")
+    kinds = {"outer_T_K": "temperature", "loss_W": "power"}
+    out = {}
+    for k, v in lim.items():
+        if k not in kinds:
+            raise InputError(f"{file}: exceed.{k}: not an output; allowed: "
+                             f"{', '.join(kinds)}.")
+        out[k] = parse_quantity(v, kinds[k], f"exceed.{k}", file=file)
+    return out
+
+
+def read_study(path, seed=None) -> dict:
     """Read a study file -> dict(base=dict, base_file, vary=[(path, values)], variants, sha).
 
     Raises InputError naming the file and key for any bad entry.
@@ -104,10 +276,17 @@ def read_study(path) -> dict:
         raise InputError(f"{file}: key 'base': cannot read {base_file} ({e.strerror}).") from None
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
         raise InputError(f"{file}: key 'base': {base_file} is not valid TOML ({e}).") from None
+    limits = _read_limits(doc, file)
+    sha = hashlib.sha256(raw).hexdigest()
+    if "uncertain" in doc:
+        smp = _read_sampling(doc, file, base_data, seed)
+        return dict(file=file, base_file=base_file, base=base_data, sha=sha, limits=limits,
+                    **smp)
     vary = doc.get("vary")
     if not isinstance(vary, list) or not vary:
-        raise InputError(f"{file}: no [[vary]] entries; a study needs at least one, each with "
-                         "'path' and a non-empty list 'values'.")
+        raise InputError(f"{file}: no [[vary]] or [[uncertain]] entries; a study needs at "
+                         "least one, [[vary]] with 'path' and a non-empty list 'values', or "
+                         "[[uncertain]] with 'path', 'distribution' and its parameters.")
     items = []
     for i, v in enumerate(vary):
         if not isinstance(v, dict) or not isinstance(v.get("path"), str):
@@ -120,9 +299,8 @@ def read_study(path) -> dict:
         items.append((v["path"], vals))
     variants = [dict(zip([p for p, _ in items], combo))
                 for combo in itertools.product(*[vals for _, vals in items])]
-    sha = hashlib.sha256(raw).hexdigest()
     return dict(file=file, base_file=base_file, base=base_data, vary=items,
-                variants=variants, sha=sha)
+                variants=variants, sha=sha, limits=limits, method="grid", seed=None)
 
 
 def run_variant(base: dict, edits: dict, name: str = "<variant>") -> dict:
@@ -154,12 +332,14 @@ def _job(args):
     return run_variant(base, edits, name)
 
 
-def run_study(path, out_dir=".", workers=None) -> tuple[str, list]:
+def run_study(path, out_dir=".", workers=None, seed=None) -> tuple[str, list]:
     """Run every variant of study file ``path``; write DIR/<stem>-study.csv atomically.
 
     Returns (csv path, rows).  ``workers`` local processes (default: all cores; 1 = serial).
+    ``path`` may also be a study already read by :func:`read_study`.  ``seed`` fixes the
+    random sample (same seed, same table apart from run time, host and worker).
     """
-    st = read_study(path)
+    st = path if isinstance(path, dict) else read_study(path, seed=seed)
     stem = os.path.splitext(os.path.basename(st["file"]))[0]
     if stem.endswith("-study"):
         stem = stem[: -len("-study")]
@@ -180,7 +360,7 @@ def run_study(path, out_dir=".", workers=None) -> tuple[str, list]:
         "status", "error", "run_time_s", "host", "worker"]
     with atomic_path(csv_path) as tmp, open(tmp, "w", newline="") as f:
         w = csv.writer(f)
-        w.writerow([f"# study_sha256={st['sha']}"])
+        w.writerow([f"# study_sha256={st['sha']} method={st['method']} seed={st['seed']}"])
         w.writerow(head)
         for r in rows:
             w.writerow([r[k] for k in keys])
@@ -195,3 +375,139 @@ def read_table(path):
     import pandas as pd  # optional heavy library, imported lazily
     return pd.read_csv(path, comment="#", keep_default_na=False,
                        na_values=["nan"])
+
+
+def quantile_interval(n: int, p: float, confidence: float = 0.95):
+    """Distribution-free interval of the ``p`` quantile from a sample of ``n``.
+
+    Returns 1-based ranks (r, s) and the coverage: the order statistics X_(r) <= x_p <=
+    X_(s) hold the true quantile with probability F(s-1) - F(r-1), F the Binomial(n, p)
+    CDF (order statistics; e.g. David & Nagaraja, Order Statistics, sec. 7.1).  ``r`` = 0
+    or ``s`` = n + 1 means that side is unbounded for this sample size.
+    """
+    a = 1.0 - confidence
+    b = stats.binom(n, p)
+    r = int(b.ppf(a / 2))                 # F(r - 1) < a/2
+    s = int(b.ppf(1 - a / 2)) + 1         # F(s - 1) >= 1 - a/2
+    cover = float(b.cdf(min(s, n + 1) - 1) - (b.cdf(r - 1) if r >= 1 else 0.0))
+    return r, s, cover
+
+
+def wilson_interval(k: int, n: int, confidence: float = 0.95):
+    """Wilson score interval (low, high) of a binomial proportion k/n (Wilson 1927)."""
+    if n == 0:
+        return float("nan"), float("nan")
+    z = float(stats.norm.ppf(0.5 + confidence / 2))
+    ph = k / n
+    den = 1 + z * z / n
+    mid = (ph + z * z / (2 * n)) / den
+    half = z / den * np.sqrt(ph * (1 - ph) / n + z * z / (4 * n * n))
+    return float(max(0.0, mid - half)), float(min(1.0, mid + half))
+
+
+def _samples_for_bounded(p: float, confidence: float) -> int:
+    n = 1
+    while True:
+        r, s, _ = quantile_interval(n, p, confidence)
+        if r >= 1 and s <= n:
+            return n
+        n += 1
+
+
+PERCENTS = (5, 50, 95)
+
+
+def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
+    """Uncertainty summary of a sampled study: dict(summary, tables, notes, references, json).
+
+    Per output (SI, unit suffix kept): mean, standard deviation, the 5/50/95 % quantiles with
+    order-statistic confidence intervals, the probability of exceeding each ``[exceed]``
+    limit with its Wilson interval, and a Spearman rank-correlation ranking of the inputs
+    (scipy.stats.spearmanr).  Failed variants are counted and left out.
+    """
+    done = [i for i, r in enumerate(rows) if r["status"] == "done"]
+    n, nf = len(done), len(rows) - len(done)
+    x = np.asarray(st["samples"])[done] if n else np.empty((0, len(st["uncertain"])))
+    summ = {"samples": len(rows), "done": n, "failed": nf,
+            "failed_fraction": nf / len(rows) if rows else float("nan"),
+            "confidence": confidence}
+    qt = {k: [] for k in ("output", "percent", "value_si", "ci_low_si", "ci_high_si",
+                          "ci_coverage", "unit")}
+    se = {k: [] for k in ("output", "input", "spearman_rho", "p_value", "rank")}
+    ex = {k: [] for k in ("output", "limit_si", "unit", "exceed_count", "probability",
+                          "ci_low", "ci_high")}
+    for out in OUTPUTS:
+        base, suf = out.rsplit("_", 1)
+        suf = "_" + suf
+        unit = suf[1:]
+        y = np.array([rows[i][out] for i in done], dtype=float)
+        ys = np.sort(y)
+        summ[f"{base}_mean{suf}"] = float(y.mean()) if n else float("nan")
+        summ[f"{base}_std{suf}"] = float(y.std(ddof=1)) if n > 1 else float("nan")
+        for pc in PERCENTS:
+            p = pc / 100
+            v = float(np.quantile(y, p)) if n else float("nan")
+            r, s, cover = quantile_interval(n, p, confidence) if n else (0, 1, float("nan"))
+            lo = float(ys[r - 1]) if r >= 1 else float("nan")
+            hi = float(ys[s - 1]) if s <= n else float("nan")
+            summ[f"{base}_p{pc:02d}{suf}"] = v
+            summ[f"{base}_p{pc:02d}_low{suf}"] = lo
+            summ[f"{base}_p{pc:02d}_high{suf}"] = hi
+            for k, val in zip(qt, (out, pc, v, lo, hi, cover, unit)):
+                qt[k].append(val)
+        if out in st.get("limits", {}):
+            lim = st["limits"][out]
+            k = int(np.sum(y > lim))
+            lo, hi = wilson_interval(k, n, confidence)
+            prob = k / n if n else float("nan")
+            summ[f"{base}_limit{suf}"] = lim
+            summ[f"{base}_exceed_probability"] = prob
+            summ[f"{base}_exceed_probability_low"] = lo
+            summ[f"{base}_exceed_probability_high"] = hi
+            for key, val in zip(ex, (out, lim, unit, k, prob, lo, hi)):
+                ex[key].append(val)
+        rho = []
+        for j, path in enumerate(st["uncertain"]):
+            if n >= 3 and np.ptp(y) > 0 and np.ptp(x[:, j]) > 0:
+                res = stats.spearmanr(x[:, j], y)
+                rho.append((path, float(res.statistic), float(res.pvalue)))
+            else:
+                rho.append((path, float("nan"), float("nan")))
+        order = sorted(range(len(rho)), key=lambda i: -abs(rho[i][1])
+                       if np.isfinite(rho[i][1]) else 0.0)
+        for rank, i in enumerate(order, 1):
+            for key, val in zip(se, (out, rho[i][0], rho[i][1], rho[i][2], rank)):
+                se[key].append(val)
+        if rho and np.isfinite(rho[order[0]][1]):
+            summ[f"{base}_top_input"] = rho[order[0]][0]
+    need = _samples_for_bounded(0.95, confidence)
+    summ["samples_for_bounded_p95_interval"] = need
+    notes = [f"random sample: {st['method']}, {len(rows)} variants, seed {st['seed']} "
+             "(the same seed gives the same table)",
+             f"quantiles p05/p50/p95 with {confidence:.0%} distribution-free intervals from "
+             "order statistics; NaN bounds mean the sample is too small for that side "
+             f"(at least {need} successful variants bound both sides of the 95 % quantile)",
+             "sensitivity: Spearman rank correlation of each input with each output; it "
+             "ranks monotone effects and misses effects that rise and fall"]
+    if nf:
+        notes.append(f"{nf} of {len(rows)} variants failed ({nf / len(rows):.1%}) and are left "
+                     "out of every figure above; if the failures gather in one part of the "
+                     "input range the quantiles and probabilities are biased towards the "
+                     "rest; see the error column of the table")
+    if ex["output"]:
+        notes.append("probability of exceeding a limit: fraction of successful variants "
+                     f"above it, with a {confidence:.0%} Wilson score interval")
+    refs = ["order-statistic confidence intervals of quantiles (binomial ranks; e.g. David & "
+            "Nagaraja, Order Statistics, 3rd ed., sec. 7.1)",
+            "Wilson score interval of a proportion (E. B. Wilson, JASA 22, 1927)",
+            "Spearman rank correlation, scipy.stats.spearmanr",
+            "Latin hypercube sampling, scipy.stats.qmc.LatinHypercube (McKay, Beckman & "
+            "Conover, Technometrics 21, 1979)"]
+    tables = {"quantiles": qt, "sensitivity": se}
+    if ex["output"]:
+        tables["exceedance"] = ex
+    js = {"quantiles": [dict(zip(qt, t)) for t in zip(*qt.values())],
+          "exceedance": [dict(zip(ex, t)) for t in zip(*ex.values())],
+          "sensitivity": [dict(zip(se, t)) for t in zip(*se.values())],
+          "failed": nf}
+    return dict(summary=summ, tables=tables, notes=notes, references=refs, json=js)

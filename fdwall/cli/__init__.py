@@ -43,7 +43,7 @@ __all__ = ["main", "build_parser", "EXIT_OK", "EXIT_WRITE", "EXIT_INPUT", "EXIT_
            "COMMAND_MODULES"]
 
 #: Modules of this package that add sub-commands, in the order of ``fdwall --help``.
-COMMAND_MODULES = ("core", "touch", "size", "fit", "study", "report")
+COMMAND_MODULES = ("core", "touch", "size", "fit", "rc", "study", "report")
 
 _DESCRIPTION = """\
 fdwall: transient and steady heat flow through the walls of heated equipment

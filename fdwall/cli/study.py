@@ -5,7 +5,8 @@ import datetime
 import os
 from pathlib import Path
 
-from ..analyses.study import OUTPUTS, run_study
+from ..analyses.study import OUTPUTS, read_study, run_study, uncertainty_summary
+from ..cautions import SAFETY_CAUTION
 from ..errors import InputError as LibInputError
 from ..h5tree import write_file
 from . import common
@@ -27,7 +28,8 @@ def cmd_study(args) -> int:
         raise WriteError(f"cannot create '{outdir}': {exc.strerror or exc}. Choose another "
                          "folder with --out DIR.") from None
     try:
-        csv_path, rows = run_study(args.study, outdir, workers=args.workers)
+        st = read_study(args.study, seed=args.seed)
+        csv_path, rows = run_study(st, outdir, workers=args.workers)
     except LibInputError as exc:
         raise InputError(str(exc)) from None
     done = [r for r in rows if r["status"] == "done"]
@@ -40,16 +42,26 @@ def cmd_study(args) -> int:
         if vals:
             summary[f"{k[:-2]}_max{k[-2:]}"] = max(vals)
             summary[f"{k[:-2]}_min{k[-2:]}"] = min(vals)
+    notes = ["every combination of the [[vary]] values is one variant"]
+    refs = ["steady state by fdwall.solve_steady"]
+    tables = {"variants": table}
+    unc = None
+    if st["method"] != "grid":
+        unc = uncertainty_summary(st, rows)
+        summary.update(unc["summary"])
+        tables.update(unc["tables"])
+        notes = unc["notes"]
+        refs += unc["references"]
     h5 = outdir / f"{stem}-study.h5"
     try:
-        write_file(h5, {"inputs": {"study_file": str(args.study),
+        write_file(h5, {"inputs": {"study_file": str(args.study), "method": st["method"],
+                                   "seed": -1 if st["seed"] is None else st["seed"],
                                    "workers": args.workers or os.cpu_count() or 1},
-                        "summary": summary, "tables": {"variants": table},
-                        "references": {"items": ["steady state by fdwall.solve_steady"]},
-                        "notes": {"items": ["every combination of the [[vary]] values is "
-                                            "one variant"]}},
+                        "summary": summary, "tables": tables,
+                        "references": {"items": refs},
+                        "notes": {"items": notes}},
                    attrs={"kind": "study", "fdwall_version": common.version(),
-                          "case_name": stem,
+                          "case_name": stem, "caution": SAFETY_CAUTION,
                           "created": datetime.datetime.now(datetime.UTC).isoformat()})
     except OSError as exc:
         raise WriteError(f"cannot write '{h5}': {exc.strerror or exc}.") from None
@@ -58,10 +70,25 @@ def cmd_study(args) -> int:
     if report:
         files.append(str(report))
     if args.json:
-        print(common.dumps({"summary": summary, "files": files}))
+        out = {"summary": summary, "files": files, "caution": SAFETY_CAUTION}
+        if unc:
+            out["uncertainty"] = unc["json"]
+        print(common.dumps(out))
     elif not args.quiet:
         print(f"Study {args.study}: {summary['variants']} variants, {summary['done']} done, "
               f"{summary['failed']} failed.")
+        if unc:
+            for q in unc["json"]["quantiles"]:
+                print(f"  {q['output']:>10} p{q['percent']:02d} = {q['value_si']:.6g} "
+                      f"{q['unit']}  ({q['ci_low_si']:.6g} .. {q['ci_high_si']:.6g})")
+            for e in unc["json"]["exceedance"]:
+                print(f"  P({e['output']} > {e['limit_si']:.6g} {e['unit']}) = "
+                      f"{e['probability']:.3f}  ({e['ci_low']:.3f} .. {e['ci_high']:.3f})")
+            for o in OUTPUTS:
+                top = summary.get(f"{o.rsplit('_', 1)[0]}_top_input")
+                if top:
+                    print(f"  {o}: strongest input {top}")
+        print(f"  {SAFETY_CAUTION}")
         for f in files:
             print(f"  {f}")
     return 0
@@ -77,7 +104,8 @@ def register(sub) -> None:
     p.add_argument("--scheduler", default=None, metavar="ADDRESS",
                    help="Dask scheduler address (not available yet)")
     p.add_argument("--seed", type=int, default=None, metavar="N",
-                   help="random seed (grids do not use it)")
+                   help="random seed of an [[uncertain]] sample (same seed, same table; "
+                        "grids do not use it)")
     p.add_argument("--restart", action="store_true", help="start the table over")
     common.add_output_options(p)
     p.set_defaults(func=cmd_study)

@@ -97,6 +97,10 @@ def read_result(h5_path) -> tuple[dict, dict]:
         with h5py.File(path, "r") as f:
             attrs = {k: (v.decode() if isinstance(v, bytes) else v) for k, v in f.attrs.items()}
             data = read_tree(f)
+            if "energy/residual" in f and isinstance(data.get("energy"), dict):
+                rel = f["energy/residual"].attrs.get("relative_max")
+                if rel is not None:
+                    data["energy"]["relative_max"] = float(rel)
     except (OSError, ValueError) as exc:
         raise InputError(f"'{path}' is not a readable HDF5 file ({exc}); give an fdwall result "
                          "file (.h5) written by fdwall run, steady, touch, size, fit or study.") \
@@ -116,6 +120,109 @@ def _images(h5_path: Path):
     return out
 
 
+def _q(value, unit, system, key=""):
+    """One stored number as (text, display unit label); '' for a missing value."""
+    if value is None or (isinstance(value, float) and not np.isfinite(value)):
+        return "", ""
+    if not unit:
+        return _fmt(value), ""
+    conv, label = _units.display(float(value), unit, system, key=key)
+    return _fmt(float(conv)), label
+
+
+def _run_sections(data: dict, system: str) -> dict:
+    """Sections of a run result (kind transient/steady), read from its stored groups."""
+    import json
+    out = {}
+    solver = data.get("solver") or {}
+    energy = data.get("energy") or {}
+    res = energy.get("residual")
+    if res is not None or solver:
+        rows = []
+        if isinstance(res, np.ndarray) and res.size:
+            rows.append(("residual at the end of the run", *_q(res[-1], "J", system)))
+        rows.append(("largest residual at a step end",
+                     *_q(solver.get("energy_residual_max_J"), "J", system)))
+        rows.append(("energy scale (largest energy that crossed a face, came from the heater "
+                     "or was stored)", *_q(solver.get("energy_scale_J"), "J", system)))
+        rel = energy.get("relative_max")
+        if rel is not None:
+            rows.append(("largest residual relative to the energy scale", f"{float(rel):.3g}",
+                         "-"))
+        for key, label in (("heater", "heater energy delivered"),
+                           ("stored", "energy stored at the end"),
+                           ("loss_chamber", "chamber loss to ambient")):
+            v = energy.get(key)
+            if isinstance(v, np.ndarray) and v.size:
+                rows.append((label, *_q(v[-1], "J", system)))
+        out["energy"] = rows
+    resolved = {}
+    try:
+        resolved = json.loads((data.get("input") or {}).get("resolved_json") or "{}")
+    except (TypeError, ValueError):
+        resolved = {}
+    run = resolved.get("run") or {}
+    steps = []
+    for key, label, unit in (("duration", "duration", "s"),
+                             ("output_interval", "output interval", "s"),
+                             ("tolerance", "local error tolerance per step", "K"),
+                             ("max_step", "largest step allowed", "s"),
+                             ("exact_outputs", "outputs at exact step ends", "")):
+        if key in run:
+            v = run[key]
+            if v is None:
+                steps.append((label, "automatic", ""))
+            elif isinstance(v, (int, float)) and not isinstance(v, bool):
+                steps.append((label, *_q(v, unit, system, key="tolerance_dT"
+                                           if unit == "K" else "")))
+            else:
+                steps.append((label, _fmt(v), ""))
+    for key, label, unit in (("accepted_steps", "steps accepted", ""),
+                             ("rejected_steps", "steps rejected", ""),
+                             ("newton_failures", "Newton failures", ""),
+                             ("min_step_s", "shortest step", "s"),
+                             ("max_step_s", "longest step", "s"),
+                             ("reached_s", "time reached", "s"),
+                             ("nodes", "unknowns", ""),
+                             ("wall_time_s", "computing time", "s")):
+        if key in solver:
+            steps.append((label, *_q(solver[key], unit, system)))
+    meshes = []
+    for name in sorted(k for k in (data.get("mesh") or {}) if k.startswith("wall_")):
+        m = data["mesh"][name]
+        try:
+            layers = ", ".join(json.loads(m.get("layers", "[]")))
+        except (TypeError, ValueError):
+            layers = str(m.get("layers", ""))
+        x = np.asarray(m.get("x", []), dtype=float)
+        first, last = m.get("layer_first"), m.get("layer_last")
+        cells = ""
+        if first is not None and last is not None:
+            cells = ", ".join(str(int(b) - int(a)) for a, b in zip(np.ravel(first),
+                                                                      np.ravel(last)))
+        meshes.append((m.get("name", name), m.get("geometry", ""), x.size, cells, layers))
+    if steps or meshes:
+        out["steps"], out["meshes"] = steps, meshes
+    touch = data.get("touch")
+    if isinstance(touch, dict):
+        faces = []
+        for f in touch.get("faces") or []:
+            if not isinstance(f, dict):
+                continue
+            faces.append((f.get("face", ""), f.get("surface_class", ""), f.get("verdict", ""),
+                          *_q(f.get("T_max_K"), "K", system),
+                          _q(f.get("limit_K"), "K", system)[0],
+                          _q(f.get("margin_K"), "K", system, key="margin_K")[0],
+                          _q(f.get("contact_temperature_K"), "K", system)[0]))
+        out["touch"] = {"criterion": touch.get("criterion", ""),
+                        "ambient": _q(touch.get("ambient_K"), "K", system),
+                        "contact_time": _q(touch.get("contact_time_s"), "s", system),
+                        "faces": faces, "warnings": _as_list(touch.get("warnings")),
+                        "caution": touch.get("caution", ""),
+                        "note": touch.get("burn_indicator_note", "")}
+    return out
+
+
 def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
     """The report of ``h5_path`` as one HTML string (display ``units`` "si" or "us")."""
     import jinja2
@@ -126,6 +233,7 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
     attrs, data = read_result(h5_path)
     stored = data.get("report") if isinstance(data.get("report"), dict) else {}
     ident = {**{k: stored.get(k, "") for k in _IDENT_KEYS}, **(ident or {})}
+    run = _run_sections(data, units) if attrs.get("kind") in ("transient", "steady") else {}
     skip = {"inputs", "summary", "tables", "warnings", "references", "notes", "report"}
     summary = _scalar_rows(data.get("summary", {}) or {}, units)
     tables = [_table(n, t, units) for n, t in (data.get("tables") or {}).items()
@@ -136,6 +244,8 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
             for k in [k for k, v in grp.items() if isinstance(v, str) and len(v) > 120]:
                 texts.append((f"{name}.{k}", grp[k]))
     long_keys = {t[0] for t in texts}
+    # groups whose scalars a run result shows in its dedicated sections
+    shown = {"solver", "energy", "touch", "mesh"} if run else set()
     for name, grp in data.items():  # other groups (run results): their 1-D columns as tables
         if name in skip or not isinstance(grp, dict):
             continue
@@ -144,8 +254,13 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         if cols and len(lens) == 1:
             tables.append(_table(name, cols, units))
         scal = {k: v for k, v in grp.items() if not isinstance(v, (np.ndarray, dict, list))
-                and f"{name}.{k}" not in long_keys}
+                and f"{name}.{k}" not in long_keys and name not in shown}
         summary += [(f"{name}.{n}", v, u) for n, v, u in _scalar_rows(scal, units)]
+    if run.get("touch"):
+        from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
+        run["touch"]["caution"] = run["touch"]["caution"] or SAFETY_CAUTION
+        run["touch"]["note"] = run["touch"]["note"] or BURN_INDICATOR_NOTE
+        attrs.setdefault("caution", run["touch"]["caution"])
     inputs = data.get("inputs", {}) or {}
     case_text = inputs.get("case_text", "") if isinstance(inputs, dict) else ""
     env = jinja2.Environment(loader=jinja2.PackageLoader("fdwall.report", "templates"),
@@ -155,7 +270,8 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         ident=[(k, ident.get(k) or "") for k in _IDENT_KEYS], summary=summary,
         inputs=_scalar_rows({k: v for k, v in inputs.items() if k != "case_text"}, units)
         if isinstance(inputs, dict) else [], case_text=case_text, texts=texts, tables=tables,
-        images=_images(h5_path), warnings=_as_list(data.get("warnings")),
+        images=_images(h5_path), run=run,
+        warnings=_as_list(data.get("warnings")) + run.get("touch", {}).get("warnings", []),
         references=_as_list(data.get("references")), notes=_as_list(data.get("notes")),
         version=attrs.get("fdwall_version", "not recorded"), kind=attrs.get("kind", "unknown"),
         created=attrs.get("created", "not recorded"),

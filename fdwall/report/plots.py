@@ -3,7 +3,8 @@
 matplotlib is imported only when a plot is drawn, and only its object-oriented API with the Agg
 canvas is used (no pyplot, no global backend switch), so plotting works headless and does not
 disturb an interactive session.  Every file is written to a temporary name and renamed when
-complete.  Axes: time in [h], temperature in [degC], depth in [mm], heat flow in [W] or [kW],
+complete.  Axes: time in [h], temperature in [degC], depth in [mm], heat flow in [W] or [kW]
+(per metre of pipe, [W/m], when the walls are cylinders), layers named by their material,
 energy in [MJ].
 """
 from __future__ import annotations
@@ -12,7 +13,7 @@ import os
 
 import numpy as np
 
-__all__ = ["plot_temperatures", "plot_profiles", "plot_energy", "write_plots"]
+__all__ = ["plot_temperatures", "plot_profiles", "layer_label", "plot_energy", "write_plots"]
 
 KELVIN_OFFSET = 273.15
 _WALL_COLOURS = ["#b2182b", "#2166ac", "#1b7837", "#762a83", "#e08214", "#35978f", "#8c510a",
@@ -155,6 +156,25 @@ def _profile_times(result, times):
     return sorted(set(t for t in times if t <= t_reached * (1 + 1e-9)))
 
 
+def layer_label(layer) -> str:
+    """Label of a layer on plots: its material's name, with the layer's own name when it has
+    one that differs (``'hot face (castable-dense)'``)."""
+    mat = getattr(layer.material, "name", "") or "layer"
+    own = getattr(layer, "name", "") or ""
+    return f"{own} ({mat})" if own and own != mat else mat
+
+
+def _per_length(result):
+    """(divisor [m], label suffix) for heat flows: per metre of pipe when every wall is a
+    cylinder (results of a pipe are per its length), else (1, '')."""
+    walls = _walls(result)
+    if walls and all(w.geometry == "cylinder" for w in walls):
+        lengths = {float(getattr(w, "length", 1.0)) for w in walls}
+        if len(lengths) == 1:
+            return lengths.pop(), "/m"
+    return 1.0, ""
+
+
 def plot_profiles(result, path, times=None) -> str:
     """Temperature profiles [degC] through each wall against depth from the inner face [mm], at
     the case's profile times (or 5 evenly spaced times), with the layers shaded and labelled.
@@ -205,21 +225,19 @@ def plot_profiles(result, path, times=None) -> str:
         ymin, ymax = ax.get_ylim()
         ax.set_ylim(ymin, ymax + 0.14 * (ymax - ymin))
         ytop = ymax + 0.12 * (ymax - ymin)
-        narrow_names = []
         chars_across = 80 if ncol == 2 else 130   # label characters that fit across the axes
         for i, layer in enumerate(w.layers):
             width = edges[i + 1] - edges[i]
-            label = f"{i}: {layer.label}"
-            narrow = (width / total) * chars_across < len(label) + 3
-            ax.text(0.5 * (edges[i] + edges[i + 1]), ytop,
-                    f"{i}" if narrow else label,
-                    ha="center", va="top", fontsize=8, color="#333333", zorder=6, clip_on=True)
-            if narrow:
-                narrow_names.append(f"{i}: {layer.label} ({layer.thickness * 1e3:g} mm)")
+            label = layer_label(layer)
+            wide = (width / total) * chars_across >= len(label) + 3
+            # every layer is named by its material: across the band when it fits, else
+            # upright inside the band (thin casings, foils)
+            ax.text(0.5 * (edges[i] + edges[i + 1]), ytop if wide else ymax, label,
+                    ha="center", va="top", fontsize=8 if wide else 7, color="#333333",
+                    rotation=0 if wide else 90, zorder=6, clip_on=True, gid=f"layer-{i}",
+                    bbox=None if wide else dict(fc="white", ec="none", alpha=0.75, pad=1.0))
         geo = "" if w.geometry == "slab" else f" ({w.geometry})"
         ttl = f"wall '{w.name}'{geo}"
-        if narrow_names:
-            ttl += "; thin layers " + ", ".join(narrow_names)
         import textwrap
         ax.set_title("\n".join(textwrap.wrap(ttl, 70 if ncol == 2 else 100)), fontsize=9)
     for ax in axes[len(walls):]:
@@ -262,7 +280,10 @@ def plot_energy(result, path) -> str:
         p_mean = np.zeros(0)
     big = max(np.nanmax(np.abs(q)) if q.size else 0.0,
               np.nanmax(np.abs(p_mean)) if p_mean.size else 0.0)
+    per, suffix = _per_length(result)
+    big /= per
     sc, pu = (1e3, "kW") if big >= 1e4 else (1.0, "W")
+    sc, pu = sc * per, pu + suffix
     names = result.face_names
     walls = _walls(result)
     single = len(walls) == 1
@@ -297,15 +318,17 @@ def plot_energy(result, path) -> str:
             a1.set_ylim(min(lo, 0.0) - pad, max(hi, 0.0) + pad)
             a1.text(0.5, 0.97, f"start-up peak of {span_all:.3g} {pu} off scale",
                     transform=a1.transAxes, ha="center", va="top", fontsize=8, color="#555555")
-    _style(a1, None, f"heat flow [{pu}]")
+    _style(a1, None, ("heat flow per metre of pipe" if suffix else "heat flow") + f" [{pu}]")
     _suptitle(fig, result, "heat flows and energy")
     _legend(a1, 99 if outside else len(names) + 1)
 
-    MJ = 1e6
+    MJ = 1e6 * per
     if single:
+        layers = walls[0].layers
         for l, n in enumerate(sysm.layer_names):
-            a2.plot(th, result.stored_layers[:, l] / MJ, "-", lw=1.2,
-                    label=f"stored: {n.split('/', 1)[-1]}")
+            name = layer_label(layers[l]) if len(layers) == len(sysm.layer_names) \
+                else n.split('/', 1)[-1]
+            a2.plot(th, result.stored_layers[:, l] / MJ, "-", lw=1.2, label=f"stored: {name}")
     else:
         for j, w in enumerate(walls):
             a2.plot(th, result.stored_wall(j) / MJ, "-", lw=1.2,
@@ -319,7 +342,7 @@ def plot_energy(result, path) -> str:
     if has_heater:
         a2.plot(th, result.heater_energy / MJ, "-.", color="#f4a582", lw=1.4,
                 label="heater energy (cumulative)")
-    _style(a2, "time [h]", "energy since start [MJ]  (1 kWh = 3.6 MJ)")
+    _style(a2, "time [h]", f"energy since start [MJ{suffix}]  (1 kWh = 3.6 MJ)")
     a2.set_xlim(0.0, max(th[-1], 1e-9))
     _legend(a2, 99 if outside else 6)
     return _save(fig, path)

@@ -37,7 +37,8 @@ def _reg():
 #: Words in a key that mark a temperature *difference* (kelvin shown as K / degF difference,
 #: never shifted by 273.15): residuals, standard errors, margins, rises ...
 _DIFFERENCE_WORDS = ("rms", "residual", "stderr", "margin", "rise", "diff", "delta", "error",
-                     "band", "ripple", "std", "sigma", "dT", "span", "gap")
+                     "band", "ripple", "std", "sigma", "dT", "span", "gap",
+                     "tolerance")
 
 
 def is_difference(key: str) -> bool:

@@ -465,8 +465,9 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
         if mx < tol:
             # a solution pinned at the 1 K floor is no solution: more heat was taken than the
             # wall holds; the caller shortens the step (and reports it if that fails)
+            # (a node that starts the step at the floor and stays there is a case at rest)
             for i in range(nun):
-                if T[i] <= 1.0:
+                if T[i] <= 1.0 and Tguess[i] > 1.0 + tol:
                     stats[ST_COLD] += 1
                     return False
             # values at the converged point for the caller
