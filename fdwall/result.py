@@ -12,6 +12,8 @@ from datetime import datetime, timezone
 
 import numpy as np
 
+from .provenance import provenance, stamp_h5
+
 __all__ = ["Result", "read_result"]
 
 
@@ -397,6 +399,7 @@ class Result:
         h.attrs["message"] = self.message
         h.attrs["created"] = datetime.now(timezone.utc).isoformat()
         h.attrs["kind"] = "transient"
+        stamp_h5(h, provenance(self.case))
         g = h.create_group("input")
         g.create_dataset("case_text", data=self.case.source or "")
         g.create_dataset("resolved_json", data=json.dumps(resolved_inputs(self.case), default=str))

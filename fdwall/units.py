@@ -216,6 +216,223 @@ def _clean_unit_text(text: str) -> str:
     return s
 
 
+# ---------------------------------------------------------------------------------------------
+# Strict unit grammar, checked by hand before pint sees the text (pint's own parser evaluates
+# an expression tree and would accept or choke on much more).  Iterative: no recursion on user
+# input, a bounded length and nesting depth.
+#
+#   unit    := factor { ( "*" | "/" | "·" | " " ) factor }
+#   factor  := atom [ power ]
+#   atom    := NAME | "1" | "(" unit ")"
+#   NAME    := letter { letter | digit | "_" }        (digits at the end are a power: m2, m2K)
+#   power   := ( "^" | "**" ) exponent | "²" | "³"
+#   exponent:= [ "-" | "+" ] digits [ "." digits ] | "(" [ "-" ] digits "/" digits ")"
+# "%" is a unit name on its own.
+# ---------------------------------------------------------------------------------------------
+
+#: Longest unit text accepted (characters) and deepest parenthesis nesting.
+MAX_UNIT_TEXT = 120
+MAX_UNIT_DEPTH = 4
+
+_NAME_START = set("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ°µμΩ")
+_NAME_PART = _NAME_START | set("0123456789_")
+_DIGITS = set("0123456789")
+# Names pint knows that are numbers rather than units: "100 pi mm" is a typo, not 314 mm.
+_NUMBER_NAMES = {"pi", "π", "tau", "e", "eulers_number", "avogadro_number", "zeta", "ln10",
+                 "wien_x", "wien_u", "fine_structure_constant", "alpha"}
+_GRAMMAR_ALLOWED = ("a unit expression of unit names (mm, degC, kW, Btu), products with '*' or "
+                    "a space, quotients with '/', powers as m2, m^2, m**2, m^-1, m^0.5 or "
+                    "m^(1/2), and balanced parentheses as in W/(m2*K); nothing else")
+
+
+def _grammar_error(text, where, file, what):
+    return CaseError(f"cannot read the unit '{text}': {what}", file=file, key=where,
+                     allowed=_GRAMMAR_ALLOWED)
+
+
+def _read_exponent(s, i, n):
+    """Index after an exponent starting at s[i], or -1 when none is there."""
+    if i < n and s[i] == "(":
+        j = i + 1
+        if j < n and s[j] in "+-":
+            j += 1
+        k = j
+        while j < n and s[j] in _DIGITS:
+            j += 1
+        if j == k or j >= n or s[j] != "/":
+            return -1
+        j += 1
+        k = j
+        while j < n and s[j] in _DIGITS:
+            j += 1
+        if j == k or j >= n or s[j] != ")":
+            return -1
+        return j + 1
+    j = i
+    if j < n and s[j] in "+-":
+        j += 1
+    k = j
+    while j < n and s[j] in _DIGITS:
+        j += 1
+    if j == k:
+        return -1
+    if j < n and s[j] == ".":
+        j += 1
+        k = j
+        while j < n and s[j] in _DIGITS:
+            j += 1
+        if j == k:
+            return -1
+    return j
+
+
+def check_unit_text(text, where: str = "", *, file: str = "") -> str:
+    """Check a unit text against fdwall's unit grammar (see module notes and docs/case-file.md).
+
+    Parameters
+    ----------
+    text : str
+        The unit part of a quantity, e.g. ``"W/(m2*K)"``, ``"degC"``, ``"m^0.5"``.
+    where : str, optional
+        Key path (or column, option) for the error message.
+    file : str, optional
+        File name for the error message.
+
+    Returns
+    -------
+    str
+        The text, stripped.
+
+    Raises
+    ------
+    CaseError
+        For any character or arrangement outside the grammar (a dangling operator, unbalanced
+        or too deep parentheses, brackets, '=', '#', '!', ';', '~', a number name such as
+        'pi'), naming ``where`` and the text.
+    """
+    if not isinstance(text, str):
+        raise _grammar_error(text, where, file, "it is not text")
+    s = text.strip()
+    n = len(s)
+    if not n:
+        raise _grammar_error(text, where, file, "it is empty")
+    if n > MAX_UNIT_TEXT:
+        raise _grammar_error(s[:40] + "...", where, file,
+                             f"it is {n} characters long (at most {MAX_UNIT_TEXT})")
+    i = 0
+    depth = 0
+    expect_atom = True          # True: a name, "1" or "(" must come next
+    while i < n:
+        c = s[i]
+        if c == " ":
+            i += 1
+            continue
+        if expect_atom:
+            if c in _NAME_START:
+                j = i + 1
+                while j < n and s[j] in _NAME_PART:
+                    j += 1
+                name = s[i:j]
+                if name.rstrip("0123456789") in _NUMBER_NAMES:
+                    raise _grammar_error(s, where, file,
+                                         f"'{name}' is a number, not a unit; write the value "
+                                         "as a number")
+                i = j
+                expect_atom = False
+            elif c == "%":
+                i += 1
+                expect_atom = False
+            elif c == "1" and (i + 1 >= n or s[i + 1] not in _DIGITS and s[i + 1] != "."):
+                i += 1
+                expect_atom = False
+            elif c == "(":
+                depth += 1
+                if depth > MAX_UNIT_DEPTH:
+                    raise _grammar_error(s[:40] + ("..." if n > 40 else ""), where, file,
+                                         f"parentheses nested deeper than {MAX_UNIT_DEPTH}")
+                i += 1
+            else:
+                what = ("it ends with an operator" if c in "*/^" and i == n - 1 else
+                        f"'{c}' at position {i + 1} where a unit name or '(' was expected")
+                raise _grammar_error(s, where, file, what)
+            continue
+        # after an atom: a power, an operator, ")", a space-product or the end
+        if c in "^" or s.startswith("**", i):
+            j = _read_exponent(s, i + (2 if c == "*" else 1), n)
+            if j < 0:
+                raise _grammar_error(s, where, file,
+                                     f"the power at position {i + 1} has no integer or "
+                                     "fractional exponent (m^2, m^-1, m^0.5, m^(1/2))")
+            i = j
+            if i < n and s[i] in "^²³" or s.startswith("**", i):
+                raise _grammar_error(s, where, file, "two powers in a row")
+        elif c in "²³":
+            i += 1
+        elif c in "*/·":
+            i += 1
+            expect_atom = True
+            if s[i:].strip() == "":
+                raise _grammar_error(s, where, file, "it ends with an operator")
+        elif c == ")":
+            depth -= 1
+            if depth < 0:
+                raise _grammar_error(s, where, file,
+                                     f"')' at position {i + 1} has no matching '('")
+            i += 1
+        elif s[i - 1] == " " and (c in _NAME_START or c in "(%"):
+            expect_atom = True      # "kg m2": a product written with a space
+        else:
+            raise _grammar_error(s, where, file,
+                                 f"'{c}' at position {i + 1} is not allowed here")
+    if expect_atom:
+        raise _grammar_error(s, where, file, "it ends where a unit name was expected")
+    if depth:
+        raise _grammar_error(s, where, file, f"{depth} '(' without a matching ')'")
+    return s
+
+
+def parse_header_unit(header, where: str = "", *, file: str = ""):
+    """Split a column header ``"name [unit]"`` into ``(name, unit_text)``.
+
+    Parameters
+    ----------
+    header : str
+        E.g. ``"time [s]"``, ``"shell temperature [degC]"`` or ``"label"`` (no unit).
+    where : str, optional
+        Column or key for error messages (default: the header itself).
+    file : str, optional
+        File name for error messages.
+
+    Returns
+    -------
+    tuple of (str, str or None)
+        The name (stripped) and the unit text checked by :func:`check_unit_text`, or None
+        when the header has no bracket.
+
+    Raises
+    ------
+    CaseError
+        For a header with a stray or unbalanced bracket, an empty name or a unit outside the
+        grammar.
+    """
+    if not isinstance(header, str):
+        raise CaseError(f"the column header {header!r} is not text", file=file,
+                        key=where, allowed="a header such as 'time [s]'")
+    h = header.strip()
+    key = where or h
+    if "[" not in h and "]" not in h:
+        if not h:
+            raise CaseError("a column header is empty", file=file, key=key,
+                            allowed="a header such as 'time [s]'")
+        return h, None
+    a = h.find("[")
+    if a <= 0 or not h.endswith("]") or h.count("[") != 1 or h.count("]") != 1 \
+            or not h[:a].strip():
+        raise CaseError(f"the column header '{h}' is not 'name [unit]'", file=file, key=key,
+                        allowed="a header such as 'time [s]' or 'shell temperature [degC]'")
+    return h[:a].strip(), check_unit_text(h[a + 1:-1], key, file=file)
+
+
 def parse_unit(text: str, where: str = "", *, file: str = ""):
     """Parse a unit expression such as ``"W/m2/K"`` into a pint Unit.
 
@@ -240,6 +457,7 @@ def parse_unit(text: str, where: str = "", *, file: str = ""):
     if not isinstance(text, str) or not text.strip():
         raise CaseError(f"the unit {text!r} is empty or not text", file=file, key=where,
                         allowed="a unit such as " + ", ".join(_COMMON_UNITS[:12]))
+    check_unit_text(text, where, file=file)
     try:
         return ureg.parse_units(_clean_unit_text(text))
     except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,

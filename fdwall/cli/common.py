@@ -293,6 +293,39 @@ def output_dir(args, stem: str) -> Path:
     return Path(args.out) if getattr(args, "out", None) else Path("results") / stem
 
 
+def warn_replacing(paths) -> list:
+    """Warn (on stderr) for each of ``paths`` that already exists and will be replaced.
+
+    fdwall replaces an earlier result of the same name rather than refusing (friendlier for
+    scripts that rerun a case); the warning says which file and when it was last written.
+
+    Parameters
+    ----------
+    paths : iterable of str or Path
+        The files a command is about to write.
+
+    Returns
+    -------
+    list of str
+        The paths that exist (and are about to be replaced).
+    """
+    import datetime as _dt
+    replaced = []
+    for p in paths:
+        p = Path(p)
+        try:
+            st = p.stat()
+        except OSError:
+            continue
+        if not p.is_file():
+            continue
+        when = _dt.datetime.fromtimestamp(st.st_mtime, _dt.timezone.utc)
+        _warn(f"replacing the existing result file '{p}' (last written "
+              f"{when.strftime('%Y-%m-%d %H:%M:%S')} UTC); use --out DIR to keep both.")
+        replaced.append(str(p))
+    return replaced
+
+
 def write_report(args, h5_path, out=None):
     """Write the HTML report of an HDF5 result when ``--report`` was given; returns its path.
 

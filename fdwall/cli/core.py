@@ -62,6 +62,7 @@ def cmd_run(args) -> int:
             summary["enclosure"] = summarise_enclosure(result, steady=False)
         except Exception as exc:  # analyses must never lose the run's own results
             _warn(f"enclosure analysis not available: {exc}")
+    summary["replaced_files"] = common.warn_replacing([h5, js])
     try:
         result.write_hdf5(h5)
         plots = []
