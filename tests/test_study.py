@@ -2,31 +2,13 @@
 import csv
 
 import pytest
+from study_cases import ONE_LAYER_WALL
 
 import fdwall
 from fdwall.errors import InputError
 from fdwall.study import read_study, run_study
 
-CASE = """
-title = "one-layer plane wall (invented test case)"
-[run]
-duration = "1 h"
-[materials.demo-board]
-conductivity = "0.1 W/m/K"
-specific_heat = "1000 J/kg/K"
-density = "200 kg/m3"
-[wall]
-area = "1 m2"
-[[wall.layers]]
-material = "demo-board"
-thickness = "50 mm"
-[wall.inner_face]
-fluid_temperature = "200 degC"
-film_coefficient = "20 W/m2/K"
-[wall.outer_face]
-fluid_temperature = "20 degC"
-film_coefficient = "10 W/m2/K"
-"""
+CASE = ONE_LAYER_WALL
 
 STUDY = """
 base = "wall.toml"
