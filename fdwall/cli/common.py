@@ -345,3 +345,34 @@ def write_report(args, h5_path, out=None):
         return _html.write_report(h5_path, out, units=getattr(args, "units", "si"))
     except OSError as exc:
         raise WriteError(f"cannot write the report '{out}': {exc.strerror or exc}.") from None
+
+
+def write_analysis(args, h5_path, groups: dict, *, kind: str, case_name: str,
+                   caution: str | None = None) -> list:
+    """Write an analysis result file (``kind`` "size", "fit", "rc", "study" ...) and, with
+    ``--report``, its HTML report; returns the paths written (as strings).
+
+    One place for the layout the report reads: root attributes ``kind``, ``fdwall_version``,
+    ``case_name``, ``created`` (ISO UTC) and ``caution`` when the answer speaks of safety; the
+    groups as given (``inputs``, ``summary``, ``tables``, ``warnings``, ``references``,
+    ``notes``).  A failed write is a :class:`WriteError` (exit 1) and leaves no file.
+    """
+    from datetime import datetime, timezone
+
+    from ..h5tree import write_file
+    h5_path = Path(h5_path)
+    attrs = {"kind": kind, "fdwall_version": _version(), "case_name": case_name,
+             "created": datetime.now(timezone.utc).isoformat()}
+    if caution:
+        attrs["caution"] = caution
+    try:
+        h5_path.parent.mkdir(parents=True, exist_ok=True)
+        write_file(h5_path, groups, attrs=attrs)
+    except OSError as exc:
+        raise WriteError(f"cannot write the results to '{h5_path.parent}': "
+                         f"{exc.strerror or exc}. Choose another folder with --out DIR.") from None
+    files = [str(h5_path)]
+    report = write_report(args, h5_path)
+    if report:
+        files.append(str(report))
+    return files

@@ -1,11 +1,10 @@
 """``fdwall fit LOG.csv``: fit a one-node R/C model to a measured heating log."""
 from __future__ import annotations
 
-import datetime as _dt
 from pathlib import Path
 
 from . import common
-from .common import EXIT_OK, InputError, WriteError
+from .common import EXIT_OK, InputError
 
 
 def _value_or_column(text, kind, option):
@@ -100,10 +99,7 @@ def cmd_fit(args) -> int:
         groups_extra["ratios"] = check["ratios"]
         summary["log_time_constants"] = check["log_time_constants"]
         notes += check["reading"]
-    try:
-        from ..h5tree import write_file
-        outdir.mkdir(parents=True, exist_ok=True)
-        write_file(h5, {
+    files = common.write_analysis(args, h5, {
             "inputs": {"log": str(args.log), "time": args.time, "temperature": ",".join(temps),
                        "power": str(args.power), "duty": str(args.duty),
                        "state": str(args.state), "rated_power": str(args.rated_power),
@@ -119,15 +115,7 @@ def cmd_fit(args) -> int:
                            "with an effective sample size n(1-r1)/(1+r1)"]},
             "notes": {"items": notes},
             **groups_extra,
-        }, attrs={"kind": "fit", "fdwall_version": common.version(), "case_name": stem,
-                  "created": _dt.datetime.now(_dt.timezone.utc).isoformat()})
-    except OSError as exc:
-        raise WriteError(f"cannot write the results to '{outdir}': {exc.strerror or exc}. "
-                         "Choose another folder with --out DIR.") from None
-    files = [str(h5)]
-    report = common.write_report(args, h5)
-    if report:
-        files.append(str(report))
+        }, kind="fit", case_name=stem)
     for w in warns:
         common.warn(w)
     if args.json:

@@ -1,11 +1,10 @@
 """``fdwall rc CASE``: the lumped R/C model the walls of a case imply (see docs/lumped-rc.md)."""
 from __future__ import annotations
 
-from datetime import datetime, timezone
 from pathlib import Path
 
 from . import common
-from .common import EXIT_NOT_CONVERGED, EXIT_OK, InputError, WriteError
+from .common import EXIT_NOT_CONVERGED, EXIT_OK, InputError
 
 #: JSON keys of the answer (SI: K/W, J/K, s).
 JSON_KEYS = ("R_K_per_W", "C_stored_J_per_K", "C_total_J_per_K", "tau_s", "time_constants_s",
@@ -74,25 +73,14 @@ def cmd_rc(args) -> int:
     for k in ("first_moment_tau_s", "C_effective_J_per_K"):
         if r.get(k) is not None:
             summary[k] = r[k]
-    try:
-        from ..h5tree import write_file
-        outdir.mkdir(parents=True, exist_ok=True)
-        write_file(h5, {
+    files = common.write_analysis(args, h5, {
             "inputs": {"case": str(args.case), "n_unknowns": r["n_unknowns"]},
             "summary": summary,
             "tables": {"modes": {"mode": list(range(1, len(tc) + 1)), "tau_s": list(tc)}},
             "warnings": {"items": warns or ["none"]},
             "references": {"items": _REFERENCES},
             "notes": {"items": r["notes"]},
-        }, attrs={"kind": "rc", "fdwall_version": common.version(), "case_name": stem,
-                  "created": datetime.now(timezone.utc).isoformat()})
-    except OSError as exc:
-        raise WriteError(f"cannot write the results to '{outdir}': {exc.strerror or exc}. "
-                         "Choose another folder with --out DIR.") from None
-    files = [str(h5)]
-    report = common.write_report(args, h5)
-    if report:
-        files.append(str(report))
+        }, kind="rc", case_name=stem)
     d["files"] = files
     if args.json:
         print(common.dumps(d))

@@ -2,11 +2,10 @@
 from __future__ import annotations
 
 import re
-from datetime import datetime, timezone
 from pathlib import Path
 
 from . import common
-from .common import EXIT_OK, InputError, WriteError
+from .common import EXIT_OK, InputError
 
 
 def _loss(text, geometry):
@@ -123,10 +122,7 @@ def cmd_size(args) -> int:
     stem = Path(args.case).stem
     outdir = common.output_dir(args, stem)
     h5 = outdir / f"{stem}-size.h5"
-    try:
-        from ..h5tree import write_file
-        outdir.mkdir(parents=True, exist_ok=True)
-        write_file(h5, {
+    files = common.write_analysis(args, h5, {
             "inputs": {"layer": layer, "t_min_m": tmin, "t_max_m": tmax,
                        **({"hours_per_year_s": energy.hours,
                            "supply_efficiency": energy.efficiency,
@@ -140,12 +136,8 @@ def cmd_size(args) -> int:
                            "memory)"]},
             "notes": {"items": ["steady targets only; service limits checked at the answer thickness "
                       "against each material's maximum service temperature"]}},
-            attrs={"kind": "size", "fdwall_version": common.version(),
-                   "case_name": stem, "caution": r.caution,
-                   "created": datetime.now(timezone.utc).isoformat()})
-    except OSError as exc:
-        raise WriteError(f"cannot write the results to '{outdir}': {exc}") from None
-    common.write_report(args, h5)
+        kind="size", case_name=stem, caution=r.caution)
+    d["files"] = files
     if args.json:
         print(common.dumps(d))
     elif not args.quiet:
@@ -174,7 +166,7 @@ def cmd_size(args) -> int:
                     line += f"  {r.table['cost_per_year'][i]:9.4g}"
                 print(line)
         print(f"  {r.caution}")
-        print(f"Files written:\n  {h5}")
+        print("Files written:\n  " + "\n  ".join(files))
     return EXIT_OK
 
 
