@@ -53,6 +53,7 @@ ROOM = 293.15  # default start/room temperature: 20 degC [K]
 MAX_LAYER_CELLS = 10_000       # cells in one layer, after mesh_refine
 MAX_WALL_CELLS = 100_000       # cells in one wall, after mesh_refine
 MAX_REFINE = 100.0             # mesh_refine
+MAX_CONDUCTIVITY_FACTOR = 100.0  # a layer's conductivity_factor
 MAX_OUTPUTS = 1_000_000        # stored output times of a run
 MAX_STORED = 100_000_000       # stored temperatures: output times x nodes (0.8 GB as float64)
 # Other bounds on dimensionless factors (common practice, no source)
@@ -460,6 +461,14 @@ class _Loader:
         layers, starts = [], []
         for i, ls in enumerate(lsecs):
             mat = self._material(ls.raw("material"), ls.key("material"))
+            if ls.has("conductivity_factor"):
+                kf = ls.quantity("conductivity_factor", "dimensionless")
+                if not 0.0 < kf <= MAX_CONDUCTIVITY_FACTOR:
+                    raise ls.error("conductivity_factor",
+                                   f"{kf!r} is not a usable multiplier on the conductivity",
+                                   f"a number > 0 and at most {MAX_CONDUCTIVITY_FACTOR:g} "
+                                   "(1 keeps the material's own k(T), e.g. 1.1 for +10 %)")
+                mat = mat.with_conductivity_factor(kf)
             th = ls.quantity("thickness", "length", positive=True)
             cells = ls.integer("cells", None, minimum=1)
             if cells is not None and cells > MAX_LAYER_CELLS:

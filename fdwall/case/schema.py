@@ -82,6 +82,8 @@ LAYER = {
     "cells": "number of cells across the layer (default automatic)",
     "name": "text label (default: the material name)",
     "start_temperature": 'start temperature of this layer, e.g. "200 degC"',
+    "conductivity_factor": "multiplier on the material's conductivity k(T), > 0 (default 1): a "
+                           "design factor for ageing or workmanship, or an uncertain scale",
 }
 
 BRIDGE = {

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 import numbers
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Optional, Union
 
 import numpy as np
@@ -127,6 +127,20 @@ class Material:
             # the material is immutable, so its tables are computed once
             object.__setattr__(self, "_tables", cached)
         return cached
+
+    def with_conductivity_factor(self, factor: float) -> "Material":
+        """This material with its conductivity k(T) multiplied by ``factor`` [-].
+
+        A design factor for ageing, moisture or workmanship (for example 1.1), or an
+        uncertain conductivity scale in a study.  ``factor`` must be finite and > 0; 1 gives
+        this material itself.  The name gains `` (k x factor)`` so reports show the change.
+        """
+        f = _number(factor, self.name, "conductivity factor")
+        if not f > 0.0:
+            raise MaterialError(f"Material '{self.name}': conductivity factor must be > 0, got {f!r}.")
+        if f == 1.0:
+            return self
+        return replace(self, k=self.k.scaled(f), name=f"{self.name} (k x{f:g})")
 
     def to_dict(self) -> dict:
         """Plain SI dict accepted by :func:`fdwall.materials.material_from_dict`."""

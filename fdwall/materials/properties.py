@@ -107,6 +107,10 @@ class Constant:
         return (np.array(CONSTANT_KNOT_RANGE, dtype=np.float64),
                 np.array([self.value, self.value], dtype=np.float64))
 
+    def scaled(self, factor: float) -> "Constant":
+        """The same property multiplied by ``factor`` [-] (> 0)."""
+        return Constant(self.value * float(factor))
+
     def to_dict(self) -> float:
         """Plain SI form accepted by :func:`fdwall.materials.material_from_dict`: the number."""
         return self.value
@@ -183,6 +187,10 @@ class Table:
             Values at the knots (unit of the property).
         """
         return self._T_arr.copy(), self._v_arr.copy()
+
+    def scaled(self, factor: float) -> "Table":
+        """The same table with every value multiplied by ``factor`` [-] (> 0)."""
+        return Table(self.T, tuple(v * float(factor) for v in self.values))
 
     def to_dict(self) -> dict:
         """Plain SI form ``{"T": [...K], "values": [...]}``."""
@@ -297,6 +305,10 @@ class Polynomial:
             Polynomial values at the knots (unit of the property).
         """
         return self._knots[0].copy(), self._knots[1].copy()
+
+    def scaled(self, factor: float) -> "Polynomial":
+        """The same polynomial multiplied by ``factor`` [-] (> 0), same validity range."""
+        return Polynomial(tuple(c * float(factor) for c in self.coeffs), self.T_min, self.T_max)
 
     def to_dict(self) -> dict:
         """Plain SI form ``{"coeffs": [...], "T_min": ..., "T_max": ...}``."""
