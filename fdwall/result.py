@@ -61,6 +61,9 @@ class Result:
         name -> (first upward crossing [s], first downward crossing [s]); NaN when none.
     complete : bool
         False when the run stopped early (see ``message``).
+    status : str
+        How the run ended: "complete", "interrupted" (stopped on request: Ctrl-C, SIGTERM,
+        an observer), "not converged" or "implausible" (see ``message``).
     """
 
     case: object
@@ -78,6 +81,7 @@ class Result:
     events: dict
     complete: bool = True
     message: str = ""
+    status: str = "complete"
     wall_time: float = 0.0
     steady: object = None
     control_state: object = None
@@ -110,6 +114,7 @@ class Result:
                    heater_energy=E_out[:n, nf].copy(), loss_energy=E_out[:n, nf + 1].copy(),
                    heater_power=P_out[:n].copy(), h_conv=hc_out[:n].copy(),
                    h_rad=hr_out[:n].copy(), stats=st, events=evs, complete=complete,
+                   status="complete" if complete else "stopped early",
                    wall_time=wall_time)
 
     # ----------------------------------------------------------------- temperatures
@@ -285,6 +290,7 @@ class Result:
         out = {
             "case": self.case.name,
             "complete": bool(self.complete),
+            "status": self.status,
             "message": self.message,
             "duration_s": float(self.times[-1]),
             "faces": faces,
@@ -396,6 +402,7 @@ class Result:
         h.attrs["fdwall_version"] = _version()
         h.attrs["case_name"] = self.case.name
         h.attrs["complete"] = bool(self.complete)
+        h.attrs["status"] = self.status
         h.attrs["message"] = self.message
         h.attrs["created"] = datetime.now(timezone.utc).isoformat()
         h.attrs["kind"] = "transient"

@@ -24,8 +24,23 @@ from .common import (
 
 
 def cmd_run(args) -> int:
+    """``fdwall run``: SIGINT / SIGTERM during the run stop it cleanly (partial result written,
+    marked incomplete, exit 130 / 143); a second signal stops the writing too."""
+    from .interrupts import SecondSignal, exit_code_for, signals_to_flag
+    try:
+        with signals_to_flag() as flag:
+            return _run_and_write(args, flag)
+    except SecondSignal as exc:
+        _error(f"interrupted again ({exc.signum}) while the partial result of '{args.case}' "
+               "was being written: nothing more is written (no half-written file is left).")
+        return exit_code_for(exc.signum)
+
+
+def _run_and_write(args, flag) -> int:
     from ..report.text import TOUCH_CAUTION, fmt_time, format_summary
     from ..solver import run, solve_steady
+    from ..solver.observers import InterruptCheck
+    from .interrupts import SIGNAL_NAMES, exit_code_for
     quiet = args.quiet
     case, warns = _load(args.case)
     for w in warns:
@@ -35,20 +50,29 @@ def cmd_run(args) -> int:
     outdir = Path(args.out) if args.out else Path("results") / stem
     progress = False if quiet else args.progress
     try:
-        result = run(case, progress=progress, strict=False, system=system)
+        result = run(case, progress=progress, strict=False, system=system,
+                     observers=[InterruptCheck(flag)])
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), args.case)) from None
-    if not result.complete:
-        reached = float(result.stats.get("reached_s", result.times[-1]))
+    interrupted = result.status == "interrupted"
+    reached = float(result.stats.get("reached_s", result.times[-1]))
+    if interrupted:
+        name = SIGNAL_NAMES.get(flag.signal, "a signal")
+        _error(f"interrupted ({name}): the run of '{args.case}' stopped at t = {reached:.6g} s "
+               f"({fmt_time(reached)}) of {case.run.duration:.6g} s. The partial result is "
+               f"written to {outdir} and marked incomplete (status 'interrupted'); no steady "
+               "state, analyses, plots or report are made for it.")
+    elif not result.complete:
         _error(f"the run of '{args.case}' did not converge; it stopped at t = {reached:.6g} s "
                f"({fmt_time(reached)}) of {case.run.duration:.6g} s. {result.message} The partial "
                f"result is written to {outdir} and marked incomplete.")
     # steady state at the end-of-run boundary conditions
-    try:
-        result.steady = solve_steady(case, system=system)
-    except Exception as exc:  # a failed steady solve must not lose the transient result
-        result.steady = None
-        _warn(f"no steady state found for '{args.case}': {exc}")
+    result.steady = None
+    if not interrupted:
+        try:
+            result.steady = solve_steady(case, system=system)
+        except Exception as exc:  # a failed steady solve must not lose the transient result
+            _warn(f"no steady state found for '{args.case}': {exc}")
     # write
     h5 = outdir / f"{stem}.h5"
     js = outdir / f"{stem}-summary.json"
@@ -56,7 +80,7 @@ def cmd_run(args) -> int:
     summary = result.summary()
     summary.update({"case_file": str(args.case), "fdwall_version": _version(),
                     "input_warnings": warns, "caution": TOUCH_CAUTION})
-    if case.is_enclosure:
+    if case.is_enclosure and not interrupted:
         try:
             from ..analyses.enclosure import summarise_enclosure
             summary["enclosure"] = summarise_enclosure(result, steady=False)
@@ -66,7 +90,7 @@ def cmd_run(args) -> int:
     try:
         result.write_hdf5(h5)
         plots = []
-        if not args.no_plots:
+        if not args.no_plots and not interrupted:
             from ..report.plots import write_plots
             plots = write_plots(result, outdir, stem)
         files += [str(p) for p in plots]
@@ -75,9 +99,10 @@ def cmd_run(args) -> int:
     except OSError as exc:
         raise WriteError(f"cannot write the results to '{outdir}': {exc.strerror or exc}. "
                          "Choose another folder with --out DIR.") from None
-    report = common.write_report(args, h5)
-    if report:
-        files.append(str(report))
+    if not interrupted:
+        report = common.write_report(args, h5)
+        if report:
+            files.append(str(report))
     if args.json:
         print(_dumps(summary))
     elif not quiet:
@@ -88,6 +113,8 @@ def cmd_run(args) -> int:
     else:
         for w in summary.get("warnings") or []:
             _warn(w)
+    if interrupted:
+        return exit_code_for(flag.signal)
     return EXIT_OK if result.complete else EXIT_NOT_CONVERGED
 
 

@@ -37,6 +37,45 @@ from numba import njit
 from ..physics.air import P_ATM, rho_cp
 from ..physics.convection import h_conv
 
+# stats, control-state and resume-state layouts (named indices: see fdwall.solver.layout)
+from .layout import (  # noqa: F401  (re-exported for fdwall.solver.native)
+    CS_H,
+    CS_HJ,
+    CS_HSW,
+    CS_INT,
+    CS_NEXT,
+    CS_OFF,
+    CS_ON,
+    CS_PREV,
+    CS_U,
+    CS_UPREV,
+    KS_AFTER_JUMP,
+    KS_ARRAYS,
+    KS_HAVE_PREV,
+    KS_HPREV,
+    KS_IBP,
+    KS_INIT,
+    KS_REUSE,
+    KS_ULAST,
+    N_CS,
+    N_STATS,
+    ST_ACC,
+    ST_ASSEMBLE,
+    ST_COLD,
+    ST_EVRETRY,
+    ST_H0,
+    ST_HMAX,
+    ST_HMIN,
+    ST_NEWTON,
+    ST_NFAIL,
+    ST_REJ,
+    ST_RESMAX,
+    ST_SCALE,
+    ST_STALL,
+    ST_STATUS,
+    ST_T,
+)
+
 SIGMA = 5.670374419e-8          # Stefan-Boltzmann constant [W/m2/K4] (CODATA 2018)
 GAMMA = 2.0 - np.sqrt(2.0)      # TR-BDF2 stage fraction (Bank et al. 1985)
 D_COEF = GAMMA / 2.0            # implicit coefficient of both stages (times h)
@@ -47,15 +86,6 @@ W0 = 1.0 / (2.0 * (2.0 - GAMMA))  # quadrature weights of one step: W0*F_n + W0*
 W2 = C2
 KERR = (-3.0 * GAMMA ** 2 + 4.0 * GAMMA - 2.0) / (12.0 * (2.0 - GAMMA))
 
-# stats layout
-(ST_ACC, ST_REJ, ST_NFAIL, ST_NEWTON, ST_EVRETRY, ST_STATUS, ST_T, ST_HMIN, ST_HMAX,
- ST_ASSEMBLE, ST_H0, ST_RESMAX, ST_SCALE, ST_COLD, ST_STALL) = range(15)
-N_STATS = 15
-# ST_STATUS: 0 running/done, 1 step size fell below its floor, 2 steps stalled (no progress)
-# ST_COLD counts Newton solutions rejected for reaching the 1 K floor (heat the wall lacks)
-# control-state layout
-CS_U, CS_ON, CS_INT, CS_PREV, CS_NEXT, CS_OFF, CS_H, CS_UPREV, CS_HSW, CS_HJ = range(10)
-N_CS = 10
 
 
 @njit(cache=True)
@@ -555,14 +585,21 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hca, hra, hcb, hrb
 def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_step, node_i, node_f, chains,
               face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
               dirich_node, dirich_sched, dirich_face, qd_state, ev_i, ev_f, ev_out,
-              T_out, qf_out, E_out, P_out, hc_out, hr_out):
-    """Integrate from ``t_out[k0-1]`` (or the state time) to ``t_out[k1-1]`` by TR-BDF2.
+              T_out, qf_out, E_out, P_out, hc_out, hr_out, ks, max_steps):
+    """Integrate from the state time towards ``t_out[k1-1]`` by TR-BDF2, at most
+    ``max_steps`` accepted steps per call.
 
     State carried between calls: T [K], cs (control state, cs[CS_H] the next step [s]),
     acc (cumulative energies [J]: per face into the wall, then heater, then loss from the
-    chamber), stats.  Outputs are written at rows k0..k1-1.  Breakpoints ``bp`` (sorted times
-    where forcing jumps or kinks) are landed on exactly; after one where ``bpj`` > 0.5 (a
-    jump in a schedule) the step restarts from the one that followed the previous jump.  Returns the number of outputs written.
+    chamber), stats, and ``ks``, the resume state (layout in :mod:`fdwall.solver.layout`:
+    predictor history and the values at the end of the last step, zeros before the first
+    call, ``resume_size(nun, nf)`` long).  A call stops after ``max_steps`` accepted steps,
+    anywhere inside an output interval; the next call (with ``k0`` = the next output row)
+    continues exactly as if there had been no stop, so the results do not depend on how a run
+    is cut into calls.  Outputs are written at rows k0..k1-1 as the steps pass them.
+    Breakpoints ``bp`` (sorted times where forcing jumps or kinks) are landed on exactly;
+    after one where ``bpj`` > 0.5 (a jump in a schedule) the step restarts from the one that
+    followed the previous jump.  Returns the number of outputs written.
     ``ev_out[e, 0:2]`` gets the first upward / downward crossing time of event e.
     """
     N = node_i.shape[0]
@@ -571,11 +608,18 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     has_ch = ch_i[0] == 1
     F0 = np.empty(nun)
     Fg = np.empty(nun)
-    F1 = np.empty(nun)
-    Cap = np.empty(nun)
+    # values at the end of the last step and the predictor history live in ks (resumable)
+    Tprev = ks[KS_ARRAYS:KS_ARRAYS + nun]
+    F1 = ks[KS_ARRAYS + nun:KS_ARRAYS + 2 * nun]
+    Cap = ks[KS_ARRAYS + 2 * nun:KS_ARRAYS + 3 * nun]
+    H1 = ks[KS_ARRAYS + 3 * nun:KS_ARRAYS + 4 * nun]
+    o = KS_ARRAYS + 4 * nun
+    q1 = ks[o:o + nf]
+    hcw = ks[o + nf:o + 2 * nf]
+    hrw = ks[o + 2 * nf:o + 3 * nf]
+    ex1 = ks[o + 3 * nf:o + 3 * nf + 2]
     H0 = np.empty(nun)
     Hg = np.empty(nun)
-    H1 = np.empty(nun)
     Jd = np.empty(nun)
     Jl = np.empty(nun)
     Ju = np.empty(nun)
@@ -593,14 +637,10 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     C0 = np.empty(nun)
     q0 = np.empty(nf)
     qg = np.empty(nf)
-    q1 = np.empty(nf)
-    hcw = np.empty(nf)
-    hrw = np.empty(nf)
     hc0 = np.empty(nf)
     hr0 = np.empty(nf)
     ex0 = np.zeros(2)
     exg = np.zeros(2)
-    ex1 = np.zeros(2)
     nd = dirich_node.shape[0]
     mode = ctl_i[0]
     period = ctl_f[0]
@@ -611,17 +651,26 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     # [s]: fast start-up layers (a huge film coefficient on a low-capacity face) need tiny steps
     hmin = 1e-14 * max(1.0, t_out[t_out.shape[0] - 1])
     nbp = bp.shape[0]
-    ibp = 0
-    while ibp < nbp and bp[ibp] <= t:
-        ibp += 1
+    if ks[KS_INIT] == 0.0:      # first call of a run
+        ks[KS_INIT] = 1.0
+        ks[KS_HPREV] = 1.0
+        ks[KS_HAVE_PREV] = 0.0
+        ks[KS_REUSE] = 0.0
+        ks[KS_AFTER_JUMP] = 0.0
+        ks[KS_ULAST] = -9.0
+        ibp = 0
+        while ibp < nbp and bp[ibp] <= t:
+            ibp += 1
+        ks[KS_IBP] = ibp
+    ibp = int(ks[KS_IBP])
+    hprev = ks[KS_HPREV]
+    have_prev = ks[KS_HAVE_PREV] > 0.5
+    reuse = ks[KS_REUSE] > 0.5
+    after_jump = ks[KS_AFTER_JUMP] > 0.5
+    u_last = ks[KS_ULAST]
     k = k0
     nev = ev_i.shape[0]
-    Tprev = np.empty(nun)
-    hprev = 1.0
-    have_prev = False
-    reuse = False
-    after_jump = False
-    u_last = -9.0
+    nsteps = 0
     acc_prev = acc.copy()
     qd_b = np.zeros(nd)
     has_ext = np.empty(nf, dtype=np.bool_)
@@ -915,6 +964,16 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
             qd_state[kk] = qd_b[kk]
         for j in range(acc.shape[0]):
             acc_prev[j] = acc[j]
+        # resume state after every accepted step, so that a stop anywhere can be continued
+        ks[KS_IBP] = ibp
+        ks[KS_HPREV] = hprev
+        ks[KS_HAVE_PREV] = 1.0 if have_prev else 0.0
+        ks[KS_REUSE] = 1.0 if reuse else 0.0
+        ks[KS_AFTER_JUMP] = 1.0 if after_jump else 0.0
+        ks[KS_ULAST] = u_last
+        nsteps += 1
+        if nsteps >= max_steps:
+            break
     acc[acc.shape[0] - 1] = t
     stats[ST_T] = t
     return k - k0

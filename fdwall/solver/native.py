@@ -35,7 +35,7 @@ MODULE = "_native"            # extension module name, beside this file
 _PKG = pathlib.Path(__file__).resolve().parent.parent   # the fdwall package folder
 
 # Source files the compiled entry points are made from (relative to the package).
-SOURCES = ("solver/kernels.py", "solver/post.py", "solver/native.py",
+SOURCES = ("solver/kernels.py", "solver/layout.py", "solver/post.py", "solver/native.py",
            "physics/convection.py", "physics/air.py", "physics/radiation.py")
 
 # Argument codes: f float64, i int64, b boolean; F1/F2/F3 float64 and I1/I2 int64 C-ordered
@@ -44,7 +44,7 @@ _SYSTEM = "I2 F2 I2 I2 F2 F2 I1 F2 I1 F2 I1 F1 I1 F1"   # node_i .. ctl_f
 ENTRIES = {
     # name: (module, argument codes, return type)
     "integrate": ("kernels", "F1*5 i i b F1 F1 f f " + _SYSTEM + " I1 I1 I1 F1 I2 F2 F2 F2 F2 F2 "
-                  "F1 F2 F2", "i"),
+                  "F1 F2 F2 F1 i", "i"),
     "assemble": ("kernels", "F1 f f f " + _SYSTEM + " F1*12", "none"),
     "steady": ("kernels", "F1 f f " + _SYSTEM + " I1 I1 F1*4 f i", "(i,f)"),
     "_newton_stage": ("kernels", "F1 F1 f f F1 f I1 I1 " + _SYSTEM + " F1*17 f F1", "b"),

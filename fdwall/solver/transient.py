@@ -1,9 +1,12 @@
-"""Transient runs: TR-BDF2 with error control, driven from Python in output-sized chunks.
+"""Transient runs: TR-BDF2 with error control, driven from Python in chunks of bounded wall time.
 
 The whole time loop (step control, Newton, controller, ledger, events) runs inside the
 compiled kernel :func:`fdwall.solver.kernels.integrate`; this module prepares arrays, calls it
-(in several chunks when a run is long enough to deserve a progress bar), and wraps the output
-in a :class:`fdwall.result.Result`.
+in chunks of at most a step budget (adapted so that a chunk takes about
+:data:`fdwall.solver.observers.CHUNK_SECONDS` of wall time, whatever the output interval),
+calls the run observers between chunks (progress bar, early stop, interrupt check), and wraps
+the output in a :class:`fdwall.result.Result`.  The kernel resumes exactly where it stopped,
+so the numbers do not depend on the chunks.
 """
 from __future__ import annotations
 
@@ -11,13 +14,19 @@ import time as _time
 
 import numpy as np
 
-from ..errors import ConvergenceError
+from ..errors import ConvergenceError, Interrupted
 from ..model import Case
 from ..system import System, build_system
 from . import native as K
+from .layout import KS_ARRAYS, resume_size
+from .observers import CHUNK_SECONDS, ProgressBar, RunProgress, Stop
 
-__all__ = ["run", "output_times", "event_rows", "ConvergenceError"]
+__all__ = ["run", "output_times", "event_rows", "ConvergenceError", "Interrupted"]
 
+FIRST_CHUNK_STEPS = 16
+"""Time steps of the first chunk of a run [-]; later chunks adapt to ``chunk_seconds``."""
+MAX_CHUNK_STEPS = 1 << 30
+"""Upper bound of the steps of one chunk [-] (keeps the budget a C integer)."""
 
 
 def output_times(case: Case) -> np.ndarray:
@@ -73,7 +82,8 @@ def event_rows(system: System, case: Case):
     return ev_i, ev_f
 
 
-def run(case, initial=None, progress=None, strict=True, system=None, control_state=None):
+def run(case, initial=None, progress=None, strict=True, system=None, control_state=None,
+        observers=None, chunk_seconds=CHUNK_SECONDS):
     """Run a transient case.
 
     Parameters
@@ -84,16 +94,27 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
         Initial temperature(s) [K]: overrides ``case.run.initial``; a vector gives one value
         per unknown (e.g. ``result.T[-1]`` of an earlier run).
     progress : bool, optional
-        Show a progress bar; default: only when the run takes longer than about 1.5 s.
+        Show a progress bar; default: only on a terminal when the run takes longer than
+        about 1.5 s.
     strict : bool
         Raise :class:`ConvergenceError` (with the partial result attached) if the solver
-        fails; otherwise return the partial result with ``complete = False``.
+        fails, and :class:`fdwall.errors.Interrupted` (idem) if an observer stops the run;
+        otherwise return the partial result with ``complete = False`` and ``status`` saying
+        why ("not converged", "implausible", "interrupted").
     system : System, optional
         A system already built from ``case`` (saves rebuilding when running variants).
     control_state : ndarray, optional
         ``Result.control_state`` of an earlier run to continue its controller (thermostat
         state, PID integral and last error, time-proportioning cycle), e.g. for repeated
         cycles; times in it count from the end of that run (mixed units: [-], [K], [s]).
+    observers : iterable, optional
+        Run observers (:mod:`fdwall.solver.observers`), called between chunks of about
+        ``chunk_seconds`` of wall time with a :class:`~fdwall.solver.observers.RunProgress`;
+        one that returns a :class:`~fdwall.solver.observers.Stop` ends the run after the
+        current step (the outputs so far plus the state at the stop time are kept).
+    chunk_seconds : float
+        Target wall time of one chunk [s]; 0 makes every chunk one time step.  The results
+        do not depend on it (the time loop resumes exactly where it stopped).
 
     Returns
     -------
@@ -167,26 +188,41 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     ev_i, ev_f = event_rows(sysm, case)
     ev_out = np.full((len(ev_i), 2), np.nan)
     max_step = r.max_step if r.max_step is not None else np.inf
-    args = (t_out, None, None, bool(r.exact_outputs), sysm.breakpoints, sysm.breakpoint_jumps, r.tolerance, max_step, sysm.node_i,
-            sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f, sysm.hpar, sysm.m_off,
-            sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f,
-            sysm.dirich_node, sysm.dirich_sched, sysm.dirich_face, qd_state, ev_i, ev_f, ev_out, T_out,
-            qf_out, E_out, P_out, hc_out, hr_out)
+    ks = np.zeros(resume_size(nun, nf))
+    args = (t_out, 1, n_out, bool(r.exact_outputs), sysm.breakpoints, sysm.breakpoint_jumps,
+            r.tolerance, max_step, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
+            sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
+            sysm.ch_f, sysm.ctl_i, sysm.ctl_f, sysm.dirich_node, sysm.dirich_sched,
+            sysm.dirich_face, qd_state, ev_i, ev_f, ev_out, T_out, qf_out, E_out, P_out, hc_out,
+            hr_out, ks)
+    watchers = list(observers or ())
+    if progress is not False:
+        watchers.insert(0, ProgressBar(show=True if progress else None))
     k = 1
-    bar = None
     t0 = _time.perf_counter()
-    import sys
-    # a bar is shown only on a terminal (or when asked); otherwise one kernel call does all
-    may_show = bool(progress) or (progress is None and sys.stderr.isatty())
-    chunk = 1 if may_show else n_out
     failed = False
     implausible = None
+    stop = None
+    budget = FIRST_CHUNK_STEPS if chunk_seconds > 0 else 1
+    started = []
+
+    def _progress():
+        return RunProgress(case.name, float(acc[-1]), float(r.duration), int(k), int(n_out),
+                           int(stats[K.ST_ACC]), _time.perf_counter() - t0, T.copy())
+
     try:
+        p0 = _progress()
+        for w in watchers:
+            started.append(w)
+            if hasattr(w, "start"):
+                w.start(p0)
         while k < n_out:
-            k1 = min(n_out, k + chunk)
             a = list(args)
-            a[1], a[2] = k, k1
-            done = K.integrate(T, cs, acc, stats, *a)
+            a[1] = k
+            steps0 = stats[K.ST_ACC]
+            c0 = _time.perf_counter()
+            done = K.integrate(T, cs, acc, stats, *a, budget)
+            spent = _time.perf_counter() - c0
             k0 = k
             k += done
             if stats[K.ST_STATUS] != 0:
@@ -201,25 +237,33 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                     arr[bad[0]:] = np.nan
                 stats[K.ST_T] = t_out[bad[0] - 1]
                 break
-            el = _time.perf_counter() - t0
-            frac = t_out[k - 1] / r.duration
-            if bar is None and progress is not False and k < n_out:
-                projected = el / max(frac, 1e-9)
-                import sys
-                if progress or (projected > 1.5 and progress is None and sys.stderr.isatty()):
-                    from tqdm import tqdm
-                    bar = tqdm(total=n_out - 1, unit="out", desc=case.name, leave=False)
-                    bar.update(k - 1)
-                else:
-                    chunk = n_out  # fast run: finish in one call
-            elif bar is not None:
-                bar.update(done)
-            if bar is not None:
-                per = el / max(k - 1, 1)
-                chunk = max(1, int(0.2 / max(per, 1e-9)))
+            if k >= n_out:
+                break
+            # next budget: about chunk_seconds of wall time at the measured cost of a step,
+            # growing at most fourfold per chunk (the first chunk may include compilation)
+            per = spent / max(stats[K.ST_ACC] - steps0, 1.0)
+            budget = int(max(1, min(4 * budget, MAX_CHUNK_STEPS,
+                                    chunk_seconds / max(per, 1e-9))))
+            pr = _progress()
+            for w in watchers:
+                ask = w.update(pr)
+                if ask:
+                    stop = ask if isinstance(ask, Stop) else Stop("stopped by an observer")
+                    break
+            if stop is not None:
+                failed = True
+                break
     finally:
-        if bar is not None:
-            bar.close()
+        for w in started:
+            if hasattr(w, "close"):
+                w.close()
+    if stop is not None:
+        # keep the state at the stop time as a last output row (what an output there would be)
+        t_stop = float(acc[-1])
+        if t_stop > t_out[k - 1]:
+            t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out = _append_stop_row(
+                sysm, k, t_stop, T, ks, acc, qd_state, t_out, T_out, qf_out, E_out, P_out,
+                hc_out, hr_out)
     res = Result.from_run(case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out,
                           stats, ev_out, complete=not failed,
                           wall_time=_time.perf_counter() - t0)
@@ -227,6 +271,14 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     end[K.CS_NEXT] -= stats[K.ST_T]
     end[K.CS_OFF] -= stats[K.ST_T]
     res.control_state = end
+    if stop is not None:
+        res.status = "interrupted"
+        res.message = (f"the run was stopped at t = {stats[K.ST_T]:.6g} s "
+                       f"({stats[K.ST_T] / 3600:.4g} h) of {r.duration:.6g} s: {stop.reason}. "
+                       "Results up to that time are kept and marked incomplete.")
+        if strict:
+            raise Interrupted(res.message, res, stop.signal)
+        return res
     if failed and implausible is not None:
         i_out, peak = implausible
         what = "not finite" if not np.isfinite(peak) else f"{peak:.6g} K"
@@ -237,6 +289,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                "the heater powers, imposed fluxes and radiation/fluid temperatures of the case. "
                "Results before that time are kept and marked incomplete.")
         res.message = msg
+        res.status = "implausible"
         if strict:
             raise ConvergenceError(msg, res)
         return res
@@ -251,6 +304,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                "marked incomplete. Check for unphysical inputs (huge film coefficients or "
                "fluxes, a heater with no path for its heat).")
         res.message = msg
+        res.status = "not converged"
         if strict:
             raise ConvergenceError(msg, res)
     return res
@@ -292,3 +346,29 @@ def _initial_u(sysm, T):
         return 1.0 if y < sp else 0.0
     return 0.0
 
+
+
+def _append_stop_row(sysm, k, t_stop, T, ks, acc, qd_state, t_out, T_out, qf_out, E_out, P_out,
+                     hc_out, hr_out):
+    """Output arrays cut to the ``k`` rows written plus one row at the stop time ``t_stop``
+    [s]: the state at the end of the last step, exactly as an output there would read
+    (temperatures [K], face flows [W], cumulative energies [J], heater power [W], film
+    coefficients [W/m2/K])."""
+    nun, nf = T.size, sysm.face_i.shape[0]
+    o = KS_ARRAYS + 4 * nun
+    q1, hcw, hrw = ks[o:o + nf], ks[o + nf:o + 2 * nf], ks[o + 2 * nf:o + 3 * nf]
+    ex1 = ks[o + 3 * nf:o + 3 * nf + 2]
+    qf = q1.copy()
+    for kk, f in enumerate(sysm.dirich_face):
+        qf[f] = qd_state[kk]
+    rows = (
+        (t_out, t_stop),
+        (T_out, T),
+        (qf_out, qf),
+        (E_out, acc[:nf + 2]),
+        (P_out, ex1[0]),
+        (hc_out, hcw),
+        (hr_out, hrw),
+    )
+    return tuple(np.concatenate([a[:k], np.asarray(v, dtype=float).reshape((1,) + a.shape[1:])])
+                 for a, v in rows)
