@@ -13,6 +13,7 @@ from datetime import datetime, timezone
 import numpy as np
 
 from .provenance import provenance, stamp_h5
+from .solver.layout import EV_DOWN, EV_UP, EX_HEATER, EX_LOSS, FI_NODE
 
 __all__ = ["Result", "read_result"]
 
@@ -108,10 +109,11 @@ class Result:
         }
         evs = {}
         for e, ev in enumerate(case.run.events):
-            evs[ev.name or f"event{e + 1}"] = (float(ev_out[e, 0]), float(ev_out[e, 1]))
+            evs[ev.name or f"event{e + 1}"] = (float(ev_out[e, EV_UP]), float(ev_out[e, EV_DOWN]))
         return cls(case=case, system=sysm, times=t_out[:n].copy(), T=T_out[:n].copy(),
                    face_flow=qf_out[:n].copy(), face_energy=E_out[:n, :nf].copy(),
-                   heater_energy=E_out[:n, nf].copy(), loss_energy=E_out[:n, nf + 1].copy(),
+                   heater_energy=E_out[:n, nf + EX_HEATER].copy(),
+                   loss_energy=E_out[:n, nf + EX_LOSS].copy(),
                    heater_power=P_out[:n].copy(), h_conv=hc_out[:n].copy(),
                    h_rad=hr_out[:n].copy(), stats=st, events=evs, complete=complete,
                    status="complete" if complete else "stopped early",
@@ -133,7 +135,7 @@ class Result:
     @property
     def face_T(self) -> np.ndarray:
         """Temperature of every face (n_time, n_faces) [K]."""
-        return self.T[:, self.system.face_i[:, 0]]
+        return self.T[:, self.system.face_i[:, FI_NODE]]
 
     def wall_T(self, wall: int = 0) -> np.ndarray:
         """Node temperatures of one wall (n_time, n_nodes) [K]."""

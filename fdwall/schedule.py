@@ -13,6 +13,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .errors import InputError
+
 __all__ = ["Schedule"]
 
 
@@ -50,18 +52,18 @@ class Schedule:
                 t = [float(x) for x in np.atleast_1d(np.asarray(t, dtype=float)).ravel()]
                 v = [float(x) for x in np.atleast_1d(np.asarray(v, dtype=float)).ravel()]
             except (TypeError, ValueError):
-                raise ValueError("schedule times and values must be numbers") from None
+                raise InputError("schedule times and values must be numbers") from None
         if not ndim_ok or len(t) != len(v) or not t:
-            raise ValueError("a schedule needs equally many times and values (at least one knot)")
+            raise InputError("a schedule needs equally many times and values (at least one knot)")
         if not all(math.isfinite(x) for x in t + v):
-            raise ValueError("schedule times and values must be finite numbers")
+            raise InputError("schedule times and values must be finite numbers")
         for i in range(len(t) - 1):
             if t[i + 1] < t[i]:
-                raise ValueError(
+                raise InputError(
                     f"schedule times go backwards at knot {i + 2} ({t[i + 1]:g} after {t[i]:g}); "
                     "times must be non-decreasing (repeat a time to make a step)")
             if i + 2 < len(t) and t[i] == t[i + 1] == t[i + 2]:
-                raise ValueError("a schedule may repeat a time at most twice (one step per instant)")
+                raise InputError("a schedule may repeat a time at most twice (one step per instant)")
         object.__setattr__(self, "times", tuple(t))
         object.__setattr__(self, "values", tuple(v))
 

@@ -14,10 +14,69 @@ import numpy as np
 from .mesh import mesh_wall
 from .model import Case, Face, ModelError
 from .schedule import Schedule
+from .solver.layout import (
+    CF_ALPHA,
+    CF_BAND,
+    CF_EVENT_TOL,
+    CF_KD,
+    CF_KI,
+    CF_KP,
+    CF_PERIOD,
+    CF_POWER_FACTOR,
+    CF_SENSOR_W,
+    CF_T_REF,
+    CHAIN_FIRST,
+    CHAIN_LAST,
+    CHF_LEAK,
+    CHF_UA,
+    CHI_AMBIENT,
+    CHI_CAPACITY,
+    CHI_PRESENT,
+    CI_DUTY,
+    CI_ENABLE,
+    CI_HEATER_NODE,
+    CI_MODE,
+    CI_POWER,
+    CI_SENSOR_A,
+    CI_SENSOR_B,
+    CI_SETPOINT,
+    CTL_DUTY_AVERAGED,
+    CTL_DUTY_SWITCHED,
+    CTL_PID_AVERAGED,
+    CTL_PID_SWITCHED,
+    CTL_THERMOSTAT,
+    FF_AREA,
+    FF_H,
+    FI_EMISSIVITY,
+    FI_FIXED_T,
+    FI_FLUID,
+    FI_FLUX,
+    FI_H_MODE,
+    FI_NODE,
+    FI_RADIANT,
+    FI_TO_CHAMBER,
+    H_CORRELATION,
+    H_FIXED,
+    LINK_CONTACT,
+    LINK_NONE,
+    N_CF,
+    N_CHF,
+    N_CHI,
+    N_CI,
+    N_FF,
+    N_FI,
+    N_NF,
+    N_NI,
+    NF_LINK_G,
+    NF_VOL_L,
+    NF_VOL_R,
+    NI_LINK,
+    NI_MAT_L,
+    NI_MAT_R,
+)
 
 __all__ = ["System", "build_system"]
 
-MODE_CODES = {"fixed": 0, "duty": 1, "thermostat": 2, "pid": 3}
 
 
 def _integrated(T, k, c):
@@ -161,12 +220,12 @@ class System:
     @property
     def has_chamber(self) -> bool:
         """True when the system has a chamber node."""
-        return bool(self.ch_i[0])
+        return bool(self.ch_i[CHI_PRESENT])
 
     @property
     def n_unknowns(self) -> int:
         """Number of unknown temperatures (wall nodes plus the chamber) [-]."""
-        return self.n_nodes + int(self.ch_i[0])
+        return self.n_nodes + int(self.ch_i[CHI_PRESENT])
 
     def wall_nodes(self, j: int) -> slice:
         """Global node range of wall ``j``."""
@@ -207,18 +266,18 @@ class System:
         T = np.full(self.n_nodes, 293.15) if T is None else np.asarray(T, float)
         G = np.zeros(self.n_nodes)
         for i in range(self.n_nodes):
-            lm = self.node_i[i, 2]
-            if lm == -2:
+            lm = self.node_i[i, NI_LINK]
+            if lm == LINK_NONE:
                 continue
-            if lm == -1:
-                G[i] = self.node_f[i, 2]
+            if lm == LINK_CONTACT:
+                G[i] = self.node_f[i, NF_LINK_G]
                 continue
             a, b = T[i], T[i + 1]
             if abs(a - b) < 1e-9:
                 k = mat_eval(self.m_off, self.mtab, lm, a)[0]
             else:
                 k = (mat_eval(self.m_off, self.mtab, lm, a)[1] - mat_eval(self.m_off, self.mtab, lm, b)[1]) / (a - b)
-            G[i] = self.node_f[i, 2] * k
+            G[i] = self.node_f[i, NF_LINK_G] * k
         return G
 
     def chamber_ua(self, t: float = 0.0) -> float:
@@ -228,8 +287,8 @@ class System:
         if not self.has_chamber:
             return 0.0
         from .solver import native
-        T_room = native.sched_eval(self.s_off, self.stab, int(self.ch_i[2]), float(t), 0.0)
-        return float(self.ch_f[0] + self.ch_f[1] * native.rho_cp(T_room, 101325.0))
+        T_room = native.sched_eval(self.s_off, self.stab, int(self.ch_i[CHI_AMBIENT]), float(t), 0.0)
+        return float(self.ch_f[CHF_UA] + self.ch_f[CHF_LEAK] * native.rho_cp(T_room, 101325.0))
 
     def capacities(self, T=None) -> np.ndarray:
         """Heat capacity of every unknown [J/K] at temperatures ``T`` [K] (default 293.15 K)."""
@@ -238,12 +297,12 @@ class System:
         T = np.full(n, 293.15) if T is None else np.asarray(T, float)
         C = np.zeros(n)
         for i in range(self.n_nodes):
-            for side in (0, 1):
-                m = self.node_i[i, side]
+            for mcol, vcol in ((NI_MAT_L, NF_VOL_L), (NI_MAT_R, NF_VOL_R)):
+                m = self.node_i[i, mcol]
                 if m >= 0:
-                    C[i] += self.node_f[i, side] * mat_eval(self.m_off, self.mtab, m, T[i])[2]
+                    C[i] += self.node_f[i, vcol] * mat_eval(self.m_off, self.mtab, m, T[i])[2]
         if self.has_chamber:
-            C[-1] = mat_eval(self.m_off, self.mtab, self.ch_i[1], T[-1])[2]
+            C[-1] = mat_eval(self.m_off, self.mtab, self.ch_i[CHI_CAPACITY], T[-1])[2]
         return C
 
     def enthalpy(self, T) -> np.ndarray:
@@ -260,34 +319,35 @@ class System:
 def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_obj, label):
     """Kernel rows for one face."""
     from .physics.convection import PAR_LEN
-    fi = np.full(8, -1, dtype=np.int64)
-    ff = np.zeros(2)
+    fi = np.full(N_FI, -1, dtype=np.int64)
+    ff = np.zeros(N_FF)
     par = np.zeros(PAR_LEN)
-    fi[0] = node
-    ff[0] = area
-    fi[6] = 1 if to_chamber else 0
-    fi[7] = 0
+    fi[FI_NODE] = node
+    ff[FF_AREA] = area
+    fi[FI_TO_CHAMBER] = 1 if to_chamber else 0
+    fi[FI_H_MODE] = H_FIXED
     if face.temperature is not None:
-        fi[1] = tb.schedule(face.temperature)
+        fi[FI_FIXED_T] = tb.schedule(face.temperature)
         return fi, ff, par
-    fi[2] = tb.schedule(face.flux)
+    fi[FI_FLUX] = tb.schedule(face.flux)
     conv = conv_obj if to_chamber else face.convection
     if conv is not None:
         if not to_chamber and face.fluid is None:
             raise ModelError(f"{label}: convection needs a fluid temperature")
         if isinstance(conv, (int, float)):
-            ff[1] = float(conv)
+            ff[FF_H] = float(conv)
         else:
-            fi[7] = 1
+            fi[FI_H_MODE] = H_CORRELATION
             par[:] = conv.to_par()
-    fi[3] = -1 if to_chamber else tb.schedule(face.fluid)
+    fi[FI_FLUID] = -1 if to_chamber else tb.schedule(face.fluid)
     eps = face.emissivity
     if eps is not None:
-        fi[5] = tb.schedule(eps)
+        fi[FI_EMISSIVITY] = tb.schedule(eps)
         if not to_chamber:
             if face.surroundings is None and face.fluid is None:
                 raise ModelError(f"{label}: radiation needs a surroundings (or fluid) temperature")
-            fi[4] = tb.schedule(face.surroundings) if face.surroundings is not None else fi[3]
+            fi[FI_RADIANT] = (tb.schedule(face.surroundings) if face.surroundings is not None
+                              else fi[FI_FLUID])
     return fi, ff, par
 
 
@@ -344,8 +404,8 @@ def build_system(case: Case) -> System:
     meshes = [mesh_wall(w) for w in walls]
     offsets = list(np.cumsum([0] + [m.n for m in meshes])[:-1])
     N = int(sum(m.n for m in meshes))
-    node_i = np.zeros((N, 3), dtype=np.int64)
-    node_f = np.zeros((N, 3))
+    node_i = np.zeros((N, N_NI), dtype=np.int64)
+    node_f = np.zeros((N, N_NF))
     layer_of_half = np.full((N, 2), -1, dtype=np.int64)
     layer_names, layer_wall = [], []
     chains = np.zeros((len(walls), 2), dtype=np.int64)
@@ -359,13 +419,17 @@ def build_system(case: Case) -> System:
         mids_a = np.array(mids, dtype=np.int64)
         sl = slice(o, o + m.n)
         lo, ro, ll = m.layer_of_node_left, m.layer_of_node_right, m.link_layer
-        node_i[sl, 0] = np.where(lo >= 0, mids_a[np.maximum(lo, 0)], -1)
-        node_i[sl, 1] = np.where(ro >= 0, mids_a[np.maximum(ro, 0)], -1)
-        node_i[sl, 2] = np.where(ll >= 0, mids_a[np.maximum(ll, 0)], ll)
-        node_f[sl, 0], node_f[sl, 1], node_f[sl, 2] = m.vol_left, m.vol_right, m.link_g
+        node_i[sl, NI_MAT_L] = np.where(lo >= 0, mids_a[np.maximum(lo, 0)], -1)
+        node_i[sl, NI_MAT_R] = np.where(ro >= 0, mids_a[np.maximum(ro, 0)], -1)
+        # mesh link codes: a layer index, -1 a contact link, -2 none (after the last node)
+        node_i[sl, NI_LINK] = np.where(ll >= 0, mids_a[np.maximum(ll, 0)],
+                                       np.where(ll == -1, LINK_CONTACT, LINK_NONE))
+        node_f[sl, NF_VOL_L] = m.vol_left
+        node_f[sl, NF_VOL_R] = m.vol_right
+        node_f[sl, NF_LINK_G] = m.link_g
         layer_of_half[sl, 0] = np.where(lo >= 0, lid0 + lo, -1)
         layer_of_half[sl, 1] = np.where(ro >= 0, lid0 + ro, -1)
-        chains[j] = (o, o + m.n - 1)
+        chains[j, CHAIN_FIRST], chains[j, CHAIN_LAST] = o, o + m.n - 1
     # faces
     rows_i, rows_f, rows_p, names, external = [], [], [], [], []
     if case.is_enclosure:
@@ -391,63 +455,62 @@ def build_system(case: Case) -> System:
     face_i = np.array(rows_i, dtype=np.int64)
     face_f = np.array(rows_f)
     hpar = np.array(rows_p)
-    dn = [(face_i[f, 0], face_i[f, 1], f) for f in range(len(face_i)) if face_i[f, 1] >= 0]
+    dn = [(face_i[f, FI_NODE], face_i[f, FI_FIXED_T], f) for f in range(len(face_i))
+          if face_i[f, FI_FIXED_T] >= 0]
     dirich_node = np.array([d[0] for d in dn], dtype=np.int64)
     dirich_sched = np.array([d[1] for d in dn], dtype=np.int64)
     dirich_face = np.array([d[2] for d in dn], dtype=np.int64)
     # chamber
-    ch_i = np.zeros(3, dtype=np.int64)
-    ch_f = np.zeros(2)
+    ch_i = np.zeros(N_CHI, dtype=np.int64)
+    ch_f = np.zeros(N_CHF)
     if case.chamber is not None:
         ch = case.chamber
-        ch_i[:] = (1, tb.capacity(ch.capacity), tb.schedule(ch.ambient))
-        ch_f[0] = ch.extra_ua
-        ch_f[1] = ch.leakage
+        ch_i[CHI_PRESENT] = 1
+        ch_i[CHI_CAPACITY] = tb.capacity(ch.capacity)
+        ch_i[CHI_AMBIENT] = tb.schedule(ch.ambient)
+        ch_f[CHF_UA] = ch.extra_ua
+        ch_f[CHF_LEAK] = ch.leakage
     # heater and control
-    ctl_i = np.full(10, -1, dtype=np.int64)
-    ctl_f = np.zeros(10)
+    ctl_i = np.full(N_CI, -1, dtype=np.int64)
+    ctl_f = np.zeros(N_CF)
     ctl = case.control
-    ctl_i[0] = MODE_CODES[ctl.mode]
-    if ctl.mode == "duty" and not ctl.switched:
-        ctl_i[0] = 0
-    if ctl.mode == "pid":
-        ctl_i[0] = 4 if ctl.switched else 3
-    ctl_i[1] = -1
+    ctl_i[CI_MODE] = _mode_code(ctl)
+    ctl_i[CI_HEATER_NODE] = -1
     hz = case.heater
     if hz is not None:
         if hz.location == "chamber":
-            ctl_i[1] = N
+            ctl_i[CI_HEATER_NODE] = N
         else:
             hw = _chain_index(specs, hz.wall, "heater")
             m = meshes[hw]
             if hz.location == "inner":
-                ctl_i[1] = offsets[hw]
+                ctl_i[CI_HEATER_NODE] = offsets[hw]
             else:
                 if not 0 <= hz.interface < len(m.interface_nodes):
                     raise ModelError(f"heater interface {hz.interface} does not exist in wall "
                                      f"'{walls[hw].name}' (0..{len(m.interface_nodes) - 1})")
-                ctl_i[1] = offsets[hw] + m.interface_nodes[hz.interface]
-        ctl_i[4] = tb.schedule(hz.power)
-        ctl_f[6] = hz.alpha
-        ctl_f[7] = hz.t_ref
-        ctl_f[8] = hz.voltage_ratio ** 2
-    ctl_i[5] = tb.schedule(ctl.duty)
-    ctl_i[6] = tb.schedule(ctl.setpoint) if ctl.setpoint is not None else tb.schedule(0.0)
-    ctl_i[7] = tb.schedule(ctl.enable)
+                ctl_i[CI_HEATER_NODE] = offsets[hw] + m.interface_nodes[hz.interface]
+        ctl_i[CI_POWER] = tb.schedule(hz.power)
+        ctl_f[CF_ALPHA] = hz.alpha
+        ctl_f[CF_T_REF] = hz.t_ref
+        ctl_f[CF_POWER_FACTOR] = hz.voltage_ratio ** 2
+    ctl_i[CI_DUTY] = tb.schedule(ctl.duty)
+    ctl_i[CI_SETPOINT] = tb.schedule(ctl.setpoint) if ctl.setpoint is not None else tb.schedule(0.0)
+    ctl_i[CI_ENABLE] = tb.schedule(ctl.enable)
     if ctl.sensor == "chamber" and case.chamber is not None:
-        ctl_i[2] = ctl_i[3] = N
-        ctl_f[5] = 1.0
+        ctl_i[CI_SENSOR_A] = ctl_i[CI_SENSOR_B] = N
+        ctl_f[CF_SENSOR_W] = 1.0
     elif hz is None or ctl.mode not in ("thermostat", "pid"):
-        ctl_i[2] = ctl_i[3] = 0          # no sensor is read
-        ctl_f[5] = 1.0
+        ctl_i[CI_SENSOR_A] = ctl_i[CI_SENSOR_B] = 0          # no sensor is read
+        ctl_f[CF_SENSOR_W] = 1.0
     else:
         j = _chain_index(specs, ctl.sensor_wall, "sensor")
         a, b, wgt = locate_depth(walls[j], meshes[j], ctl.sensor_depth)
-        ctl_i[2], ctl_i[3], ctl_f[5] = offsets[j] + a, offsets[j] + b, wgt
-    ctl_f[0] = ctl.period
-    ctl_f[1] = ctl.band
-    ctl_f[2], ctl_f[3], ctl_f[4] = ctl.kp, ctl.ki, ctl.kd
-    ctl_f[9] = min(0.02, max(1e-3, 0.02 * ctl.band))
+        ctl_i[CI_SENSOR_A], ctl_i[CI_SENSOR_B], ctl_f[CF_SENSOR_W] = offsets[j] + a, offsets[j] + b, wgt
+    ctl_f[CF_PERIOD] = ctl.period
+    ctl_f[CF_BAND] = ctl.band
+    ctl_f[CF_KP], ctl_f[CF_KI], ctl_f[CF_KD] = ctl.kp, ctl.ki, ctl.kd
+    ctl_f[CF_EVENT_TOL] = min(0.02, max(1e-3, 0.02 * ctl.band))
     # breakpoints: every knot of every time schedule
     bps, jumps = set(), set()
     for s in _time_schedules(case):
@@ -468,6 +531,19 @@ def build_system(case: Case) -> System:
                   layer_names=layer_names, layer_wall=layer_wall, walls=walls,
                   wall_origin=[sp[1] for sp in specs], is_bridge=[sp[3] for sp in specs],
                   area_factor=box_area_factor(case))
+
+
+def _mode_code(ctl) -> int:
+    """Kernel controller code (a ``CTL_*`` of :mod:`fdwall.solver.layout`) of a Control."""
+    if ctl.mode == "fixed":
+        return CTL_DUTY_AVERAGED
+    if ctl.mode == "duty":
+        return CTL_DUTY_SWITCHED if ctl.switched else CTL_DUTY_AVERAGED
+    if ctl.mode == "thermostat":
+        return CTL_THERMOSTAT
+    if ctl.mode == "pid":
+        return CTL_PID_SWITCHED if ctl.switched else CTL_PID_AVERAGED
+    raise ModelError(f"unknown control mode {ctl.mode!r} (fixed, duty, thermostat, pid)")
 
 
 def _chain_index(specs, case_wall, what):

@@ -31,6 +31,7 @@ from dataclasses import replace
 import numpy as np
 
 from ..model import Case, Control, ModelError
+from ..solver.layout import CF_POWER_FACTOR
 
 __all__ = [
     "warm_up_time", "settle_time", "hold_duty", "switch_on_times", "full_power_energy",
@@ -800,7 +801,7 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
                 "target_K": target, "warm_up_s": 0.0, "bracket_W": (0.0, 0.0), "trials": [],
                 "n_trials": 0, "result": None}
     P_ref = _rated_max(case.heater)
-    f_ref = float(sysm.ctl_f[8])
+    f_ref = float(sysm.ctl_f[CF_POWER_FACTOR])
     trials, runs = [], {}
 
     def trial(P):
@@ -808,10 +809,10 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
             raise ModelError(f"size_heater: no answer within {max_trials} trial runs for case "
                              f"'{case.name}' (bracket so far {lo:.6g} to {hi:.6g} W)")
         c = replace(base, heater=_with_power(case.heater, P))
-        # same arrays, heater power factor rescaled (kernel layout: ctl_f[8] multiplies the
-        # rated-power schedule)
+        # same arrays, heater power factor rescaled (kernel layout: ctl_f[CF_POWER_FACTOR]
+        # multiplies the rated-power schedule)
         f = sysm.ctl_f.copy()
-        f[8] = f_ref * (P / P_ref if P_ref > 0 else P)
+        f[CF_POWER_FACTOR] = f_ref * (P / P_ref if P_ref > 0 else P)
         s = replace(sysm, case=c, ctl_f=f)
         if P_ref <= 0:
             s = build_system(c)

@@ -28,6 +28,7 @@ import math
 import numpy as np
 
 from fdwall.errors import InputError
+from fdwall.solver.layout import FI_FIXED_T, FI_FLUID, FI_NODE, system_args
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
            "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
@@ -195,15 +196,15 @@ def implied_rc(case, t=None) -> dict:
     else:
         T_hot = float(st.face_T[0])
         Q = float(st.face_flow[0])
-        f = sysm.face_i[1]
-        s = f[1] if f[1] >= 0 else f[3]
+        outer = sysm.face_i[1]     # face 1: the outer face of the single wall
+        s = outer[FI_FIXED_T] if outer[FI_FIXED_T] >= 0 else outer[FI_FLUID]
         if s < 0:
-            raise ValueError("the lumped R/C needs an ambient: a fixed_temperature or a "
+            raise InputError("the lumped R/C needs an ambient: a fixed_temperature or a "
                              "fluid_temperature at the outer face, and this case has neither. "
                              "Give the outer face one of them.")
         T_amb = float(sched_eval(sysm.s_off, sysm.stab, s, tt, 0.0))
     if abs(Q) <= 0.0 or abs(T_hot - T_amb) < 1e-9:
-        raise ValueError("the lumped R/C needs a steady state with heat flowing: the heater "
+        raise InputError("the lumped R/C needs a steady state with heat flowing: the heater "
                          "or the inner face must drive the wall above ambient at the time "
                          "the steady state is taken (run.steady_at or the end of the run).")
     R = (T_hot - T_amb) / Q
@@ -305,10 +306,8 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
     nf = sys_.face_i.shape[0]
     qf, hc, hr = np.zeros(nf), np.zeros(nf), np.zeros(nf)
     extra = np.zeros(4)
-    kernels.assemble(T, tt, 0.0, 0.0, sys_.node_i, sys_.node_f, sys_.chains, sys_.face_i,
-                     sys_.face_f, sys_.hpar, sys_.m_off, sys_.mtab, sys_.s_off, sys_.stab,
-                     sys_.ch_i, sys_.ch_f, sys_.ctl_i, sys_.ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,
-                     Jrow, qf, hc, hr, extra)
+    kernels.assemble(T, tt, 0.0, 0.0, *system_args(sys_), F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf,
+                     hc, hr, extra)
     N = sys_.n_nodes
     J = np.diag(Jd.copy())
     for i in range(1, N):
@@ -333,7 +332,7 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
     # there is one, otherwise the inner-face node of the first wall.  With Z(s) = e^T (G + s C)^-1 e,
     # R = Z(0) = e^T G^-1 e and the first moment tau_1 = int (1 - T(t)/T(inf)) dt = -Z'(0)/Z(0)
     # = (G^-1 e)^T C (G^-1 e) / R; C_eff = tau_1 / R is the one-node C with that first moment.
-    heated = nun - 1 if sys_.has_chamber else int(sys_.face_i[0, 0])
+    heated = nun - 1 if sys_.has_chamber else int(sys_.face_i[0, FI_NODE])
     if heated in keep:
         e = (keep == heated).astype(float)
         x = np.linalg.solve(G, e)

@@ -23,6 +23,7 @@ except ModuleNotFoundError:  # pragma: no cover - Python 3.10
     import tomli as _toml
 
 from .. import units as U
+from ..errors import InputError
 from ..materials import MaterialError, get_material, list_materials, material_from_dict
 from ..model import (
     Bridge,
@@ -34,7 +35,6 @@ from ..model import (
     Face,
     Heater,
     Layer,
-    ModelError,
     RunSettings,
     Wall,
 )
@@ -156,7 +156,7 @@ def _model(file, key, what="this part of the case"):
         yield
     except CaseError:
         raise
-    except (ModelError, MaterialError, ValueError) as exc:
+    except InputError as exc:  # ModelError and MaterialError too; a bare ValueError is a bug
         raise CaseError(f"{what} is not valid: {exc}", file=file, key=key) from None
 
 
@@ -700,7 +700,7 @@ class _Loader:
             from ..physics.radiation import get_finish
             try:
                 fin = get_finish(v)
-            except ValueError as exc:
+            except InputError as exc:
                 raise CaseError(str(exc).rstrip("."), file=self.file, key=k,
                                 allowed=allowed) from None
             if fin.T_K:

@@ -24,6 +24,9 @@ import importlib
 import os
 import sys
 
+from ..errors import InputError as LibInputError
+from ..errors import InternalError as LibInternalError
+from ..errors import Interrupted, OutputError, SolverError
 from .common import (
     EXIT_INPUT,
     EXIT_INTERRUPTED,
@@ -97,12 +100,21 @@ def main(argv=None) -> int:
         return code if isinstance(code, int) else (0 if code is None else EXIT_INPUT)
     try:
         return args.func(args)
-    except InputError as exc:
+    except LibInputError as exc:  # the commands' own InputError derives from it
         _error(str(exc))
         return EXIT_INPUT
-    except Failure as exc:
+    except LibInternalError as exc:  # a failure fdwall detected in itself: a bug
+        _error(_internal(exc, args))
+        return EXIT_WRITE
+    except (Failure, OutputError) as exc:
         _error(str(exc))
         return EXIT_WRITE
+    except SolverError as exc:
+        _error(str(exc))
+        return EXIT_NOT_CONVERGED
+    except Interrupted as exc:
+        _error(f"interrupted: {exc}")
+        return EXIT_TERMINATED if exc.signal == 15 else EXIT_INTERRUPTED
     except KeyboardInterrupt:
         print("fdwall: interrupted", file=sys.stderr)
         return EXIT_INTERRUPTED

@@ -82,14 +82,18 @@ def _names_file(msg: str, path) -> str:
 # --------------------------------------------------------------------------- loading
 
 def _input_errors():
-    """Exception types that mean bad input (not a bug) while a case is read and built."""
+    """Exception types that mean bad input (not a bug) while a case is read and built.
+
+    fdwall's own :class:`fdwall.errors.InputError` (with CaseError, MaterialError and
+    ModelError below it), broken TOML and unit-library errors; a bare ``ValueError`` is not
+    among them: raised from inside fdwall it is a bug, reported as an internal failure."""
     from ..materials import MaterialError
     from ..model import ModelError
     try:
         import tomllib
     except ModuleNotFoundError:  # pragma: no cover - Python 3.10
         import tomli as tomllib
-    types = [MaterialError, ModelError, tomllib.TOMLDecodeError, ValueError]
+    types = [_LibInputError, MaterialError, ModelError, tomllib.TOMLDecodeError]
     try:
         from ..case import CaseError
         types.insert(0, CaseError)

@@ -4,6 +4,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
+from ..errors import InternalError
 from . import common
 from .common import (
     EXIT_NOT_CONVERGED,
@@ -129,6 +130,8 @@ def cmd_steady(args) -> int:
         st = solve_steady(case, system=system)
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), args.case)) from None
+    except InternalError:
+        raise  # a bug: reported as such by the entry point, never as "no steady state"
     except (RuntimeError, ArithmeticError) as exc:
         _error(f"no steady state found for '{args.case}': {exc}")
         return EXIT_NOT_CONVERGED

@@ -33,6 +33,8 @@ import math
 
 from numba import njit
 
+from fdwall.errors import InputError
+
 #: Molar mass of dry air [kg/mol] (Lemmon & Jacobsen 2004 mixture).
 M_AIR = 28.9586e-3
 #: Molar gas constant [J/mol/K] (CODATA 2018).
@@ -330,7 +332,7 @@ def pressure_at_altitude(altitude):
     """
     z = float(altitude)
     if not math.isfinite(z) or z < -500.0 or z > 11000.0:
-        raise ValueError(
+        raise InputError(
             f"altitude = {altitude!r} m is outside the standard-atmosphere troposphere "
             "formula; give an altitude from -500 m to 11000 m above sea level [m], or give "
             "the pressure [Pa] directly."

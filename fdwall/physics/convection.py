@@ -84,6 +84,7 @@ from functools import cached_property
 import numpy as np
 from numba import njit
 
+from fdwall.errors import InputError
 from fdwall.physics.air import (
     P_ATM,
     film_properties,
@@ -523,7 +524,7 @@ _WHERE = ("outside", "chamber")
 
 def _resolve_pressure(pressure, altitude, who):
     if pressure is not None and altitude is not None:
-        raise ValueError(
+        raise InputError(
             f"{who}: both pressure = {pressure!r} Pa and altitude = {altitude!r} m were "
             "given; give one of them (pressure [Pa] or altitude above sea level [m])."
         )
@@ -531,7 +532,7 @@ def _resolve_pressure(pressure, altitude, who):
         try:
             return pressure_at_altitude(altitude)
         except ValueError as exc:
-            raise ValueError(f"{who}: {exc}") from None
+            raise InputError(f"{who}: {exc}") from None
     return P_ATM if pressure is None else pressure
 
 
@@ -539,12 +540,12 @@ def _check_positive(who, name, value, unit):
     try:
         v = float(value)
     except (TypeError, ValueError):
-        raise ValueError(
+        raise InputError(
             f"{who}: {name} = {value!r} is not a number; give a positive length/value in "
             f"[{unit}]."
         ) from None
     if not math.isfinite(v) or v <= 0.0:
-        raise ValueError(
+        raise InputError(
             f"{who}: {name} = {value!r} {unit} is not allowed; it must be a finite number "
             f"> 0 [{unit}]."
         )
@@ -618,20 +619,20 @@ class Convection:
     def __post_init__(self):
         who = f"Convection({self.kind!r})"
         if self.kind not in _KINDS:
-            raise ValueError(
+            raise InputError(
                 f"Convection: unknown kind {self.kind!r}; allowed kinds are "
                 f"{', '.join(_KINDS)}."
             )
         setf = lambda name, v: object.__setattr__(self, name, v)  # noqa: E731
         setf("pressure", _check_positive(who, "pressure", self.pressure, "Pa"))
         if not (1.0e3 <= self.pressure <= 1.0e7):
-            raise ValueError(
+            raise InputError(
                 f"{who}: pressure = {self.pressure!r} Pa is outside 1e3 .. 1e7 Pa; give the "
                 "absolute air pressure in pascal [Pa] (101325 Pa at sea level)."
             )
         setf("multiplier", _check_positive(who, "multiplier", self.multiplier, "-"))
         if self.where not in _WHERE:
-            raise ValueError(
+            raise InputError(
                 f"{who}: where = {self.where!r} is not known; allowed: {', '.join(_WHERE)}."
             )
         k = self.kind
@@ -639,12 +640,12 @@ class Convection:
             try:
                 hf = float(self.h_fixed)
             except (TypeError, ValueError):
-                raise ValueError(
+                raise InputError(
                     f"{who}: h = {self.h_fixed!r} is not a number; give the film "
                     "coefficient in [W/m2/K], >= 0."
                 ) from None
             if not math.isfinite(hf) or hf < 0.0:
-                raise ValueError(
+                raise InputError(
                     f"{who}: h = {self.h_fixed!r} W/m2/K is not allowed; the film "
                     "coefficient must be a finite number >= 0 [W/m2/K]."
                 )
@@ -658,7 +659,7 @@ class Convection:
         if k == "wind_plate":
             setf("length", _check_positive(who, "length", self.length, "m"))
         if k == "horizontal_plate" and self.facing not in _FACINGS:
-            raise ValueError(
+            raise InputError(
                 f"{who}: facing = {self.facing!r} is not a known orientation; a horizontal "
                 "plate faces 'up' (its outward normal points up) or 'down'."
             )
@@ -668,7 +669,7 @@ class Convection:
             except (TypeError, ValueError):
                 t = float("nan")
             if not math.isfinite(t) or t < 0.0 or t > 180.0:
-                raise ValueError(
+                raise InputError(
                     f"{who}: tilt_deg = {self.tilt_deg!r} is not allowed; give the angle "
                     "between the face's outward normal and the upward vertical, 0 .. 180 "
                     "[deg] (0 = horizontal facing up, 90 = vertical, 180 = facing down)."
@@ -680,12 +681,12 @@ class Convection:
             except (TypeError, ValueError):
                 v = float("nan")
             if not math.isfinite(v) or v < 0.0:
-                raise ValueError(
+                raise InputError(
                     f"{who}: wind speed = {self.speed!r} m/s is not allowed; the speed must "
                     "be a finite number >= 0 [m/s]."
                 )
             if v == 0.0 and self.natural is None and k == "wind_plate":
-                raise ValueError(
+                raise InputError(
                     f"{who}: wind speed is 0 m/s and no natural part is given, so the face "
                     "would get h = 0; give a speed > 0 [m/s], add with_natural=..., or "
                     "use a natural-convection constructor."
@@ -696,7 +697,7 @@ class Convection:
             except (TypeError, ValueError):
                 rc = float("nan")
             if not math.isfinite(rc) or rc < 0.0 or rc > 1.0e7:
-                raise ValueError(
+                raise InputError(
                     f"{who}: re_transition = {self.re_transition!r} is not allowed; give the "
                     "transition Reynolds number, 0 .. 1e7 [-] (5e5 usual, 0 = turbulent "
                     "from the leading edge)."
@@ -704,14 +705,14 @@ class Convection:
             setf("re_transition", rc)
             if self.natural is not None:
                 if not isinstance(self.natural, Convection) or self.natural.kind not in _NATURAL_KINDS:
-                    raise ValueError(
+                    raise InputError(
                         f"{who}: the natural part must be a natural-convection Convection "
                         f"(one of {', '.join(_NATURAL_KINDS)}), got {self.natural!r}."
                     )
                 if self.natural.pressure != self.pressure:
                     setf("natural", dataclasses.replace(self.natural, pressure=self.pressure))
         elif self.natural is not None:
-            raise ValueError(
+            raise InputError(
                 f"{who}: a natural part (with_natural) only combines with the wind kinds "
                 f"{', '.join(_FORCED_KINDS)}."
             )
@@ -942,14 +943,14 @@ class Convection:
         """
         faces = ("wall", "ceiling", "floor")
         if face not in faces:
-            raise ValueError(
+            raise InputError(
                 f"Convection.chamber: face = {face!r} is not a known orientation; allowed: "
                 f"{', '.join(faces)}."
             )
         if h is not None:
             return cls("fixed", h_fixed=h, where="chamber")
         if size is None:
-            raise ValueError(
+            raise InputError(
                 "Convection.chamber: give either the film coefficient h [W/m2/K] or the size "
                 "of the face [m] (height of a wall, A/P of ceiling or floor)."
             )
@@ -969,7 +970,7 @@ class Convection:
             return default()
         if isinstance(with_natural, Convection):
             return with_natural
-        raise ValueError(
+        raise InputError(
             f"with_natural = {with_natural!r} is not allowed; give False, True or a "
             "natural-convection Convection."
         )

@@ -25,6 +25,8 @@ from pathlib import Path
 import numpy as np
 from numba import njit
 
+from fdwall.errors import InputError
+
 __all__ = [
     "SIGMA",
     "h_rad_kernel",
@@ -89,9 +91,9 @@ def h_radiative(eps, Ts, Trad):
     ts = np.asarray(Ts, dtype=float)
     tr = np.asarray(Trad, dtype=float)
     if np.any(~np.isfinite(e)) or np.any((e < 0.0) | (e > 1.0)):
-        raise ValueError(f"h_radiative: emissivity {eps!r} is not allowed; it must be within 0 .. 1 [-].")
+        raise InputError(f"h_radiative: emissivity {eps!r} is not allowed; it must be within 0 .. 1 [-].")
     if np.any(~(ts > 0.0)) or np.any(~(tr > 0.0)):
-        raise ValueError(
+        raise InputError(
             f"h_radiative: temperatures must be absolute and > 0 [K]; got Ts = {Ts!r}, Trad = {Trad!r}."
         )
     h = e * SIGMA * (ts * ts + tr * tr) * (ts + tr)
@@ -121,9 +123,9 @@ def grey_exchange_emissivity(eps1, eps2=1.0, area_ratio=0.0):
     """
     for name, v in (("eps1", eps1), ("eps2", eps2)):
         if not (isinstance(v, (int, float)) and 0.0 < v <= 1.0):
-            raise ValueError(f"grey_exchange_emissivity: {name} = {v!r} must be within (0, 1] [-].")
+            raise InputError(f"grey_exchange_emissivity: {name} = {v!r} must be within (0, 1] [-].")
     if not (isinstance(area_ratio, (int, float)) and 0.0 <= area_ratio <= 1.0):
-        raise ValueError(
+        raise InputError(
             f"grey_exchange_emissivity: area_ratio = {area_ratio!r} must be A1/A2 within 0 .. 1 [-] "
             "(the enclosed surface is the smaller one)."
         )
@@ -201,7 +203,7 @@ class Finish:
 
 
 def _bad(path, key, msg):
-    return ValueError(f"{path}: entry [{key}] {msg}")
+    return InputError(f"{path}: entry [{key}] {msg}")
 
 
 @lru_cache(maxsize=4)
@@ -211,7 +213,7 @@ def _load(path_str):
         with open(path, "rb") as fh:
             raw = tomllib.load(fh)
     except tomllib.TOMLDecodeError as exc:
-        raise ValueError(f"{path}: not valid TOML ({exc}).") from None
+        raise InputError(f"{path}: not valid TOML ({exc}).") from None
     out = {}
     for key, d in raw.items():
         if not isinstance(d, dict):
@@ -276,7 +278,7 @@ def get_finish(name):
     if not near:
         near = [k for k in lib if any(part and part in k for part in key.split("_"))][:3]
     hint = f" Did you mean: {', '.join(near)}?" if near else ""
-    raise ValueError(
+    raise InputError(
         f"unknown surface finish {name!r} in the emissivity library ({_FINISHES_FILE.name}).{hint} "
         f"Known finishes: {', '.join(sorted(lib))}. Or give the emissivity as a number in 0 .. 1."
     )

@@ -6,6 +6,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..errors import InputError
+
 __all__ = ["display", "UNIT_SYSTEMS"]
 
 UNIT_SYSTEMS = ("si", "us")
@@ -60,7 +62,7 @@ def display(values, unit: str, system: str = "si", key: str = ""):
             return arr * 1.8, "degF (difference)"
         return arr, "K"
     if system not in UNIT_SYSTEMS:
-        raise ValueError(f"display units must be one of {UNIT_SYSTEMS}, not {system!r}")
+        raise InputError(f"display units must be one of {UNIT_SYSTEMS}, not {system!r}")
     arr = np.asarray(values, dtype=float)
     if not unit:
         return arr, ""

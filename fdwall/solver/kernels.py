@@ -7,27 +7,13 @@ coupled to one lumped *chamber* node, the last unknown.  Its Jacobian is tridiag
 chain plus a border (the chamber row and column): an arrow matrix, solved by eliminating each
 chain and then the chamber equation, at a cost linear in the node count.
 
-Array layouts (built by :mod:`fdwall.system`)
----------------------------------------------
-node_i[N, 3] int   : left-half material, right-half material, link material (-1 contact,
-                     -2 no link: last node of a chain)
-node_f[N, 3] float : left-half volume [m3], right-half volume [m3], link geometry factor [m]
-                     (or contact conductance [W/K])
-chains[nc, 2] int  : first and last node of each chain
-face_i[nf, 8] int  : node, dirichlet sched, flux sched, fluid sched, radiant-temperature sched,
-                     emissivity table (sched over T), to-chamber flag, h mode (0 fixed, 1 corr.)
-face_f[nf, 2] float: area [m2], fixed film coefficient [W/m2/K]
-hpar[nf, P] float  : correlation parameters for fdwall.physics.convection.h_conv
-m_off[nm+1], mtab[5, :] : material tables, rows T [K], k [W/m/K], K=int k dT [W/m],
-                     c = rho*cp [J/m3/K], H = int c dT [J/m3]
-s_off[ns+1], stab[2, :] : schedules, rows time [s] (or T [K]) and value
-ch_i[3] int        : has chamber, capacity material (volume 1), ambient sched
-ch_f[2] float      : extra conductance to ambient [W/K], leakage air flow at room conditions
-                     [m3/s] (its heat-capacity flow rho*cp is taken at the room temperature)
-ctl_i[10] int      : mode, heater node (-1 none), sensor a, sensor b, rated-power sched,
-                     duty sched, setpoint sched, enable sched
-ctl_f[10] float    : period [s], band [K], kp, ki, kd, sensor weight on a, alpha [1/K],
-                     t_ref [K], power factor (voltage ratio squared), event tol [K]
+Array layouts
+-------------
+Every row and column of the arrays (node_i, node_f, chains, face_i, face_f, mtab, stab, ch_i,
+ch_f, ctl_i, ctl_f, the events, the ledger, the state and statistics vectors) has a name in
+:mod:`fdwall.solver.layout`, which documents them with their units; nothing indexes them by
+number.  :mod:`fdwall.system` builds them; :func:`fdwall.solver.layout.system_args` puts the
+system arrays in the kernels' argument order.
 """
 from __future__ import annotations
 
@@ -38,7 +24,32 @@ from ..physics.air import P_ATM, rho_cp
 from ..physics.convection import h_conv
 
 # stats, control-state and resume-state layouts (named indices: see fdwall.solver.layout)
-from .layout import (  # noqa: F401  (re-exported for fdwall.solver.native)
+from .layout import (  # noqa: F401  re-exported for fdwall.solver.native
+    CF_ALPHA,
+    CF_BAND,
+    CF_EVENT_TOL,
+    CF_KD,
+    CF_KI,
+    CF_KP,
+    CF_PERIOD,
+    CF_POWER_FACTOR,
+    CF_SENSOR_W,
+    CF_T_REF,
+    CHAIN_FIRST,
+    CHAIN_LAST,
+    CHF_LEAK,
+    CHF_UA,
+    CHI_AMBIENT,
+    CHI_CAPACITY,
+    CHI_PRESENT,
+    CI_DUTY,
+    CI_ENABLE,
+    CI_HEATER_NODE,
+    CI_MODE,
+    CI_POWER,
+    CI_SENSOR_A,
+    CI_SENSOR_B,
+    CI_SETPOINT,
     CS_H,
     CS_HJ,
     CS_HSW,
@@ -49,6 +60,29 @@ from .layout import (  # noqa: F401  (re-exported for fdwall.solver.native)
     CS_PREV,
     CS_U,
     CS_UPREV,
+    CTL_DUTY_SWITCHED,
+    CTL_PID_AVERAGED,
+    CTL_PID_SWITCHED,
+    CTL_THERMOSTAT,
+    EV_DOWN,
+    EV_NODE_A,
+    EV_NODE_B,
+    EV_THRESHOLD,
+    EV_UP,
+    EV_WEIGHT,
+    EX_HEATER,
+    EX_LOSS,
+    FF_AREA,
+    FF_H,
+    FI_EMISSIVITY,
+    FI_FIXED_T,
+    FI_FLUID,
+    FI_FLUX,
+    FI_H_MODE,
+    FI_NODE,
+    FI_RADIANT,
+    FI_TO_CHAMBER,
+    H_FIXED,
     KS_AFTER_JUMP,
     KS_ARRAYS,
     KS_HAVE_PREV,
@@ -57,8 +91,23 @@ from .layout import (  # noqa: F401  (re-exported for fdwall.solver.native)
     KS_INIT,
     KS_REUSE,
     KS_ULAST,
+    LINK_CONTACT,
+    LINK_NONE,
+    MT_C,
+    MT_H,
+    MT_K,
+    MT_KINT,
+    MT_T,
     N_CS,
     N_STATS,
+    NF_LINK_G,
+    NF_VOL_L,
+    NF_VOL_R,
+    NI_LINK,
+    NI_MAT_L,
+    NI_MAT_R,
+    SC_VALUE,
+    SC_X,
     ST_ACC,
     ST_ASSEMBLE,
     ST_COLD,
@@ -93,8 +142,8 @@ def sched_eval(s_off, stab, idx, t, left):
     """Value of schedule ``idx`` at ``t``; ``left`` gives the value just before a step."""
     a = s_off[idx]
     b = s_off[idx + 1]
-    tt = stab[0]
-    vv = stab[1]
+    tt = stab[SC_X]
+    vv = stab[SC_VALUE]
     if b - a == 1:
         return vv[a]
     # last knot i with tt[i] <= t (right) or tt[i] < t (left)
@@ -124,8 +173,8 @@ def sched_eval_slope(s_off, stab, idx, x):
     """Value and slope d(value)/dx of a table (e.g. emissivity against T) at ``x``."""
     a = s_off[idx]
     b = s_off[idx + 1]
-    tt = stab[0]
-    vv = stab[1]
+    tt = stab[SC_X]
+    vv = stab[SC_VALUE]
     if b - a == 1 or x <= tt[a]:
         return vv[a], 0.0
     if x >= tt[b - 1]:
@@ -153,17 +202,17 @@ def mat_eval(m_off, mtab, m, T):
     """
     a = m_off[m]
     b = m_off[m + 1]
-    Tt = mtab[0]
+    Tt = mtab[MT_T]
     if T <= Tt[a]:
-        k = mtab[1, a]
-        c = mtab[3, a]
+        k = mtab[MT_K, a]
+        c = mtab[MT_C, a]
         d = T - Tt[a]
-        return k, mtab[2, a] + k * d, c, mtab[4, a] + c * d
+        return k, mtab[MT_KINT, a] + k * d, c, mtab[MT_H, a] + c * d
     if T >= Tt[b - 1]:
-        k = mtab[1, b - 1]
-        c = mtab[3, b - 1]
+        k = mtab[MT_K, b - 1]
+        c = mtab[MT_C, b - 1]
         d = T - Tt[b - 1]
-        return k, mtab[2, b - 1] + k * d, c, mtab[4, b - 1] + c * d
+        return k, mtab[MT_KINT, b - 1] + k * d, c, mtab[MT_H, b - 1] + c * d
     lo = a
     hi = b - 1
     while hi - lo > 1:
@@ -174,18 +223,18 @@ def mat_eval(m_off, mtab, m, T):
             hi = mid
     d = T - Tt[lo]
     w = d / (Tt[lo + 1] - Tt[lo])
-    k0 = mtab[1, lo]
-    c0 = mtab[3, lo]
-    k = k0 + w * (mtab[1, lo + 1] - k0)
-    c = c0 + w * (mtab[3, lo + 1] - c0)
-    return k, mtab[2, lo] + 0.5 * d * (k0 + k), c, mtab[4, lo] + 0.5 * d * (c0 + c)
+    k0 = mtab[MT_K, lo]
+    c0 = mtab[MT_C, lo]
+    k = k0 + w * (mtab[MT_K, lo + 1] - k0)
+    c = c0 + w * (mtab[MT_C, lo + 1] - c0)
+    return k, mtab[MT_KINT, lo] + 0.5 * d * (k0 + k), c, mtab[MT_H, lo] + 0.5 * d * (c0 + c)
 
 
 @njit(cache=True)
 def face_h(face_i, face_f, hpar, f, Ts, Tf):
     """Convective film coefficient [W/m2/K] of face ``f`` and its derivatives d/dTs, d/dTf."""
-    if face_i[f, 7] == 0:
-        return face_f[f, 1], 0.0, 0.0
+    if face_i[f, FI_H_MODE] == H_FIXED:
+        return face_f[f, FF_H], 0.0, 0.0
     p = hpar[f]
     h = h_conv(p, Ts, Tf)
     dT = 1e-3
@@ -209,7 +258,7 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
     the face term), Cap dH/dT [J/K], H enthalpy [J], Jacobian dF/dT as diagonal Jd, sub Jl,
     super Ju, chamber column Jcol and row Jrow [W/K], qf heat into the wall at each face [W],
     hc/hr convective and linearised radiative film coefficients [W/m2/K],
-    extra[0] heater power [W], extra[1] loss to ambient from the chamber [W].
+    extra[EX_HEATER] heater power [W], extra[EX_LOSS] loss to ambient from the chamber [W].
     """
     N = node_i.shape[0]
     nun = T.shape[0]
@@ -229,13 +278,13 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
     Kr_prev = 0.0
     for i in range(N):
         Ti = T[i]
-        ml = node_i[i, 0]
-        mr = node_i[i, 1]
+        ml = node_i[i, NI_MAT_L]
+        mr = node_i[i, NI_MAT_R]
         kl = 0.0
         Kl = 0.0
         if ml >= 0:
             kl, Kl, c, h = mat_eval(m_off, mtab, ml, Ti)
-            v = node_f[i, 0]
+            v = node_f[i, NF_VOL_L]
             Cap[i] += v * c
             H[i] += v * h
         kr = 0.0
@@ -244,19 +293,19 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
             if mr == ml:
                 kr = kl
                 Kr = Kl
-                v = node_f[i, 1]
+                v = node_f[i, NF_VOL_R]
                 Cap[i] += v * c
                 H[i] += v * h
             else:
                 kr, Kr, c, h = mat_eval(m_off, mtab, mr, Ti)
-                v = node_f[i, 1]
+                v = node_f[i, NF_VOL_R]
                 Cap[i] += v * c
                 H[i] += v * h
         if i > 0:
-            lm = node_i[i - 1, 2]
-            if lm != -2:
-                g = node_f[i - 1, 2]
-                if lm == -1:
+            lm = node_i[i - 1, NI_LINK]
+            if lm != LINK_NONE:
+                g = node_f[i - 1, NF_LINK_G]
+                if lm == LINK_CONTACT:
                     q = g * (T[i - 1] - Ti)
                     di = g
                     dj = -g
@@ -272,29 +321,29 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
                 Jd[i] += dj
         kr_prev = kr
         Kr_prev = Kr
-    has_ch = ch_i[0] == 1
+    has_ch = ch_i[CHI_PRESENT] == 1
     nc_idx = N
     # faces
     nf = face_i.shape[0]
     for f in range(nf):
-        i = face_i[f, 0]
-        A = face_f[f, 0]
+        i = face_i[f, FI_NODE]
+        A = face_f[f, FF_AREA]
         qf[f] = 0.0
         hc[f] = 0.0
         hr[f] = 0.0
-        if face_i[f, 1] >= 0:
+        if face_i[f, FI_FIXED_T] >= 0:
             continue  # Dirichlet: the face flow is whatever holds the temperature
         Ts = T[i]
         q = 0.0
         dq_s = 0.0
         dq_o = 0.0   # derivative with respect to the chamber temperature
-        if face_i[f, 2] >= 0:
-            q += A * sched_eval(s_off, stab, face_i[f, 2], t, left)
-        to_ch = face_i[f, 6] == 1 and has_ch
+        if face_i[f, FI_FLUX] >= 0:
+            q += A * sched_eval(s_off, stab, face_i[f, FI_FLUX], t, left)
+        to_ch = face_i[f, FI_TO_CHAMBER] == 1 and has_ch
         if to_ch:
             Tf = T[nc_idx]
-        elif face_i[f, 3] >= 0:
-            Tf = sched_eval(s_off, stab, face_i[f, 3], t, left)
+        elif face_i[f, FI_FLUID] >= 0:
+            Tf = sched_eval(s_off, stab, face_i[f, FI_FLUID], t, left)
         else:
             Tf = Ts
         hcv, dhs, dhf = face_h(face_i, face_f, hpar, f, Ts, Tf)
@@ -305,12 +354,12 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
         qr = 0.0
         dqr_s = 0.0
         dqr_o = 0.0
-        if face_i[f, 5] >= 0:
-            eps, deps = sched_eval_slope(s_off, stab, face_i[f, 5], Ts)
+        if face_i[f, FI_EMISSIVITY] >= 0:
+            eps, deps = sched_eval_slope(s_off, stab, face_i[f, FI_EMISSIVITY], Ts)
             if to_ch:
                 Tr = Tf
-            elif face_i[f, 4] >= 0:
-                Tr = sched_eval(s_off, stab, face_i[f, 4], t, left)
+            elif face_i[f, FI_RADIANT] >= 0:
+                Tr = sched_eval(s_off, stab, face_i[f, FI_RADIANT], t, left)
             else:
                 Tr = Tf
             Ts2 = Ts * Ts
@@ -334,35 +383,35 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
             Jrow[i] -= dqc_s + dqr_s
             Jd[nc_idx] -= dq_o
     # chamber capacity and losses
-    extra[0] = 0.0
-    extra[1] = 0.0
+    extra[EX_HEATER] = 0.0
+    extra[EX_LOSS] = 0.0
     if has_ch:
         Tc = T[nc_idx]
-        k, K, c, h = mat_eval(m_off, mtab, ch_i[1], Tc)
+        k, K, c, h = mat_eval(m_off, mtab, ch_i[CHI_CAPACITY], Tc)
         Cap[nc_idx] = c
         H[nc_idx] = h
-        Tamb = sched_eval(s_off, stab, ch_i[2], t, left)
+        Tamb = sched_eval(s_off, stab, ch_i[CHI_AMBIENT], t, left)
         # extra UA plus the air that leaks out at Tc and is replaced by room air: a mass flow
         # rho(T_room) * V (the flow is given at room conditions) times cp(T_room), 1 atm
-        ua = ch_f[0]
-        if ch_f[1] > 0.0:
-            ua += ch_f[1] * rho_cp(Tamb, P_ATM)
+        ua = ch_f[CHF_UA]
+        if ch_f[CHF_LEAK] > 0.0:
+            ua += ch_f[CHF_LEAK] * rho_cp(Tamb, P_ATM)
         loss = ua * (Tc - Tamb)
         F[nc_idx] -= loss
         Jd[nc_idx] -= ua
-        extra[1] = loss
+        extra[EX_LOSS] = loss
     # heater
-    hn = ctl_i[1]
+    hn = ctl_i[CI_HEATER_NODE]
     if hn >= 0:
         if u_ctl >= 0.0:
             u = u_ctl
         else:
-            u = sched_eval(s_off, stab, ctl_i[5], t, left)
-        en = sched_eval(s_off, stab, ctl_i[7], t, left)
-        P0 = sched_eval(s_off, stab, ctl_i[4], t, left) * ctl_f[8] * u * en
-        alpha = ctl_f[6]
+            u = sched_eval(s_off, stab, ctl_i[CI_DUTY], t, left)
+        en = sched_eval(s_off, stab, ctl_i[CI_ENABLE], t, left)
+        P0 = sched_eval(s_off, stab, ctl_i[CI_POWER], t, left) * ctl_f[CF_POWER_FACTOR] * u * en
+        alpha = ctl_f[CF_ALPHA]
         if alpha > 0.0:
-            den = 1.0 + alpha * (T[hn] - ctl_f[7])
+            den = 1.0 + alpha * (T[hn] - ctl_f[CF_T_REF])
             if den < 0.05:
                 den = 0.05
             P = P0 / den
@@ -372,7 +421,7 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
             dP = 0.0
         F[hn] += P
         Jd[hn] += dP
-        extra[0] = P
+        extra[EX_HEATER] = P
 
 
 @njit(cache=True)
@@ -384,8 +433,8 @@ def solve_arrow(Md, Ml, Mu, Mcol, Mrow, chains, N, has_ch, rhs, x, wc, wy, wz):
     """
     nch = chains.shape[0]
     for j in range(nch):
-        a = chains[j, 0]
-        b = chains[j, 1]
+        a = chains[j, CHAIN_FIRST]
+        b = chains[j, CHAIN_LAST]
         # forward sweep (one division per row); the chamber column only when there is one
         ib = 1.0 / Md[a]
         wy[a] = rhs[a] * ib
@@ -472,7 +521,7 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
     """
     N = node_i.shape[0]
     nun = T.shape[0]
-    has_ch = ch_i[0] == 1
+    has_ch = ch_i[CHI_PRESENT] == 1
     for i in range(nun):
         T[i] = Tguess[i]
     nd = dirich_node.shape[0]
@@ -516,8 +565,8 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
 
 @njit(cache=True)
 def _sensor(T, ctl_i, ctl_f):
-    w = ctl_f[5]
-    return w * T[ctl_i[2]] + (1.0 - w) * T[ctl_i[3]]
+    w = ctl_f[CF_SENSOR_W]
+    return w * T[ctl_i[CI_SENSOR_A]] + (1.0 - w) * T[ctl_i[CI_SENSOR_B]]
 
 
 @njit(cache=True)
@@ -575,10 +624,12 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hca, hra, hcb, hrb
         # heat flow that holds the face temperature, between the step-end estimates
         qf_out[k, f] = (1 - th) * qd_a[kk] + th * qd_b[kk]
         E_out[k, f] = h00 * acc_a[f] + h10 * hs * qd_a[kk] + h01 * acc_b[f] + h11 * hs * qd_b[kk]
-    E_out[k, nf] = h00 * acc_a[nf] + h10 * hs * exa[0] + h01 * acc_b[nf] + h11 * hs * exb[0]
-    E_out[k, nf + 1] = (h00 * acc_a[nf + 1] + h10 * hs * exa[1] + h01 * acc_b[nf + 1]
-                        + h11 * hs * exb[1])
-    P_out[k] = exb[0] if th == 1.0 else (1 - th) * exa[0] + th * exb[0]
+    jh = nf + EX_HEATER
+    jl = nf + EX_LOSS
+    E_out[k, jh] = h00 * acc_a[jh] + h10 * hs * exa[EX_HEATER] + h01 * acc_b[jh] + h11 * hs * exb[EX_HEATER]
+    E_out[k, jl] = (h00 * acc_a[jl] + h10 * hs * exa[EX_LOSS] + h01 * acc_b[jl]
+                        + h11 * hs * exb[EX_LOSS])
+    P_out[k] = exb[EX_HEATER] if th == 1.0 else (1 - th) * exa[EX_HEATER] + th * exb[EX_HEATER]
 
 
 @njit(cache=True)
@@ -605,7 +656,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     N = node_i.shape[0]
     nun = T.shape[0]
     nf = face_i.shape[0]
-    has_ch = ch_i[0] == 1
+    has_ch = ch_i[CHI_PRESENT] == 1
     F0 = np.empty(nun)
     Fg = np.empty(nun)
     # values at the end of the last step and the predictor history live in ks (resumable)
@@ -642,9 +693,9 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     ex0 = np.zeros(2)
     exg = np.zeros(2)
     nd = dirich_node.shape[0]
-    mode = ctl_i[0]
-    period = ctl_f[0]
-    ev_tol = ctl_f[9]
+    mode = ctl_i[CI_MODE]
+    period = ctl_f[CF_PERIOD]
+    ev_tol = ctl_f[CF_EVENT_TOL]
     newton_tol = 1e-3 * tol
     t = acc[acc.shape[0] - 1]     # current time is kept in the last accumulator slot
     h = cs[CS_H]
@@ -675,7 +726,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     qd_b = np.zeros(nd)
     has_ext = np.empty(nf, dtype=np.bool_)
     for f in range(nf):
-        has_ext[f] = not (face_i[f, 6] == 1 and has_ch)
+        has_ext[f] = not (face_i[f, FI_TO_CHAMBER] == 1 and has_ch)
     while k < k1:
         t_target = t_out[k] if land_outputs else t_out[k1 - 1]
         jump_target = False
@@ -686,21 +737,21 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
             target_bp = ibp
         # controller: sampling and switching times
         u = -1.0
-        if mode == 1 or mode == 3 or mode == 4:
+        if mode == CTL_DUTY_SWITCHED or mode == CTL_PID_AVERAGED or mode == CTL_PID_SWITCHED:
             if t >= cs[CS_NEXT] - 1e-9 * period:
                 sp = 0.0
-                if mode == 1:
-                    ufrac = sched_eval(s_off, stab, ctl_i[5], t, 0.0)
+                if mode == CTL_DUTY_SWITCHED:
+                    ufrac = sched_eval(s_off, stab, ctl_i[CI_DUTY], t, 0.0)
                 else:
                     y = _sensor(T, ctl_i, ctl_f)
-                    sp = sched_eval(s_off, stab, ctl_i[6], t, 0.0)
+                    sp = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t, 0.0)
                     e = sp - y
                     de = 0.0
                     if cs[CS_PREV] > -1e299:
                         de = (e - cs[CS_PREV]) / period
-                    ui = cs[CS_INT] + ctl_f[3] * e * period
-                    ufrac = ctl_f[2] * e + ui + ctl_f[4] * de
-                    enabled = sched_eval(s_off, stab, ctl_i[7], t, 0.0) > 0.0
+                    ui = cs[CS_INT] + ctl_f[CF_KI] * e * period
+                    ufrac = ctl_f[CF_KP] * e + ui + ctl_f[CF_KD] * de
+                    enabled = sched_eval(s_off, stab, ctl_i[CI_ENABLE], t, 0.0) > 0.0
                     # anti-windup: integrate only while enabled and unsaturated, or when it
                     # unwinds; the integral is frozen while the heater is switched off
                     if enabled and ((ufrac < 1.0 and ufrac > 0.0) or (ufrac >= 1.0 and e < 0)
@@ -717,7 +768,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
             if cs[CS_NEXT] < t_target:
                 t_target = cs[CS_NEXT]
                 jump_target = True
-            if mode == 3:
+            if mode == CTL_PID_AVERAGED:
                 u = cs[CS_U]
             else:
                 if cs[CS_OFF] > t + 1e-9 * period:
@@ -727,17 +778,18 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                         jump_target = True
                 else:
                     u = 0.0
-        elif mode == 2:
+        elif mode == CTL_THERMOSTAT:
             y = _sensor(T, ctl_i, ctl_f)
-            sp = sched_eval(s_off, stab, ctl_i[6], t, 0.0)
-            half = 0.5 * ctl_f[1]
+            sp = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t, 0.0)
+            half = 0.5 * ctl_f[CF_BAND]
             if cs[CS_ON] > 0.5 and y >= sp + half - ev_tol:
                 cs[CS_ON] = 0.0
             elif cs[CS_ON] < 0.5 and y <= sp - half + ev_tol:
                 cs[CS_ON] = 1.0
             u = cs[CS_ON]
         # step size; after the heater switches, restart from the step that worked last time
-        switched = u != cs[CS_UPREV] and (mode == 1 or mode == 2 or mode == 4)
+        switched = u != cs[CS_UPREV] and (mode == CTL_DUTY_SWITCHED or mode == CTL_THERMOSTAT
+                                          or mode == CTL_PID_SWITCHED)
         cs[CS_UPREV] = u
         if switched and h > cs[CS_HSW]:
             h = cs[CS_HSW]
@@ -764,8 +816,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                 H0[i] = H1[i]
             for f in range(nf):
                 q0[f] = q1[f]
-            ex0[0] = ex1[0]
-            ex0[1] = ex1[1]
+            ex0[EX_HEATER] = ex1[EX_HEATER]
+            ex0[EX_LOSS] = ex1[EX_LOSS]
         else:
             assemble(T, t, 0.0, u, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
                      s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, Jd, Jl, Ju, Jcol, Jrow,
@@ -841,11 +893,11 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                     return k - k0
                 continue
             # thermostat: do not step across a switching threshold by more than ev_tol
-            if mode == 2:
+            if mode == CTL_THERMOSTAT:
                 y0 = _sensor(T, ctl_i, ctl_f)
                 y1 = _sensor(T1, ctl_i, ctl_f)
-                sp1 = sched_eval(s_off, stab, ctl_i[6], t1, 1.0)
-                half = 0.5 * ctl_f[1]
+                sp1 = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t1, 1.0)
+                half = 0.5 * ctl_f[CF_BAND]
                 thr = sp1 + half if u > 0.5 else sp1 - half
                 over = (y1 - thr) if u > 0.5 else (thr - y1)
                 if over > ev_tol and hs > hmin * 10:
@@ -875,21 +927,21 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
             i = dirich_node[kk]
             f = dirich_face[kk]
             acc[f] += (H1[i] - H0[i]) - hs * (W0 * (F0[i] + Fg[i]) + W2 * F1[i])
-        acc[nf] += hs * (W0 * (ex0[0] + exg[0]) + W2 * ex1[0])
-        acc[nf + 1] += hs * (W0 * (ex0[1] + exg[1]) + W2 * ex1[1])
+        acc[nf + EX_HEATER] += hs * (W0 * (ex0[EX_HEATER] + exg[EX_HEATER]) + W2 * ex1[EX_HEATER])
+        acc[nf + EX_LOSS] += hs * (W0 * (ex0[EX_LOSS] + exg[EX_LOSS]) + W2 * ex1[EX_LOSS])
         # events (cubic Hermite location within the step)
         for e in range(nev):
-            a = ev_i[e, 0]
-            b = ev_i[e, 1]
-            w = ev_f[e, 0]
-            thr = ev_f[e, 1]
+            a = ev_i[e, EV_NODE_A]
+            b = ev_i[e, EV_NODE_B]
+            w = ev_f[e, EV_WEIGHT]
+            thr = ev_f[e, EV_THRESHOLD]
             y0 = w * T[a] + (1 - w) * T[b]
             y1 = w * T1[a] + (1 - w) * T1[b]
             if (y0 - thr) * (y1 - thr) <= 0.0 and y0 != y1:
                 d0 = w * F0[a] / C0[a] + (1 - w) * F0[b] / C0[b]
                 d1 = w * F1[a] / Cap[a] + (1 - w) * F1[b] / Cap[b]
                 fr = _hermite_cross(y0, y1, d0, d1, hs, thr)
-                col = 0 if y1 > y0 else 1
+                col = EV_UP if y1 > y0 else EV_DOWN
                 if ev_out[e, col] != ev_out[e, col]:
                     ev_out[e, col] = t + fr * hs
         for i in range(nun):
@@ -926,8 +978,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
         while ibp < nbp and bp[ibp] <= t * (1 + 1e-14):
             ibp += 1
         # energy balance at every accepted step: heat in - out - change in stored enthalpy
-        ext = acc[nf] - acc[nf + 1]
-        sc = abs(acc[nf])
+        ext = acc[nf + EX_HEATER] - acc[nf + EX_LOSS]
+        sc = abs(acc[nf + EX_HEATER])
         for f in range(nf):
             if has_ext[f]:
                 ext += acc[f]
@@ -989,7 +1041,7 @@ def steady(T, t, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mta
     """
     N = node_i.shape[0]
     nun = T.shape[0]
-    has_ch = ch_i[0] == 1
+    has_ch = ch_i[CHI_PRESENT] == 1
     F = np.empty(nun)
     Cap = np.empty(nun)
     H = np.empty(nun)

@@ -5,6 +5,7 @@ import numpy as np
 from numba import njit
 
 from .kernels import mat_eval
+from .layout import CHI_CAPACITY, CHI_PRESENT, NF_VOL_L, NF_VOL_R, NI_MAT_L, NI_MAT_R
 
 
 @njit(cache=True)
@@ -19,10 +20,12 @@ def half_enthalpy(T, node_i, node_f, m_off, mtab, ch_i):
     Hc = np.zeros(n_out)
     for r in range(n_out):
         for i in range(N):
-            for s in range(2):
-                m = node_i[i, s]
-                if m >= 0:
-                    Hh[r, i, s] = node_f[i, s] * mat_eval(m_off, mtab, m, T[r, i])[3]
-        if ch_i[0] == 1:
-            Hc[r] = mat_eval(m_off, mtab, ch_i[1], T[r, N])[3]
+            m = node_i[i, NI_MAT_L]
+            if m >= 0:
+                Hh[r, i, 0] = node_f[i, NF_VOL_L] * mat_eval(m_off, mtab, m, T[r, i])[3]
+            m = node_i[i, NI_MAT_R]
+            if m >= 0:
+                Hh[r, i, 1] = node_f[i, NF_VOL_R] * mat_eval(m_off, mtab, m, T[r, i])[3]
+        if ch_i[CHI_PRESENT] == 1:
+            Hc[r] = mat_eval(m_off, mtab, ch_i[CHI_CAPACITY], T[r, N])[3]
     return Hh, Hc

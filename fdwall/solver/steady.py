@@ -11,9 +11,35 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..errors import ConvergenceError
 from ..system import System, build_system
 from . import native as K
-from .transient import ConvergenceError
+from .layout import (
+    CF_SENSOR_W,
+    CHI_AMBIENT,
+    CI_DUTY,
+    CI_ENABLE,
+    CI_HEATER_NODE,
+    CI_MODE,
+    CI_POWER,
+    CI_SENSOR_A,
+    CI_SENSOR_B,
+    CI_SETPOINT,
+    CTL_DUTY_AVERAGED,
+    CTL_DUTY_SWITCHED,
+    CTL_PID_AVERAGED,
+    CTL_PID_SWITCHED,
+    CTL_THERMOSTAT,
+    EX_HEATER,
+    EX_LOSS,
+    FI_FIXED_T,
+    FI_FLUID,
+    FI_NODE,
+    FI_RADIANT,
+    N_EX,
+    N_STATS,
+    system_args,
+)
 
 __all__ = ["solve_steady", "SteadyResult"]
 
@@ -67,7 +93,7 @@ class SteadyResult:
     @property
     def face_T(self) -> np.ndarray:
         """Face temperatures [K]."""
-        return self.T[self.system.face_i[:, 0]]
+        return self.T[self.system.face_i[:, FI_NODE]]
 
     def interface_T(self, wall: int = 0) -> np.ndarray:
         """Interface temperatures of a wall [K]."""
@@ -105,47 +131,61 @@ def _guess(sysm: System, t: float) -> np.ndarray:
     """A starting profile: the mean of the temperatures that drive the faces [K]."""
     temps = []
     for f in range(sysm.face_i.shape[0]):
-        for col in (1, 3, 4):
+        for col in (FI_FIXED_T, FI_FLUID, FI_RADIANT):
             s = sysm.face_i[f, col]
             if s >= 0:
                 temps.append(K.sched_eval(sysm.s_off, sysm.stab, s, t, 0.0))
     if sysm.has_chamber:
-        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ch_i[2], t, 0.0))
-    if sysm.ctl_i[0] in (2, 3, 4) and sysm.ctl_i[1] >= 0:
-        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], t, 0.0))
+        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ch_i[CHI_AMBIENT], t, 0.0))
+    if sysm.ctl_i[CI_MODE] in (CTL_THERMOSTAT, CTL_PID_AVERAGED, CTL_PID_SWITCHED) and sysm.ctl_i[CI_HEATER_NODE] >= 0:
+        temps.append(K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_SETPOINT], t, 0.0))
     T0 = float(np.mean(temps)) if temps else 293.15
     return np.full(sysm.n_unknowns, T0)
 
 
 def _solve(sysm, t, u, T0, tol):
+    """Newton solve at time ``t`` [s] with heater fraction ``u`` [-] (< 0: the duty schedule)
+    from ``T0`` [K]; a pseudo-time continuation when plain Newton fails.  Returns (T [K],
+    face flows [W], h_conv, h_rad [W/m2/K], extra (heater power, chamber loss) [W],
+    iterations)."""
     nf = sysm.face_i.shape[0]
-    qf, hc, hr, extra = np.empty(nf), np.empty(nf), np.empty(nf), np.zeros(2)
+    qf, hc, hr, extra = np.empty(nf), np.empty(nf), np.empty(nf), np.zeros(N_EX)
+    sa = system_args(sysm)
     T = T0.copy()
-    it, mx = K.steady(T, t, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f,
-                      sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
-                      sysm.ch_f, sysm.ctl_i, sysm.ctl_f, sysm.dirich_node, sysm.dirich_sched,
-                      qf, hc, hr, extra, tol, 200)
+    it, mx = K.steady(T, t, u, *sa, sysm.dirich_node, sysm.dirich_sched, qf, hc, hr, extra,
+                      tol, 200)
     if it < 0:
         # continuation: reach the state through a sequence of pseudo-time relaxations
         T = _continuation(sysm, t, u, T0, tol)
-        it, mx = K.steady(T, t, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
-                          sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab,
-                          sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f, sysm.dirich_node,
-                          sysm.dirich_sched, qf, hc, hr, extra, tol, 200)
+        it, mx = K.steady(T, t, u, *sa, sysm.dirich_node, sysm.dirich_sched, qf, hc, hr, extra,
+                          tol, 200)
         if it < 0:
             raise ConvergenceError(
                 f"the steady state did not converge (last correction {mx:.3g} K). The case may "
                 "have no steady state (e.g. a heater with no path for its heat, or all faces "
                 "adiabatic).")
     # face flow of Dirichlet faces from the node balance
-    F = np.empty(sysm.n_unknowns)
-    scratch = [np.empty(sysm.n_unknowns) for _ in range(7)]
-    K.assemble(T, t, 0.0, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f,
-               sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i, sysm.ch_f,
-               sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
+    w = _Work(sysm.n_unknowns)
+    K.assemble(T, t, 0.0, u, *sa, w.F, w.Cap, w.H, *w.jacobian(), qf, hc, hr, extra)
     for k, i in enumerate(sysm.dirich_node):
-        qf[sysm.dirich_face[k]] = -F[i]
+        qf[sysm.dirich_face[k]] = -w.F[i]
     return T, qf, hc, hr, extra.copy(), it
+
+
+class _Work:
+    """Work arrays of one assembly / Newton stage for ``nun`` unknowns: F [W], Cap [J/K],
+    H [J], the Jacobian (diagonal, sub, super, chamber column and row) [W/K], and the Newton
+    solve's residual, correction and elimination arrays."""
+
+    def __init__(self, nun):
+        (self.F, self.Cap, self.H, self.Jd, self.Jl, self.Ju, self.Jcol, self.Jrow, self.R,
+         self.dx, self.wc, self.wy, self.wz) = (np.empty(nun) for _ in range(13))
+
+    def jacobian(self):
+        return self.Jd, self.Jl, self.Ju, self.Jcol, self.Jrow
+
+    def solve(self):
+        return self.R, self.dx, self.wc, self.wy, self.wz
 
 
 def _continuation(sysm, t, u, T0, tol):
@@ -153,24 +193,19 @@ def _continuation(sysm, t, u, T0, tol):
     T = T0.copy()
     tau = 1.0
     nf = sysm.face_i.shape[0]
-    from .native import N_STATS, _newton_stage
+    sa = system_args(sysm)
     stats = np.zeros(N_STATS)
     nun = sysm.n_unknowns
-    work = [np.empty(nun) for _ in range(14)]
-    F, Cap, H = np.empty(nun), np.empty(nun), np.empty(nun)
-    qf, hc, hr, extra = np.empty(nf), np.empty(nf), np.empty(nf), np.zeros(2)
-    scratch = [np.empty(nun) for _ in range(7)]
+    start = _Work(nun)     # the state at the start of a pseudo-step
+    stage = _Work(nun)     # the Newton stage
+    qf, hc, hr, extra = np.empty(nf), np.empty(nf), np.empty(nf), np.zeros(N_EX)
     for _ in range(200):
-        K.assemble(T, t, 0.0, u, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
-                   sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab,
-                   sysm.ch_i, sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, Cap, H, *scratch[:5], qf, hc,
+        K.assemble(T, t, 0.0, u, *sa, start.F, start.Cap, start.H, *start.jacobian(), qf, hc,
                    hr, extra)
         Tn = np.empty(nun)
-        ok = _newton_stage(Tn, T, t, tau, H.copy(), u, sysm.dirich_node, sysm.dirich_sched,
-                           sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i, sysm.face_f,
-                           sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
-                           sysm.ch_f, sysm.ctl_i, sysm.ctl_f, *work[:8], qf, hc, hr, extra,
-                           *work[9:14], tol, stats)
+        ok = K._newton_stage(Tn, T, t, tau, start.H.copy(), u, sysm.dirich_node,
+                             sysm.dirich_sched, *sa, stage.F, stage.Cap, stage.H,
+                             *stage.jacobian(), qf, hc, hr, extra, *stage.solve(), tol, stats)
         if ok:
             change = np.max(np.abs(Tn - T))
             T = Tn
@@ -203,26 +238,26 @@ def solve_steady(case, t=None, system=None, guess=None, tol=1e-9) -> SteadyResul
         t = case.run.steady_at if case.run.steady_at is not None else case.run.duration
     t = float(t)
     T0 = _guess(sysm, t) if guess is None else np.asarray(guess, float)
-    mode = sysm.ctl_i[0]
-    heater = sysm.ctl_i[1] >= 0
+    mode = sysm.ctl_i[CI_MODE]
+    heater = sysm.ctl_i[CI_HEATER_NODE] >= 0
     if not heater:
         T, qf, hc, hr, ex, it = _solve(sysm, t, 0.0, T0, tol)
-        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, True, it, t, False)
-    on = (K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[7], t, 0.0) > 0.0
-          and K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[4], t, 0.0) > 0.0)
+        return SteadyResult(sysm, T, qf, hc, hr, ex[EX_HEATER], ex[EX_LOSS], 0.0, True, it, t, False)
+    on = (K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_ENABLE], t, 0.0) > 0.0
+          and K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_POWER], t, 0.0) > 0.0)
     if not on:
         T, qf, hc, hr, ex, it = _solve(sysm, t, 0.0, T0, tol)
-        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, mode not in (2, 3, 4),
+        return SteadyResult(sysm, T, qf, hc, hr, ex[EX_HEATER], ex[EX_LOSS], 0.0, mode not in (CTL_THERMOSTAT, CTL_PID_AVERAGED, CTL_PID_SWITCHED),
                             it, t, False)
-    if mode in (0, 1):
-        u = -1.0 if mode == 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[5], t, 0.0)
+    if mode in (CTL_DUTY_AVERAGED, CTL_DUTY_SWITCHED):
+        u = -1.0 if mode == CTL_DUTY_AVERAGED else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_DUTY], t, 0.0)
         T, qf, hc, hr, ex, it = _solve(sysm, t, u, T0, tol)
-        duty = u if u >= 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[5], t, 0.0)
-        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], duty, True, it, t)
+        duty = u if u >= 0 else K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_DUTY], t, 0.0)
+        return SteadyResult(sysm, T, qf, hc, hr, ex[EX_HEATER], ex[EX_LOSS], duty, True, it, t)
     # controlled: find u in [0, 1] holding the sensor at the setpoint
-    sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], t, 0.0)
-    w = sysm.ctl_f[5]
-    a, b = sysm.ctl_i[2], sysm.ctl_i[3]
+    sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_SETPOINT], t, 0.0)
+    w = sysm.ctl_f[CF_SENSOR_W]
+    a, b = sysm.ctl_i[CI_SENSOR_A], sysm.ctl_i[CI_SENSOR_B]
     cache = {}
 
     def gap(u):
@@ -234,12 +269,12 @@ def solve_steady(case, t=None, system=None, guess=None, tol=1e-9) -> SteadyResul
     g1 = gap(1.0)
     if g1 < 0:
         T, qf, hc, hr, ex, it = cache[1.0]
-        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 1.0, False, it, t)
+        return SteadyResult(sysm, T, qf, hc, hr, ex[EX_HEATER], ex[EX_LOSS], 1.0, False, it, t)
     g0 = gap(0.0)
     if g0 >= 0:
         T, qf, hc, hr, ex, it = cache[0.0]
-        return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], 0.0, True, it, t)
+        return SteadyResult(sysm, T, qf, hc, hr, ex[EX_HEATER], ex[EX_LOSS], 0.0, True, it, t)
     from scipy.optimize import brentq  # imported here: scipy.optimize takes ~0.3 s to load
     u = brentq(gap, 0.0, 1.0, xtol=1e-12, rtol=1e-12)
     T, qf, hc, hr, ex, it = _solve(sysm, t, u, cache["T"], tol)
-    return SteadyResult(sysm, T, qf, hc, hr, ex[0], ex[1], u, True, it, t)
+    return SteadyResult(sysm, T, qf, hc, hr, ex[EX_HEATER], ex[EX_LOSS], u, True, it, t)

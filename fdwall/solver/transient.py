@@ -18,7 +18,25 @@ from ..errors import ConvergenceError, Interrupted
 from ..model import Case
 from ..system import System, build_system
 from . import native as K
-from .layout import KS_ARRAYS, resume_size
+from .layout import (
+    CF_SENSOR_W,
+    CI_HEATER_NODE,
+    CI_MODE,
+    CI_SENSOR_A,
+    CI_SENSOR_B,
+    CI_SETPOINT,
+    CTL_DUTY_AVERAGED,
+    CTL_THERMOSTAT,
+    EV_NODE_A,
+    EV_NODE_B,
+    EV_THRESHOLD,
+    EV_WEIGHT,
+    EX_HEATER,
+    KS_ARRAYS,
+    N_EX,
+    resume_size,
+    system_args,
+)
 from .observers import CHUNK_SECONDS, ProgressBar, RunProgress, Stop
 
 __all__ = ["run", "output_times", "event_rows", "ConvergenceError", "Interrupted"]
@@ -54,8 +72,8 @@ def event_rows(system: System, case: Case):
             if not system.has_chamber:
                 from ..model import ModelError
                 raise ModelError(f"event '{ev.name}' watches the chamber, but the case has none")
-            ev_i[e] = (system.n_nodes, system.n_nodes)
-            ev_f[e] = (1.0, ev.threshold)
+            ev_i[e, EV_NODE_A] = ev_i[e, EV_NODE_B] = system.n_nodes
+            ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = 1.0, ev.threshold
             continue
         j = system.chain_of(ev.wall)
         m, o = system.meshes[j], system.offsets[j]
@@ -77,8 +95,8 @@ def event_rows(system: System, case: Case):
         else:
             a, b, w = locate_depth(wall, m, ev.depth)
             a, b = a + o, b + o
-        ev_i[e] = (a, b)
-        ev_f[e] = (w, ev.threshold)
+        ev_i[e, EV_NODE_A], ev_i[e, EV_NODE_B] = a, b
+        ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = w, ev.threshold
     return ev_i, ev_f
 
 
@@ -133,15 +151,14 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     n_out = t_out.size
     T_out = np.full((n_out, nun), np.nan)
     qf_out = np.full((n_out, nf), np.nan)
-    E_out = np.full((n_out, nf + 2), np.nan)
+    E_out = np.full((n_out, nf + N_EX), np.nan)
     P_out = np.full(n_out, np.nan)
     hc_out = np.full((n_out, nf), np.nan)
     hr_out = np.full((n_out, nf), np.nan)
     # row 0: the initial state.  A fixed-temperature face that starts away from the initial
     # temperature takes the heat of that jump at t = 0: it is booked on the face's ledger.
     F = np.empty(nun)
-    extra = np.zeros(2)
-    scratch = [np.empty(nun) for _ in range(7)]
+    extra = np.zeros(N_EX)
     qf, hc, hr = np.empty(nf), np.empty(nf), np.empty(nf)
     u0 = _initial_u(sysm, T)
     cs = np.zeros(K.N_CS)
@@ -152,12 +169,12 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
             raise ModelError(f"control_state must be Result.control_state (length {cs.size})")
         for i in (K.CS_U, K.CS_ON, K.CS_INT, K.CS_PREV, K.CS_NEXT, K.CS_OFF):
             cs[i] = prev[i]
-        if sysm.ctl_i[0] == 2 and sysm.ctl_i[1] >= 0:
+        if sysm.ctl_i[CI_MODE] == CTL_THERMOSTAT and sysm.ctl_i[CI_HEATER_NODE] >= 0:
             u0 = float(cs[K.CS_ON])
-    K.assemble(T, 0.0, 0.0, u0, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
-               sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
-               sysm.ch_f, sysm.ctl_i, sysm.ctl_f, F, *scratch, qf, hc, hr, extra)
-    H_after = scratch[1].copy()
+    sa = system_args(sysm)
+    Cap, H_after = np.empty(nun), np.empty(nun)
+    jac = [np.empty(nun) for _ in range(5)]      # Jd, Jl, Ju, Jcol, Jrow (not used here)
+    K.assemble(T, 0.0, 0.0, u0, *sa, F, Cap, H_after, *jac, qf, hc, hr, extra)
     if len(sysm.dirich_node):
         Hh, Hc = sysm.enthalpy(T_start)
         H_initial = float(Hh.sum() + Hc.sum())
@@ -170,7 +187,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     qf_out[0] = qf
     hc_out[0], hr_out[0] = hc, hr
     E_out[0] = 0.0
-    P_out[0] = extra[0]
+    P_out[0] = extra[EX_HEATER]
     cs[K.CS_H] = min(1.0, r.duration * 1e-4, t_out[1] if n_out > 1 else r.duration)
     cs[K.CS_NEXT] = 0.0
     cs[K.CS_PREV] = -1e300
@@ -178,7 +195,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     cs[K.CS_UPREV] = -2.0
     cs[K.CS_HSW] = cs[K.CS_H]
     cs[K.CS_HJ] = cs[K.CS_H]
-    acc = np.zeros(nf + 3)
+    acc = np.zeros(nf + N_EX + 1)     # face energies, heater, loss, state time
     for f, dh in jump.items():
         acc[f] += dh
     qd_state = np.full(len(sysm.dirich_node), np.nan)
@@ -190,9 +207,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     max_step = r.max_step if r.max_step is not None else np.inf
     ks = np.zeros(resume_size(nun, nf))
     args = (t_out, 1, n_out, bool(r.exact_outputs), sysm.breakpoints, sysm.breakpoint_jumps,
-            r.tolerance, max_step, sysm.node_i, sysm.node_f, sysm.chains, sysm.face_i,
-            sysm.face_f, sysm.hpar, sysm.m_off, sysm.mtab, sysm.s_off, sysm.stab, sysm.ch_i,
-            sysm.ch_f, sysm.ctl_i, sysm.ctl_f, sysm.dirich_node, sysm.dirich_sched,
+            r.tolerance, max_step, *sa, sysm.dirich_node, sysm.dirich_sched,
             sysm.dirich_face, qd_state, ev_i, ev_f, ev_out, T_out, qf_out, E_out, P_out, hc_out,
             hr_out, ks)
     watchers = list(observers or ())
@@ -334,15 +349,15 @@ def _implausible(T_out, k0, k1):
 
 def _initial_u(sysm, T):
     """Heater fraction at t = 0 for the initial assembly [-]."""
-    mode = sysm.ctl_i[0]
-    if sysm.ctl_i[1] < 0:
+    mode = sysm.ctl_i[CI_MODE]
+    if sysm.ctl_i[CI_HEATER_NODE] < 0:
         return 0.0
-    if mode == 0:
+    if mode == CTL_DUTY_AVERAGED:
         return -1.0
-    if mode == 2:
-        w = sysm.ctl_f[5]
-        y = w * T[sysm.ctl_i[2]] + (1 - w) * T[sysm.ctl_i[3]]
-        sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[6], 0.0, 0.0)
+    if mode == CTL_THERMOSTAT:
+        w = sysm.ctl_f[CF_SENSOR_W]
+        y = w * T[sysm.ctl_i[CI_SENSOR_A]] + (1 - w) * T[sysm.ctl_i[CI_SENSOR_B]]
+        sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_SETPOINT], 0.0, 0.0)
         return 1.0 if y < sp else 0.0
     return 0.0
 
@@ -357,7 +372,7 @@ def _append_stop_row(sysm, k, t_stop, T, ks, acc, qd_state, t_out, T_out, qf_out
     nun, nf = T.size, sysm.face_i.shape[0]
     o = KS_ARRAYS + 4 * nun
     q1, hcw, hrw = ks[o:o + nf], ks[o + nf:o + 2 * nf], ks[o + 2 * nf:o + 3 * nf]
-    ex1 = ks[o + 3 * nf:o + 3 * nf + 2]
+    ex1 = ks[o + 3 * nf:o + 3 * nf + N_EX]
     qf = q1.copy()
     for kk, f in enumerate(sysm.dirich_face):
         qf[f] = qd_state[kk]
@@ -365,8 +380,8 @@ def _append_stop_row(sysm, k, t_stop, T, ks, acc, qd_state, t_out, T_out, qf_out
         (t_out, t_stop),
         (T_out, T),
         (qf_out, qf),
-        (E_out, acc[:nf + 2]),
-        (P_out, ex1[0]),
+        (E_out, acc[:nf + N_EX]),
+        (P_out, ex1[EX_HEATER]),
         (hc_out, hcw),
         (hr_out, hrw),
     )
