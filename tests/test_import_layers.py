@@ -1,0 +1,198 @@
+"""Imports run one direction, as the layers of /work/shared/DESIGN.md and the contributor
+guide (DEVELOPERS.md, "Data flow") lay out, and the module-top imports have no cycles.
+
+The import graph is read from the source with ``ast`` (no module is imported).  Layers, from
+the bottom: 1 base, 2 physics, 3 model, 4 case I/O, 5 system and mesh (with the names of the
+kernel arrays, fdwall/solver/layout.py), 6 solver, 7 result, 8 analyses, 9 report, 10 cli and
+the package facade.  A module may import its own layer or a lower one.  Imports inside
+functions are listed too: the ones that still go upwards are the known debts below, each
+with its reason; the test fails on a new one, and on a listed one that is gone (so that the
+list shrinks as they are fixed).  House rules of the project (no outside source).
+"""
+from __future__ import annotations
+
+import ast
+import pathlib
+
+PKG = pathlib.Path(__file__).resolve().parents[1] / "fdwall"
+
+LAYERS = [
+    # (layer, module prefixes); the longest matching prefix wins
+    (1, ("fdwall.errors", "fdwall.units", "fdwall.atomic", "fdwall.cautions", "fdwall.h5tree",
+         "fdwall.provenance")),
+    (2, ("fdwall.physics",)),
+    (3, ("fdwall.schedule", "fdwall.materials", "fdwall.model")),
+    (4, ("fdwall.case",)),
+    (5, ("fdwall.system", "fdwall.mesh", "fdwall.solver.layout")),
+    (6, ("fdwall.solver",)),
+    (7, ("fdwall.result",)),
+    (8, ("fdwall.analyses", "fdwall.safety", "fdwall.sizing", "fdwall.study")),
+    (9, ("fdwall.report",)),
+    (10, ("fdwall.cli", "fdwall")),
+]
+
+#: Upward imports inside functions that remain, with why (edges: importer -> imported).
+KNOWN_UPWARD = {
+    ("fdwall.case.checks", "fdwall.system"):
+        "the case checks build a system to check it (validation to move below the system)",
+    ("fdwall.case.loader", "fdwall.system"):
+        "the loader builds a system once to check the case (idem)",
+    ("fdwall.case.loader", "fdwall.solver.transient"):
+        "the loader validates the watched events with the driver's event_rows (idem)",
+    ("fdwall.case.loader", "fdwall.mesh"):
+        "the loader reads the mesh's default cell count to bound the stored outputs",
+    ("fdwall.physics.convection", "fdwall.solver.native"):
+        "array helpers call the ahead-of-time build of h_conv when there is one",
+    ("fdwall.system", "fdwall.solver.native"):
+        "System.conductances/capacities/enthalpy evaluate the compiled property tables",
+    ("fdwall.solver.transient", "fdwall.result"):
+        "the driver wraps its arrays in a Result (the result layer reads solver statistics)",
+}
+
+# analyses: a later one may use an earlier one (DESIGN.md, "Layers")
+ANALYSES_ORDER = ["enclosure", "lumped", "safety", "sizing", "logs", "study"]
+
+
+def _modules():
+    out = {}
+    for p in PKG.rglob("*.py"):
+        parts = list(p.relative_to(PKG.parent).with_suffix("").parts)
+        if parts[-1] == "__init__":
+            parts = parts[:-1]
+        out[".".join(parts)] = p
+    return out
+
+
+MODS = _modules()
+
+
+def _targets(cur, is_pkg, node):
+    if isinstance(node, ast.Import):
+        return [a.name for a in node.names if a.name.split(".")[0] == "fdwall"]
+    if node.level:
+        base = cur.split(".")
+        if not is_pkg:
+            base = base[:-1]
+        base = base[:len(base) - (node.level - 1)]
+        mod = ".".join(base + ([node.module] if node.module else []))
+    else:
+        mod = node.module or ""
+    if mod.split(".")[0] != "fdwall":
+        return []
+    return [f"{mod}.{a.name}" if f"{mod}.{a.name}" in MODS else mod for a in node.names]
+
+
+def _graph():
+    """(module-top edges, edges inside functions) of the package."""
+    top, inner = set(), set()
+    for m, p in MODS.items():
+        tree = ast.parse(p.read_text())
+        is_pkg = p.name == "__init__.py"
+        in_func = set()
+        for node in ast.walk(tree):
+            if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)):
+                for n in ast.walk(node):
+                    if isinstance(n, (ast.Import, ast.ImportFrom)):
+                        in_func.add(id(n))
+                        inner.update((m, t) for t in _targets(m, is_pkg, n) if t != m)
+        for node in ast.walk(tree):
+            if isinstance(node, (ast.Import, ast.ImportFrom)) and id(node) not in in_func:
+                top.update((m, t) for t in _targets(m, is_pkg, node) if t != m)
+    return top, inner
+
+
+TOP, INNER = _graph()
+
+
+def layer(mod: str) -> int:
+    best, n = None, -1
+    for lay, prefixes in LAYERS:
+        for p in prefixes:
+            if (mod == p or mod.startswith(p + ".")) and len(p) > n:
+                best, n = lay, len(p)
+    assert best is not None, mod
+    return best
+
+
+def _upward(edges):
+    bad = set()
+    for a, b in edges:
+        if a == "fdwall" or b.startswith(a + "."):
+            continue  # a package facade re-exports from below it
+        if layer(b) > layer(a):
+            bad.add((a, b))
+        elif layer(a) == layer(b) == 8:
+            ka, kb = (m.split(".")[2] if m.startswith("fdwall.analyses.") else None
+                      for m in (a, b))
+            if ka in ANALYSES_ORDER and kb in ANALYSES_ORDER and \
+                    ANALYSES_ORDER.index(kb) > ANALYSES_ORDER.index(ka):
+                bad.add((a, b))
+    return bad
+
+
+def test_every_module_has_a_layer():
+    for m in MODS:
+        layer(m)
+
+
+def test_module_top_imports_go_down():
+    bad = _upward(TOP)
+    assert not bad, "upward imports at module top:\n" + "\n".join(f"{a} -> {b}" for a, b in
+                                                                   sorted(bad))
+
+
+def test_no_cycles_at_module_top():
+    graph = {}
+    for a, b in TOP:
+        graph.setdefault(a, set()).add(b)
+    # a package's __init__ importing its own submodules is not a cycle of the design
+    state, stack, cycles = {}, [], []
+
+    def visit(n):
+        state[n] = 1
+        stack.append(n)
+        for t in sorted(graph.get(n, ())):
+            if state.get(t) == 1:
+                cyc = stack[stack.index(t):] + [t]
+                if not all(c == cyc[0] or c.startswith(cyc[0] + ".") or
+                           cyc[0].startswith(c + ".") for c in cyc):
+                    cycles.append(" -> ".join(cyc))
+            elif t not in state:
+                visit(t)
+        stack.pop()
+        state[n] = 2
+
+    for n in sorted(graph):
+        if n not in state:
+            visit(n)
+    assert not cycles, "\n".join(cycles)
+
+
+def test_imports_inside_functions_go_down_or_are_known():
+    bad = _upward(INNER) - set(KNOWN_UPWARD)
+    assert not bad, ("new upward imports inside functions (import from a lower layer, or "
+                     "move the code):\n" + "\n".join(f"{a} -> {b}" for a, b in sorted(bad)))
+    gone = set(KNOWN_UPWARD) - _upward(INNER)
+    assert not gone, "fixed, remove from KNOWN_UPWARD: " + ", ".join(map(str, sorted(gone)))
+
+
+def test_the_checker_sees_an_upward_import():
+    # a test that cannot fail is none: the checker must flag these
+    assert _upward({("fdwall.physics.air", "fdwall.solver.native")})
+    assert _upward({("fdwall.analyses.enclosure", "fdwall.analyses.study")})
+    assert not _upward({("fdwall.analyses.sizing", "fdwall.analyses.safety")})
+    assert ("fdwall.solver.kernels", "fdwall.physics.convection") in TOP
+
+
+def test_the_kernels_know_nothing_of_files_or_cases():
+    # DESIGN.md: the kernels know nothing of TOML, units or files; the model knows no numba
+    for m in ("fdwall.solver.kernels", "fdwall.solver.post", "fdwall.solver.layout"):
+        for a, b in TOP | INNER:
+            if a == m:
+                assert layer(b) <= 2 or b.startswith("fdwall.solver"), (a, b)
+    for m in ("fdwall.model", "fdwall.schedule", "fdwall.materials.material", "fdwall.case.loader"):
+        for node in ast.walk(ast.parse(MODS[m].read_text())):
+            if isinstance(node, ast.Import):
+                assert not any(a.name.split(".")[0] == "numba" for a in node.names), m
+            elif isinstance(node, ast.ImportFrom):
+                assert (node.module or "").split(".")[0] != "numba", m
