@@ -22,12 +22,11 @@ import hashlib
 import importlib
 import os
 import pathlib
-import shutil
 import sys
-import tempfile
 
 import numpy as np
 
+from . import aot
 from . import kernels as _kernels
 from .kernels import *  # noqa: F401,F403  (state and stats layouts, constants)
 
@@ -36,6 +35,7 @@ _PKG = pathlib.Path(__file__).resolve().parent.parent   # the fdwall package fol
 
 # Source files the compiled entry points are made from (relative to the package).
 SOURCES = ("solver/kernels.py", "solver/layout.py", "solver/post.py", "solver/native.py",
+           "solver/aot.py",
            "physics/convection.py", "physics/air.py", "physics/radiation.py")
 
 # Argument codes: f float64, i int64, b boolean; F1/F2/F3 float64 and I1/I2 int64 C-ordered
@@ -199,67 +199,16 @@ MODE, STATUS = _bind()
 
 
 # ---------------------------------------------------------------------------------- building
-def _numba_type(code):
-    from numba import types as nt
-    if code == "f":
-        return nt.float64
-    if code == "i":
-        return nt.int64
-    if code == "b":
-        return nt.boolean
-    if code == "none":
-        return nt.none
-    if code.startswith("("):
-        return nt.Tuple([_numba_type(c) for c in code[1:-1].split(",")])
-    base = nt.float64 if code[0] == "F" else nt.int64
-    return nt.Array(base, int(code[1]), "C")
-
-
 def build(verbose: bool = False) -> pathlib.Path:
     """Compile every entry point ahead of time into the extension module; return its path.
 
-    Needs a C compiler (numba builds the module wrapper with the platform's toolchain).  The
-    module is written to a temporary folder and moved into place in one step, so a failed or
-    interrupted build leaves any previous module untouched.  Takes tens of seconds.
+    Needs a C compiler.  The compile step itself lives in :mod:`fdwall.solver.aot` (the only
+    module that knows the ahead-of-time tool); this gathers what it compiles: the entry
+    points, their argument codes and the fingerprint of the sources.  Takes tens of seconds.
     """
-    import warnings
-
-    from numba.core.errors import NumbaPendingDeprecationWarning
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", NumbaPendingDeprecationWarning)
-        from numba.pycc import CC
-    dest_dir = pathlib.Path(__file__).resolve().parent
     jits = _jit_functions()
-    fp = fingerprint()
-    with tempfile.TemporaryDirectory(dir=dest_dir, prefix=".build-") as tmp:
-        cc = CC(MODULE)
-        cc.output_dir = tmp
-        cc.target_cpu = _host_cpu()[0]
-        cc.verbose = verbose
-        for name, (_, spec, ret) in ENTRIES.items():
-            sig = _numba_type(ret)(*[_numba_type(c) for c in _codes(spec)])
-            cc.export(name, sig)(jits[name].py_func)
-
-        def _fingerprint():
-            return fp
-        from numba import types as nt
-        cc.export("fingerprint", nt.int64())(_fingerprint)
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", NumbaPendingDeprecationWarning)
-            cc.compile()
-        built = [p for p in pathlib.Path(tmp).iterdir() if p.name.startswith(MODULE + ".")]
-        if len(built) != 1:
-            raise RuntimeError(f"the compiler produced {[p.name for p in built]}, "
-                               f"expected one {MODULE} extension module")
-        final = dest_dir / built[0].name
-        stamp = pathlib.Path(tmp) / "stamp"
-        stamp.write_text(f"{fp}\n")
-        # the old stamp goes first: between the two moves no stamp matches a wrong module
-        _stamp_path().unlink(missing_ok=True)
-        os.replace(built[0], final)
-        os.replace(stamp, _stamp_path())
-    # stale modules under other names (another Python version) are left alone; clear any
-    # leftover build folders of interrupted builds
-    for p in dest_dir.glob(".build-*"):
-        shutil.rmtree(p, ignore_errors=True)
-    return final
+    entries = {name: (jits[name].py_func, _codes(spec), ret)
+               for name, (_, spec, ret) in ENTRIES.items()}
+    return aot.build_extension(MODULE, entries, fingerprint(),
+                               pathlib.Path(__file__).resolve().parent, _stamp_path(),
+                               _host_cpu()[0], verbose=verbose)

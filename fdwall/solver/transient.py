@@ -15,8 +15,8 @@ import time as _time
 import numpy as np
 
 from ..errors import ConvergenceError, Interrupted
-from ..model import Case
-from ..system import System, build_system
+from ..model import Case, ModelError
+from ..system import System, build_system, locate_depth
 from . import native as K
 from .layout import (
     CF_SENSOR_W,
@@ -66,11 +66,9 @@ def event_rows(system: System, case: Case):
     evs = case.run.events
     ev_i = np.zeros((len(evs), 2), dtype=np.int64)
     ev_f = np.zeros((len(evs), 2))
-    from ..system import locate_depth
     for e, ev in enumerate(evs):
         if ev.where == "chamber":
             if not system.has_chamber:
-                from ..model import ModelError
                 raise ModelError(f"event '{ev.name}' watches the chamber, but the case has none")
             ev_i[e, EV_NODE_A] = ev_i[e, EV_NODE_B] = system.n_nodes
             ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = 1.0, ev.threshold
@@ -87,7 +85,6 @@ def event_rows(system: System, case: Case):
         elif ev.where.startswith("interface:"):
             n = int(ev.where.split(":")[1])
             if not 1 <= n <= len(m.interface_nodes):
-                from ..model import ModelError
                 raise ModelError(f"event '{ev.name}': interface {n} does not exist "
                                  f"(1..{len(m.interface_nodes)})")
             a = b = o + m.interface_nodes[n - 1]
@@ -165,7 +162,6 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     if control_state is not None:
         prev = np.asarray(control_state, dtype=float)
         if prev.shape != cs.shape:
-            from ..model import ModelError
             raise ModelError(f"control_state must be Result.control_state (length {cs.size})")
         for i in (K.CS_U, K.CS_ON, K.CS_INT, K.CS_PREV, K.CS_NEXT, K.CS_OFF):
             cs[i] = prev[i]
