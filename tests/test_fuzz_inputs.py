@@ -20,12 +20,11 @@ from pathlib import Path
 import pytest
 from hypothesis import given
 from hypothesis import strategies as st
+from study_cases import ONE_LAYER_WALL
 
 import fdwall
 from fdwall.errors import InputError
 from fdwall.units import check_unit_text, parse_quantity
-
-from study_cases import ONE_LAYER_WALL
 
 CORPUS = Path(__file__).parent / "data" / "fuzz"
 CASES = sorted((Path(__file__).parent.parent / "cases").glob("*.toml"))
@@ -148,3 +147,12 @@ def test_profiles_are_registered():
     prof = settings()
     expected = 20_000 if os.environ.get("FDWALL_FUZZ") == "long" else 300
     assert prof.max_examples == expected
+
+
+@pytest.mark.parametrize("text", ["0d0", "1 m0", "1 m^0", "1 m**0", "1 m^(0/2)", "1 m^-0",
+                                  "2 (m)^0", "1 m^(3/0)"])
+def test_zero_and_undefined_powers_are_refused(text):
+    # found by the long fuzzing profile: a power of zero (or a zero denominator) once ended in
+    # a KeyError from inside the unit library
+    with pytest.raises(InputError, match="fuzz.key"):
+        parse_quantity(text, "length", "fuzz.key", file="fuzz.toml")
