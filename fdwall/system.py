@@ -78,7 +78,6 @@ from .solver.layout import (
 __all__ = ["System", "build_system"]
 
 
-
 def _integrated(T, k, c):
     """Rows T [K], k [W/m/K], K = int k dT [W/m], c [J/m3/K], H = int c dT [J/m3]."""
     if T.size < 2:
