@@ -673,9 +673,20 @@ def _simulate(case, power, duration, n_points, initial=None):
     return c2, res, np.asarray(res.times, dtype=float), np.asarray(T, dtype=float), tp, pp, T_amb
 
 
-def _implied_for_compare(case):
-    """rc_analysis numbers of ``case`` (its own steady state) that a fit is compared with."""
-    r = rc_analysis(case)
+def _implied_for_compare(case, power, duration):
+    """rc_analysis numbers that a fit is compared with: at the steady state of ``case`` when
+    it has heat flowing there, else under the largest power of the history [W] held."""
+    try:
+        r = rc_analysis(case)
+    except ValueError:
+        tp, pp = _power_steps(power, duration)
+        if not np.any(pp > 0):
+            raise InputError("simulated_fit: the power history is zero throughout and the "
+                             "case has no heat flowing at its steady state, so there is no R "
+                             "or C to compare with; give a power.") from None
+        r = rc_analysis(_driven_case(case, np.array([0.0]), np.array([pp.max()]), duration,
+                                     case.run.initial if np.ndim(case.run.initial) == 0
+                                     else 293.15, 10))
     return {k: r.get(k) for k in ("R_K_per_W", "C_stored_J_per_K", "C_total_J_per_K",
                                   "C_effective_J_per_K", "tau_s", "first_moment_tau_s",
                                   "T_hot_K", "T_amb_K", "Q_W")} | {
@@ -720,7 +731,7 @@ def simulated_fit(case, power, duration, *, R=None, initial=None, n_points=400) 
         ``t_s`` [s], ``T_K`` [K] the simulated curve, ``T_amb_K`` [K], ``duration_s`` [s],
         ``energy_residual_relative`` [-] of the run.
     """
-    implied = _implied_for_compare(case)
+    implied = _implied_for_compare(case, power, float(duration))
     c2, res, t, T, tp, pp, T_amb = _simulate(case, power, float(duration), n_points, initial)
     free = _fit_history(t, T, tp, pp, T_amb)
     Rfix = float(implied["R_K_per_W"] if R is None else R)
@@ -769,7 +780,7 @@ def fit_vs_log_length(case, power, lengths, *, R=None, points_per_log=200) -> di
     if not L or L[0] <= 0 or not all(math.isfinite(x) for x in L):
         raise InputError("fit_vs_log_length: the log lengths must be positive times [s].")
     n_points = int(min(max(points_per_log * L[-1] / L[0], 400), 20000))
-    implied = _implied_for_compare(case)
+    implied = _implied_for_compare(case, power, L[-1])
     c2, res, t, T, tp, pp, T_amb = _simulate(case, power, L[-1], n_points)
     Rfix = float(implied["R_K_per_W"] if R is None else R)
     rows = []
