@@ -379,6 +379,13 @@ def _rc_notes(rc, modes, case) -> list:
         notes.append(f"The wall is not one exponential: its slowest time constant is "
                      f"{slow:.4g} s, the first-moment time constant {tau1:.4g} s and R C_stored "
                      f"{rc['tau_s']:.4g} s; a one-node fit can only match one of them.")
+    Rd = modes.get("R_heated_K_per_W")
+    if Rd is not None and abs(Rd / rc["R_K_per_W"] - 1) > 0.005:
+        notes.append(f"The time constants, C_effective and the networks come from the wall "
+                     f"linearised at the operating point: their resistance is the differential "
+                     f"dT/dQ there, {Rd:.4g} K/W, not the secant R = (T_hot - T_amb)/Q = "
+                     f"{rc['R_K_per_W']:.4g} K/W; the two differ because radiation or k(T) "
+                     f"make the loss grow faster than the temperature rise.")
     notes.append("R and C hold at this operating point only: radiation loss grows roughly as "
                  "T^3 and k(T) of insulation rises with temperature, so R falls as the wall "
                  "runs hotter, and cp(T) moves C. Compare a fit with the numbers at the "
@@ -400,7 +407,8 @@ def rc_analysis(case, t=None, networks=None) -> dict:
         = R C_stored [s], ``T_hot_K``, ``T_amb_K`` [K], ``Q_W`` [W], ``stored_J`` [J],
         ``time_constants_s`` (list, slowest first) [s], ``first_moment_tau_s`` [s] and
         ``C_effective_J_per_K`` [J/K] of the heated node (None when it is held at a fixed
-        temperature), ``mode_R_K_per_W`` (list, the heated node's resistance in each mode)
+        temperature), ``R_differential_K_per_W`` (dT/dQ of the linearised wall) [K/W],
+        ``mode_R_K_per_W`` (list, the heated node's resistance in each mode)
         [K/W], ``n_unknowns``, ``notes`` (list of plain-language strings) and, with
         ``networks``, ``networks`` (the dict of :func:`rc_networks`).
     """
@@ -414,6 +422,7 @@ def rc_analysis(case, t=None, networks=None) -> dict:
                 "first_moment_tau_s": modes.get("first_moment_tau_s"),
                 "C_effective_J_per_K": modes.get("C_effective_J_per_K"),
                 "n_unknowns": modes["n_unknowns"]})
+    out["R_differential_K_per_W"] = modes.get("R_heated_K_per_W")
     if "mode_R_K_per_W" in modes:
         out["mode_R_K_per_W"] = [float(x) for x in modes["mode_R_K_per_W"]]
     out["notes"] = _rc_notes(out, modes, case)
@@ -479,12 +488,17 @@ def foster_fit(time_constants_s, mode_R_K_per_W, n_terms=4, per_decade=4, t=None
         best = None
         for i in range(len(taus) - 1):  # greedy: the merge whose refit fits best
             Rn = Rs[i] + Rs[i + 1]
-            tn = (Rs[i] * taus[i] + Rs[i + 1] * taus[i + 1]) / Rn
+            tn = ((Rs[i] * taus[i] + Rs[i + 1] * taus[i + 1]) / Rn if Rn > 0
+                  else math.sqrt(taus[i] * taus[i + 1]))
             tt = taus[:i] + [tn] + taus[i + 2:]
             Rt, res = nnls(basis(tt), y)
             if best is None or res < best[0]:
                 best = (res, tt, list(Rt))
         _, taus, Rs = best
+        # a refit may zero a term: drop it (its time constant carries nothing)
+        pos = [j for j, r in enumerate(Rs) if r > 0]
+        if pos:
+            taus, Rs = [taus[j] for j in pos], [Rs[j] for j in pos]
     taus = np.asarray(taus)
     Rs, _ = nnls(basis(taus), y)
     ok = Rs > 0
