@@ -674,7 +674,7 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
         raise InputError(f"simulated_fit: {exc}") from None
 
 
-def _simulate(case, power, duration, n_points, initial=None):
+def _simulate(case, power, duration, n_points, initial=None, progress=False):
     from ..solver.transient import run as run_transient
     from ..system import build_system
     tp, pp = _power_steps(power, duration)
@@ -682,7 +682,7 @@ def _simulate(case, power, duration, n_points, initial=None):
     T_amb = _ambient(case, sysm0, 0.0)
     T_start = T_amb if initial is None else float(initial)
     c2 = _driven_case(case, tp, pp, duration, T_start, int(n_points))
-    res = run_transient(c2, progress=False)
+    res = run_transient(c2, progress=progress)
     T = res.chamber_T if res.system.has_chamber else res.face_T[:, 0]
     return c2, res, np.asarray(res.times, dtype=float), np.asarray(T, dtype=float), tp, pp, T_amb
 
@@ -707,7 +707,8 @@ def _implied_for_compare(case, power, duration):
         "slowest_time_constant_s": r["time_constants_s"][0] if r["time_constants_s"] else None}
 
 
-def simulated_fit(case, power, duration, *, R=None, initial=None, n_points=400) -> dict:
+def simulated_fit(case, power, duration, *, R=None, initial=None, n_points=400,
+                  progress=False) -> dict:
     """The one-node fit that fdwall's own simulated curve gives, like for like with a log.
 
     ``case`` is run from a uniform start (default its ambient) with its heat input replaced by
@@ -733,6 +734,8 @@ def simulated_fit(case, power, duration, *, R=None, initial=None, n_points=400) 
         Uniform start temperature [K] (default the ambient).
     n_points : int
         Number of curve points [-].
+    progress : bool or None
+        Progress bar of the run (None: only for long runs), as ``fdwall.run``.
 
     Returns
     -------
@@ -746,7 +749,8 @@ def simulated_fit(case, power, duration, *, R=None, initial=None, n_points=400) 
         ``energy_residual_relative`` [-] of the run.
     """
     implied = _implied_for_compare(case, power, float(duration))
-    c2, res, t, T, tp, pp, T_amb = _simulate(case, power, float(duration), n_points, initial)
+    c2, res, t, T, tp, pp, T_amb = _simulate(case, power, float(duration), n_points, initial,
+                                             progress)
     free = _fit_history(t, T, tp, pp, T_amb)
     Rfix = float(implied["R_K_per_W"] if R is None else R)
     fixed = _fit_history(t, T, tp, pp, T_amb, R=Rfix)
@@ -759,7 +763,8 @@ def simulated_fit(case, power, duration, *, R=None, initial=None, n_points=400) 
             "energy_residual_relative": float(res.relative_residual)}
 
 
-def fit_vs_log_length(case, power, lengths, *, R=None, points_per_log=200) -> dict:
+def fit_vs_log_length(case, power, lengths, *, R=None, points_per_log=200,
+                      progress=False) -> dict:
     """How the one-node C fitted to fdwall's own simulated curve depends on the log length.
 
     One run of ``case`` under the power history (as :func:`simulated_fit`) to the longest of
@@ -778,6 +783,8 @@ def fit_vs_log_length(case, power, lengths, *, R=None, points_per_log=200) -> di
         Resistance for the fixed-R fits [K/W] (default the implied R).
     points_per_log : int
         Curve points in the shortest log (at least) [-].
+    progress : bool or None
+        Progress bar of the run (None: only for long runs), as ``fdwall.run``.
 
     Returns
     -------
@@ -795,7 +802,7 @@ def fit_vs_log_length(case, power, lengths, *, R=None, points_per_log=200) -> di
         raise InputError("fit_vs_log_length: the log lengths must be positive times [s].")
     n_points = int(min(max(points_per_log * L[-1] / L[0], 400), 20000))
     implied = _implied_for_compare(case, power, L[-1])
-    c2, res, t, T, tp, pp, T_amb = _simulate(case, power, L[-1], n_points)
+    c2, res, t, T, tp, pp, T_amb = _simulate(case, power, L[-1], n_points, progress=progress)
     Rfix = float(implied["R_K_per_W"] if R is None else R)
     rows = []
     for Ln in L:

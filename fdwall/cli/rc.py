@@ -5,6 +5,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..errors import SolverError
 from . import common
 from .common import EXIT_NOT_CONVERGED, EXIT_OK, InputError
 
@@ -142,7 +143,13 @@ def cmd_rc(args) -> int:
         ll = None
         if lengths is not None:
             P = r["Q_W"] if power is None else power
-            ll = fit_vs_log_length(case, P, lengths)
+            try:
+                ll = fit_vs_log_length(case, P, lengths,
+                                       progress=False if args.quiet else args.progress)
+            except SolverError as exc:
+                common.error(f"the simulated heating log of '{args.case}' for --log-lengths "
+                             f"did not finish, so no log-length fits: {exc}")
+                return EXIT_NOT_CONVERGED
             ll["power_W"] = float(P)
     except common._input_errors() as exc:
         raise InputError(common._names_file(str(exc), args.case)) from None
@@ -272,5 +279,5 @@ def register(sub) -> None:
     p.add_argument("--log-power", metavar="POWER", default=None,
                    help='power of that step, e.g. "300 W" (default: the heat flow of the '
                         "steady state)")
-    common.add_output_options(p, plots=True, progress=False)
+    common.add_output_options(p, plots=True, progress=True)
     p.set_defaults(func=cmd_rc)
