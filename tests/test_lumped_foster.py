@@ -47,7 +47,7 @@ def test_modal_expansion_matches_series(modes):
 def test_foster_reproduces_step_response(modes, n, tol):
     # nnls Foster network with n positive terms: its stated error holds against the modes and
     # it reproduces the series solution within that error plus the mesh error (0.14 %); the
-    # resistances sum to R = L/k (measured errors: n=3 0.71 %, n=4 0.37 %, n=6 0.06 %)
+    # resistances sum to R = L/k (measured errors: n=3 0.42 %, n=4 0.12 %, n=6 0.009 %)
     f = foster_fit(modes["time_constants_s"], modes["mode_R_K_per_W"], n_terms=n)
     assert len(f["tau_s"]) <= n
     assert np.all(f["R_K_per_W"] > 0) and np.all(f["C_J_per_K"] > 0)

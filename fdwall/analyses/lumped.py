@@ -456,7 +456,8 @@ def foster_fit(time_constants_s, mode_R_K_per_W, n_terms=4, per_decade=4, t=None
     found by scipy.optimize.nnls; adjacent terms are then merged (R added, tau the R-weighted
     mean, which keeps the first moment sum R tau), each time the pair whose merge refits
     best, until ``n_terms`` remain, and the R are refitted by nnls on the merged time
-    constants.
+    constants.  Finally the time constants are polished by scipy.optimize.least_squares on
+    their logarithms (with the R from nnls at each step), kept when that fits better.
 
     Returns
     -------
@@ -500,7 +501,25 @@ def foster_fit(time_constants_s, mode_R_K_per_W, n_terms=4, per_decade=4, t=None
         if pos:
             taus, Rs = [taus[j] for j in pos], [Rs[j] for j in pos]
     taus = np.asarray(taus)
-    Rs, _ = nnls(basis(taus), y)
+    Rs, res0 = nnls(basis(taus), y)
+    # polish: move the time constants too (variable projection: R by nnls for given taus,
+    # log taus by scipy.optimize.least_squares); kept only when it fits better
+    from scipy.optimize import least_squares
+
+    def vp(x):
+        A = basis(np.exp(x))
+        return A @ nnls(A, y)[0] - y
+
+    try:
+        sol = least_squares(vp, np.log(taus), method="trf", x_scale=1.0, max_nfev=200)
+        tp = np.exp(sol.x)
+        Rp, resp = nnls(basis(tp), y)
+        if resp < res0 and np.all(np.isfinite(tp)):
+            taus, Rs = tp, Rp
+    except (ValueError, RuntimeError, np.linalg.LinAlgError):  # pragma: no cover - keep merge
+        pass
+    order = np.argsort(taus)
+    taus, Rs = taus[order], Rs[order]
     ok = Rs > 0
     taus, Rs = taus[ok][::-1], Rs[ok][::-1]
     err = float(np.max(np.abs(basis(taus) @ Rs - y))) if taus.size else float(np.max(y))
