@@ -109,11 +109,21 @@ def test_bad_power_history():
         simulated_fit(_slab(8), ([10.0, 20.0], [1.0, 2.0]), 100.0)
     with pytest.raises(InputError, match="negative"):
         simulated_fit(_slab(8), -5.0, 100.0)
-    with pytest.raises(InputError, match="fixed temperature"):
-        case = Case(run=RunSettings(duration=10.0, initial=AMB),
-                    wall=Wall((Layer(SOLID, L, cells=8),)), inner=Face.fixed(350.0),
-                    outer=Face.fixed(AMB))
-        simulated_fit(case, 5.0, 100.0, R=1.0)
+    with pytest.raises(InputError, match="increase strictly"):
+        simulated_fit(_slab(8), ([0.0, 20.0, 20.0], [1.0, 2.0, 3.0]), 100.0)
+
+
+def test_held_inner_face_is_driven_by_the_power():
+    # A single wall whose inner face is held (here at 70 degC) is driven by the power history
+    # instead: its curve is the series solution of the flux-heated slab (see _series), and
+    # the implied values are those of that wall (R = L/k).
+    case = Case(run=RunSettings(duration=10.0, initial=AMB),
+                wall=Wall((Layer(SOLID, L, cells=40),)), inner=Face.fixed(AMB + 50.0),
+                outer=Face.fixed(AMB), name="rc-held")
+    r = simulated_fit(case, Q, 2 * TAU1)
+    assert np.max(np.abs(r["T_K"] - (AMB + Q * _series(r["t_s"])))) < 2e-3 * Q * L
+    assert r["implied"]["R_K_per_W"] == pytest.approx(L, rel=1e-6)
+    assert r["implied"]["C_effective_J_per_K"] == pytest.approx(1e6 * L / 3, rel=2e-3)
 
 
 def test_thick_two_layer_wall_fit_converges_to_C_effective():

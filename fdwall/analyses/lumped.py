@@ -393,12 +393,30 @@ def _rc_notes(rc, modes, case) -> list:
     return notes
 
 
+def _pure_flux(face) -> bool:
+    """True when a face has nothing but (at most) an imposed flux."""
+    return (face.temperature is None and face.fluid is None and face.convection is None
+            and face.emissivity is None)
+
+
+def _flux_inner(case, flux):
+    """``case`` with its inner face replaced by the imposed flux ``flux`` [W/m2] (a number or
+    a Schedule), touch marks kept."""
+    from ..model import Face
+    f = case.inner
+    return replace(case, inner=Face(flux=flux, touch=f.touch, surface_class=f.surface_class))
+
+
 def rc_analysis(case, t=None, networks=None) -> dict:
     """Lumped R/C of ``case`` from the physics of its walls, with its time constants.
 
     Gathers :func:`implied_rc` (at the steady state at time ``t`` [s], default as there) and
     :func:`wall_time_constants` (linearised at that same steady state); with ``networks`` = N
-    also the N-pair Foster and Cauer networks of the heated node (:func:`rc_networks`).
+    also the N-pair Foster and Cauer networks of the heated node (:func:`rc_networks`).  For a
+    single wall the input is the heat flow into the inner face, as in :func:`implied_rc`: the
+    inner face's own conditions (a fixed temperature, a film or radiation to a hot fluid) are
+    the source side and are replaced by that flow for the linearisation, so the time
+    constants are those of the wall heated by a flux at its inner face.
 
     Returns
     -------
@@ -417,7 +435,13 @@ def rc_analysis(case, t=None, networks=None) -> dict:
 
     out = implied_rc(case, t=t)
     st = solve_steady(case, t=t, system=build_system(case))
-    modes = wall_time_constants(case, T_op=st.T, t=st.time)
+    lin = case
+    if not case.is_enclosure and case.heater is None and not _pure_flux(case.inner):
+        # the single wall's input is the heat flow into its inner face: linearise the wall
+        # driven by that flow (the inner face's own fixed temperature, film or radiation is
+        # the source side, as in implied_rc), at the same steady profile
+        lin = _flux_inner(case, out["Q_W"] / case.wall.inner_area)
+    modes = wall_time_constants(lin, T_op=st.T, t=st.time)
     out.update({"time_constants_s": [float(x) for x in modes["time_constants_s"]],
                 "first_moment_tau_s": modes.get("first_moment_tau_s"),
                 "C_effective_J_per_K": modes.get("C_effective_J_per_K"),
@@ -682,13 +706,8 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
             else:
                 heater = replace(case.heater, power=sched, voltage_ratio=1.0, alpha=0.0)
             return replace(case, run=run, heater=heater, control=Control())
-        if case.inner.temperature is not None:
-            raise InputError("simulated_fit: the inner face of this single wall is held at a "
-                             "fixed temperature, so no power history can drive it; give it a "
-                             "heat flux (or a heater) instead.")
         A = case.wall.inner_area
-        return replace(case, run=run,
-                       inner=replace(case.inner, flux=Schedule(kt, [v / A for v in kv])))
+        return replace(_flux_inner(case, Schedule(kt, [v / A for v in kv])), run=run)
     except ModelError as exc:  # pragma: no cover - the power history was validated above
         raise InputError(f"simulated_fit: {exc}") from None
 
@@ -732,7 +751,7 @@ def simulated_fit(case, power, duration, *, R=None, initial=None, n_points=400,
 
     ``case`` is run from a uniform start (default its ambient) with its heat input replaced by
     the power history (no control: the heater of an enclosure, else a flux into the inner face
-    of a single wall), for the log length ``duration``; the heated node's curve (chamber, or
+    of a single wall, which replaces that face's own conditions), for the log length ``duration``; the heated node's curve (chamber, or
     inner face) is fitted by the one-node model under the same power history, with R and C
     free and with R fixed (``R`` [K/W], default the implied R of ``case``: the field practice
     of reading R off the equilibrium).
