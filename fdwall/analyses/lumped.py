@@ -450,6 +450,13 @@ def rc_analysis(case, t=None, networks=None) -> dict:
     if "mode_R_K_per_W" in modes:
         out["mode_R_K_per_W"] = [float(x) for x in modes["mode_R_K_per_W"]]
     out["notes"] = _rc_notes(out, modes, case)
+    if lin is not case:
+        out["notes"].insert(0, "This single wall's inner face is not driven by a plain heat "
+                            "flux; the wall's input is taken as the heat flow into that face "
+                            f"({out['Q_W']:.4g} W at the steady state), so its time constants, "
+                            "C_effective and networks are those of the wall heated by a flux at "
+                            "its inner face, the face's own held temperature, film or radiation "
+                            "being the source side.")
     if networks is not None:
         if "mode_R_K_per_W" not in modes:
             raise InputError("rc networks: the heated node is held at a fixed temperature, so "
