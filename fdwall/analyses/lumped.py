@@ -837,7 +837,9 @@ def fit_vs_log_length(case, power, lengths, *, R=None, points_per_log=200,
         ``rows``: one dict per length with ``log_length_s`` [s], ``C_fit_J_per_K``,
         ``R_fit_K_per_W``, ``corr_logR_logC``, ``C_fit_R_fixed_J_per_K`` [J/K], ``rms_K``,
         ``rms_R_fixed_K`` [K] and the ratios ``C_R_fixed_over_C_effective``,
-        ``C_R_fixed_over_C_stored``, ``C_R_fixed_over_C_total`` [-]; ``implied`` (as in
+        ``C_R_fixed_over_C_stored``, ``C_R_fixed_over_C_total`` [-], ``below_slowest_tau``
+        (True when the log is shorter than the slowest time constant: equilibrium not in
+        sight, R and C of the free fit not separately determined); ``implied`` (as in
         :func:`simulated_fit`); ``closest`` the implied C nearest the fixed-R fit of the
         longest log (``"C_effective"``, ``"C_stored"`` or ``"C_total"``);
         ``R_fixed_K_per_W`` [K/W]; ``energy_residual_relative`` [-] of the run.
@@ -865,7 +867,9 @@ def fit_vs_log_length(case, power, lengths, *, R=None, points_per_log=200,
                      "C_R_fixed_over_C_effective": Cf / implied["C_effective_J_per_K"]
                      if implied["C_effective_J_per_K"] else None,
                      "C_R_fixed_over_C_stored": Cf / implied["C_stored_J_per_K"],
-                     "C_R_fixed_over_C_total": Cf / implied["C_total_J_per_K"]})
+                     "C_R_fixed_over_C_total": Cf / implied["C_total_J_per_K"],
+                     "below_slowest_tau": bool(implied["slowest_time_constant_s"] is not None
+                                               and Ln < implied["slowest_time_constant_s"])})
     last = rows[-1]["C_fit_R_fixed_J_per_K"]
     cands = {k: implied[f"{k}_J_per_K"] for k in ("C_effective", "C_stored", "C_total")
              if implied.get(f"{k}_J_per_K")}

@@ -124,7 +124,11 @@ def format_log_lengths(ll) -> str:
         L.append(f"    {fmt_time(r['log_length_s']):>12s}  {r['C_fit_R_fixed_J_per_K']:12.5g}"
                  f"  {'-' if ce is None else format(ce, '6.3f'):>6s}  "
                  f"{r['C_R_fixed_over_C_stored']:8.3f}  {r['C_fit_J_per_K']:13.5g}"
-                 f"  {r['R_fit_K_per_W']:9.4g}")
+                 f"  {r['R_fit_K_per_W']:9.4g}{' *' if r.get('below_slowest_tau') else ''}")
+    if any(r.get("below_slowest_tau") for r in ll["rows"]):
+        L.append("    * log shorter than the slowest time constant "
+                 f"({fmt_time(imp['slowest_time_constant_s'])}): no equilibrium in sight, so "
+                 "the fitted R (and the C fitted with it) is not a property of the wall")
     L.append(f"    the longest log's C is closest to {ll['closest']} "
              f"(C_effective {imp['C_effective_J_per_K'] or float('nan'):.5g}, C_stored "
              f"{imp['C_stored_J_per_K']:.5g}, C_total {imp['C_total_J_per_K']:.5g} J/K)")
@@ -200,7 +204,7 @@ def cmd_rc(args) -> int:
     if ll is not None:
         cols = ("log_length_s", "C_fit_R_fixed_J_per_K", "C_fit_J_per_K", "R_fit_K_per_W",
                 "rms_K", "rms_R_fixed_K", "C_R_fixed_over_C_effective",
-                "C_R_fixed_over_C_stored", "C_R_fixed_over_C_total")
+                "C_R_fixed_over_C_stored", "C_R_fixed_over_C_total", "below_slowest_tau")
         tables["log_lengths"] = {c: [np.nan if row[c] is None else row[c]
                                      for row in ll["rows"]] for c in cols}
         summary["log_power_W"] = ll["power_W"]
