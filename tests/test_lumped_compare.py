@@ -82,6 +82,10 @@ def test_fitted_C_against_log_length_converges_to_C_effective():
     assert out["rows"][0]["C_R_fixed_over_C_effective"] < 0.65
     assert out["rows"][-1]["C_R_fixed_over_C_effective"] == pytest.approx(0.978, abs=0.01)
     assert out["rows"][-1]["C_R_fixed_over_C_stored"] < 0.7
+    # logs shorter than the slowest mode (tau_1 above, closed form) are flagged (the row at
+    # exactly tau_1 may go either way: the mesh's tau_1 is 0.02 % longer)
+    flags = [r["below_slowest_tau"] for r in out["rows"]]
+    assert flags[0] and not any(flags[2:])
 
 
 def test_enclosure_with_light_walls_is_one_node():
