@@ -30,6 +30,8 @@ import numpy as np
 
 from fdwall.analyses.networks import cauer_from_foster, cauer_step_response, foster_step_response
 from fdwall.errors import InputError
+from fdwall.model import Control, Face, Heater, ModelError
+from fdwall.schedule import Schedule
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
            "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
@@ -402,7 +404,6 @@ def _pure_flux(face) -> bool:
 def _flux_inner(case, flux):
     """``case`` with its inner face replaced by the imposed flux ``flux`` [W/m2] (a number or
     a Schedule), touch marks kept."""
-    from ..model import Face
     f = case.inner
     return replace(case, inner=Face(flux=flux, touch=f.touch, surface_class=f.surface_class))
 
@@ -696,8 +697,6 @@ def _fit_history(t, T, tp, pp, T_amb, R=None):
 def _driven_case(case, tp, pp, duration, initial, n_points):
     """``case`` with its heat input replaced by the power history (no control) and a run of
     ``duration`` [s] from a uniform ``initial`` [K] with ``n_points`` outputs."""
-    from ..model import Control, Heater, ModelError
-    from ..schedule import Schedule
     kt, kv = [], []
     for i in range(tp.size):
         kt += [tp[i], tp[i + 1] if i + 1 < tp.size else max(duration, tp[i])]
