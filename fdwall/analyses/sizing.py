@@ -706,7 +706,7 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
         raise InputError(f"no thickness up to {t_max * 1000:.0f} mm meets the targets; "
                          + "; ".join(bits))
     exact = feasible[0][0]
-    ans = stock_round_up(exact, step, stock)
+    ans = _stock_answer(feasible, step, stock, t_max)
     runs = ev.runs
     tlist = []
     for tg, m in ev.values(ans):
@@ -761,6 +761,26 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
                         wall=None if wi is None else case.walls[wi].wall.name, layer=layer,
                         material=w.layers[layer].material.name, runs=runs, economic=econ,
                         critical_radius_m=crit, notes=notes)
+
+
+def _stock_answer(feasible, step, stock, t_max):
+    """Smallest stock thickness [m] lying in a feasible interval (a stock size rounded up
+    from the first root may fall in a gap between intervals, e.g. past a critical radius)."""
+    exact = feasible[0][0]
+    first = stock_round_up(exact, step, stock)
+    if stock is not None:
+        sizes = [x for x in stock if x >= first - 1e-12]
+    else:
+        n = int(math.floor(t_max / step + 1e-9))
+        sizes = [k * step for k in range(int(round(first / step)), n + 1)] or [first]
+    for x in sizes:
+        if any(lo - 1e-9 <= x <= hi + 1e-9 for lo, hi in feasible):
+            return float(x)
+    if first > t_max + 1e-12 and stock is None:
+        return float(first)    # rounding past the range end: the root itself holds
+    raise InputError(f"no stock thickness lies where all targets are met ("
+                     + ", ".join(f"{a * 1000:.1f}-{b * 1000:.1f} mm" for a, b in feasible)
+                     + "); give other stock sizes")
 
 
 def _show(tg, v):
