@@ -721,8 +721,10 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
         rows = [x for x in stock if t_min <= x <= t_max]
     else:
         rows = list(np.arange(step, t_max + 1e-12, step))
-    if ans not in rows:
-        rows = sorted(set(rows) | {ans})
+    if not any(abs(x - ans) < 1e-9 for x in rows):
+        rows = sorted(rows + [ans])
+    rows = [float(x) for x in rows]
+    rows = [x if abs(x - ans) >= 1e-9 else ans for x in rows]
     tab = _table(ev, case, wi, layer, rows, targets, energy, economics) if table else {}
     s_ans, _ = ev.steady(ans, _table_cond(targets, "skin"))
     warns = service_warnings(s_ans, w, wi)
@@ -778,7 +780,7 @@ def _stock_answer(feasible, step, stock, t_max):
             return float(x)
     if first > t_max + 1e-12 and stock is None:
         return float(first)    # rounding past the range end: the root itself holds
-    raise InputError(f"no stock thickness lies where all targets are met ("
+    raise InputError("no stock thickness lies where all targets are met ("
                      + ", ".join(f"{a * 1000:.1f}-{b * 1000:.1f} mm" for a, b in feasible)
                      + "); give other stock sizes")
 

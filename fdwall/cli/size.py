@@ -325,7 +325,8 @@ def cmd_size(args) -> int:
     h5 = outdir / f"{stem}-size.h5"
     lunit = {"slab": "W/m2", "cylinder": "W/m"}.get(wall.geometry, "W")
     inputs = {"layer": layer, "t_min_m": tmin, "t_max_m": tmax, "conductivity_factor": kf,
-              "wall": r.wall or "", "material": r.material}
+              "wall": r.wall or "", "material": r.material, "loss_unit": lunit,
+              "stored_unit": {"W/m2": "J/m2", "W/m": "J/m"}.get(lunit, "J")}
     if energy:
         inputs.update({"hours_per_year_s": energy.hours, "supply_efficiency": energy.efficiency,
                        "energy_price_per_J": energy.price if energy.price is not None
@@ -380,6 +381,13 @@ def _c(T):
     return f"{T - 273.15:.1f} degC" if T is not None and math.isfinite(T) else "-"
 
 
+def _iface(layer, T, lim):
+    if layer is None or layer < 0:
+        return "-"
+    return f"{layer}: {_c(T)} ({_c(lim)})" if lim is not None and math.isfinite(lim) else \
+        f"{layer}: {_c(T)}"
+
+
 def _print_text(args, r, d, layer, lunit, cand_rows, heater):
     where = f" of wall '{r.wall}'" if r.wall else ""
     print(f"Sizing layer {layer} ({r.material}){where} of '{args.case}'")
@@ -404,8 +412,9 @@ def _print_text(args, r, d, layer, lunit, cand_rows, heater):
         print(f"  note: {n}")
     tab = r.table
     ekey = next((k for k in tab if k.startswith("energy_J")), None)
-    per = {"energy_J_per_m2": "m2", "energy_J_per_m": "m"}.get(ekey, "piece")
-    head = f"  {'thickness':>9}  {'skin':>10}  {'loss':>8}"
+    per = {"W/m2": "m2", "W/m": "m"}.get(lunit, "piece")
+    head = (f"  {'thickness':>9}  {'skin':>10}  {'loss':>8}  {'stored MJ':>9}  "
+            f"{'hottest layer face (limit)':>27}")
     if "warm_up_s" in tab:
         head += f"  {'peak skin':>10}  {'warm-up':>8}"
     if ekey:
@@ -414,10 +423,13 @@ def _print_text(args, r, d, layer, lunit, cand_rows, heater):
         head += f"  {'cost/yr':>9}"
     if "total_cost" in tab:
         head += f"  {'installed':>9}  {'total':>9}"
-    print(f"  trade-off (loss in {lunit}):")
+    print(f"  trade-off (loss in {lunit}, stored energy per {per} above the start "
+          "temperature):")
     print(head + "  pass")
     for i, x in enumerate(tab["thickness_m"]):
-        line = f"  {x * 1000:6.1f} mm  {_c(tab['skin_K'][i]):>10}  {tab['loss'][i]:8.4g}"
+        line = (f"  {x * 1000:6.1f} mm  {_c(tab['skin_K'][i]):>10}  {tab['loss'][i]:8.4g}  "
+                f"{tab['stored'][i] / 1e6:9.4g}  "
+                f"{_iface(tab['interface_layer'][i], tab['interface_T_K'][i], tab['interface_limit_K'][i]):>27}")
         if "warm_up_s" in tab:
             wu = tab["warm_up_s"][i]
             line += (f"  {_c(tab['skin_peak_K'][i]):>10}  "
