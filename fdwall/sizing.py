@@ -5,6 +5,7 @@ from .analyses.sizing import (
     Energy,
     LossTarget,
     PeakSkinTarget,
+    ServiceTarget,
     SizingResult,
     SkinTarget,
     WarmUpTarget,
@@ -22,7 +23,7 @@ from .analyses.sizing import (
     with_thickness,
 )
 
-__all__ = ["Conditions", "Economics", "Energy", "LossTarget", "PeakSkinTarget", "SizingResult",
+__all__ = ["Conditions", "Economics", "Energy", "LossTarget", "PeakSkinTarget", "ServiceTarget", "SizingResult",
            "SkinTarget", "WarmUpTarget", "critical_radius_cylinder", "critical_radius_sphere",
            "present_value_factor", "service_warnings", "size_candidates", "size_heater_at",
            "size_layer", "stock_round_up", "touch_target", "wall_index", "with_material",

@@ -35,7 +35,8 @@ from .enclosure import size_heater, warm_up_time
 from .safety import touch_limit
 
 __all__ = [
-    "Conditions", "SkinTarget", "LossTarget", "PeakSkinTarget", "WarmUpTarget", "Energy",
+    "Conditions", "SkinTarget", "LossTarget", "PeakSkinTarget", "WarmUpTarget", "ServiceTarget",
+    "Energy",
     "Economics", "SizingResult", "critical_radius_cylinder", "critical_radius_sphere",
     "touch_target", "service_warnings", "with_thickness", "with_material", "stock_round_up",
     "size_layer", "size_candidates", "wall_index", "present_value_factor", "size_heater_at",
@@ -186,6 +187,26 @@ class WarmUpTarget:
     def margin(self, m: dict) -> float:
         # not reached within the run: a continuous surrogate beyond the run's end [s]
         return self.limit - m["warm_up_margin_s"]
+
+
+@dataclass(frozen=True)
+class ServiceTarget:
+    """Every layer's hottest face (its hot-side interface) at or below its material's maximum
+    service temperature (steady).  ``value`` is that face's temperature [K] and ``limit`` its
+    rating [K] for the layer nearest its rating at the thickness evaluated; ``limit`` as a
+    field is unused (the ratings of the materials are the limits)."""
+    limit: float = math.nan
+    name: str = "service"
+    unit: str = "K"
+    conditions: Conditions = field(default_factory=Conditions)
+    kind = "steady"
+
+    def value(self, m: dict) -> float:
+        return m["interface_T_K"]
+
+    def margin(self, m: dict) -> float:
+        lim = m["interface_limit_K"]
+        return lim - m["interface_T_K"] if math.isfinite(lim) else math.inf
 
 
 def touch_target(surface_class: str, contact_time: float, criterion: str = "table",
@@ -590,7 +611,7 @@ def _intersect(a, b):
 
 def _check_limits(case, wi, targets):
     for tg in targets:
-        if tg.unit != "K":
+        if tg.unit != "K" or isinstance(tg, ServiceTarget):
             continue
         cond = getattr(tg, "conditions", None)
         amb = cond.ambient if cond is not None and cond.ambient is not None else None
@@ -711,7 +732,8 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
     tlist = []
     for tg, m in ev.values(ans):
         v = tg.value(m)
-        tl = {"name": tg.name, "value": v, "limit": tg.limit, "unit": tg.unit,
+        lim = m["interface_limit_K"] if isinstance(tg, ServiceTarget) else tg.limit
+        tl = {"name": tg.name, "value": v, "limit": lim, "unit": tg.unit,
               "verdict": "pass" if _margin(tg, m) >= -1e-9 else "fail"}
         cond = getattr(tg, "conditions", None)
         if cond is not None and not cond.is_default:
@@ -795,6 +817,8 @@ def _show(tg, v):
 
 def _table_cond(targets, which):
     for tg in targets:
+        if isinstance(tg, ServiceTarget):
+            continue
         if tg.kind == "steady" and (which == "skin") == (tg.unit == "K"):
             return tg.conditions
     return Conditions()

@@ -202,6 +202,7 @@ def cmd_size(args) -> int:
     from ..sizing import (
         LossTarget,
         PeakSkinTarget,
+        ServiceTarget,
         SkinTarget,
         WarmUpTarget,
         size_candidates,
@@ -249,6 +250,8 @@ def cmd_size(args) -> int:
             targets.append(touch_target(args.surface, tc, conditions=skin_c))
         except LibInputError as exc:
             raise InputError(str(exc)) from None
+    if args.service_limits:
+        targets.append(ServiceTarget())
     wlim = None
     if args.warm_up_limit:
         wlim = common.quantity(args.warm_up_limit, "time", "--warm-up-limit", positive=True)
@@ -267,8 +270,8 @@ def cmd_size(args) -> int:
                              "reach the setpoint within it).")
     if not targets:
         raise InputError("give at least one target: --skin-limit TEMPERATURE, --loss-limit "
-                         "VALUE, --contact-time TIME with --surface CLASS, or --warm-up-limit "
-                         "TIME (enclosures).")
+                         "VALUE, --contact-time TIME with --surface CLASS, --service-limits, "
+                         "or --warm-up-limit TIME (enclosures).")
     step = stock = None
     if args.stock:
         stock = common.quantity_list(args.stock, "length", "--stock", positive=True)
@@ -493,6 +496,9 @@ def register(sub) -> None:
                    help="judge --skin-limit over the case's own run (peak skin temperature)")
     p.add_argument("--warm-up-limit", metavar="TIME",
                    help='enclosures: chamber reaches its setpoint within TIME, e.g. "3 h"')
+    p.add_argument("--service-limits", action="store_true",
+                   help="target: every layer's hot face at or below its material's maximum "
+                        "service temperature")
     p.add_argument("--heater", action="store_true",
                    help="enclosures: also size the heater for --warm-up-limit at the answer")
     p.add_argument("--skin-ambient", metavar="TEMPERATURE",
