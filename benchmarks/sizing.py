@@ -11,8 +11,8 @@
 import time
 
 from fdwall.case import load_case
-from fdwall.solver import run
 from fdwall.sizing import PeakSkinTarget, SkinTarget, WarmUpTarget, size_layer
+from fdwall.solver import run
 
 
 def _best(f, n=3):
