@@ -129,3 +129,23 @@ def test_heater_sizing_at_the_answer_against_lumped_chamber():
     assert out["thickness_m"] == L
     with pytest.raises(InputError, match="enclosure"):
         size_heater_at(_slab(100.0), 0, L, tw)
+
+
+def test_transient_sizing_mesh_convergence_order():
+    # The transient answer converges to the series solution above at second order in the
+    # fixed cell count of the sized layer (vertex-centred finite volumes, second order in
+    # space); observed order log2(e_n / e_2n) on halving the cell size (Roache, Verification
+    # and Validation in Computational Science and Engineering, 1998).
+    from dataclasses import replace
+    D, Ts = 2000.0, TA + 10.0
+    L_ref = brentq(lambda L: _skin_series(L, D) - Ts, 0.005, 0.1, xtol=1e-10)
+    err = []
+    for n in (3, 6, 12):
+        c = _slab(D)
+        c = replace(c, wall=c.wall.with_layer(0, cells=n), run=replace(c.run, tolerance=1e-5))
+        r = size_layer(c, 0, [PeakSkinTarget(Ts)], step=0.005, t_max=0.2, table=False,
+                       transient_xtol=1e-8)
+        err.append(abs(r.thickness_exact_m - L_ref))
+        assert r.runs <= 15
+    orders = [math.log2(a / b) for a, b in zip(err, err[1:])]
+    assert all(1.7 < p < 2.3 for p in orders), (err, orders)

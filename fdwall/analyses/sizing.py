@@ -640,7 +640,8 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
                step: float | None = 0.025, stock=None, n_grid: int = 24,
                energy: Energy | None = None, wall=None, conductivity_factor: float = 1.0,
                economics: Economics | None = None, progress: bool | None = None,
-               n_grid_transient: int = 5, table: bool = True) -> SizingResult:
+               n_grid_transient: int = 5, table: bool = True,
+               transient_xtol: float = 1e-4) -> SizingResult:
     """Smallest thickness [m] of layer ``layer`` in [t_min, t_max] meeting all ``targets``.
 
     ``wall``: for an enclosure, the name (or index) of the wall whose layer is sized.
@@ -648,7 +649,8 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
     change is refined with scipy brentq (in log-thickness); the sized layer's cell count is
     held fixed during the search so the root finder sees no steps.  Transient targets (one run
     of the case per thickness) are bracketed on ``n_grid_transient`` thicknesses inside the
-    steady-feasible range and refined the same way to 0.1 mm, so a transient search costs
+    steady-feasible range and refined the same way to about ``transient_xtol`` [m] (default
+    0.1 mm, well below stock steps), so a transient search costs
     about ``n_grid_transient + 2 x 5`` runs at most for one crossing pair (counted in
     ``runs``); the trade-off table's runs are counted apart.  Feasible intervals (all targets
     met) are reported, so non-monotone targets are handled on the grid's resolution.
@@ -708,7 +710,7 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
             hi = max(b for _, b in feasible)
             xs = np.geomspace(lo, hi, n_grid_transient) if hi > lo * 1.001 else np.array([lo])
             gt = [gt_(x) for x in xs]
-            ft = (_intervals(gt_, xs, gt, hi, 1e-4 / max(lo, 1e-3)) if len(xs) > 1 else
+            ft = (_intervals(gt_, xs, gt, hi, transient_xtol / max(lo, 1e-3)) if len(xs) > 1 else
                   ([[lo, hi]] if gt[0] >= 0 else []))
             i = int(np.argmax(gt))
             if best is None or gt[i] < 0:
