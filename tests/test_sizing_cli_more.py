@@ -15,8 +15,9 @@ FURNACE = "cases/heat-treat-furnace.toml"
 PANEL = "cases/curing-oven-panel.toml"
 
 
-def _main(capsys, *a):
-    """In-process run (bad-input checks: no start-up cost); (exit code, stderr)."""
+def _main(capsys, *a, out=None):
+    """In-process run (bad-input checks: no start-up cost); (exit code, stderr); the stdout
+    is appended to the list ``out`` when given."""
     from fdwall.cli import main
     cwd = os.getcwd()
     os.chdir(ROOT)
@@ -24,7 +25,10 @@ def _main(capsys, *a):
         code = main(["size", *a])
     finally:
         os.chdir(cwd)
-    return code, capsys.readouterr().err
+    cap = capsys.readouterr()
+    if out is not None:
+        out.append(cap.out)
+    return code, cap.err
 
 
 def _run(*a):
@@ -87,7 +91,16 @@ def test_candidates_and_bad_names(tmp_path, capsys):
     code, err = _main(capsys, FURNACE, "--layer", "1", "--skin-limit", "45 degC", "--out",
                       str(tmp_path))
     assert code == 2 and "--wall" in err
-    for bad in (["--stock", "50 mm,25 mm"], ["--min-thickness", "90 mm", "--max-thickness",
+    # the "inch" preset: half inches to 4 in, then whole inches (1 in = 25.4 mm, NIST SP 811)
+    got = []
+    code, err = _main(capsys, PANEL, "--layer", "1", "--skin-limit", "45 degC", "--stock",
+                      "inch", "--out", str(tmp_path), "--json", "--no-plots", out=got)
+    assert code == 0, err
+    d = json.loads(got[0])
+    inch = [x * 0.0254 for x in (0.5, 1, 1.5, 2, 2.5, 3, 3.5, 4, 5, 6, 7, 8, 9, 10, 12)]
+    assert d["table"]["thickness_m"] == pytest.approx([x for x in inch if x >= 0.005])
+    assert any(abs(d["thickness_m"] - x) < 1e-12 for x in inch)
+    for bad in (["--stock", "50 mm,25 mm"], ["--loss-limit", "-5 W/m2"], ["--min-thickness", "90 mm", "--max-thickness",
                                               "50 mm"], ["--conductivity-factor", "-1"],
                 ["--years", "10"], ["--skin-wind", "3"]):
         code, err = _main(capsys, PANEL, "--layer", "1", "--skin-limit", "45 degC", "--out",

@@ -112,6 +112,11 @@ def test_design_conditions_per_target():
         assert T == pytest.approx(hot + (473.15 - hot) / R / HO, abs=0.01)
         assert q == pytest.approx((473.15 - mean) / R, rel=1e-3)
     assert r.targets[0]["conditions"] == "ambient 35.0 degC"
+    # without a loss target, the loss/energy columns still take the loss design conditions
+    r = size_layer(_slab(), 0, [SkinTarget(Ts)], step=0.05, t_max=0.3,
+                   loss_conditions=Conditions(ambient=mean))
+    for L, q in zip(r.table["thickness_m"], r.table["loss"]):
+        assert q == pytest.approx((473.15 - mean) / (L / K + 1 / HO + 1e-6), rel=1e-3)
 
 
 def test_conductivity_design_factor():

@@ -641,7 +641,8 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
                energy: Energy | None = None, wall=None, conductivity_factor: float = 1.0,
                economics: Economics | None = None, progress: bool | None = None,
                n_grid_transient: int = 5, table: bool = True,
-               transient_xtol: float = 1e-4) -> SizingResult:
+               transient_xtol: float = 1e-4, skin_conditions: Conditions | None = None,
+               loss_conditions: Conditions | None = None) -> SizingResult:
     """Smallest thickness [m] of layer ``layer`` in [t_min, t_max] meeting all ``targets``.
 
     ``wall``: for an enclosure, the name (or index) of the wall whose layer is sized.
@@ -661,6 +662,8 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
     with a price, ``cost_per_year`` [money per year, per m2 / per m / per piece]; with
     ``economics`` also ``installed_cost`` and ``total_cost`` (installed + present value of
     the energy cost), and ``economic`` names the stock thickness of least total cost.
+    ``skin_conditions`` / ``loss_conditions``: design conditions of the table's skin and loss
+    (energy, cost) columns when no skin / loss target carries its own.
     Layers driven above their maximum service temperature at the answer are warned about.
     """
     wi = wall_index(case, wall)
@@ -749,8 +752,11 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
         rows = sorted(rows + [ans])
     rows = [float(x) for x in rows]
     rows = [x if abs(x - ans) >= 1e-9 else ans for x in rows]
-    tab = _table(ev, case, wi, layer, rows, targets, energy, economics) if table else {}
-    s_ans, _ = ev.steady(ans, _table_cond(targets, "skin"))
+    conds = (_table_cond(targets, "skin", skin_conditions),
+             _table_cond(targets, "loss", loss_conditions))
+    tab = (_table(ev, case, wi, layer, rows, targets, energy, economics, conds) if table
+           else {})
+    s_ans, _ = ev.steady(ans, conds[0])
     warns = service_warnings(s_ans, w, wi)
     econ = None
     if economics is not None and tab:
@@ -817,16 +823,16 @@ def _show(tg, v):
     return f"{v:.4g} {tg.unit}"
 
 
-def _table_cond(targets, which):
+def _table_cond(targets, which, fallback=None):
     for tg in targets:
         if isinstance(tg, ServiceTarget):
             continue
         if tg.kind == "steady" and (which == "skin") == (tg.unit == "K"):
             return tg.conditions
-    return Conditions()
+    return fallback if fallback is not None else Conditions()
 
 
-def _table(ev, case, wi, layer, rows, targets, energy, economics) -> dict:
+def _table(ev, case, wi, layer, rows, targets, energy, economics, conds) -> dict:
     w = _wall(case, wi)
     tab = {"thickness_m": [], "skin_K": [], "loss": [], "stored": [], "h_conv_W_m2K": [],
            "h_rad_W_m2K": [], "interface_T_K": [], "interface_limit_K": [],
@@ -844,7 +850,7 @@ def _table(ev, case, wi, layer, rows, targets, energy, economics) -> dict:
     for tg in targets:
         tab[f"pass_{tg.name}"] = []
     tab["all_pass"] = []
-    c_skin, c_loss = _table_cond(targets, "skin"), _table_cond(targets, "loss")
+    c_skin, c_loss = conds
     for x in rows:
         ms = ev.steady(x, c_skin)[1]
         ml = ev.steady(x, c_loss)[1]

@@ -15,7 +15,19 @@ def _loss(text, geometry):
     if not m or m.group(2) != want:
         raise InputError(f"--loss-limit: {text!r} is not a heat loss for a {geometry} wall; "
                          f"write it in {want}, e.g. \"50 {want}\".")
-    return float(m.group(1)), want
+    try:
+        v = float(m.group(1))
+    except ValueError:
+        v = math.nan
+    if not (math.isfinite(v) and v > 0):
+        raise InputError(f"--loss-limit: {text!r} must be a positive heat loss in {want}.")
+    return v, want
+
+
+#: Named stock presets for --stock (common practice, no source: pipe sections and slabs sold
+#: in half-inch steps to 4 in, then whole inches).
+STOCK_PRESETS = {"inch": "0.5 in,1 in,1.5 in,2 in,2.5 in,3 in,3.5 in,4 in,5 in,6 in,7 in,"
+                         "8 in,9 in,10 in,12 in"}
 
 
 _PRICE_UNITS = {"J": 1.0, "kJ": 1e3, "MJ": 1e6, "GJ": 1e9, "Wh": 3600.0, "kWh": 3.6e6,
@@ -274,7 +286,8 @@ def cmd_size(args) -> int:
                          "or --warm-up-limit TIME (enclosures).")
     step = stock = None
     if args.stock:
-        stock = common.quantity_list(args.stock, "length", "--stock", positive=True)
+        text = STOCK_PRESETS.get(args.stock.strip().lower(), args.stock)
+        stock = common.quantity_list(text, "length", "--stock", positive=True)
         if any(b <= a for a, b in zip(stock, stock[1:])):
             raise InputError(f"--stock: {args.stock!r} must list thicknesses in increasing "
                              "order, each once.")
@@ -296,7 +309,8 @@ def cmd_size(args) -> int:
                              "of material names.")
         mats = [_material(n, case, "--candidates") for n in names]
     kw = dict(t_min=tmin, t_max=tmax, step=step, stock=stock, energy=energy, wall=wi,
-              conductivity_factor=kf, economics=econ, progress=args.progress)
+              conductivity_factor=kf, economics=econ, progress=args.progress,
+              skin_conditions=skin_c, loss_conditions=loss_c)
     cand_rows = None
     try:
         if mats is not None:
@@ -472,9 +486,14 @@ def register(sub) -> None:
     """Add the ``size`` command."""
     p = sub.add_parser("size", help="insulation thickness meeting skin, loss, touch and warm-up targets")
     p.add_argument("case", metavar="CASE")
-    p.add_argument("--layer", required=True, metavar="N|MATERIAL")
-    p.add_argument("--skin-limit", metavar="TEMPERATURE")
-    p.add_argument("--loss-limit", metavar="VALUE")
+    p.add_argument("--layer", required=True, metavar="N|MATERIAL",
+                   help="layer to size: index from 0 at the inner face, or material/label")
+    p.add_argument("--skin-limit", metavar="TEMPERATURE",
+                   help='target: skin temperature at or below, e.g. "50 degC" (steady; see '
+                        '--transient)')
+    p.add_argument("--loss-limit", metavar="VALUE",
+                   help='target: heat loss at or below, "W/m2" (slab), "W/m" (pipe), "W" '
+                        '(sphere)')
     p.add_argument("--contact-time", metavar="TIME",
                    help='touch target: contact time, e.g. "5 s" (with --surface)')
     p.add_argument("--surface", metavar="CLASS",
@@ -485,10 +504,16 @@ def register(sub) -> None:
                    help='efficiency of the heat supply, e.g. "0.85" or "85 %%" (default 1)')
     p.add_argument("--energy-price", metavar="PRICE",
                    help='price of supplied energy, money per energy unit, e.g. "0.12 /kWh"')
-    p.add_argument("--stock-step", default="25 mm", metavar="LENGTH")
-    p.add_argument("--stock", metavar='"L1,L2,..."')
-    p.add_argument("--min-thickness", default="5 mm", metavar="LENGTH")
-    p.add_argument("--max-thickness", default="500 mm", metavar="LENGTH")
+    p.add_argument("--stock-step", default="25 mm", metavar="LENGTH",
+                   help='stock step when no --stock list is given (default "25 mm")')
+    p.add_argument("--stock", metavar='"L1,L2,..."',
+                   help='stock thicknesses, each with its unit, e.g. "1 in,1.5 in,2 in" or '
+                        '"40 mm,50 mm,80 mm"; the preset "inch" is 0.5 in steps to 4 in, then '
+                        'whole inches to 12 in')
+    p.add_argument("--min-thickness", default="5 mm", metavar="LENGTH",
+                   help='search range start (default "5 mm")')
+    p.add_argument("--max-thickness", default="500 mm", metavar="LENGTH",
+                   help='search range end (default "500 mm")')
     p.add_argument("--wall", metavar="NAME", help="enclosures: the wall whose layer is sized")
     p.add_argument("--candidates", metavar="M1,M2,...",
                    help="size the layer in each of these materials (library or case names)")
