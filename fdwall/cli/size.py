@@ -210,6 +210,7 @@ def _layer(args, wall):
 
 
 def cmd_size(args) -> int:
+    from ..errors import ConvergenceError
     from ..errors import InputError as LibInputError
     from ..sizing import (
         LossTarget,
@@ -322,7 +323,11 @@ def cmd_size(args) -> int:
             key = ("total_cost" if econ is not None else
                    "cost_per_year" if energy is not None and energy.price is not None else
                    "thickness_m")
-            r = min(ok, key=lambda c: (c[key], c["thickness_m"]))["result"]
+            def rank(c):
+                v = c.get(key, math.nan)
+                return (v if v is not None and math.isfinite(v) else math.inf,
+                        c["thickness_m"])
+            r = min(ok, key=rank)["result"]
         else:
             r = size_layer(case, layer, targets, **kw)
         heater = None
@@ -331,6 +336,9 @@ def cmd_size(args) -> int:
                                     conductivity_factor=kf)
     except LibInputError as exc:
         raise InputError(f"'{args.case}': {exc}") from None
+    except ConvergenceError as exc:
+        raise common.Failure(f"'{args.case}': the solver failed for a trial thickness during "
+                             f"the sizing: {exc}") from None
     d = r.to_dict()
     d.update({"case_file": str(args.case)})
     if cand_rows is not None:
