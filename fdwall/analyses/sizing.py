@@ -754,8 +754,17 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
     rows = [x if abs(x - ans) >= 1e-9 else ans for x in rows]
     conds = (_table_cond(targets, "skin", skin_conditions),
              _table_cond(targets, "loss", loss_conditions))
-    tab = (_table(ev, case, wi, layer, rows, targets, energy, economics, conds) if table
-           else {})
+    ev.bar = None
+    if trans_t and progress and table:
+        from tqdm import tqdm
+        ev.bar = tqdm(total=sum(1 for x in rows if round(float(x), 12) not in ev.run_cache),
+                      unit="run", desc="trade-off table", leave=False)
+    try:
+        tab = (_table(ev, case, wi, layer, rows, targets, energy, economics, conds) if table
+               else {})
+    finally:
+        if ev.bar is not None:
+            ev.bar.close()
     s_ans, _ = ev.steady(ans, conds[0])
     warns = service_warnings(s_ans, w, wi)
     econ = None
