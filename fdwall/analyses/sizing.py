@@ -623,8 +623,6 @@ def _check_limits(case, wi, targets):
         if amb is not None and tg.limit <= amb:
             raise InputError(f"{tg.name} limit {tg.limit - 273.15:.1f} degC is not above the "
                              f"ambient {amb - 273.15:.1f} degC")
-        if tg.kind == "transient" and tg.unit == "s":
-            pass
     for tg in targets:
         if isinstance(tg, WarmUpTarget):
             if not case.is_enclosure or case.control.setpoint is None:
