@@ -845,8 +845,11 @@ def _table(ev, case, wi, layer, rows, targets, energy, economics, conds) -> dict
            "h_rad_W_m2K": [], "interface_T_K": [], "interface_limit_K": [],
            "interface_layer": []}
     trans = any(t.kind == "transient" for t in targets)
+    timed = case.is_enclosure and case.control.setpoint is not None
     if trans:
-        tab["skin_peak_K"], tab["warm_up_s"] = [], []
+        tab["skin_peak_K"] = []
+        if timed:
+            tab["warm_up_s"] = []
     ekey = {"slab": "energy_J_per_m2", "cylinder": "energy_J_per_m"}.get(w.geometry, "energy_J")
     if energy is not None:
         tab[ekey] = []
@@ -872,7 +875,8 @@ def _table(ev, case, wi, layer, rows, targets, energy, economics, conds) -> dict
         if trans:
             mt = ev.transient(x)
             tab["skin_peak_K"].append(mt["skin_peak_K"])
-            tab["warm_up_s"].append(mt["warm_up_s"])
+            if timed:
+                tab["warm_up_s"].append(mt["warm_up_s"])
         ok_all = True
         for tg, m in ev.values(x):
             ok = bool(_margin(tg, m) >= -1e-9)

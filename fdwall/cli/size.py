@@ -239,18 +239,19 @@ def cmd_size(args) -> int:
                          f"has layers 0..{len(wall.layers) - 1} (counted from the inner face).")
     skin_c, loss_c = _conditions(args, "skin"), _conditions(args, "loss")
     targets = []
+    if args.transient and not skin_c.is_default:
+        raise InputError("--skin-ambient/--skin-wind apply to steady skin and touch targets; "
+                         "with --transient they are judged over the case's own profile.")
     if args.skin_limit:
         lim = common.quantity(args.skin_limit, "temperature", "--skin-limit")
         if args.transient:
-            if not skin_c.is_default:
-                raise InputError("--skin-ambient/--skin-wind apply to the steady skin target; "
-                                 "a --transient skin target uses the case's own profile.")
             targets.append(PeakSkinTarget(lim))
         else:
             targets.append(SkinTarget(lim, conditions=skin_c))
-    elif args.transient:
-        raise InputError("--transient judges the --skin-limit over the case's run; give "
-                         "--skin-limit TEMPERATURE.")
+    elif args.transient and args.contact_time is None:
+        raise InputError("--transient judges the --skin-limit (and the touch target) over the "
+                         "case's run; give --skin-limit TEMPERATURE or --contact-time TIME "
+                         "--surface CLASS.")
     if args.loss_limit:
         v, u = _loss(args.loss_limit, wall.geometry)
         targets.append(LossTarget(v, unit=u, conditions=loss_c))
@@ -260,9 +261,11 @@ def cmd_size(args) -> int:
     if args.contact_time is not None:
         tc = common.quantity(args.contact_time, "time", "--contact-time", positive=True)
         try:
-            targets.append(touch_target(args.surface, tc, conditions=skin_c))
+            tt = touch_target(args.surface, tc, conditions=skin_c)
         except LibInputError as exc:
             raise InputError(str(exc)) from None
+        # with --transient the touch threshold is judged against the peak skin of the run
+        targets.append(PeakSkinTarget(tt.limit, name="touch") if args.transient else tt)
     if args.service_limits:
         targets.append(ServiceTarget())
     wlim = None
@@ -440,8 +443,10 @@ def _print_text(args, r, d, layer, lunit, cand_rows, heater):
     per = {"W/m2": "m2", "W/m": "m"}.get(lunit, "piece")
     head = (f"  {'thickness':>9}  {'skin':>10}  {'loss':>8}  {'stored MJ':>9}  "
             f"{'hottest layer face (limit)':>27}")
+    if "skin_peak_K" in tab:
+        head += f"  {'peak skin':>10}"
     if "warm_up_s" in tab:
-        head += f"  {'peak skin':>10}  {'warm-up':>8}"
+        head += f"  {'warm-up':>8}"
     if ekey:
         head += f"  {'kWh/yr/' + per:>12}"
     if "cost_per_year" in tab:
@@ -455,10 +460,11 @@ def _print_text(args, r, d, layer, lunit, cand_rows, heater):
         line = (f"  {x * 1000:6.1f} mm  {_c(tab['skin_K'][i]):>10}  {tab['loss'][i]:8.4g}  "
                 f"{tab['stored'][i] / 1e6:9.4g}  "
                 f"{_iface(tab['interface_layer'][i], tab['interface_T_K'][i], tab['interface_limit_K'][i]):>27}")
+        if "skin_peak_K" in tab:
+            line += f"  {_c(tab['skin_peak_K'][i]):>10}"
         if "warm_up_s" in tab:
             wu = tab["warm_up_s"][i]
-            line += (f"  {_c(tab['skin_peak_K'][i]):>10}  "
-                     f"{(f'{wu / 3600:.3g} h' if math.isfinite(wu) else 'never'):>8}")
+            line += f"  {(f'{wu / 3600:.3g} h' if math.isfinite(wu) else 'never'):>8}"
         if ekey:
             line += f"  {tab[ekey][i] / 3.6e6:12.4g}"
         if "cost_per_year" in tab:
@@ -526,7 +532,8 @@ def register(sub) -> None:
     p.add_argument("--candidates", metavar="M1,M2,...",
                    help="size the layer in each of these materials (library or case names)")
     p.add_argument("--transient", action="store_true",
-                   help="judge --skin-limit over the case's own run (peak skin temperature)")
+                   help="judge --skin-limit and the touch target over the case's own run "
+                        "(peak skin temperature)")
     p.add_argument("--warm-up-limit", metavar="TIME",
                    help='enclosures: chamber reaches its setpoint within TIME, e.g. "3 h"')
     p.add_argument("--service-limits", action="store_true",
