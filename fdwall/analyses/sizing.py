@@ -812,11 +812,12 @@ def _stock_answer(feasible, step, stock, t_max):
     else:
         n = int(math.floor(t_max / step + 1e-9))
         sizes = [k * step for k in range(int(round(first / step)), n + 1)] or [first]
+    open_end = feasible[-1][1] >= t_max - 1e-12
     for x in sizes:
         if any(lo - 1e-9 <= x <= hi + 1e-9 for lo, hi in feasible):
             return float(x)
-    if first > t_max + 1e-12 and stock is None:
-        return float(first)    # rounding past the range end: the root itself holds
+        if open_end and x > t_max:   # past the range, beyond a feasible end: its verdicts
+            return float(x)          # are evaluated at the answer and reported
     raise InputError("no stock thickness lies where all targets are met ("
                      + ", ".join(f"{a * 1000:.1f}-{b * 1000:.1f} mm" for a, b in feasible)
                      + "); give other stock sizes")
