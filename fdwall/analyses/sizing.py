@@ -78,7 +78,8 @@ class Conditions:
     ambient : outer air and radiant surroundings temperature [K] (None: the case's);
     wind : wind speed [m/s] (None: the case's convection; 0: still air, natural convection of
         the same face; > 0: forced convection along a plate of the face's height, or across a
-        cylinder of the face's diameter, combined with the natural part).
+        cylinder of the face's diameter, combined with the natural part).  A flat wall needs
+        a convection correlation on its outer face for a wind condition.
     """
     ambient: float | None = None
     wind: float | None = None
@@ -106,7 +107,9 @@ def _natural_of(conv, wall):
             return conv
     if wall.geometry == "cylinder":
         return Convection.horizontal_cylinder(2.0 * float(wall.radii()[-1]))
-    return Convection.natural_vertical(float(getattr(conv, "height", None) or 1.0))
+    raise InputError("a wind design condition on a flat wall needs a convection correlation "
+                     "on its outer face (the case gives a fixed film coefficient, so the "
+                     "plate's height is unknown); give the face a natural-convection model")
 
 
 def _apply_conditions(case, wi, cond: Conditions):
