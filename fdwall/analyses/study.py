@@ -37,70 +37,29 @@ temperature of the last face), ``loss_W`` (steady heat flow out of the last face
 from __future__ import annotations
 
 import copy
-import csv
-import difflib
 import hashlib
 import itertools
 import os
 import re
-import socket
-import time
-from concurrent.futures import ProcessPoolExecutor
 
 import numpy as np
 import tomllib
 from scipy import stats
 from scipy.stats import qmc
 
-from ..atomic import atomic_path
 from ..case.loader import case_from_dict
 from ..errors import FdwallError, InputError
-from ..solver import solve_steady
 from ..units import parse_quantity
+from .study_outputs import (
+    DEFAULT_OUTPUTS,
+    TEXT_OUTPUTS,
+    _set,
+    check_outputs,
+    evaluate_variant,
+)
+from .study_run import SCHEDULER_TIMEOUT, execute, read_partial, read_stamp
 
-_STEP = re.compile(r"([A-Za-z_][A-Za-z0-9_\-]*)(\[(\d+)\])?$")
-OUTPUTS = ("outer_T_K", "loss_W")
-
-
-def _steps(path: str, file: str):
-    out = []
-    for part in path.split("."):
-        m = _STEP.match(part)
-        if not m:
-            raise InputError(f"{file}: [[vary]] path {path!r}: part {part!r} is not a key or "
-                             "key[index] (allowed e.g. 'wall.layers[1].thickness').")
-        out.append(m.group(1))
-        if m.group(3) is not None:
-            out.append(int(m.group(3)))
-    return out
-
-
-def _set(data: dict, path: str, value, file: str) -> None:
-    """Set ``value`` at case-file ``path`` in the parsed case ``data`` (in place)."""
-    steps = _steps(path, file)
-    node = data
-    for i, s in enumerate(steps):
-        last = i == len(steps) - 1
-        if isinstance(s, int):
-            if not isinstance(node, list) or s >= len(node):
-                n = len(node) if isinstance(node, list) else 0
-                raise InputError(f"{file}: [[vary]] path {path!r}: index [{s}] is out of range "
-                                 f"(the base case has {n} entries there).")
-        else:
-            if not isinstance(node, dict) or (s not in node and not last):
-                near = difflib.get_close_matches(s, list(node) if isinstance(node, dict) else [])
-                hint = f" Did you mean {', '.join(near)}?" if near else ""
-                raise InputError(f"{file}: [[vary]] path {path!r}: key {s!r} is not in the base "
-                                 f"case.{hint}")
-            if last and s not in node:
-                near = difflib.get_close_matches(s, list(node))
-                if near:
-                    raise InputError(f"{file}: [[vary]] path {path!r}: key {s!r} is not in the "
-                                     f"base case. Did you mean {', '.join(near)}?")
-        if last:
-            node[s] = value
-        else:
-            node = node[s]
+OUTPUTS = DEFAULT_OUTPUTS
 
 
 METHODS = ("monte-carlo", "latin-hypercube")
@@ -237,18 +196,25 @@ def _read_sampling(doc: dict, file: str, base_data: dict, seed) -> dict:
                 distributions=[dd["name"] for dd in dists])
 
 
-def _read_limits(doc: dict, file: str) -> dict:
+def _limit_kind(out: str) -> str:
+    """Quantity kind of the [exceed] limit of a numeric output."""
+    if out == "touch_margin_K":
+        return "temperature_difference"
+    return {"K": "temperature", "W": "power", "J": "energy", "s": "time"}[out.rsplit("_", 1)[1]]
+
+
+def _read_limits(doc: dict, file: str, outputs=DEFAULT_OUTPUTS) -> dict:
     lim = doc.get("exceed", {})
     if not isinstance(lim, dict):
         raise InputError(f"{file}: [exceed] must be a table of output = limit "
                          "(e.g. outer_T_K = \"60 degC\").")
-    kinds = {"outer_T_K": "temperature", "loss_W": "power"}
+    numeric = [o for o in outputs if o not in TEXT_OUTPUTS]
     out = {}
     for k, v in lim.items():
-        if k not in kinds:
-            raise InputError(f"{file}: exceed.{k}: not an output; allowed: "
-                             f"{', '.join(kinds)}.")
-        out[k] = parse_quantity(v, kinds[k], f"exceed.{k}", file=file)
+        if k not in numeric:
+            raise InputError(f"{file}: exceed.{k}: not a numeric output of this study; "
+                             f"allowed: {', '.join(numeric)}.")
+        out[k] = parse_quantity(v, _limit_kind(k), f"exceed.{k}", file=file)
     return out
 
 
@@ -271,17 +237,33 @@ def read_study(path, seed=None) -> dict:
                          "base case file, relative to the study file.")
     base_file = os.path.join(os.path.dirname(os.path.abspath(file)), base)
     try:
-        base_data = tomllib.loads(open(base_file, "rb").read().decode("utf-8"))
+        base_raw = open(base_file, "rb").read()
+        base_data = tomllib.loads(base_raw.decode("utf-8"))
     except OSError as e:
         raise InputError(f"{file}: key 'base': cannot read {base_file} ({e.strerror}).") from None
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
         raise InputError(f"{file}: key 'base': {base_file} is not valid TOML ({e}).") from None
-    limits = _read_limits(doc, file)
-    sha = hashlib.sha256(raw).hexdigest()
+    try:
+        base_case = case_from_dict(copy.deepcopy(base_data), base_file)
+    except (FdwallError, ValueError) as e:
+        raise InputError(f"{file}: key 'base': the base case does not load: "
+                         f"{' '.join(str(e).split())}") from None
+    outputs = check_outputs(doc.get("outputs"), file, base_case)
+    limits = _read_limits(doc, file, outputs)
+    skin_limit = None
+    if "skin_limit" in doc:
+        skin_limit = parse_quantity(doc["skin_limit"], "temperature", "skin_limit", file=file)
+    elif "time_to_limit_s" in outputs:
+        raise InputError(f"{file}: output time_to_limit_s needs skin_limit, the outer-face "
+                         "temperature whose first reaching is timed (e.g. skin_limit = "
+                         "\"60 degC\").")
+    # the hash covers the study and the base case: a change to either is a new study
+    sha = hashlib.sha256(raw + b"\0" + base_raw).hexdigest()
+    common = dict(file=file, base_file=base_file, base=base_data, sha=sha, limits=limits,
+                  outputs=outputs, skin_limit=skin_limit, seed_given=seed is not None)
     if "uncertain" in doc:
         smp = _read_sampling(doc, file, base_data, seed)
-        return dict(file=file, base_file=base_file, base=base_data, sha=sha, limits=limits,
-                    **smp)
+        return dict(**common, input_paths=list(smp["uncertain"]), **smp)
     vary = doc.get("vary")
     if not isinstance(vary, list) or not vary:
         raise InputError(f"{file}: no [[vary]] or [[uncertain]] entries; a study needs at "
@@ -299,72 +281,70 @@ def read_study(path, seed=None) -> dict:
         items.append((v["path"], vals))
     variants = [dict(zip([p for p, _ in items], combo))
                 for combo in itertools.product(*[vals for _, vals in items])]
-    return dict(file=file, base_file=base_file, base=base_data, vary=items,
-                variants=variants, sha=sha, limits=limits, method="grid", seed=None)
+    return dict(**common, vary=items, input_paths=[p for p, _ in items], variants=variants,
+                method="grid", seed=None)
 
 
-def run_variant(base: dict, edits: dict, name: str = "<variant>") -> dict:
-    """Apply ``edits`` (path -> value) to the base case dict, load and solve steady.
+def run_variant(base: dict, edits: dict, name: str = "<variant>", outputs=DEFAULT_OUTPUTS,
+                skin_limit=None) -> dict:
+    """Apply ``edits`` (path -> value) to the base case dict, load it and compute ``outputs``.
 
-    Returns a row: outputs in SI (``outer_T_K`` [K], ``loss_W`` [W]), ``status``, ``error``,
-    ``run_time_s`` [s], ``host``, ``worker``.
+    Returns a row: outputs in SI (keys with unit suffix, see
+    :mod:`fdwall.analyses.study_outputs`), ``status``, ``error``, ``run_time_s`` [s],
+    ``host``, ``worker``.  A failure is recorded in the row, never raised.
     """
-    t0 = time.perf_counter()
-    row = {k: float("nan") for k in OUTPUTS}
-    try:
-        data = copy.deepcopy(base)
-        for p, v in edits.items():
-            _set(data, p, v, name)
-        case = case_from_dict(data, name)
-        ss = solve_steady(case)
-        row["outer_T_K"] = float(ss.face_T[-1])
-        row["loss_W"] = float(-ss.face_flow[-1])
-        row.update(status="done", error="")
-    except (FdwallError, ValueError, ArithmeticError) as e:
-        row.update(status="failed", error=str(e).replace("\n", " "))
-    row.update(run_time_s=time.perf_counter() - t0, host=socket.gethostname(),
-               worker=str(os.getpid()))
-    return row
+    return evaluate_variant(base, edits, name, outputs, skin_limit)
 
 
-def _job(args):
-    base, edits, name = args
-    return run_variant(base, edits, name)
-
-
-def run_study(path, out_dir=".", workers=None, seed=None) -> tuple[str, list]:
-    """Run every variant of study file ``path``; write DIR/<stem>-study.csv atomically.
-
-    Returns (csv path, rows).  ``workers`` local processes (default: all cores; 1 = serial).
-    ``path`` may also be a study already read by :func:`read_study`.  ``seed`` fixes the
-    random sample (same seed, same table apart from run time, host and worker).
-    """
-    st = path if isinstance(path, dict) else read_study(path, seed=seed)
+def table_path(st: dict, out_dir) -> str:
+    """``DIR/<stem>-study.csv`` of study ``st`` (a trailing ``-study`` of the stem dropped)."""
     stem = os.path.splitext(os.path.basename(st["file"]))[0]
     if stem.endswith("-study"):
         stem = stem[: -len("-study")]
-    jobs = [(st["base"], v, f"{st['file']} variant {i}") for i, v in enumerate(st["variants"])]
-    workers = workers or os.cpu_count() or 1
-    if workers == 1:
-        results = [_job(j) for j in jobs]
-    else:
-        with ProcessPoolExecutor(workers) as ex:
-            results = list(ex.map(_job, jobs, chunksize=max(1, len(jobs) // (4 * workers))))
-    rows = []
-    for i, (v, r) in enumerate(zip(st["variants"], results)):
-        rows.append({"variant": i, **v, **r})
-    csv_path = os.path.join(out_dir, f"{stem}-study.csv")
-    head = ["variant"] + [p for p, _ in st["vary"]] + [
-        "outer_T [K]", "loss [W]", "status", "error", "run_time [s]", "host", "worker"]
-    keys = ["variant"] + [p for p, _ in st["vary"]] + list(OUTPUTS) + [
-        "status", "error", "run_time_s", "host", "worker"]
-    with atomic_path(csv_path) as tmp, open(tmp, "w", newline="") as f:
-        w = csv.writer(f)
-        w.writerow([f"# study_sha256={st['sha']} method={st['method']} seed={st['seed']}"])
-        w.writerow(head)
-        for r in rows:
-            w.writerow([r[k] for k in keys])
-    return csv_path, rows
+    return os.path.join(os.fspath(out_dir), f"{stem}-study.csv")
+
+
+def run_study(path, out_dir=".", workers=None, seed=None, *, scheduler=None, restart=False,
+              batch=None, progress=False, on_batch=None,
+              timeout=SCHEDULER_TIMEOUT) -> tuple[str, list]:
+    """Run every variant of study file ``path``; write DIR/<stem>-study.csv atomically.
+
+    Returns (csv path, rows in variant order).  ``workers`` local processes (default: all
+    cores; 1 = in this process), or ``scheduler`` the address of a Dask scheduler (an
+    InputError if none answers within ``timeout`` [s]).  ``path`` may also be a study
+    already read by :func:`read_study`.  ``seed`` fixes the random sample (same seed, same
+    table apart from run time, host and worker).
+
+    Resume: when the table already exists for the same study (same hash of the study and
+    base case files), only the missing variants run; a seed drawn for the first run is
+    taken from the table.  A table of another study is refused (InputError) unless
+    ``restart``, which starts the table over.  ``on_batch(indices, rows)`` is called after
+    each batch is written (see :func:`fdwall.analyses.study_run.execute`).
+    """
+    st = path if isinstance(path, dict) else read_study(path, seed=seed)
+    csv_path = table_path(st, out_dir)
+    rows = {}
+    stamp = None if restart else read_stamp(csv_path)
+    if stamp is not None:
+        if stamp["sha"] != st["sha"]:
+            raise InputError(
+                f"{csv_path} holds a partial or finished table of a different study: the "
+                f"study file {st['file']} or its base case changed since that table was "
+                "written (their hash differs). Run with --restart to start the table over, "
+                "or choose another --out DIR.")
+        if st["method"] != "grid" and stamp["seed"] != str(st["seed"]):
+            if st.get("seed_given"):
+                raise InputError(
+                    f"{csv_path} was drawn with seed {stamp['seed']}, not {st['seed']}: "
+                    f"resume with --seed {stamp['seed']} (or without --seed), or run with "
+                    "--restart to start over with the new seed.")
+            st = read_study(st["file"], seed=int(stamp["seed"]))
+        rows = read_partial(csv_path, st)
+    todo = [i for i in range(len(st["variants"])) if i not in rows]
+    execute(st, todo, rows, csv_path, workers=workers, scheduler=scheduler, batch=batch,
+            progress=progress, on_batch=on_batch, timeout=timeout)
+    st["resumed"] = len(st["variants"]) - len(todo)
+    return csv_path, [rows[i] for i in sorted(rows)]
 
 
 def read_table(path):
@@ -436,7 +416,17 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
     se = {k: [] for k in ("output", "input", "spearman_rho", "p_value", "rank")}
     ex = {k: [] for k in ("output", "limit_si", "unit", "exceed_count", "probability",
                           "ci_low", "ci_high")}
-    for out in OUTPUTS:
+    outs = st.get("outputs", OUTPUTS)
+    if "touch_verdict" in outs:
+        k = sum(1 for i in done if rows[i]["touch_verdict"] == "above-limit")
+        lo, hi = wilson_interval(k, n, confidence)
+        summ["touch_above_limit_probability"] = k / n if n else float("nan")
+        summ["touch_above_limit_probability_low"] = lo
+        summ["touch_above_limit_probability_high"] = hi
+        for key, val in zip(ex, ("touch_verdict", float("nan"), "", k,
+                                 k / n if n else float("nan"), lo, hi)):
+            ex[key].append(val)
+    for out in [o for o in outs if o not in TEXT_OUTPUTS]:
         base, suf = out.rsplit("_", 1)
         suf = "_" + suf
         unit = suf[1:]
@@ -468,7 +458,7 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
                 ex[key].append(val)
         rho = []
         for j, path in enumerate(st["uncertain"]):
-            if n >= 3 and np.ptp(y) > 0 and np.ptp(x[:, j]) > 0:
+            if n >= 3 and len(np.unique(y)) > 1 and np.ptp(x[:, j]) > 0:
                 res = stats.spearmanr(x[:, j], y)
                 rho.append((path, float(res.statistic), float(res.pvalue)))
             else:
