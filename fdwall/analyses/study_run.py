@@ -221,8 +221,9 @@ def execute(st: dict, todo: list, rows: dict, csv_path, *, workers=None, schedul
             futs = [client.submit(_batch, base, c, st["outputs"], st.get("skin_limit"),
                                   pure=False) for c in chunks]
             try:
-                for fut in as_completed(futs):
-                    finished(fut.result())
+                with client.as_current():
+                    for fut in as_completed(futs):
+                        finished(fut.result())
             finally:
                 client.cancel(futs)
         elif nw == 1 or len(chunks) == 1:
