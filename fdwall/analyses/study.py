@@ -58,11 +58,20 @@ from .study_outputs import (
     evaluate_variant,
 )
 from .study_run import SCHEDULER_TIMEOUT, execute, read_partial, read_stamp
+from .study_stats import (
+    check_correlation,
+    delta_indices,
+    iman_conover,
+    prcc,
+    sobol_indices,
+    sobol_unit_sample,
+    spearman,
+)
 
 OUTPUTS = DEFAULT_OUTPUTS
 
 
-METHODS = ("monte-carlo", "latin-hypercube")
+METHODS = ("monte-carlo", "latin-hypercube", "sobol")
 _PARAMS = {"uniform": (("low", "high"), ()),
            "normal": (("mean", "spread"), ("low", "high")),
            "lognormal": (("median", "log_spread"), ("low", "high")),
@@ -144,21 +153,33 @@ def _distribution(entry: dict, i: int, file: str):
     return dict(dist=dist, c_lo=c_lo, c_hi=c_hi, unit=unit, name=name)
 
 
-def sample_inputs(dists: list, method: str, n: int, seed: int) -> np.ndarray:
-    """``n`` x len(dists) sample (numbers in each entry's unit) by ``method``, seeded.
+def sample_inputs(dists: list, method: str, n: int, seed: int, correlation=None) -> np.ndarray:
+    """Sample (numbers in each entry's unit) of ``dists`` by ``method``, seeded.
 
-    Monte Carlo draws independent uniforms; Latin hypercube (scipy.stats.qmc) puts one point
-    in each of ``n`` equal-probability strata per input.  Uniforms map through the inverse
-    CDF, restricted to [F(low), F(high)] for a truncated entry.
+    Monte Carlo draws ``n`` rows of independent uniforms; Latin hypercube (scipy.stats.qmc)
+    puts one point in each of ``n`` equal-probability strata per input; ``sobol`` is
+    Saltelli's design of ``n`` (d + 2) rows for Sobol indices (SALib).  A ``correlation``
+    matrix (Spearman, d x d) reorders the uniforms by Iman & Conover (1982) before they map
+    through the inverse CDF, restricted to [F(low), F(high)] for a truncated entry.
     """
     rng = np.random.default_rng(seed)
     d = len(dists)
-    u = (qmc.LatinHypercube(d=d, seed=rng).random(n) if method == "latin-hypercube"
-         else rng.random((n, d)))
-    out = np.empty((n, d))
+    if method == "sobol":
+        u = sobol_unit_sample(d, n, seed)
+    else:
+        u = (qmc.LatinHypercube(d=d, seed=rng).random(n) if method == "latin-hypercube"
+             else rng.random((n, d)))
+        if correlation is not None:
+            u = iman_conover(u, np.asarray(correlation, float), rng)
+    out = np.empty(u.shape)
     for j, dd in enumerate(dists):
         out[:, j] = dd["dist"].ppf(dd["c_lo"] + u[:, j] * (dd["c_hi"] - dd["c_lo"]))
     return out
+
+
+SENSITIVITY = ("spearman", "prcc", "delta")
+#: delta (SALib, bootstrap) takes about a second per output and few hundred variants: on request
+DEFAULT_SENSITIVITY = ("spearman", "prcc")
 
 
 def _read_sampling(doc: dict, file: str, base_data: dict, seed) -> dict:
@@ -186,12 +207,42 @@ def _read_sampling(doc: dict, file: str, base_data: dict, seed) -> dict:
         if e["path"] in paths:
             raise InputError(f"{file}: uncertain[{i}].path {e['path']!r} is given twice.")
         paths.append(e["path"])
+    corr = None
+    if "correlation" in doc:
+        if method == "sobol":
+            raise InputError(f"{file}: correlation cannot be used with method = \"sobol\": "
+                             "Sobol indices need independent inputs. Use latin-hypercube or "
+                             "monte-carlo with sensitivity = [\"delta\"] for correlated "
+                             "inputs.")
+        corr = check_correlation(doc["correlation"], len(dists), file)
+    if method == "sobol":
+        if n < 2 or n & (n - 1):
+            raise InputError(f"{file}: samples = {n}: for method = \"sobol\" give a power of "
+                             "2 (e.g. 256 or 1024); the study then runs samples x (inputs + 2) "
+                             "variants.")
+        if len(dists) < 2:
+            raise InputError(f"{file}: method = \"sobol\" needs at least two [[uncertain]] "
+                             "inputs (with one, its index is 1 by definition).")
+        sens = ["sobol"]
+        if "sensitivity" in doc:
+            raise InputError(f"{file}: sensitivity: method = \"sobol\" computes Sobol indices "
+                             "only; leave the key out.")
+    else:
+        sens = doc.get("sensitivity", list(DEFAULT_SENSITIVITY))
+        if isinstance(sens, str):
+            sens = [sens]
+        if not isinstance(sens, list) or not sens or any(m not in SENSITIVITY for m in sens):
+            raise InputError(f"{file}: sensitivity = {doc.get('sensitivity')!r}: give a list "
+                             f"of methods from {', '.join(SENSITIVITY)} (the first ranks the "
+                             "inputs); Sobol indices need method = \"sobol\".")
     if seed is None:
         seed = int(np.random.SeedSequence().entropy % (2**63))
-    x = sample_inputs(dists, method, n, seed)
+    x = sample_inputs(dists, method, n, seed, corr)
     variants = [{p: (f"{v:.12g} {dd['unit']}".strip() if dd["unit"] else float(v))
                  for p, v, dd in zip(paths, row, dists)} for row in x]
     return dict(method=method, seed=seed, samples=x, uncertain=paths, variants=variants,
+                correlation=None if corr is None else corr.tolist(), sensitivity=sens,
+                base_samples=n,
                 vary=[(p, None) for p in paths],
                 distributions=[dd["name"] for dd in dists])
 
@@ -397,6 +448,86 @@ def _samples_for_bounded(p: float, confidence: float) -> int:
 PERCENTS = (5, 50, 95)
 
 
+def _sens_columns(st: dict) -> list:
+    cols = ["output", "input"]
+    for m in st.get("sensitivity", ["spearman"]):
+        cols += {"spearman": ["spearman_rho", "p_value"], "prcc": ["prcc", "prcc_p_value"],
+                 "delta": ["delta", "delta_conf", "delta_S1", "delta_S1_conf"],
+                 "sobol": ["sobol_S1", "sobol_S1_conf", "sobol_ST", "sobol_ST_conf"]}[m]
+    return cols + ["ranked_by", "rank"]
+
+
+_RANK_KEY = {"spearman": "spearman_rho", "prcc": "prcc", "delta": "delta", "sobol": "sobol_ST"}
+
+
+def _sensitivity(st, out, x, y, n, nf, se, summ, base):
+    """Append the sensitivity rows of output ``out`` to the table ``se`` (columns lists)."""
+    d = len(st["uncertain"])
+    methods = st.get("sensitivity", ["spearman"])
+    cols = {}
+    fin = np.isfinite(y)
+    xf, yf = x[fin], y[fin]          # 'never reached' (inf) times cannot enter a measure
+    for m in methods:
+        if m == "spearman":
+            cols["spearman_rho"], cols["p_value"] = spearman(xf, yf)
+        elif m == "prcc":
+            cols["prcc"], cols["prcc_p_value"] = prcc(xf, yf)
+        elif m == "delta":
+            r = delta_indices(xf, yf, st["seed"])
+            cols.update(delta=r["delta"], delta_conf=r["delta_conf"], delta_S1=r["S1"],
+                        delta_S1_conf=r["S1_conf"])
+        elif m == "sobol":
+            if nf or not np.all(fin) or len(np.unique(y)) < 2:
+                cols.update({k: np.full(d, np.nan) for k in ("sobol_S1", "sobol_S1_conf",
+                                                             "sobol_ST", "sobol_ST_conf")})
+            else:
+                r = sobol_indices(y, d, st["seed"])
+                cols.update(sobol_S1=r["S1"], sobol_S1_conf=r["S1_conf"], sobol_ST=r["ST"],
+                            sobol_ST_conf=r["ST_conf"])
+    key = _RANK_KEY[methods[0]]
+    v = np.abs(cols[key])
+    order = sorted(range(d), key=lambda j: -v[j] if np.isfinite(v[j]) else 1.0)
+    for rank, j in enumerate(order, 1):
+        se["output"].append(out)
+        se["input"].append(st["uncertain"][j])
+        for c in cols:
+            se[c].append(float(cols[c][j]))
+        se["ranked_by"].append(key)
+        se["rank"].append(rank)
+    if d and np.isfinite(v[order[0]]):
+        summ[f"{base}_top_input"] = st["uncertain"][order[0]]
+
+
+def _sens_notes(st: dict, n_rows: int, nf: int) -> list:
+    """What the sensitivity figures mean and how many variants they need."""
+    m = st.get("sensitivity", ["spearman"])
+    out = []
+    if "sobol" in m:
+        d = len(st["uncertain"])
+        out.append(f"sensitivity: Sobol first-order (S1) and total (ST) indices from "
+                   f"Saltelli's design, {st['base_samples']} base samples x ({d} inputs + 2) "
+                   f"= {n_rows} variants, with 95 % bootstrap half-widths (_conf); inputs "
+                   "are ranked by ST; if a half-width exceeds about 0.1 double samples")
+        return out
+    names = {"spearman": "Spearman rank correlation (monotone effects; misses effects "
+                         "that rise and fall)",
+             "prcc": "partial rank correlation (the other inputs' monotone effects "
+                     "removed; p-values from a t-test)",
+             "delta": "Borgonovo's delta (moment-independent: any shape of effect, "
+                      "correlated inputs allowed; with a first-order index S1)"}
+    out.append("sensitivity: " + "; ".join(names[k] for k in m) + f"; inputs ranked by "
+               f"{m[0]}")
+    if "delta" in m:
+        out.append("sample size for delta: its bootstrap half-width (delta_conf) shrinks as "
+                   "1/sqrt(n); a few hundred successful variants usually separate inputs "
+                   "whose delta differs by 0.05")
+    if st.get("correlation") is not None:
+        out.append("inputs are correlated as given (Iman-Conover rank correlation): "
+                   "Spearman and delta then share an input's effect with the inputs "
+                   "correlated with it; partial rank correlation separates them")
+    return out
+
+
 def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
     """Uncertainty summary of a sampled study: dict(summary, tables, notes, references, json).
 
@@ -413,7 +544,7 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
             "confidence": confidence}
     qt = {k: [] for k in ("output", "percent", "value_si", "ci_low_si", "ci_high_si",
                           "ci_coverage", "unit")}
-    se = {k: [] for k in ("output", "input", "spearman_rho", "p_value", "rank")}
+    se = {k: [] for k in _sens_columns(st)}
     ex = {k: [] for k in ("output", "limit_si", "unit", "exceed_count", "probability",
                           "ci_low", "ci_high")}
     outs = st.get("outputs", OUTPUTS)
@@ -456,20 +587,7 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
             summ[f"{base}_exceed_probability_high"] = hi
             for key, val in zip(ex, (out, lim, unit, k, prob, lo, hi)):
                 ex[key].append(val)
-        rho = []
-        for j, path in enumerate(st["uncertain"]):
-            if n >= 3 and len(np.unique(y)) > 1 and np.ptp(x[:, j]) > 0:
-                res = stats.spearmanr(x[:, j], y)
-                rho.append((path, float(res.statistic), float(res.pvalue)))
-            else:
-                rho.append((path, float("nan"), float("nan")))
-        order = sorted(range(len(rho)), key=lambda i: -abs(rho[i][1])
-                       if np.isfinite(rho[i][1]) else 0.0)
-        for rank, i in enumerate(order, 1):
-            for key, val in zip(se, (out, rho[i][0], rho[i][1], rho[i][2], rank)):
-                se[key].append(val)
-        if rho and np.isfinite(rho[order[0]][1]):
-            summ[f"{base}_top_input"] = rho[order[0]][0]
+        _sensitivity(st, out, x, y, n, nf, se, summ, base)
     need = _samples_for_bounded(0.95, confidence)
     summ["samples_for_bounded_p95_interval"] = need
     notes = [f"random sample: {st['method']}, {len(rows)} variants, seed {st['seed']} "
@@ -477,13 +595,26 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
              f"quantiles p05/p50/p95 with {confidence:.0%} distribution-free intervals from "
              "order statistics; NaN bounds mean the sample is too small for that side "
              f"(at least {need} successful variants bound both sides of the 95 % quantile)",
-             "sensitivity: Spearman rank correlation of each input with each output; it "
-             "ranks monotone effects and misses effects that rise and fall"]
-    if nf:
+             ] + _sens_notes(st, len(rows), nf)
+    if nf and st["method"] != "sobol":
         notes.append(f"{nf} of {len(rows)} variants failed ({nf / len(rows):.1%}) and are left "
                      "out of every figure above; if the failures gather in one part of the "
-                     "input range the quantiles and probabilities are biased towards the "
-                     "rest; see the error column of the table")
+                     "input range the quantiles, probabilities and sensitivity measures are "
+                     "biased towards the rest; see the error column of the table")
+    elif nf:
+        notes.append(f"{nf} of {len(rows)} variants failed ({nf / len(rows):.1%}): the Sobol "
+                     "design is incomplete, so no Sobol index is given (NaN); the quantiles "
+                     "leave the failed variants out and are biased towards the rest if the "
+                     "failures gather in one part of the input range; see the error column")
+    for e_out, e_p in zip(ex["output"], ex["probability"]):
+        if n and 0 < e_p < 1:
+            z = float(stats.norm.ppf(0.5 + confidence / 2))
+            need_p = int(np.ceil(z * z * (1 - e_p) / (e_p * 0.2 ** 2)))
+            key = e_out.rsplit("_", 1)[0] if e_out != "touch_verdict" else "touch_above_limit"
+            summ[f"{key}_samples_for_20pct_error"] = need_p
+            notes.append(f"sample size for {e_out}: the probability {e_p:.3g} is known to "
+                         f"+-20 % (at {confidence:.0%}) with about {need_p} successful "
+                         f"variants (z^2 (1 - p) / (0.2^2 p)); this study has {n}")
     if ex["output"]:
         notes.append("probability of exceeding a limit: fraction of successful variants "
                      f"above it, with a {confidence:.0%} Wilson score interval")
@@ -491,6 +622,13 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
             "Nagaraja, Order Statistics, 3rd ed., sec. 7.1)",
             "Wilson score interval of a proportion (E. B. Wilson, JASA 22, 1927)",
             "Spearman rank correlation, scipy.stats.spearmanr",
+            "partial rank correlation (S. Marino et al., J. Theor. Biol. 254, 178-196, 2008)",
+            "delta moment-independent measure (E. Borgonovo, Reliab. Eng. Syst. Saf. 92, "
+            "771-784, 2007; SALib.analyze.delta)",
+            "Sobol indices by Saltelli's design (A. Saltelli et al., Comput. Phys. Commun. "
+            "181, 259-270, 2010; SALib.sample.sobol, SALib.analyze.sobol)",
+            "induced rank correlation (R. L. Iman & W. J. Conover, Commun. Statist. B 11, "
+            "311-334, 1982)",
             "Latin hypercube sampling, scipy.stats.qmc.LatinHypercube (McKay, Beckman & "
             "Conover, Technometrics 21, 1979)"]
     tables = {"quantiles": qt, "sensitivity": se}
