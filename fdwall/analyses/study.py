@@ -466,12 +466,12 @@ def _sensitivity(st, out, x, y, n, nf, se, summ, base):
     methods = st.get("sensitivity", ["spearman"])
     cols = {}
     fin = np.isfinite(y)
-    xf, yf = x[fin], y[fin]          # 'never reached' (inf) times cannot enter a measure
+    xf, yf = x[fin], y[fin]          # 'never reached' (inf) cannot enter delta or Sobol
     for m in methods:
-        if m == "spearman":
-            cols["spearman_rho"], cols["p_value"] = spearman(xf, yf)
+        if m == "spearman":        # ranks: an 'inf' (never reached) ranks above all
+            cols["spearman_rho"], cols["p_value"] = spearman(x, y)
         elif m == "prcc":
-            cols["prcc"], cols["prcc_p_value"] = prcc(xf, yf)
+            cols["prcc"], cols["prcc_p_value"] = prcc(x, y)
         elif m == "delta":
             r = delta_indices(xf, yf, st["seed"])
             cols.update(delta=r["delta"], delta_conf=r["delta_conf"], delta_S1=r["S1"],
@@ -567,7 +567,9 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
         summ[f"{base}_std{suf}"] = float(y.std(ddof=1)) if n > 1 else float("nan")
         for pc in PERCENTS:
             p = pc / 100
-            v = float(np.quantile(y, p)) if n else float("nan")
+            # an 'inf' (limit never reached) enters as the largest values: order statistic
+            how = "inverted_cdf" if np.isinf(y).any() else "linear"
+            v = float(np.quantile(y, p, method=how)) if n else float("nan")
             r, s, cover = quantile_interval(n, p, confidence) if n else (0, 1, float("nan"))
             lo = float(ys[r - 1]) if r >= 1 else float("nan")
             hi = float(ys[s - 1]) if s <= n else float("nan")

@@ -143,7 +143,7 @@ def _problem(d, x=None):
     return {"num_vars": d, "names": [f"x{j}" for j in range(d)], "bounds": b}
 
 
-def delta_indices(x: np.ndarray, y: np.ndarray, seed: int, resamples: int = 50) -> dict:
+def delta_indices(x: np.ndarray, y: np.ndarray, seed: int, resamples: int = 20) -> dict:
     """Borgonovo delta and first-order index estimates (SALib) with 95 % bootstrap halves.
 
     Returns dict(delta, delta_conf, S1, S1_conf) of arrays (NaN when the sample is too small:
@@ -158,7 +158,8 @@ def delta_indices(x: np.ndarray, y: np.ndarray, seed: int, resamples: int = 50) 
     import warnings
 
     from SALib.analyze import delta
-    with warnings.catch_warnings(), contextlib.redirect_stdout(io.StringIO()):
+    with warnings.catch_warnings(), contextlib.redirect_stdout(io.StringIO()), \
+            contextlib.redirect_stderr(io.StringIO()), np.errstate(all="ignore"):
         warnings.simplefilter("ignore")       # SALib prints bias notices: keep stdout clean
         res = delta.analyze(_problem(d, x), np.asarray(x, float), np.asarray(y, float),
                             num_resamples=resamples, conf_level=0.95, print_to_console=False,

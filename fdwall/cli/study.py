@@ -102,6 +102,13 @@ def cmd_study(args) -> int:
     except OSError as exc:
         raise WriteError(f"cannot write '{h5}': {exc.strerror or exc}.") from None
     files = [str(csv_path), str(h5)]
+    if not getattr(args, "no_plots", False) and rows:
+        from ..report.study_plots import write_study_plots
+        try:
+            files += write_study_plots(st, rows, unc, str(outdir), stem)
+        except OSError as exc:
+            raise WriteError(f"cannot write the study plots into '{outdir}': "
+                             f"{exc.strerror or exc}.") from None
     report = common.write_report(args, h5)
     if report:
         files.append(str(report))
@@ -118,12 +125,20 @@ def cmd_study(args) -> int:
                 print(f"  {q['output']:>10} p{q['percent']:02d} = {q['value_si']:.6g} "
                       f"{q['unit']}  ({q['ci_low_si']:.6g} .. {q['ci_high_si']:.6g})")
             for e in unc["json"]["exceedance"]:
+                if e["output"] == "touch_verdict":
+                    print(f"  P(peak skin above the touch limit) = {e['probability']:.3f}  "
+                          f"({e['ci_low']:.3f} .. {e['ci_high']:.3f})")
+                    continue
                 print(f"  P({e['output']} > {e['limit_si']:.6g} {e['unit']}) = "
                       f"{e['probability']:.3f}  ({e['ci_low']:.3f} .. {e['ci_high']:.3f})")
             for o in [o for o in st["outputs"] if o not in TEXT_OUTPUTS]:
                 top = summary.get(f"{o.rsplit('_', 1)[0]}_top_input")
                 if top:
-                    print(f"  {o}: strongest input {top}")
+                    how = unc["tables"]["sensitivity"]["ranked_by"][0]
+                    print(f"  {o}: strongest input {top} (by {how})")
+            for note in unc["notes"]:
+                if note.startswith(("sample size", "sensitivity")) or "failed" in note:
+                    print(f"  note: {note}")
         print(f"  {SAFETY_CAUTION}")
         for f in files:
             print(f"  {f}")
