@@ -368,7 +368,8 @@ def run_study(path, out_dir=".", workers=None, seed=None, *, scheduler=None, res
 
     Resume: when the table already exists for the same study (same hash of the study and
     base case files), only the missing variants run; a seed drawn for the first run is
-    taken from the table.  A table of another study is refused (InputError) unless
+    taken from the table (and a study dict passed in is updated to that sample).  A table
+    of another study is refused (InputError) unless
     ``restart``, which starts the table over.  ``on_batch(indices, rows)`` is called after
     each batch is written (see :func:`fdwall.analyses.study_run.execute`).
     """
@@ -389,7 +390,8 @@ def run_study(path, out_dir=".", workers=None, seed=None, *, scheduler=None, res
                     f"{csv_path} was drawn with seed {stamp['seed']}, not {st['seed']}: "
                     f"resume with --seed {stamp['seed']} (or without --seed), or run with "
                     "--restart to start over with the new seed.")
-            st = read_study(st["file"], seed=int(stamp["seed"]))
+            # the caller's study dict is updated in place: its samples are the table's
+            st.update(read_study(st["file"], seed=int(stamp["seed"])))
         rows = read_partial(csv_path, st)
     todo = [i for i in range(len(st["variants"])) if i not in rows]
     execute(st, todo, rows, csv_path, workers=workers, scheduler=scheduler, batch=batch,
@@ -563,8 +565,11 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
         unit = suf[1:]
         y = np.array([rows[i][out] for i in done], dtype=float)
         ys = np.sort(y)
-        summ[f"{base}_mean{suf}"] = float(y.mean()) if n else float("nan")
-        summ[f"{base}_std{suf}"] = float(y.std(ddof=1)) if n > 1 else float("nan")
+        finite = bool(np.all(np.isfinite(y)))   # 'inf' = limit never reached: no mean
+        summ[f"{base}_mean{suf}"] = float(y.mean()) if n and finite else float("nan")
+        summ[f"{base}_std{suf}"] = float(y.std(ddof=1)) if n > 1 and finite else float("nan")
+        if not finite:
+            summ[f"{base}_never_reached"] = int(np.sum(np.isinf(y)))
         for pc in PERCENTS:
             p = pc / 100
             # an 'inf' (limit never reached) enters as the largest values: order statistic
