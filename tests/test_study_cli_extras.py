@@ -9,7 +9,6 @@ correlations have those signs.
 import json
 from pathlib import Path
 
-import pytest
 from study_cases import ONE_LAYER_WALL
 
 from fdwall.cautions import SAFETY_CAUTION
