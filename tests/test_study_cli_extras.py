@@ -109,3 +109,20 @@ def test_demo_study(tmp_path, capsys):
     assert sens[("peak_skin_T_K", "wall.layers[1].conductivity_factor")] > 0.5
     assert sens[("peak_skin_T_K", "wall.layers[1].thickness")] < 0
     assert sens[("loss_W", "wall.layers[1].conductivity_factor")] > 0.5
+
+
+def test_hdf5_table_equals_csv_table(tmp_path):
+    # common practice, no source: the two files of one study hold the same table
+    from fdwall.study import read_table
+    p = _files(tmp_path)
+    assert main(["study", str(p), "--out", str(tmp_path / "o"), "--workers", "1", "--seed",
+                 "9", "--quiet", "--no-plots"]) == 0
+    a = read_table(tmp_path / "o" / "c-study.csv")
+    b = read_table(tmp_path / "o" / "c-study.h5")
+    assert list(a.columns) == list(b.columns)
+    assert "outer_T [K]" in b.columns and "status" in b.columns
+    for c in a.columns:
+        if a[c].dtype.kind == "f":
+            assert (a[c].to_numpy() == b[c].to_numpy()).all(), c
+        else:
+            assert [str(x) for x in a[c]] == [str(x) for x in b[c]], c

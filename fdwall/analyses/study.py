@@ -401,13 +401,31 @@ def run_study(path, out_dir=".", workers=None, seed=None, *, scheduler=None, res
 
 
 def read_table(path):
-    """Read a study table (DIR/<stem>-study.csv) into a pandas DataFrame.
+    """Read a study table into a pandas DataFrame: ``DIR/<stem>-study.csv`` or ``.h5``.
 
-    Column names keep their ``name [unit]`` headers; the study hash line is skipped.
+    Column names keep their ``name [unit]`` headers; the study hash line of the CSV is
+    skipped; from HDF5 the ``tables/variants`` group is read, columns in the CSV's order.
     """
     import pandas as pd  # optional heavy library, imported lazily
+    if os.fspath(path).endswith((".h5", ".hdf5")):
+        import h5py
+        with h5py.File(path, "r") as h:
+            g = h["tables/variants"]
+            cols = {}
+            for k in g:
+                v = g[k][()]
+                if v.dtype.kind in "OS":
+                    v = [x.decode() if isinstance(x, bytes) else x for x in v]
+                cols[k] = v
+        order = [c for c in pd.read_csv(_csv_beside(path), comment="#", nrows=0).columns
+                 if c in cols] if os.path.exists(_csv_beside(path)) else list(cols)
+        return pd.DataFrame({c: cols[c] for c in order})
     return pd.read_csv(path, comment="#", keep_default_na=False,
                        na_values=["nan"])
+
+
+def _csv_beside(h5_path) -> str:
+    return os.path.splitext(os.fspath(h5_path))[0] + ".csv"
 
 
 def quantile_interval(n: int, p: float, confidence: float = 0.95):

@@ -68,9 +68,7 @@ def cmd_study(args) -> int:
               "table and were not run again.", file=sys.stderr)
     done = [r for r in rows if r["status"] == "done"]
     keys, head = table_header(st)
-    table = {h: [r[k] for r in rows] for k, h in zip(keys, head)
-             if k not in ("status", "error", "host", "worker")}
-    table.update(status=[r["status"] for r in rows], error=[r["error"] for r in rows])
+    table = {h: [r[k] for r in rows] for k, h in zip(keys, head)}
     summary = {"variants": len(rows), "done": len(done), "failed": len(rows) - len(done)}
     for k in [o for o in st["outputs"] if o not in TEXT_OUTPUTS]:
         vals = [r[k] for r in done]
@@ -79,7 +77,8 @@ def cmd_study(args) -> int:
             summary[f"{name}_max_{unit}"] = max(vals)
             summary[f"{name}_min_{unit}"] = min(vals)
     notes = ["every combination of the [[vary]] values is one variant"]
-    refs = ["steady state by fdwall.solve_steady"]
+    refs = ["steady state by fdwall.solve_steady, transient outputs by fdwall.run (one "
+            "system per variant shared by both)"]
     tables = {"variants": table}
     unc = None
     if st["method"] != "grid":
