@@ -130,6 +130,31 @@ def _q(value, unit, system, key=""):
     return _fmt(float(conv)), label
 
 
+def _convergence(data: dict, system: str) -> dict:
+    """The stored convergence check (``/report_data/convergence``) as display rows, or its
+    status ("not computed ...") when the run stored none."""
+    conv = (data.get("report_data") or {}).get("convergence")
+    if not isinstance(conv, dict):
+        return {"status": "not computed (this result was written without --report; rerun "
+                          "with fdwall run CASE --report to store the check)", "rows": []}
+    rows = []
+    if conv.get("status") == "computed":
+        for row in conv.get("rows") or []:
+            q, u, b, r, d, rel = (row.get(k) for k in ("quantity", "unit", "base", "refined",
+                                                        "difference", "relative"))
+            u = "" if u == "-" else u
+            bt, lab = _q(b, u, system)
+            rt, _ = _q(r, u, system)
+            dt, dlab = _q(d, u, system, key="difference")
+            rows.append((q, bt, rt, lab or "-", dt, dlab or "-", f"{float(rel):.2g}"))
+    return {"status": conv.get("status", "not recorded"), "rows": rows,
+            "factor": _fmt(conv.get("refine_factor", "")),
+            "tolerance": _q(conv.get("tolerance_K"), "K", system, key="tolerance"),
+            "refined_tolerance": _q(conv.get("refined_tolerance_K"), "K", system,
+                                    key="tolerance"),
+            "nodes": conv.get("nodes", ""), "refined_nodes": conv.get("refined_nodes", "")}
+
+
 def _run_sections(data: dict, system: str) -> dict:
     """Sections of a run result (kind transient/steady), read from its stored groups."""
     import json
@@ -203,6 +228,7 @@ def _run_sections(data: dict, system: str) -> dict:
         meshes.append((m.get("name", name), m.get("geometry", ""), x.size, cells, layers))
     if steps or meshes:
         out["steps"], out["meshes"] = steps, meshes
+        out["convergence"] = _convergence(data, system)
     touch = data.get("touch")
     if isinstance(touch, dict):
         faces = []
