@@ -400,6 +400,11 @@ class Result:
         h.attrs["created"] = datetime.now(timezone.utc).isoformat()
         h.attrs["kind"] = "transient"
         stamp_h5(h, provenance(self.case))
+        ident = dict(getattr(self.case, "report", ()) or ())
+        if ident:  # the case file's [report] table: identification block of the HTML report
+            rg = h.create_group("report")
+            for k, v in ident.items():
+                rg.attrs[k] = str(v)
         g = h.create_group("input")
         g.create_dataset("case_text", data=self.case.source or "")
         g.create_dataset("resolved_json", data=json.dumps(resolved_inputs(self.case), default=str))
