@@ -143,13 +143,17 @@ def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
 
 
 def store_report_data(result, h5_path, case=None) -> None:
-    """Compute the report data of a run (the convergence check) and add it to the run's
-    HDF5 file ``h5_path`` as the group ``/report_data/convergence`` (atomic rewrite).
+    """Compute the report data of a run and add it to the run's HDF5 file ``h5_path`` as
+    the group ``/report_data`` (atomic rewrite): the convergence check
+    (``/report_data/convergence``) and the notes of :mod:`fdwall.analyses.calc_notes`
+    (resolved inputs, materials, correlations, Biot numbers, assumptions, references).
 
     Called by ``fdwall run CASE --report``; a file without the group reads "not computed"
     in the report.
     """
     from ..h5tree import add_group
+    from .calc_notes import calc_notes
     case = case if case is not None else result.case
-    conv = convergence_check(case, result)
-    add_group(h5_path, "report_data", {"convergence": conv})
+    data = calc_notes(result, case)
+    data["convergence"] = convergence_check(case, result)
+    add_group(h5_path, "report_data", data)

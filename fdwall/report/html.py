@@ -130,13 +130,80 @@ def _q(value, unit, system, key=""):
     return _fmt(float(conv)), label
 
 
+_NOT_STORED = ("not computed: this result was written without --report (rerun with "
+               "fdwall run CASE --report to store it)")
+
+
+def _num(v):
+    try:
+        v = float(v)
+    except (TypeError, ValueError):
+        return None
+    return v if np.isfinite(v) else None
+
+
+def _notes(data: dict, system: str) -> dict:
+    """Resolved inputs, materials, correlations, Biot numbers and assumptions stored by the
+    run in ``/report_data`` (see fdwall.analyses.calc_notes), as display rows."""
+    rd = data.get("report_data")
+    if not isinstance(rd, dict) or "inputs" not in rd:
+        return {"status": _NOT_STORED}
+    resolved = []
+    for r in rd.get("inputs") or []:
+        if not isinstance(r, dict):
+            continue
+        v, hi, u = _num(r.get("value")), _num(r.get("value_max")), r.get("unit", "")
+        if v is None:
+            resolved.append((r.get("section", ""), r.get("quantity", ""), r.get("text", ""), ""))
+            continue
+        key = r.get("quantity", "")
+        txt, lab = _q(v, u, system, key=key)
+        if hi is not None:
+            txt = f"{txt} .. {_q(hi, u, system, key=key)[0]}"
+        if r.get("text"):
+            txt = f"{txt} ({r['text']})"
+        resolved.append((r.get("section", ""), key, txt, lab or "-"))
+    mats, mat_units = [], {}
+    for m in rd.get("materials") or []:
+        if not isinstance(m, dict):
+            continue
+        row = [m.get("name", ""), m.get("category", "")]
+        for key, unit in (("rho_kg_m3", "kg/m3"), ("k_20_W_mK", "W/m/K"),
+                          ("cp_20_J_kgK", "J/kg/K"), ("T_top_K", "K"), ("k_top_W_mK", "W/m/K"),
+                          ("cp_top_J_kgK", "J/kg/K"), ("t_max_K", "K")):
+            txt, lab = _q(_num(m.get(key)), unit, system, key=key)
+            row.append(txt or "not given")
+            mat_units[key] = lab or mat_units.get(key, "")
+        row.append(m.get("source", ""))
+        mats.append(row)
+    ref20 = _q(293.15, "K", system)
+    biot, bu = [], {}
+    for b in rd.get("biot") or []:
+        if not isinstance(b, dict):
+            continue
+        row = [b.get("wall", "")]
+        for key, unit in (("R_wall_K_per_W", "K/W"), ("h_outer_W_m2K", "W/m2/K"),
+                          ("biot", ""), ("spread_m", "m")):
+            txt, lab = _q(_num(b.get(key)), unit, system, key=key)
+            row.append(txt or "n/a (fixed surface temperature)")
+            bu[key] = lab or bu.get(key, "")
+        row.insert(4, b.get("outer_layer", ""))
+        biot.append(row)
+    return {"status": "computed", "resolved": resolved, "materials": mats, "mat_units": mat_units,
+            "at20": f"{ref20[0]} {ref20[1]}", "biot": biot, "biot_units": bu,
+            "correlations": [(c.get("face", ""), c.get("model", ""), c.get("reference", ""))
+                             for c in rd.get("correlations") or [] if isinstance(c, dict)],
+            "assumptions": _as_list(rd.get("assumptions")),
+            "criteria": _as_list(rd.get("criteria")),
+            "references": _as_list(rd.get("references"))}
+
+
 def _convergence(data: dict, system: str) -> dict:
     """The stored convergence check (``/report_data/convergence``) as display rows, or its
     status ("not computed ...") when the run stored none."""
     conv = (data.get("report_data") or {}).get("convergence")
     if not isinstance(conv, dict):
-        return {"status": "not computed (this result was written without --report; rerun "
-                          "with fdwall run CASE --report to store the check)", "rows": []}
+        return {"status": _NOT_STORED, "rows": []}
     rows = []
     if conv.get("status") == "computed":
         for row in conv.get("rows") or []:
@@ -260,12 +327,18 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
     stored = data.get("report") if isinstance(data.get("report"), dict) else {}
     ident = {**{k: stored.get(k, "") for k in _IDENT_KEYS}, **(ident or {})}
     run = _run_sections(data, units) if attrs.get("kind") in ("transient", "steady") else {}
-    skip = {"inputs", "summary", "tables", "warnings", "references", "notes", "report"}
+    skip = {"inputs", "summary", "tables", "warnings", "references", "notes", "report",
+            "report_data"}
+    notes = _notes(data, units) if run else {}
     summary = _scalar_rows(data.get("summary", {}) or {}, units)
     tables = [_table(n, t, units) for n, t in (data.get("tables") or {}).items()
               if isinstance(t, dict)]
     texts = []
     for name, grp in data.items():  # long stored texts (case text, resolved case) as blocks
+        if name == "input" and run:   # shown as "as given" / "as resolved" in the inputs
+            if notes.get("status") == "computed" or not isinstance(grp, dict):
+                continue
+            grp = {k: v for k, v in grp.items() if k != "case_text"}
         if isinstance(grp, dict):
             for k in [k for k, v in grp.items() if isinstance(v, str) and len(v) > 120]:
                 texts.append((f"{name}.{k}", grp[k]))
@@ -289,6 +362,9 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         attrs.setdefault("caution", run["touch"]["caution"])
     inputs = data.get("inputs", {}) or {}
     case_text = inputs.get("case_text", "") if isinstance(inputs, dict) else ""
+    if run and isinstance(data.get("input"), dict):
+        case_text = data["input"].get("case_text", "") or "(the case was built in Python: "\
+            "no case file text)"
     env = jinja2.Environment(loader=jinja2.PackageLoader("fdwall.report", "templates"),
                              autoescape=True)
     return env.get_template("report.html.j2").render(
@@ -296,7 +372,7 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         ident=[(k, ident.get(k) or "") for k in _IDENT_KEYS], summary=summary,
         inputs=_scalar_rows({k: v for k, v in inputs.items() if k != "case_text"}, units)
         if isinstance(inputs, dict) else [], case_text=case_text, texts=texts, tables=tables,
-        images=_images(h5_path), run=run,
+        images=_images(h5_path), run=run, calc=notes,
         warnings=_as_list(data.get("warnings")) + run.get("touch", {}).get("warnings", []),
         references=_as_list(data.get("references")), notes=_as_list(data.get("notes")),
         version=attrs.get("fdwall_version", "not recorded"), kind=attrs.get("kind", "unknown"),
