@@ -171,9 +171,9 @@ def _notes(data: dict, system: str) -> dict:
         for key, unit in (("rho_kg_m3", "kg/m3"), ("k_20_W_mK", "W/m/K"),
                           ("cp_20_J_kgK", "J/kg/K"), ("T_top_K", "K"), ("k_top_W_mK", "W/m/K"),
                           ("cp_top_J_kgK", "J/kg/K"), ("t_max_K", "K")):
-            txt, lab = _q(_num(m.get(key)), unit, system, key=key)
+            txt, _ = _q(_num(m.get(key)), unit, system, key=key)
             row.append(txt or "not given")
-            mat_units[key] = lab or mat_units.get(key, "")
+            mat_units[key] = _q(300.0, unit, system, key=key)[1]
         row.append(m.get("source", ""))
         mats.append(row)
     ref20 = _q(293.15, "K", system)
@@ -184,9 +184,9 @@ def _notes(data: dict, system: str) -> dict:
         row = [b.get("wall", "")]
         for key, unit in (("R_wall_K_per_W", "K/W"), ("h_outer_W_m2K", "W/m2/K"),
                           ("biot", ""), ("spread_m", "m")):
-            txt, lab = _q(_num(b.get(key)), unit, system, key=key)
+            txt, _ = _q(_num(b.get(key)), unit, system, key=key)
             row.append(txt or "n/a (fixed surface temperature)")
-            bu[key] = lab or bu.get(key, "")
+            bu[key] = _q(1.0, unit, system, key=key)[1] or "-"
         row.insert(4, b.get("outer_layer", ""))
         biot.append(row)
     return {"status": "computed", "resolved": resolved, "materials": mats, "mat_units": mat_units,
@@ -196,6 +196,69 @@ def _notes(data: dict, system: str) -> dict:
             "assumptions": _as_list(rd.get("assumptions")),
             "criteria": _as_list(rd.get("criteria")),
             "references": _as_list(rd.get("references"))}
+
+
+def _names(v) -> list:
+    return [x.decode() if isinstance(x, bytes) else str(x) for x in (v if v is not None else [])]
+
+
+def _run_results(data: dict, system: str) -> dict:
+    """Result tables of a run read from its stored datasets: per face the last and the
+    highest stored temperature, last heat flow and cumulative energy; per interface the last
+    and highest temperature; the watched events; and the main series at about a dozen of
+    the stored output times (every k-th row, the last always included)."""
+    faces = data.get("faces") or {}
+    names = _names(faces.get("names"))
+    T = np.asarray(faces.get("temperature", np.zeros((0, 0))), dtype=float)
+    q = np.asarray(faces.get("heat_flow", np.zeros((0, 0))), dtype=float)
+    E = np.asarray(faces.get("energy", np.zeros((0, 0))), dtype=float)
+    out = {"faces": [], "interfaces": [], "events": [], "series": None}
+    lab_T = _q(300.0, "K", system)[1]
+    lab_W, lab_J = _q(1.0, "W", system)[1], _q(1.0, "J", system)[1]
+    out["units"] = {"T": lab_T, "W": lab_W, "J": lab_J}
+    if T.ndim == 2 and T.shape[0] and T.shape[1] == len(names):
+        for f, n in enumerate(names):
+            out["faces"].append((n, _q(T[-1, f], "K", system)[0], _q(T[:, f].max(), "K",
+                                                                        system)[0],
+                                 _q(q[-1, f], "W", system)[0] if q.ndim == 2 else "",
+                                 _q(E[-1, f], "J", system)[0] if E.ndim == 2 else ""))
+    itf = data.get("interfaces") or {}
+    for name in sorted(k for k in itf if k.startswith("wall_")):
+        arr = np.asarray(itf[name], dtype=float)
+        mesh = (data.get("mesh") or {}).get(name) or {}
+        wall = mesh.get("name", name)
+        try:
+            import json
+            labels = json.loads(mesh.get("layers", "[]"))
+        except (TypeError, ValueError):
+            labels = []
+        for i in range(arr.shape[1] if arr.ndim == 2 else 0):
+            between = (f"{labels[i]} | {labels[i + 1]}" if i + 1 < len(labels)
+                       else f"interface {i + 1}")
+            out["interfaces"].append((wall, between, _q(arr[-1, i], "K", system)[0],
+                                      _q(arr[:, i].max(), "K", system)[0]))
+    ev = data.get("events") or {}
+    for n, up, down in zip(_names(ev.get("names")), np.ravel(ev.get("up", [])),
+                           np.ravel(ev.get("down", []))):
+        out["events"].append((n, _q(up, "s", system)[0] or "none",
+                              _q(down, "s", system)[0] or "none"))
+    t = np.asarray(data.get("time", []), dtype=float)
+    if t.size and T.ndim == 2 and T.shape[0] == t.size:
+        step = max(1, int(np.ceil((t.size - 1) / 12)))
+        idx = sorted(set(range(0, t.size, step)) | {t.size - 1})
+        heads = ["time [h]"] + [f"{n} temperature [{lab_T}]" for n in names]
+        cols = [[_fmt(float(v) / 3600.0) for v in t[idx]]]
+        cols += [[_q(v, "K", system)[0] for v in T[idx, f]] for f in range(len(names))]
+        stored = (data.get("energy") or {}).get("stored")
+        if isinstance(stored, np.ndarray) and stored.size == t.size:
+            heads.append(f"stored energy [{lab_J}]")
+            cols.append([_q(v, "J", system)[0] for v in stored[idx]])
+        power = (data.get("heater") or {}).get("power")
+        if isinstance(power, np.ndarray) and power.size == t.size and np.any(power):
+            heads.append(f"heater power [{lab_W}]")
+            cols.append([_q(v, "W", system)[0] for v in power[idx]])
+        out["series"] = (heads, [list(r) for r in zip(*cols)])
+    return out
 
 
 def _convergence(data: dict, system: str) -> dict:
@@ -296,6 +359,7 @@ def _run_sections(data: dict, system: str) -> dict:
     if steps or meshes:
         out["steps"], out["meshes"] = steps, meshes
         out["convergence"] = _convergence(data, system)
+    out["results"] = _run_results(data, system)
     touch = data.get("touch")
     if isinstance(touch, dict):
         faces = []
@@ -335,6 +399,8 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
               if isinstance(t, dict)]
     texts = []
     for name, grp in data.items():  # long stored texts (case text, resolved case) as blocks
+        if run and name not in ("input",):
+            continue
         if name == "input" and run:   # shown as "as given" / "as resolved" in the inputs
             if notes.get("status") == "computed" or not isinstance(grp, dict):
                 continue
@@ -345,7 +411,9 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
     long_keys = {t[0] for t in texts}
     # groups whose scalars a run result shows in its dedicated sections
     shown = {"solver", "energy", "touch", "mesh"} if run else set()
-    for name, grp in data.items():  # other groups (run results): their 1-D columns as tables
+    if run:  # a run's groups are shown by the dedicated sections above
+        skip |= set(data)
+    for name, grp in data.items():  # other groups: their 1-D columns as tables
         if name in skip or not isinstance(grp, dict):
             continue
         cols = {k: v for k, v in grp.items() if isinstance(v, np.ndarray) and v.ndim == 1}
@@ -377,7 +445,9 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         references=_as_list(data.get("references")), notes=_as_list(data.get("notes")),
         version=attrs.get("fdwall_version", "not recorded"), kind=attrs.get("kind", "unknown"),
         created=attrs.get("created", "not recorded"),
-        sha=attrs.get("input_sha256") or "not recorded", source=h5_path.name)
+        sha=attrs.get("input_sha256") or "not recorded", source=h5_path.name,
+        provenance=sorted((k, _fmt(v)) for k, v in (data.get("provenance") or {}).items()
+                          if not isinstance(v, (dict, list, np.ndarray))))
 
 
 def write_report(h5_path, out, units: str = "si", ident: dict | None = None) -> Path:
