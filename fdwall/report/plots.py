@@ -73,10 +73,13 @@ def _style(ax, xlabel=None, ylabel=None):
 
 
 def _legend(ax, n_entries):
+    """Legend of the curves one can see (hidden ones merged, see :func:`merge_hidden`)."""
+    handles, labels = _visible_legend(ax)
     if n_entries > 9:
-        ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=7, frameon=False)
+        ax.legend(handles, labels, loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=7,
+                  frameon=False)
     else:
-        ax.legend(loc="best", fontsize=8, framealpha=0.85)
+        ax.legend(handles, labels, loc="best", fontsize=8, framealpha=0.85)
 
 
 #: Dash patterns of interface curves (on/off lengths in points), one per interface index.
