@@ -12,10 +12,9 @@ import shutil
 import subprocess
 
 import pytest
+from test_report_ident import CASE
 
 from fdwall.cli import main
-
-from test_report_ident import CASE
 
 
 def test_printed_pdf_has_page_numbers(tmp_path, capsys):
