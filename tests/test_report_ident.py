@@ -95,3 +95,24 @@ def test_bad_report_key_is_input_error(tmp_path, capsys, line, key):
     assert main(["check", str(p)]) == 2
     err = capsys.readouterr().err
     assert key in err and "Traceback" not in err
+
+
+def test_plots_of_an_earlier_run_are_not_embedded(tmp_path, capsys):
+    """A result rewritten with --no-plots leaves the older PNGs beside it: the report must
+    not show them as this run's plots (their file times predate the result's 'created')."""
+    import os
+    import time
+    p = tmp_path / "door.toml"
+    p.write_text(CASE)
+    out = tmp_path / "out"
+    assert main(["run", str(p), "--out", str(out), "--quiet"]) == 0
+    assert main(["report", str(out / "door.h5")]) == 0
+    text = (out / "door-report.html").read_text()
+    assert text.count('src="data:image/png;base64,') == 3
+    old = time.time() - 3600.0
+    for png in out.glob("*.png"):
+        os.utime(png, (old, old))
+    assert main(["run", str(p), "--out", str(out), "--quiet", "--no-plots", "--report"]) == 0
+    text = (out / "door-report.html").read_text()
+    assert 'src="data:image/png' not in text
+    assert "door-temperatures.png" in text and "earlier run" in text

@@ -111,13 +111,28 @@ def read_result(h5_path) -> tuple[dict, dict]:
     return attrs, data
 
 
-def _images(h5_path: Path):
-    """PNG plots written beside the result (<stem>*.png) as base64 data URIs."""
-    out = []
+#: A PNG beside the result older than the result's ``created`` time by more than this is
+#: from an earlier run (e.g. the result was rewritten with --no-plots) and is not embedded [s].
+STALE_PLOT_S = 120.0
+
+
+def _images(h5_path: Path, created: str = ""):
+    """PNG plots written beside the result (<stem>*.png) as base64 data URIs; plots older
+    than the result (by more than :data:`STALE_PLOT_S`) belong to an earlier run: skipped,
+    and returned by name as the second item."""
+    from datetime import datetime
+    try:
+        t_created = datetime.fromisoformat(str(created).replace("Z", "+00:00")).timestamp()
+    except ValueError:
+        t_created = None
+    out, stale = [], []
     for png in sorted(h5_path.parent.glob(f"{h5_path.stem}*.png")):
+        if t_created is not None and png.stat().st_mtime < t_created - STALE_PLOT_S:
+            stale.append(png.name)
+            continue
         uri = "data:image/png;base64," + base64.b64encode(png.read_bytes()).decode("ascii")
         out.append((png.stem, uri))
-    return out
+    return out, stale
 
 
 def _q(value, unit, system, key=""):
@@ -130,8 +145,8 @@ def _q(value, unit, system, key=""):
     return _fmt(float(conv)), label
 
 
-_NOT_STORED = ("not computed: this result was written without --report (rerun with "
-               "fdwall run CASE --report to store it)")
+_NOT_STORED = ("not computed: this result file does not hold it (fdwall run CASE --report "
+               "computes it and stores it in the result)")
 
 
 def _num(v):
@@ -433,6 +448,7 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
     if run and isinstance(data.get("input"), dict):
         case_text = data["input"].get("case_text", "") or "(the case was built in Python: "\
             "no case file text)"
+    images, stale = _images(h5_path, attrs.get("created", ""))
     env = jinja2.Environment(loader=jinja2.PackageLoader("fdwall.report", "templates"),
                              autoescape=True)
     return env.get_template("report.html.j2").render(
@@ -440,7 +456,7 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         ident=[(k, ident.get(k) or "") for k in _IDENT_KEYS], summary=summary,
         inputs=_scalar_rows({k: v for k, v in inputs.items() if k != "case_text"}, units)
         if isinstance(inputs, dict) else [], case_text=case_text, texts=texts, tables=tables,
-        images=_images(h5_path), run=run, calc=notes,
+        images=images, stale_images=stale, run=run, calc=notes,
         warnings=_as_list(data.get("warnings")) + run.get("touch", {}).get("warnings", []),
         references=_as_list(data.get("references")), notes=_as_list(data.get("notes")),
         version=attrs.get("fdwall_version", "not recorded"), kind=attrs.get("kind", "unknown"),
