@@ -65,7 +65,8 @@ def _sched_rows(section, quantity, s, unit):
         return []
     if lo == hi:
         return [_row(section, quantity, lo, unit)]
-    return [_row(section, quantity, lo, unit, text=f"schedule of {n} points", value_max=hi)]
+    return [_row(section, quantity, lo, unit, text=f"range of a table of {n} points",
+                 value_max=hi)]
 
 
 def _conv_kind(c):
@@ -76,6 +77,24 @@ def _conv_kind(c):
     return getattr(c, "kind", "fixed")
 
 
+def _conv_rows(section, c, fixed_label="film coefficient"):
+    """Rows of a film coefficient or a correlation with its lengths and speed."""
+    if isinstance(c, (int, float)) or _conv_kind(c) == "fixed":
+        h = float(c) if isinstance(c, (int, float)) else float(c.h_fixed)
+        return [_row(section, fixed_label, h, "W/m2/K")]
+    rows = [_row(section, "convection correlation", text=_conv_kind(c))]
+    for attr, label in (("height", "height"), ("char_length", "length A/P"),
+                        ("diameter", "diameter"), ("length", "length along the flow")):
+        v = getattr(c, attr, None)
+        if v:
+            rows.append(_row(section, label, v, "m"))
+    if getattr(c, "speed", 0.0):
+        rows.append(_row(section, "wind speed", c.speed, "m/s"))
+    if getattr(c, "multiplier", 1.0) != 1.0:
+        rows.append(_row(section, "factor on the film coefficient", c.multiplier, ""))
+    return rows
+
+
 def _face_rows(section, face):
     rows = []
     if face.temperature is not None:
@@ -83,18 +102,7 @@ def _face_rows(section, face):
     c = face.convection
     if c is not None:
         rows += _sched_rows(section, "fluid (air) temperature", face.fluid, "K")
-        if isinstance(c, (int, float)) or _conv_kind(c) == "fixed":
-            h = float(c) if isinstance(c, (int, float)) else float(c.h_fixed)
-            rows.append(_row(section, "film coefficient", h, "W/m2/K"))
-        else:
-            rows.append(_row(section, "convection correlation", text=_conv_kind(c)))
-            for attr, label in (("height", "height"), ("char_length", "length A/P"),
-                                ("diameter", "diameter"), ("length", "length along the flow")):
-                v = getattr(c, attr, None)
-                if v:
-                    rows.append(_row(section, label, v, "m"))
-            if getattr(c, "speed", 0.0):
-                rows.append(_row(section, "wind speed", c.speed, "m/s"))
+        rows += _conv_rows(section, c)
     if face.emissivity is not None:
         rows += _sched_rows(section, "emissivity", face.emissivity, "")
         sur = face.surroundings if face.surroundings is not None else face.fluid
@@ -159,17 +167,18 @@ def input_rows(case, system) -> list:
                 rows.append(_row(sec, f"contact resistance after layer {i + 1}", rc, "m2*K/W"))
         if w.refine != 1.0:
             rows.append(_row(sec, "mesh refinement factor", w.refine, ""))
+        br = case.walls[j].bridge if case.is_enclosure else None
+        if br is not None:
+            rows.append(_row(sec, "bridge: share of the wall area", br.fraction, ""))
+            rows.append(_row(sec, "bridge: material", text=getattr(br.material, "name", "")))
+            rows.append(_row(sec, "bridge: replaces layers", text=", ".join(
+                str(i + 1) for i in br.layers)))
     for j, w, name, face, ew in _faces(case):
         sec = f"face {name}"
         if face is not None:
             rows += _face_rows(sec, face)
         else:
-            h = ew.inner_h
-            if isinstance(h, (int, float)) or _conv_kind(h) == "fixed":
-                rows.append(_row(sec, "film coefficient to the chamber", float(
-                    h if isinstance(h, (int, float)) else h.h_fixed), "W/m2/K"))
-            else:
-                rows.append(_row(sec, "convection correlation", text=_conv_kind(h)))
+            rows += _conv_rows(sec, ew.inner_h, "film coefficient to the chamber")
             if ew.inner_emissivity is not None:
                 rows += _sched_rows(sec, "emissivity", ew.inner_emissivity, "")
     ch = case.chamber
