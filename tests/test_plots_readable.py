@@ -187,3 +187,23 @@ def test_setpoint_drawn(box, tmp_path, monkeypatch):
     assert len(sp) == 1 and "setpoint" in sp[0].get_label()
     want = np.interp(box.times, [0.0, 1800.0], [20.0, 250.0])   # the schedule above
     np.testing.assert_allclose(sp[0].get_ydata(), want, atol=1e-9)
+
+
+def test_profile_legend_merges_coinciding_profiles(pipe, tmp_path, monkeypatch):
+    """The pipe's lagging has a diffusion time L^2/alpha = (0.03 m)^2 / (0.05/(800*100)) m2/s
+    = 24 min (Incropera sec. 5.5: the plane-wall response is steady after a few of these),
+    so the profiles from 6 h on are all the steady one: one legend entry for all of them."""
+    figs = _figs(monkeypatch)
+    plots.plot_profiles(pipe, tmp_path / "p.png")
+    fig = figs[-1]
+    texts = [t.get_text() for t in fig.legends[0].get_texts()]
+    assert texts == ["t = 6 h = t = 12 h = t = 18 h = t = 24 h = t = 30 h"]
+    # and the merged curves really are within the tolerance on the drawn axes (pixels by
+    # matplotlib's own transform)
+    ax = fig.axes[0]
+    fig.canvas.draw()
+    ys = [ax.transData.transform(np.c_[ln.get_xdata(), ln.get_ydata()])[:, 1]
+          for ln in ax.get_lines() if ln.get_label().startswith("t = ")]
+    assert len(ys) == 5
+    spread = max(np.max(np.abs(a - ys[-1])) for a in ys[:-1])
+    assert spread <= plots.HIDDEN_TOLERANCE_PX * 1.5

@@ -144,6 +144,55 @@ def merge_hidden(ax, tol_px: float = HIDDEN_TOLERANCE_PX) -> list:
     return out
 
 
+def _close_pairs(ax, tol_px: float) -> dict:
+    """{(label_a, label_b): True} for the labelled curves of ``ax`` that stay within
+    ``tol_px`` pixels of each other over their whole length (same x samples)."""
+    fig = ax.figure
+    lines = [ln for ln in ax.get_lines() if not ln.get_label().startswith("_")]
+    h_px = ax.get_position().height * fig.get_figheight() * fig.dpi
+    y0, y1 = ax.get_ylim()
+    tol = tol_px * abs(y1 - y0) / max(h_px, 1.0)
+    out = {}
+    for a in lines:
+        for b in lines:
+            if a is b:
+                continue
+            xa, xb = np.asarray(a.get_xdata(), float), np.asarray(b.get_xdata(), float)
+            ya, yb = np.asarray(a.get_ydata(), float), np.asarray(b.get_ydata(), float)
+            if xa.shape == xb.shape and np.allclose(xa, xb) and \
+                    np.nanmax(np.abs(ya - yb)) <= tol:
+                out[(a.get_label(), b.get_label())] = True
+    return out
+
+
+def shared_visible_legend(axes, tol_px: float = HIDDEN_TOLERANCE_PX):
+    """Handles and labels for one legend shared by ``axes`` whose curves carry the same
+    labels (profiles at the same times in every wall): a curve is merged into a later-drawn
+    one (``'a = b'``) only when it is hidden under it in every one of the axes."""
+    axes = [a for a in axes if a.get_visible()]
+    if not axes:
+        return [], []
+    pairs = [_close_pairs(a, tol_px) for a in axes]
+    lines = [ln for ln in axes[0].get_lines() if not ln.get_label().startswith("_")]
+    labels = [ln.get_label() for ln in lines]
+    top_of = {}
+    for i in range(len(labels) - 1, -1, -1):       # topmost (last drawn) first
+        for j in range(len(labels) - 1, i, -1):
+            top = top_of.get(labels[j], labels[j])
+            if top == labels[j] and all(p.get((labels[i], labels[j])) for p in pairs):
+                top_of[labels[i]] = labels[j]
+                break
+    handles, out = [], []
+    for ln, lab in zip(lines, labels):
+        if lab in top_of:
+            continue
+        members = [x for x in labels if top_of.get(x) == lab] + [lab]
+        members.sort(key=labels.index)
+        handles.append(ln)
+        out.append(" = ".join(members))
+    return handles, out
+
+
 def _visible_legend(ax, width=60):
     """Handles and labels of the curves :func:`merge_hidden` leaves visible, long labels
     wrapped at ``width`` characters."""
@@ -331,7 +380,6 @@ def plot_profiles(result, path, times=None) -> str:
     nrow = -(-len(walls) // ncol)
     fig, axes = _figure(9.0 if ncol == 1 else 13.0, 3.4 * nrow + 1.2, rows=nrow, cols=ncol)
     cmap = colormaps["viridis"]
-    handles = None
     for j, (w, ax) in enumerate(zip(walls, axes)):
         edges = np.concatenate([[0.0], np.cumsum([l.thickness for l in w.layers])]) * 1e3
         total = edges[-1]
@@ -349,8 +397,6 @@ def plot_profiles(result, path, times=None) -> str:
                     color="black", lw=1.3,
                     label=f"steady state (conditions at {result.steady.time / 3600.0:.3g} h)",
                     zorder=4)
-        if handles is None:
-            handles = ax.get_legend_handles_labels()
         _style(ax, "depth from inner face [mm]", "temperature [degC]")
         ax.set_xlim(-0.01 * total, 1.01 * total)
         # layer labels along the top (numbers only for narrow layers, named in the title)
@@ -375,7 +421,8 @@ def plot_profiles(result, path, times=None) -> str:
     for ax in axes[len(walls):]:
         ax.set_visible(False)
     _suptitle(fig, result, "temperature profiles through the wall" + ("s" if len(walls) > 1 else ""))
-    if handles:
+    handles = shared_visible_legend(axes[:len(walls)])
+    if handles[0]:
         fig.legend(*handles, loc="outside lower center", ncol=min(len(handles[0]), 6),
                    fontsize=8, frameon=False)
     return _save(fig, path)
