@@ -150,3 +150,17 @@ def test_natural_convection_face_cites_churchill_chu(tmp_path):
     text = (tmp_path / "o" / "panel-report.html").read_text()
     corr = _tables(text, "correlations")[0]
     assert "Churchill & Chu (1975)" in corr[2][2] and "Lemmon & Jacobsen" in corr[2][2]
+
+
+def test_run_report_has_every_section_and_no_external_resource(run):
+    import re
+    text = (run / "panel-report.html").read_text()
+    doc = html5lib.HTMLParser(strict=True).parse(text)   # a real parser, strict
+    ids = {e.get("id") for e in doc.iter() if e.get("id")}
+    for sec in ("identification", "summary", "energy-balance", "mesh-steps", "convergence",
+                "inputs", "inputs-given", "inputs-resolved", "materials", "criteria",
+                "correlations", "assumptions", "tables", "warnings", "provenance"):
+        assert sec in ids, sec
+    assert not re.search(r'(src|href)\s*=\s*"(https?:|//)', text)
+    assert "@import" not in text and "url(" not in text
+    assert "counter(page)" in text and "counter(pages)" in text
