@@ -195,3 +195,18 @@ def test_run_report_stores_check_and_report_equals_file(tmp_path, capsys):
     assert main(["report", str(out2 / "panel.h5")]) == 0
     old = (out2 / "panel-report.html").read_text()
     assert "Convergence check: not computed" in old
+
+
+def test_on_off_control_gets_a_note():
+    """A thermostat's switching instants move with the mesh: the check says so (the
+    difference of a final value then mixes in the cycle phase; common practice, no source)."""
+    from fdwall.analyses.convergence import _note
+    from fdwall.model import Chamber, Control, EnclosureWall, Heater
+    m = material_from_dict("demo-board", {"k": K, "cp": CP, "rho": RHO})
+    ew = EnclosureWall(wall=Wall(layers=(Layer(m, 0.05),), name="w"),
+                       outer=Face.exchange(K0 + 20, 8.0))
+    base = dict(run=RunSettings(duration=600.0), walls=(ew,), chamber=Chamber(capacity=1e4),
+                heater=Heater(power=500.0))
+    thermo = Case(control=Control(mode="thermostat", setpoint=K0 + 100), **base)
+    assert "switching" in _note(thermo)
+    assert _note(Case(**base)) == "" and _note(_case(4)) == ""

@@ -85,6 +85,18 @@ def _scales(rows) -> dict:
     return out
 
 
+def _note(case) -> str:
+    """A caveat on reading the differences, '' when none applies."""
+    ctl = getattr(case, "control", None)
+    if case.heater is not None and ctl is not None and (
+            ctl.mode == "thermostat" or (ctl.mode in ("duty", "pid") and ctl.switched)):
+        return ("on/off switching: the switching instants move a little with the mesh and "
+                "the tolerance, so differences in the final heat flows and temperatures also "
+                "reflect where each run is in its last switching cycle, not only the "
+                "discretisation error; compare the highest temperatures and the stored energy")
+    return ""
+
+
 def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
                       tol_factor: float = DEFAULT_TOL_FACTOR) -> dict:
     """Rerun ``case`` refined (see :func:`refined_case`) and compare with ``result``.
@@ -103,7 +115,8 @@ def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
     Returns
     -------
     dict
-        ``status`` ("computed" or "not computed: <reason>"), ``refine_factor`` [-],
+        ``status`` ("computed" or "not computed: <reason>"), ``note`` (a caveat on reading
+        the differences, e.g. for on/off control; '' when none), ``refine_factor`` [-],
         ``tolerance_K`` and ``refined_tolerance_K`` [K], ``nodes`` and ``refined_nodes`` [-],
         ``wall_time_s`` [s] of the rerun, and ``rows``: one dict per output with ``key``,
         ``quantity``, ``unit`` (SI unit text, "-" for ratios), ``base``, ``refined``,
@@ -113,7 +126,7 @@ def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
     from ..solver import run as _run
     out = {"refine_factor": float(factor), "tolerance_K": float(case.run.tolerance),
            "refined_tolerance_K": float(case.run.tolerance * tol_factor),
-           "nodes": int(result.system.n_unknowns)}
+           "nodes": int(result.system.n_unknowns), "note": _note(case)}
     if not result.complete:
         return {**out, "status": "not computed: the run itself did not complete"}
     if np.ndim(case.run.initial) > 0:

@@ -293,6 +293,7 @@ def _convergence(data: dict, system: str) -> dict:
             dt, dlab = _q(d, u, system, key="difference")
             rows.append((q, bt, rt, lab or "-", dt, dlab or "-", f"{float(rel):.2g}"))
     return {"status": conv.get("status", "not recorded"), "rows": rows,
+            "note": conv.get("note") or "",
             "factor": _fmt(conv.get("refine_factor", "")),
             "tolerance": _q(conv.get("tolerance_K"), "K", system, key="tolerance"),
             "refined_tolerance": _q(conv.get("refined_tolerance_K"), "K", system,
