@@ -98,7 +98,7 @@ def _note(case) -> str:
 
 
 def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
-                      tol_factor: float = DEFAULT_TOL_FACTOR) -> dict:
+                      tol_factor: float = DEFAULT_TOL_FACTOR, progress=False) -> dict:
     """Rerun ``case`` refined (see :func:`refined_case`) and compare with ``result``.
 
     Parameters
@@ -111,6 +111,8 @@ def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
         Mesh refinement factor [-].
     tol_factor : float
         Factor on the local error tolerance [-].
+    progress : bool or None
+        Progress bar of the rerun, as :func:`fdwall.run` (None: only when it takes long).
 
     Returns
     -------
@@ -134,7 +136,7 @@ def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
                                  "which a refined mesh cannot take over"}
     t0 = time.perf_counter()
     try:
-        fine = _run(refined_case(case, factor, tol_factor), progress=False, strict=False)
+        fine = _run(refined_case(case, factor, tol_factor), progress=progress, strict=False)
     except Exception as exc:  # a failed check must never lose the run itself
         return {**out, "status": f"not computed: the refined rerun failed ({exc})"}
     out["wall_time_s"] = time.perf_counter() - t0
@@ -155,7 +157,7 @@ def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
     return out
 
 
-def store_report_data(result, h5_path, case=None) -> None:
+def store_report_data(result, h5_path, case=None, progress=False) -> None:
     """Compute the report data of a run and add it to the run's HDF5 file ``h5_path`` as
     the group ``/report_data`` (atomic rewrite): the convergence check
     (``/report_data/convergence``) and the notes of :mod:`fdwall.analyses.calc_notes`
@@ -168,5 +170,5 @@ def store_report_data(result, h5_path, case=None) -> None:
     from .calc_notes import calc_notes
     case = case if case is not None else result.case
     data = calc_notes(result, case)
-    data["convergence"] = convergence_check(case, result)
+    data["convergence"] = convergence_check(case, result, progress=progress)
     add_group(h5_path, "report_data", data)
