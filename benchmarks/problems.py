@@ -98,7 +98,7 @@ STEP_OFF = 4 * HOURS            # flux switched off [s]
 STEP_INTERVAL = 60.0            # face samples every 60 s [s]
 
 
-def step_case(tolerance=None, refine=None, cells=None):
+def step_case(tolerance=None, refine=None, cells=None, duration=DURATION, t_off=STEP_OFF):
     """Problem (e) as an fdwall Case.
 
     ``tolerance`` [K] and ``refine`` [-] left as None keep fdwall's own defaults (the headline
@@ -108,10 +108,10 @@ def step_case(tolerance=None, refine=None, cells=None):
     layers = [Layer(m, t, cells=c) for m, t, c in zip(MATERIALS, THICKNESS, cells)]
     wkw = {} if refine is None else {"refine": refine}
     wall = Wall(layers, geometry="slab", name="flux-step-wall", **wkw)
-    inner = Face(flux=flux_schedule(STEP_FLUX, STEP_OFF))
+    inner = Face(flux=flux_schedule(STEP_FLUX, t_off))
     outer = Face.exchange(T_AMB, H_OUT, emissivity=EPS_OUT, surroundings=T_AMB)
     rkw = {} if tolerance is None else {"tolerance": tolerance}
-    run = RunSettings(duration=DURATION, initial=T0, output_interval=STEP_INTERVAL, **rkw)
+    run = RunSettings(duration=duration, initial=T0, output_interval=STEP_INTERVAL, **rkw)
     return Case(run, wall=wall, inner=inner, outer=outer, name="bench-flux-step")
 
 
