@@ -30,6 +30,7 @@ from . import problems as P
 
 ROOT = Path(__file__).resolve().parent.parent
 OUT = []          # markdown lines of this run (for --write-readme)
+E_LINES = []      # the lines of section (e), also written to their own README block
 
 
 def say(line=""):
@@ -884,17 +885,27 @@ def scaling(quick, tol, repeats):
 
 # ---- main --------------------------------------------------------------------------------------
 
-def write_readme():
+def write_readme(sections):
+    """Write this run's results into benchmarks/README.md: the whole run between the
+    ``results`` markers, and section (e) (with the run's header line) also between the
+    ``results-e`` markers; a run of ``--only e`` writes the latter only."""
     path = Path(__file__).with_name("README.md")
     text = path.read_text()
-    a, b = "<!-- results:start -->", "<!-- results:end -->"
-    if a not in text or b not in text:
-        print(f"(README markers {a} ... {b} not found; results not written)")
-        return
-    head, rest = text.split(a, 1)
-    _, tail = rest.split(b, 1)
-    path.write_text(head + a + "\n" + "\n".join(OUT) + "\n" + b + tail)
-    print(f"results written to {path}")
+    blocks = []
+    if sections != {"e"}:
+        blocks.append(("results", OUT))
+    if E_LINES:
+        blocks.append(("results-e", OUT[:2] + E_LINES))
+    for key, lines in blocks:
+        a, b = f"<!-- {key}:start -->", f"<!-- {key}:end -->"
+        if a not in text or b not in text:
+            print(f"(README markers {a} ... {b} not found; results not written)")
+            continue
+        head, rest = text.split(a, 1)
+        _, tail = rest.split(b, 1)
+        text = head + a + "\n" + "\n".join(lines) + "\n" + b + tail
+        print(f"results ({key}) written to {path}")
+    path.write_text(text)
 
 
 def exchange_cost(repeats, tol):
@@ -988,7 +999,9 @@ def main(argv=None):
                     f"{'met' if min(ratio, rmin) >= target else 'MISSED' if max(ratio, rmin) < target else 'met on one measure only'}")
         say()
     if "e" in sections:
+        i0 = len(OUT)
         res["e"] = flux_step(a.quick, repeats)
+        E_LINES[:] = OUT[i0:]
     if "h" in sections:
         exchange_cost(repeats, tol_a)
     if "c" in sections:
@@ -1022,7 +1035,7 @@ def main(argv=None):
         scaling(a.quick, tol_a, repeats)
     say(f"Suite wall time {time.perf_counter() - t0:.0f} s.")
     if a.write_readme:
-        write_readme()
+        write_readme(sections)
 
 
 if __name__ == "__main__":
