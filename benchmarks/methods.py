@@ -186,23 +186,27 @@ def loosest_integer(solve, ref, start=1, limit=4096):
 STEP_REFINES = (1.0, 1.5, 2.0, 3.0, 4.0)
 
 
-def step_nodes(refine=1.0):
+def step_nodes(refine=1.0, hot_face="dense"):
     """Node positions [m] of fdwall's graded mesh for problem (e) at ``refine`` x its default
     cell counts (refine 1 = the mesh fdwall itself chooses at default settings)."""
     from fdwall.system import build_system
-    return build_system(P.step_case(refine=refine)).meshes[0].x.copy()
+    return build_system(P.step_case(refine=refine, hot_face=hot_face)).meshes[0].x.copy()
 
 
-def step_fv(x, duration=P.DURATION, t_off=P.STEP_OFF):
+def step_fv(x, duration=P.DURATION, t_off=P.STEP_OFF, hot_face="dense"):
     """The benchmark's own finite-volume arrays of problem (e) on nodes ``x`` [m]."""
-    return P.fv_problem(x, "slab", flux=P.STEP_FLUX, t_off=t_off)
+    mats, thick = P.STEP_WALLS[hot_face]
+    return P.fv_problem(x, "slab", thickness=thick, flux=P.STEP_FLUX, t_off=t_off,
+                        materials=mats)
 
 
-def solve_step_fdwall(tolerance=None, refine=None, duration=P.DURATION, t_off=P.STEP_OFF):
+def solve_step_fdwall(tolerance=None, refine=None, duration=P.DURATION, t_off=P.STEP_OFF,
+                      hot_face="dense"):
     """fdwall on problem (e); None keeps fdwall's default tolerance / mesh.  Stats carry
     steps, nodes and newton (Newton iterations, all stages)."""
     from fdwall.solver import run
-    r = run(P.step_case(tolerance=tolerance, refine=refine, duration=duration, t_off=t_off))
+    r = run(P.step_case(tolerance=tolerance, refine=refine, duration=duration, t_off=t_off,
+                        hot_face=hot_face))
     st = dict(r.stats)
     st["steps"] = st["accepted_steps"]
     st["newton"] = st["newton_iterations"]
@@ -237,7 +241,7 @@ def solve_step_be(nsub, fv, careful=True, duration=P.DURATION, newton_tol=None, 
     return T[:, [0, -1]].copy(), st
 
 
-def step_references(quick=False, duration=P.DURATION, t_off=P.STEP_OFF):
+def step_references(quick=False, duration=P.DURATION, t_off=P.STEP_OFF, hot_face="dense"):
     """Two independent converged solutions of problem (e): scipy BDF on a fine uniform mesh with
     the benchmark's own FV arrays (the reference), and fdwall on a much refined graded mesh at a
     tight tolerance (the cross-check).  Returns (reference face_T (n, 2) [K], info dict)."""
@@ -245,8 +249,10 @@ def step_references(quick=False, duration=P.DURATION, t_off=P.STEP_OFF):
         fd_refine, fd_tol, cells, rtol = 8.0, 1e-4, (400, 400, 8), 1e-8
     else:
         fd_refine, fd_tol, cells, rtol = 16.0, 1e-5, (800, 800, 16), 1e-9
-    fd, fst = solve_step_fdwall(fd_tol, fd_refine, duration=duration, t_off=t_off)
-    fv = step_fv(P.uniform_nodes(cells), duration, t_off)
+    fd, fst = solve_step_fdwall(fd_tol, fd_refine, duration=duration, t_off=t_off,
+                                hot_face=hot_face)
+    fv = step_fv(P.uniform_nodes(cells, thickness=P.STEP_WALLS[hot_face][1]), duration, t_off,
+                 hot_face)
     from .peers import scipy_bdf
     _, T, _ = scipy_bdf.solve(fv, rtol, rtol * 100.0, duration=duration,
                               interval=P.STEP_INTERVAL)

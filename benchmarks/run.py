@@ -343,7 +343,7 @@ def _quick_time(fn, n=3):
     return median_time(fn, n)[0]
 
 
-def flux_step(quick, repeats):
+def flux_step(quick, repeats, hot_face="dense"):
     """Problem (e): every solver at the same both-face accuracy on the same reference; fdwall
     at its defaults (headline) and tuned; scipy BDF and the fixed-step peers at their cheapest
     passing mesh and setting; a bare Thomas solve timed in the same run."""
@@ -351,16 +351,18 @@ def flux_step(quick, repeats):
     from fdwall.system import build_system
 
     from .peers import be_careful
-    say("### (e) flux-step furnace wall, both faces sampled every 60 s")
+    say(f"### (e) flux-step furnace wall, {P.STEP_LABELS[hot_face]}, both faces sampled "
+        f"every 60 s")
     say()
-    say(f"The layers of (a); {P.STEP_FLUX / 1e3:g} kW/m2 on the inner face from 0 to "
+    layers = ", ".join(f"{m.name} {t * 1e3:g} mm" for m, t in zip(*P.STEP_WALLS[hot_face]))
+    say(f"Layers (DEMO DATA): {layers}; {P.STEP_FLUX / 1e3:g} kW/m2 on the inner face from 0 to "
         f"{P.STEP_OFF / 3600:g} h, then 0; the outer face of (a); 8 h; "
         f"{int(P.DURATION / P.STEP_INTERVAL) + 1} samples of both faces, every "
         f"{P.STEP_INTERVAL:g} s. Criterion: heated face within {M.TOL_INNER:g} K and outer face "
         f"within {M.TOL_OUTER:g} K of the reference at every sample.")
     say()
     t_ref = time.perf_counter()
-    ref, info = M.step_references(quick)
+    ref, info = M.step_references(quick, hot_face=hot_face)
     say(f"Reference: {info['scipy_fine']}. Cross-check: {info['fdwall_fine']}. The two "
         f"independent solutions agree within {info['agree_inner']:.4f} K (heated face) and "
         f"{info['agree_outer']:.5f} K (outer face) at every sample "
@@ -371,8 +373,8 @@ def flux_step(quick, repeats):
     meshes = {}
     rows = []
     for rf in refines:
-        x = M.step_nodes(rf)
-        fv = M.step_fv(x)
+        x = M.step_nodes(rf, hot_face)
+        fv = M.step_fv(x, hot_face=hot_face)
         Tm, _ = M.solve_step_scipy(1e-8, fv)
         e = M.errors(Tm, ref)
         meshes[rf] = (x, fv, e)
@@ -393,16 +395,16 @@ def flux_step(quick, repeats):
         cands.setdefault(label, []).append((_quick_time(fn), kn, rf, T, st, err, fn))
 
     # fdwall at its defaults: the headline (no tuning of any kind)
-    T_def, st_def = M.solve_step_fdwall()
+    T_def, st_def = M.solve_step_fdwall(hot_face=hot_face)
     e_def = M.errors(T_def, ref)
-    case_def = P.step_case()
+    case_def = P.step_case(hot_face=hot_face)
     # fdwall tuned: mesh refine x tolerance, loosest tolerance per mesh, fastest passing
     for rf in usable:
-        kn, T, st, err, tr = M.loosest(lambda tol, rf=rf: M.solve_step_fdwall(tol, rf),
-                                       FD_TOLS, ref)
+        kn, T, st, err, tr = M.loosest(
+            lambda tol, rf=rf: M.solve_step_fdwall(tol, rf, hot_face=hot_face), FD_TOLS, ref)
         tried.append((f"fdwall refine {rf:g}, tolerance [K]", tr))
         if kn is not None:
-            case = P.step_case(tolerance=kn, refine=rf)
+            case = P.step_case(tolerance=kn, refine=rf, hot_face=hot_face)
             pick("fdwall tuned", rf, kn, T, st, err, lambda case=case: run(case))
     # scipy BDF
     for rf in usable:
@@ -440,7 +442,7 @@ def flux_step(quick, repeats):
     if "fdwall tuned" in best:
         _, kn, rf, T, st, err, fn = best["fdwall tuned"]
         add("fdwall, tuned", f"refine {rf:g}, tolerance {kn:g} K", st, err, fn)
-        case_t = P.step_case(tolerance=kn, refine=rf)
+        case_t = P.step_case(tolerance=kn, refine=rf, hot_face=hot_face)
         sys_t = build_system(case_t)
         add("fdwall, tuned, system prebuilt", "as above", st, err,
             lambda: run(case_t, system=sys_t))
@@ -514,7 +516,7 @@ def flux_step(quick, repeats):
     table(["comparison", "time ratio", "cost per node-iteration ratio",
            "node-iterations ratio", "nodes ratio", "steps ratio", "iterations per step ratio"],
           gain)
-    per_node_cost(quick, repeats, be_set)
+    per_node_cost(quick, repeats, be_set, hot_face)
     say("Settings tried (loosest first), error heated/outer [K]:")
     say()
     for name, tr in tried:
@@ -553,7 +555,7 @@ def flux_step(quick, repeats):
     return results
 
 
-def per_node_cost(quick, repeats, be_set):
+def per_node_cost(quick, repeats, be_set, hot_face="dense"):
     """Cost per node and Newton iteration as the mesh grows (problem (e)), so that the fixed
     cost of a run (Python set-up, allocation) and the cost of the 481 samples are told apart
     from the per-node cost of the stepping: fdwall at its default tolerance with the system
@@ -571,13 +573,13 @@ def per_node_cost(quick, repeats, be_set):
     rows = []
     pts = {"fd": [], "fdh": [], "be": []}
     for rf in refines:
-        case = P.step_case(refine=rf)
+        case = P.step_case(refine=rf, hot_face=hot_face)
         sysm = build_system(case)
         r = run(case, system=sysm)
         case_h = replace(case, run=replace(case.run, output_interval=3600.0))
         sys_h = build_system(case_h)
         rh = run(case_h, system=sys_h)
-        fv = M.step_fv(M.step_nodes(rf))
+        fv = M.step_fv(M.step_nodes(rf, hot_face), hot_face=hot_face)
         tabs = be_careful.segment_tables(fv)
         _, sb = M.solve_step_be(nsub, fv, tables=tabs)
         res = [["fd", 0, 0, 0, 0.0, 0.0], ["fdh", 0, 0, 0, 0.0, 0.0],
@@ -1000,7 +1002,8 @@ def main(argv=None):
         say()
     if "e" in sections:
         i0 = len(OUT)
-        res["e"] = flux_step(a.quick, repeats)
+        for hf in ("light", "dense"):
+            res["e-" + hf] = flux_step(a.quick, repeats, hf)
         E_LINES[:] = OUT[i0:]
     if "h" in sections:
         exchange_cost(repeats, tol_a)
