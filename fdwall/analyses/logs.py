@@ -11,7 +11,6 @@ import io
 import re
 
 import numpy as np
-from scipy.optimize import least_squares
 
 from fdwall.errors import CaseError, InputError
 from fdwall.units import parse_header_unit, parse_unit, ureg
@@ -422,49 +421,21 @@ def _check_inputs(t, T, P, T_amb):
                          "only)")
 
 
-def fit_one_node_log(t, T, P, T_amb) -> dict:
+def fit_one_node_log(t, T, P, T_amb, **kw) -> dict:
     """Fit R (K/W), C (J/K) and the start temperature to a log by least squares.
 
-    Standard errors are from the Jacobian, scaled by the residual variance and inflated for
-    lag-1 residual autocorrelation through the effective sample size n_eff = n (1-r1)/(1+r1).
-    Returns keys ``R_K_per_W``, ``R_stderr_K_per_W``, ``C_J_per_K``, ``C_stderr_J_per_K``,
-    ``tau_s``, ``rms_K``, ``lag1_autocorrelation``, ``n_eff``, ``correlation_RC``.
+    The one-node case of :func:`fdwall.analyses.twonode.fit_log` (keyword arguments go there:
+    ``sensor_lag``, ``dead_time``, ``n_boot``, ``seed``).  Standard errors are from the
+    Jacobian, scaled by the residual variance and inflated for lag-1 residual autocorrelation
+    through the effective sample size n_eff = n (1-r1)/(1+r1); a moving-block bootstrap gives
+    intervals beside them.  Returns at least ``R_K_per_W``, ``R_stderr_K_per_W``,
+    ``C_J_per_K``, ``C_stderr_J_per_K``, ``tau_s``, ``T0_K``, ``rms_K``,
+    ``lag1_autocorrelation``, ``n_eff``, ``correlation_RC``, ``warnings``.
     """
+    from fdwall.analyses.twonode import fit_log
     t, T, P, Ta = (np.asarray(a, float) for a in (t, T, P, T_amb))
     _check_inputs(t, T, P, Ta)
-    Pm = max(np.mean(np.abs(P)), 1e-9)
-    R0 = max((np.max(T) - np.mean(Ta)) / np.max(np.abs(P)), 1e-6)
-    C0 = max((t[-1] - t[0]) / 3.0 / R0, 1e-6)
-
-    def res(x):
-        R, C = np.exp(x[0]), np.exp(x[1])
-        return one_node_propagate(t, P, Ta, R, C, x[2]) - T
-
-    sol = least_squares(res, [np.log(R0), np.log(C0), T[0]], x_scale=[1, 1, 1.0])
-    r = sol.fun
-    n, p = len(r), 3
-    rms = float(np.sqrt(np.mean(r ** 2)))
-    r1 = float(np.sum(r[1:] * r[:-1]) / max(np.sum(r ** 2), 1e-300)) if n > 2 else 0.0
-    r1c = min(max(r1, 0.0), 0.99)
-    n_eff = n * (1 - r1c) / (1 + r1c)
-    s2 = np.sum(r ** 2) / max(n - p, 1) * (n - p) / max(n_eff - p, 1.0)
-    J = sol.jac
-    try:
-        cov = np.linalg.inv(J.T @ J) * s2
-    except np.linalg.LinAlgError:
-        cov = np.full((3, 3), np.inf)
-    R, C = float(np.exp(sol.x[0])), float(np.exp(sol.x[1]))
-    sR, sC = float(np.sqrt(cov[0, 0])), float(np.sqrt(cov[1, 1]))
-    corr = float(cov[0, 1] / np.sqrt(cov[0, 0] * cov[1, 1])) if np.isfinite(cov).all() else 1.0
-    warnings = []
-    if abs(corr) > 0.95:
-        warnings.append(f"R and C are strongly correlated ({corr:+.2f}): the log may be too "
-                        "short to see equilibrium")
-    del Pm
-    return {"R_K_per_W": R, "R_stderr_K_per_W": R * sR, "C_J_per_K": C,
-            "C_stderr_J_per_K": C * sC, "tau_s": R * C, "T0_K": float(sol.x[2]),
-            "rms_K": rms, "lag1_autocorrelation": r1, "n_eff": float(n_eff),
-            "correlation_RC": corr, "warnings": warnings}
+    return fit_log(t, T, P, Ta, model="one-node", **kw)
 
 
 def physics_check(fit: dict, implied: dict, log_duration_s: float) -> dict:
@@ -493,12 +464,18 @@ def physics_check(fit: dict, implied: dict, log_duration_s: float) -> dict:
         if not (np.isfinite(v) and v > 0):
             raise InputError(f"physics cross-check: the case implies {k} = {v!r}; allowed: a "
                              "case whose heater drives it above ambient at steady state")
+    reading, warns = [], []
+    n_tau = log_duration_s / fit["tau_s"]
+    if fit.get("R_K_per_W") is None:  # zero-power log: the time constant only
+        rt = fit["tau_s"] / phys["tau_s"]
+        reading.append(f"The log has no heating power, so it gives the time constant only: "
+                       f"fitted/implied tau {rt:.2f}. R and C cannot be compared one by one.")
+        return {"physics": phys, "ratios": {"tau": rt}, "reading": reading, "warnings": warns,
+                "log_time_constants": float(n_tau)}
     rR = fit["R_K_per_W"] / phys["R_K_per_W"]
     rC = fit["C_J_per_K"] / phys["C_stored_J_per_K"]
     ratios = {"R": rR, "C_stored": rC, "C_total": fit["C_J_per_K"] / phys["C_total_J_per_K"],
               "tau": fit["tau_s"] / phys["tau_s"]}
-    reading, warns = [], []
-    n_tau = log_duration_s / fit["tau_s"]
     if n_tau < 3.0:
         warns.append(f"the log lasts {n_tau:.1f} fitted time constants (under about 3): it is "
                      "too short to see equilibrium, so R is extrapolated and R and C trade off")
@@ -528,6 +505,9 @@ def physics_check(fit: dict, implied: dict, log_duration_s: float) -> dict:
                        "in a short log only the inner part of a thick lining has warmed "
                        "(distributed capacity), or the sensor reads the fast air node rather "
                        "than the walls (sensor placement).")
+    reading.append("R and C hold at the temperatures the log ran at: radiation loss grows "
+                   "roughly as T^3 and the conductivity of insulation rises with temperature, "
+                   "so R falls and C moves (cp(T)) when the equipment runs hotter.")
     return {"physics": phys, "ratios": ratios, "reading": reading, "warnings": warns,
             "log_time_constants": float(n_tau)}
 
