@@ -98,7 +98,10 @@ def cmd_fit(args) -> int:
     except LibInputError as exc:
         raise InputError(str(exc)) from None
     warns = [f"log repaired: {r}" for r in log["repairs"]] + list(fit["warnings"])
-    check = None
+    check = cal = None
+    if args.calibrate and not args.case:
+        raise InputError("--calibrate needs --case CASE (the case whose physics is fitted to "
+                         "the log).")
     if args.case:
         case, case_warns = common._load(args.case)
         from ..analyses.logs import physics_check
@@ -109,6 +112,19 @@ def cmd_fit(args) -> int:
         except (LibInputError, ValueError) as exc:
             raise InputError(f"--case {args.case}: {exc}") from None
         warns.extend(check["warnings"])
+        if args.calibrate:
+            from ..analyses.calibrate import calibrate
+            keys = [k.strip() for k in args.calibrate.split(",") if k.strip()]
+            try:
+                cal = calibrate(case, log["t_s"], log["T_K"], log["P_W"], keys,
+                                n_boot=args.bootstrap)
+            except LibInputError as exc:
+                raise InputError(f"--calibrate {args.calibrate}: {exc}") from None
+            except (RuntimeError, ArithmeticError) as exc:
+                common.error(f"--calibrate: the solver failed on '{args.case}' driven by the "
+                             f"log: {exc}")
+                return common.EXIT_NOT_CONVERGED
+            warns.extend(f"calibration: {w}" for w in cal["warnings"])
     Ta = float(np.mean(log["T_amb_K"]))
     full = rated if rated else float(np.max(log["P_W"]))
     pred = predict(fit, Ta, setpoint=setpoint,
@@ -186,6 +202,16 @@ def cmd_fit(args) -> int:
     if check:
         groups["physics"] = check["physics"]
         groups["ratios"] = check["ratios"]
+    if cal:
+        groups["calibration"] = {"parameters": cal["parameters"], "rms_K": cal["rms_K"],
+                                 "lag1_autocorrelation": cal["lag1_autocorrelation"],
+                                 "n_eff": cal["n_eff"], "runs": cal["runs"],
+                                 "keys": cal["keys"]}
+        groups["tables"]["log"]["calibrated_K"] = cal["model_K"]
+        groups["notes"]["items"].append(
+            "calibration: the case driven by the logged power (heater power, or the inner "
+            "face's flux over the wall area), started at the log's first temperature, fitted "
+            "by least squares through the solver; intervals as for the fit")
     png = outdir / f"{stem}-fit.png"
     files = common.write_analysis(args, h5, groups, kind="fit", case_name=stem)
     if not args.no_plots:
@@ -195,7 +221,9 @@ def cmd_fit(args) -> int:
         try:
             files.append(plot_fit(log["t_s"], log["T_K"], fit["model_K"], log["P_W"], png,
                                   title=f"{stem}: {label}, residual RMS {fit['rms_K']:.3g} K",
-                                  model_label=label, T_amb_K=log["T_amb_K"]))
+                                  model_label=label, T_amb_K=log["T_amb_K"],
+                                  extra=None if not cal else
+                                  (cal["model_K"], "solver, calibrated")))
         except OSError as exc:
             raise common.WriteError(f"cannot write the plot '{png}': "
                                     f"{exc.strerror or exc}.") from None
@@ -208,9 +236,11 @@ def cmd_fit(args) -> int:
         if check:
             out.update(physics=check["physics"], ratios=check["ratios"],
                        reading=check["reading"])
+        if cal:
+            out["calibration"] = groups["calibration"]
         print(common.dumps(out))
     elif not args.quiet:
-        print(_text(args, fit, pred, check, full, at_power, files), end="")
+        print(_text(args, fit, pred, check, full, at_power, files, cal), end="")
     return EXIT_OK
 
 
@@ -224,7 +254,7 @@ def _pm(item, fmt=".5g"):
     return s + ")"
 
 
-def _text(args, fit, pred, check, full, at_power, files) -> str:
+def _text(args, fit, pred, check, full, at_power, files, cal=None) -> str:
     P = fit["parameters"]
     L = [f"{fit['model']} fit of '{args.log}'"
          + ("" if fit["identifiable"] else "  [NOT IDENTIFIABLE: see the warnings]")]
@@ -260,6 +290,11 @@ def _text(args, fit, pred, check, full, at_power, files) -> str:
         L.append(f"  tau  {ph['tau_s']:.5g} s         fitted/implied {ra['tau']:.3f}")
         for line in check["reading"]:
             L.append(f"  - {line}")
+    if cal:
+        L.append(f"Calibration of '{args.case}' through the solver ({cal['runs']} runs, "
+                 f"residual RMS {cal['rms_K']:.3g} K):")
+        for k, v in cal["parameters"].items():
+            L.append(f"  {k:<28s} {_pm(v, '.4g')} [{v['unit']}] (started at {v['start']:.4g})")
     L.append("\nFiles written:")
     L += [f"  {f}" for f in files]
     return "\n".join(L) + "\n"
@@ -311,5 +346,9 @@ def register(sub) -> None:
                    "rated power, else the largest logged power)")
     p.add_argument("--case", metavar="CASE",
                    help="case file whose implied R and C the fit is compared with")
+    p.add_argument("--calibrate", metavar="KEY[,KEY]",
+                   help="with --case: fit these physics of the case to the log through the "
+                   "solver: conductivity_factor:[WALL:]LAYER, emissivity:[WALL:]outer|inner, "
+                   "contact_resistance:[WALL:]INTERFACE, leakage (WALL a position, name or *)")
     common.add_output_options(p, plots=True, progress=False)
     p.set_defaults(func=cmd_fit)

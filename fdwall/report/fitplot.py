@@ -13,10 +13,11 @@ __all__ = ["plot_fit"]
 
 
 def plot_fit(t_s, T_K, model_K, P_W, path, *, title="", model_label="fitted model",
-             T_amb_K=None) -> str:
+             T_amb_K=None, extra=None) -> str:
     """Draw the fit: logged and model temperature with the heater power, then the residuals.
 
-    ``t_s`` [s], ``T_K``, ``model_K``, ``T_amb_K`` [K], ``P_W`` [W]; returns ``path``.
+    ``t_s`` [s], ``T_K``, ``model_K``, ``T_amb_K`` [K], ``P_W`` [W]; ``extra`` an optional
+    second curve ``(T_K, label)`` (e.g. the calibrated solver run); returns ``path``.
     """
     t = np.asarray(t_s, float) / 3600.0
     fig, (ax, axr) = _figure(9.0, 6.5, rows=2, sharex=True)
@@ -24,6 +25,9 @@ def plot_fit(t_s, T_K, model_K, P_W, path, *, title="", model_label="fitted mode
     ax.plot(t, np.asarray(T_K) - KELVIN_OFFSET, ".", ms=2.5, color="#4d4d4d", label="log")
     ax.plot(t, np.asarray(model_K) - KELVIN_OFFSET, "-", lw=1.4, color="#b2182b",
             label=model_label)
+    if extra is not None:
+        ax.plot(t, np.asarray(extra[0]) - KELVIN_OFFSET, "--", lw=1.2, color="#762a83",
+                label=extra[1])
     if T_amb_K is not None:
         ax.plot(t, np.asarray(T_amb_K) - KELVIN_OFFSET, ":", lw=1.0, color="#2166ac",
                 label="ambient")
@@ -39,7 +43,11 @@ def plot_fit(t_s, T_K, model_K, P_W, path, *, title="", model_label="fitted mode
     h2, l2 = axp.get_legend_handles_labels()
     ax.legend(h1 + h2, l1 + l2, loc="best", fontsize=8, framealpha=0.85)
     res = np.asarray(T_K) - np.asarray(model_K)
-    axr.plot(t, res, "-", lw=0.7, color="#1b7837")
+    axr.plot(t, res, "-", lw=0.7, color="#1b7837", label=model_label)
+    if extra is not None:
+        axr.plot(t, np.asarray(T_K) - np.asarray(extra[0]), "-", lw=0.7, color="#762a83",
+                 label=extra[1])
+        axr.legend(loc="best", fontsize=8, framealpha=0.85)
     axr.axhline(0.0, color="#4d4d4d", lw=0.6)
     _style(axr, xlabel="time [h]", ylabel="residual, log - model [K]")
     if title:
