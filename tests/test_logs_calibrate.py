@@ -154,3 +154,25 @@ def test_cli_calibrate(tmp_path):
                            capture_output=True, text=True)
         assert r.returncode == 2 and match in r.stderr and "Traceback" not in r.stderr, r.stderr
         assert not (tmp_path / "bad").exists()
+
+
+def test_single_wall_emissivity_and_contact_resistance_recovered():
+    # A single wall heated at its inner face by the logged power over its area (the log's
+    # temperature is the inner face's); the log is made by the solver with a known outer
+    # emissivity 0.8 and a contact resistance 0.01 m2K/W between the two layers.
+    brick = Material(name="brick", k=Constant(0.3), cp=Constant(1000.0), rho=800.0)
+    case = Case(run=RunSettings(duration=3600.0, initial=TA),
+                wall=Wall(layers=(Layer(brick, 0.03), Layer(WOOL, 0.03)), area=0.5,
+                          contact=(0.0,)),
+                inner=Face(), outer=Face(fluid=TA, convection=6.0, emissivity=0.3))
+    t = np.arange(0, 6 * 3600 + 1, 60.0)
+    P = np.where(t < 4 * 3600, 150.0, 0.0)
+    driven = log_driven_case(case, t, P, TA, tolerance=1e-3)
+    true = apply_value(driven, parse_key(case, "emissivity:outer"), 0.8)
+    true = apply_value(true, parse_key(case, "contact_resistance:1"), 0.01)
+    T = simulate_log(true, t) + np.random.default_rng(4).normal(0, 0.2, t.size)
+    out = calibrate(case, t, T, P, ["emissivity:outer", "contact_resistance:1"], n_boot=0)
+    for key, v in (("emissivity:outer", 0.8), ("contact_resistance:1", 0.01)):
+        p = out["parameters"][key]
+        assert abs(p["value"] - v) < 4 * p["stderr"], (key, p)
+        assert p["ci95"][0] < p["value"] < p["ci95"][1]

@@ -286,6 +286,7 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
         return math.log(v / (1 - v)) if pk[0] == "emissivity" else math.log(v)
 
     def from_x(x, pk):
+        x = min(max(float(x), -700.0), 700.0)  # an interval of a lost parameter stays finite
         return 1 / (1 + math.exp(-x)) if pk[0] == "emissivity" else math.exp(x)
 
     runs = [0]

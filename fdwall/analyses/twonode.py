@@ -179,6 +179,11 @@ def block_length(n, r1):
     return int(max(1, min(math.ceil(L), n // 5)))
 
 
+def _exp(x):
+    """exp(x) as a float, inf beyond the double range (an interval of a lost parameter)."""
+    return math.exp(x) if x < 700.0 else math.inf
+
+
 def _check(t, T, P, Ta):
     for nm, a in (("time", t), ("temperature", T), ("power", P), ("ambient", Ta)):
         if not np.all(np.isfinite(a)):
@@ -354,7 +359,10 @@ def fit_log(t, T, P, T_amb, *, model="one-node", sensor_lag=None, dead_time=None
         boot = x[None, :] + dX
 
     def phys_value(i, xs):
-        return np.exp(xs[..., i]) if (i < n_phys or names_x[i] == "tau_sensor") else xs[..., i]
+        if i < n_phys or names_x[i] == "tau_sensor":
+            with np.errstate(over="ignore"):
+                return np.exp(xs[..., i])
+        return xs[..., i]
 
     # Student t quantile on n_eff - k degrees of freedom (the variance is estimated from about
     # n_eff independent samples)
@@ -366,13 +374,19 @@ def fit_log(t, T, P, T_amb, *, model="one-node", sensor_lag=None, dead_time=None
         logp = i < n_phys or nm == "tau_sensor"
         v = float(phys_value(i, x))
         sd = float(v * sd_x[i]) if logp else float(sd_x[i])
-        ci = ([float(v * math.exp(-zq * sd_x[i])), float(v * math.exp(zq * sd_x[i]))] if logp
+        ci = ([v * _exp(-zq * sd_x[i]), v * _exp(zq * sd_x[i])] if logp
               else [v - zq * sd, v + zq * sd])
+        if nm == "dead_time":
+            ci[0] = max(ci[0], 0.0)
         item = {"value": v, "stderr": sd, "ci95": ci, "unit": units[nm]}
         if boot is not None:
             b = phys_value(i, boot)
-            item["boot_ci95"] = [float(a) for a in np.percentile(b, q)]
-            item["boot_stderr"] = float(np.std(b, ddof=1))
+            b = np.clip(b, 0.0 if nm == "dead_time" else -1e300, 1e300)
+            with np.errstate(all="ignore"):
+                item["boot_ci95"] = [float(a) if a < 1e299 else math.inf
+                                     for a in np.nanpercentile(b, q)]
+                sdb = float(np.nanstd(b, ddof=1))
+                item["boot_stderr"] = sdb if sdb < 1e299 else math.inf
         parameters[nm] = item
 
     def derived(fun_name, grad_fn):
@@ -380,8 +394,7 @@ def fit_log(t, T, P, T_amb, *, model="one-node", sensor_lag=None, dead_time=None
         val, g = grad_fn(x)
         sd = float(math.sqrt(max(g @ cov @ g, 0.0)))
         item = {"value": float(val), "stderr": sd,
-                "ci95": [float(val * math.exp(-zq * sd / val)),
-                         float(val * math.exp(zq * sd / val))]}
+                "ci95": [val * _exp(-zq * sd / val), val * _exp(zq * sd / val)]}
         if boot is not None:
             bv = np.array([grad_fn(b)[0] for b in boot])
             item["boot_ci95"] = [float(a) for a in np.percentile(bv, q)]
@@ -416,6 +429,16 @@ def fit_log(t, T, P, T_amb, *, model="one-node", sensor_lag=None, dead_time=None
 
     warnings = []
     ident = True
+    for i, nm in enumerate(names_x):
+        if np.isfinite(lb[i]) and x[i] - lb[i] < 1e-6 * max(1.0, abs(lb[i])) or \
+                np.isfinite(ub[i]) and ub[i] - x[i] < 1e-6 * max(1.0, abs(ub[i])):
+            ident = False
+            warnings.append(f"{nm} = {parameters[nm]['value']:.4g} {units[nm]} sits at the "
+                            "edge of its allowed range: the log does not show it (give it "
+                            "instead of fitting it)")
+        elif nm in ("tau_sensor", "dead_time") and parameters[nm]["value"] < 0.1 * dt_med:
+            warnings.append(f"fitted {nm} = {parameters[nm]['value']:.3g} s is below a tenth "
+                            f"of the log step ({dt_med:.4g} s): the log does not resolve it")
     phys_idx = list(range(n_phys)) + [i for i, nm in enumerate(names_x)
                                       if nm in ("tau_sensor", "dead_time")]
     for a in phys_idx:
