@@ -16,6 +16,7 @@ No units: every value here is text.
 from __future__ import annotations
 
 import hashlib
+import json
 import os
 import platform
 import sys
@@ -65,7 +66,7 @@ def sha256_file(path) -> str:
     return h.hexdigest()
 
 
-def input_sha256(case=None, extra_files=(), library=LIBRARY_PATH) -> str:
+def input_sha256(case=None, extra_files=(), library=LIBRARY_PATH, options=None) -> str:
     """SHA-256 (hex) of the inputs of a run.
 
     Parameters
@@ -76,6 +77,9 @@ def input_sha256(case=None, extra_files=(), library=LIBRARY_PATH) -> str:
         Further input files (schedules, material files), hashed in the order given.
     library : path or None, optional
         The material library file (default: the bundled one); None leaves it out.
+    options : dict, optional
+        Settings of an analysis that change its answer (the command-line options of ``size``,
+        ``fit``, ``rc`` ...), hashed as canonical JSON (sorted keys); None leaves them out.
 
     Returns
     -------
@@ -94,10 +98,12 @@ def input_sha256(case=None, extra_files=(), library=LIBRARY_PATH) -> str:
         part("file:" + os.path.basename(os.fspath(p)), Path(p).read_bytes())
     if library is not None:
         part("library", Path(library).read_bytes())
+    if options is not None:
+        part("options", json.dumps(options, sort_keys=True, default=str).encode("utf-8"))
     return h.hexdigest()
 
 
-def provenance(case=None, extra_files=()) -> dict:
+def provenance(case=None, extra_files=(), options=None) -> dict:
     """Versions, platform and input hash of a run.
 
     Parameters
@@ -106,6 +112,8 @@ def provenance(case=None, extra_files=()) -> dict:
         See :func:`input_sha256`.
     extra_files : iterable of paths, optional
         Further input files.
+    options : dict, optional
+        Settings of an analysis (see :func:`input_sha256`); recorded as ``options`` (JSON).
 
     Returns
     -------
@@ -125,8 +133,10 @@ def provenance(case=None, extra_files=()) -> dict:
     out["material_library_sha256"] = sha256_file(LIBRARY_PATH) if LIBRARY_PATH.is_file() else ""
     if extra_files:
         out["input_files"] = "\n".join(extra_files)
+    if options is not None:
+        out["options"] = json.dumps(options, sort_keys=True, default=str)
     out["input_sha256"] = input_sha256(case, extra_files,
-                                       LIBRARY_PATH if LIBRARY_PATH.is_file() else None)
+                                       LIBRARY_PATH if LIBRARY_PATH.is_file() else None, options)
     return out
 
 

@@ -39,6 +39,10 @@ class Schedule:
 
     times: tuple = field()
     values: tuple = field()
+    # read-only numpy copies of the knots, built once: every evaluation is then a binary
+    # search, O(log n), so validating or running a schedule of n knots costs O(n log n)
+    _t: np.ndarray = field(init=False, repr=False, compare=False)
+    _v: np.ndarray = field(init=False, repr=False, compare=False)
 
     def __post_init__(self):
         t, v = self.times, self.values
@@ -64,6 +68,10 @@ class Schedule:
                 raise ValueError("a schedule may repeat a time at most twice (one step per instant)")
         object.__setattr__(self, "times", tuple(t))
         object.__setattr__(self, "values", tuple(v))
+        for name, seq in (("_t", t), ("_v", v)):
+            arr = np.array(seq, dtype=np.float64)
+            arr.setflags(write=False)
+            object.__setattr__(self, name, arr)
 
     @classmethod
     def constant(cls, value: float) -> "Schedule":
@@ -84,8 +92,8 @@ class Schedule:
 
     def __call__(self, t, side: str = "right"):
         """Value at time(s) ``t`` [s]; at a step, ``side='left'`` gives the value before it."""
-        t_k = np.asarray(self.times)
-        v_k = np.asarray(self.values)
+        t_k = self._t
+        v_k = self._v
         t = np.asarray(t, dtype=float)
         idx = np.searchsorted(t_k, t, side=side) - 1
         idx = np.clip(idx, 0, t_k.size - 1)
@@ -110,12 +118,17 @@ class Schedule:
         """Exact integral of the schedule over [a, b] [value x s] (0 when b <= a)."""
         if b <= a:
             return 0.0
-        pts = sorted({float(a), float(b)} | {t for t in self.times if a < t < b})
-        total = 0.0
-        for p, q in zip(pts[:-1], pts[1:]):
-            total += 0.5 * (float(self(p, "right")) + float(self(q, "left"))) * (q - p)
-        return total
+        a, b = float(a), float(b)
+        lo = int(np.searchsorted(self._t, a, side="right"))
+        hi = int(np.searchsorted(self._t, b, side="left"))
+        inner = np.unique(self._t[lo:hi])                 # knots strictly inside (a, b)
+        pts = np.concatenate(([a], inner, [b]))
+        # trapezoids between consecutive points are exact for a piecewise-linear function;
+        # the right-hand value at each start and the left-hand value at each end handle steps
+        left_vals = self(pts[:-1], "right")
+        right_vals = self(pts[1:], "left")
+        return float(np.sum(0.5 * (left_vals + right_vals) * np.diff(pts)))
 
     def breakpoints(self):
-        """Knot times where the slope or the value may jump [s]."""
-        return sorted(set(self.times))
+        """Knot times where the slope or the value may jump [s], sorted, without repeats."""
+        return np.unique(self._t).tolist()

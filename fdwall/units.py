@@ -333,6 +333,11 @@ def check_unit_text(text, where: str = "", *, file: str = "") -> str:
                 while j < n and s[j] in _NAME_PART:
                     j += 1
                 name = s[i:j]
+                power = name[len(name.rstrip("0123456789")):]
+                if power and int(power) == 0:
+                    raise _grammar_error(s, where, file,
+                                         f"'{name}' raises a unit to the power zero; leave "
+                                         "the unit out or give a non-zero power (m2, m^-1)")
                 if name.rstrip("0123456789") in _NUMBER_NAMES:
                     raise _grammar_error(s, where, file,
                                          f"'{name}' is a number, not a unit; write the value "
@@ -358,11 +363,16 @@ def check_unit_text(text, where: str = "", *, file: str = "") -> str:
             continue
         # after an atom: a power, an operator, ")", a space-product or the end
         if c in "^" or s.startswith("**", i):
-            j = _read_exponent(s, i + (2 if c == "*" else 1), n)
+            start = i + (2 if c == "*" else 1)
+            j = _read_exponent(s, start, n)
             if j < 0:
                 raise _grammar_error(s, where, file,
                                      f"the power at position {i + 1} has no integer or "
                                      "fractional exponent (m^2, m^-1, m^0.5, m^(1/2))")
+            if not any(ch in "123456789" for ch in s[start:j].split("/")[0]):
+                raise _grammar_error(s, where, file,
+                                     f"the power at position {i + 1} is zero; leave the unit "
+                                     "out or give a non-zero power (m^2, m^-1, m^0.5)")
             i = j
             if i < n and s[i] in "^²³" or s.startswith("**", i):
                 raise _grammar_error(s, where, file, "two powers in a row")
@@ -461,7 +471,8 @@ def parse_unit(text: str, where: str = "", *, file: str = ""):
     try:
         return ureg.parse_units(_clean_unit_text(text))
     except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            TypeError, ValueError, SyntaxError) as exc:
+            TypeError, ValueError, SyntaxError, KeyError, ArithmeticError,
+            RecursionError) as exc:
         bad = getattr(exc, "unit_names", None)
         bad = bad[0] if isinstance(bad, (tuple, list)) and bad else bad
         near = difflib.get_close_matches(text.strip(), _COMMON_UNITS, n=3, cutoff=0.5)

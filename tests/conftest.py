@@ -43,3 +43,19 @@ def fp_strict():
         yield
     finally:
         np.seterr(**old)
+
+
+# Hypothesis profiles for the property-based tests (tests/test_fuzz_inputs.py and the readers):
+# "ci" (default) is derandomised, so every CI run checks the same few hundred examples per
+# property; FDWALL_FUZZ=long runs 20,000 random examples per property (by hand, minutes).
+try:
+    from hypothesis import HealthCheck
+    from hypothesis import settings as _hyp_settings
+
+    _hyp_settings.register_profile("ci", max_examples=300, derandomize=True, deadline=None,
+                                   suppress_health_check=[HealthCheck.too_slow])
+    _hyp_settings.register_profile("long", max_examples=20_000, derandomize=False,
+                                   deadline=None, suppress_health_check=[HealthCheck.too_slow])
+    _hyp_settings.load_profile("long" if os.environ.get("FDWALL_FUZZ") == "long" else "ci")
+except ImportError:  # pragma: no cover - hypothesis comes with the test extras
+    pass

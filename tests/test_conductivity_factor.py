@@ -5,12 +5,11 @@ Mass Transfer, sec. 3.1): q = (T_in - T_out) / (1/h_i + L/(f k) + 1/h_o).
 """
 
 import pytest
+from study_cases import ONE_LAYER_WALL
 
 import fdwall
 from fdwall.errors import InputError
 from fdwall.materials import Constant, Polynomial, Table, get_material
-
-from study_cases import ONE_LAYER_WALL
 
 
 def _case(tmp_path, factor_line):

@@ -111,3 +111,57 @@ def test_two_identical_runs_give_identical_datasets_and_hash(tmp_path):
             np.testing.assert_array_equal(va, vb, err_msg=k)
         else:
             assert va == vb, k
+
+
+def _cli(argv):
+    from fdwall.cli import main
+    return main(argv)
+
+
+def test_analysis_files_carry_provenance_and_options_hash(tmp_path):
+    # size, rc and fit files: the same construction (FIPS 180-4 via hashlib), plus the options
+    # that change the answer as canonical JSON; identical inputs give identical data sets
+    import json as _json
+    panel = os.path.join(ROOT, "cases", "curing-oven-panel.toml")
+    log = os.path.join(ROOT, "cases", "lab-oven-log.csv")
+    runs = {
+        "size": ["size", panel, "--layer", "1", "--skin-limit", "55 degC", "--no-plots",
+                 "--quiet"],
+        "rc": ["rc", CASE, "--quiet"],
+        "fit": ["fit", log, "--time", "time", "--temperature", "chamber top", "--power",
+                "heater", "--ambient", "20 degC", "--quiet"],
+    }
+    for kind, argv in runs.items():
+        files = []
+        for rep in ("a", "b"):
+            out = tmp_path / f"{kind}-{rep}"
+            assert _cli(argv + ["--out", str(out)]) == 0, kind
+            (h5,) = sorted(out.glob("*.h5"))
+            files.append(h5)
+        attrs_a, ds_a, prov_a = _datasets(files[0])
+        attrs_b, ds_b, prov_b = _datasets(files[1])
+        assert attrs_a["kind"] == kind
+        assert len(attrs_a["input_sha256"]) == 64
+        assert attrs_a["input_sha256"] == attrs_b["input_sha256"] == prov_a["input_sha256"]
+        for key in ("fdwall_version", "python_version", "numpy_version", "numba_version"):
+            assert prov_a[key], (kind, key)
+        opts = _json.loads(prov_a["options"])
+        assert "out" not in opts and "quiet" not in opts
+        # the hash: case (or log) file, extra files, library, options
+        h = hashlib.sha256()
+        src = {"size": panel, "rc": CASE, "fit": log}[kind]
+        for label, data in (("case", open(src, "rb").read().replace(b"\r\n", b"\n")),
+                            ("library", LIBRARY_PATH.read_bytes()),
+                            ("options", _json.dumps(opts, sort_keys=True).encode())):
+            h.update(f"{label}\0{len(data)}\0".encode())
+            h.update(data)
+        assert attrs_a["input_sha256"] == h.hexdigest(), kind
+        for k in ds_a:
+            if isinstance(ds_a[k], np.ndarray) and ds_a[k].dtype.kind == "f":
+                np.testing.assert_array_equal(ds_a[k], ds_b[k], err_msg=f"{kind} {k}")
+    # an option that changes the answer changes the hash
+    out = tmp_path / "size-c"
+    _cli(runs["size"][:4] + ["--skin-limit", "60 degC", "--no-plots", "--quiet", "--out", str(out)])
+    (h5,) = sorted(out.glob("*.h5"))
+    with h5py.File(h5, "r") as f, h5py.File(sorted((tmp_path / "size-a").glob("*.h5"))[0]) as g:
+        assert f.attrs["input_sha256"] != g.attrs["input_sha256"]

@@ -454,7 +454,8 @@ def energy_breakdown(result, t_from=None, t_to=None) -> dict:
         ``chamber_stored_J`` (chamber air and load); ``outer_loss_J`` (all walls);
         ``leakage_loss_J`` (leakage and extra UA); ``residual_J`` = heater + heat entering
         through outer faces - stored - losses, which should be ~0; ``relative_residual``
-        (residual over the largest term); ``window_s``.
+        (|residual| over the total heat capacity times 1 K plus the largest term, as
+        :attr:`fdwall.result.Result.relative_residual`); ``window_s``.
     """
     case = result.case
     _need_enclosure(case, "energy_breakdown")
@@ -485,7 +486,12 @@ def energy_breakdown(result, t_from=None, t_to=None) -> dict:
     ch = float(d(result.stored_chamber))
     leak = float(d(result.loss_energy))
     resid = heater - outer - leak - stored_walls - ch
-    scale = max(abs(heater), abs(outer), abs(leak), abs(stored_walls), abs(ch), 1e-300)
+    # the same scale as the run's own ledger (Result.residual_scale): the heat capacity of
+    # walls and chamber times 1 K plus the largest term, so a window in which nothing moves
+    # does not turn round-off into a relative residual of order one
+    cap = float(result.stats.get("heat_capacity_J_per_K", 0.0))
+    scale = max(cap * 1.0 + max(abs(heater), abs(outer), abs(leak), abs(stored_walls), abs(ch)),
+                1e-300)
     return {
         "heater_J": heater,
         "walls": walls,

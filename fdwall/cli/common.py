@@ -18,6 +18,7 @@ from pathlib import Path
 
 from ..errors import FdwallError, OutputError
 from ..errors import InputError as _LibInputError
+from ..provenance import provenance, stamp_h5
 
 # Exit codes, shared by all commands (documented once, in fdwall/cli/__init__.py and README).
 EXIT_OK = 0
@@ -347,6 +348,25 @@ def write_report(args, h5_path, out=None):
         raise WriteError(f"cannot write the report '{out}': {exc.strerror or exc}.") from None
 
 
+# options that change where or how results are shown, not what they are: left out of the hash
+_PRESENTATION = frozenset({"out", "json", "quiet", "no_plots", "progress", "report", "units",
+                           "func", "command", "workers", "overwrite"})
+
+
+def _analysis_inputs(args) -> tuple:
+    """(case, extra files, options) of an analysis command, for its provenance record: the
+    case file (``args.case``, or the study file), a log (``args.log``) as an extra file, and
+    every option that can change the answer."""
+    case = getattr(args, "case", None) or getattr(args, "study", None)
+    extra = [p for p in (getattr(args, "log", None),) if p]
+    if case is None and extra:
+        case, extra = extra[0], extra[1:]
+    options = {k: v for k, v in sorted(vars(args).items())
+               if k not in _PRESENTATION and k not in ("case", "study", "log") and v is not None
+               and not callable(v)}
+    return case, extra, options
+
+
 def write_analysis(args, h5_path, groups: dict, *, kind: str, case_name: str,
                    caution: str | None = None) -> list:
     """Write an analysis result file (``kind`` "size", "fit", "rc", "study" ...) and, with
@@ -355,19 +375,27 @@ def write_analysis(args, h5_path, groups: dict, *, kind: str, case_name: str,
     One place for the layout the report reads: root attributes ``kind``, ``fdwall_version``,
     ``case_name``, ``created`` (ISO UTC) and ``caution`` when the answer speaks of safety; the
     groups as given (``inputs``, ``summary``, ``tables``, ``warnings``, ``references``,
-    ``notes``).  A failed write is a :class:`WriteError` (exit 1) and leaves no file.
+    ``notes``); the provenance record (versions, ``input_sha256`` of the case or log file, the
+    material library and the options that change the answer; see :mod:`fdwall.provenance`).
+    A failed write is a :class:`WriteError` (exit 1) and leaves no file.
     """
     from datetime import datetime, timezone
 
-    from ..h5tree import write_file
+    from ..h5tree import h5_atomic, write_tree
     h5_path = Path(h5_path)
     attrs = {"kind": kind, "fdwall_version": _version(), "case_name": case_name,
              "created": datetime.now(timezone.utc).isoformat()}
     if caution:
         attrs["caution"] = caution
+    prov = provenance(*_analysis_inputs(args))
     try:
         h5_path.parent.mkdir(parents=True, exist_ok=True)
-        write_file(h5_path, groups, attrs=attrs)
+        with h5_atomic(h5_path) as h:
+            for k, v in attrs.items():
+                h.attrs[k] = v
+            for name, data in groups.items():
+                write_tree(h.create_group(name), data)
+            stamp_h5(h, prov)
     except OSError as exc:
         raise WriteError(f"cannot write the results to '{h5_path.parent}': "
                          f"{exc.strerror or exc}. Choose another folder with --out DIR.") from None
