@@ -202,3 +202,19 @@ def test_observer_may_return_true_or_stop():
     with pytest.raises(Interrupted, match="stopped by an observer"):
         run(_slab(duration=3600.0), progress=False, observers=[Once()])
     assert Stop("x").signal is None
+
+
+def test_keyboard_interrupt_lands_between_chunks_without_a_bar():
+    # Ctrl-C in a script or notebook (no observer, no bar): Python raises KeyboardInterrupt in
+    # the main thread at the next bytecode, i.e. between two chunks, not at the end of the run
+    import _thread
+    timer = threading.Timer(0.5, _thread.interrupt_main)
+    t0 = time.perf_counter()
+    timer.start()
+    try:
+        with pytest.raises(KeyboardInterrupt):
+            run(_slab(duration=400 * 3600.0, oi=400 * 3600.0, max_step=0.5), progress=False)
+    finally:
+        timer.cancel()
+    # behavioural bound, generous for a loaded machine; the whole run takes far longer
+    assert time.perf_counter() - t0 < 10.0
