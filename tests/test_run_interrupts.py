@@ -218,3 +218,10 @@ def test_keyboard_interrupt_lands_between_chunks_without_a_bar():
         timer.cancel()
     # behavioural bound, generous for a loaded machine; the whole run takes far longer
     assert time.perf_counter() - t0 < 10.0
+
+
+def test_progress_bar_shows_model_time_when_asked(capsys):
+    res = run(_slab(duration=2 * 3600.0, oi=3600.0), progress=True, chunk_seconds=0.0)
+    err = capsys.readouterr().err
+    assert res.complete
+    assert "demo thick slab" in err and "%|" in err and "model" in err
