@@ -259,10 +259,26 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
     super Ju, chamber column Jcol and row Jrow [W/K], qf heat into the wall at each face [W],
     hc/hr convective and linearised radiative film coefficients [W/m2/K],
     extra[EX_HEATER] heater power [W], extra[EX_LOSS] loss to ambient from the chamber [W].
+
+    One function per physical term, called in this order (each adds its flows and their
+    derivatives): :func:`conduction` (capacities, enthalpies and the links between nodes),
+    :func:`faces` (imposed flux, films :func:`film` and radiation :func:`radiation`),
+    :func:`chamber` (its capacity and the losses to the room), :func:`heater`.
     """
-    N = node_i.shape[0]
-    nun = T.shape[0]
-    for i in range(nun):
+    clear(F, Cap, H, Jd, Jl, Ju, Jcol, Jrow)
+    conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju)
+    has_ch = ch_i[CHI_PRESENT] == 1
+    nc_idx = node_i.shape[0]      # the chamber is the unknown after the wall nodes
+    faces(T, t, left, face_i, face_f, hpar, s_off, stab, has_ch, nc_idx, F, Jd, Jcol, Jrow,
+          qf, hc, hr)
+    chamber(T, t, left, ch_i, ch_f, m_off, mtab, s_off, stab, nc_idx, F, Cap, H, Jd, extra)
+    heater(T, t, left, u_ctl, ctl_i, ctl_f, s_off, stab, F, Jd, extra)
+
+
+@njit(cache=True)
+def clear(F, Cap, H, Jd, Jl, Ju, Jcol, Jrow):
+    """Zero the flows [W], capacities [J/K], enthalpies [J] and the Jacobian [W/K]."""
+    for i in range(F.shape[0]):
         F[i] = 0.0
         Jd[i] = 0.0
         Jl[i] = 0.0
@@ -271,9 +287,19 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
         Jrow[i] = 0.0
         Cap[i] = 0.0
         H[i] = 0.0
-    # capacities and conduction links: each node's materials are evaluated once at its own
-    # temperature; the link i-1 -> i uses the right-half value of node i-1 (same material as
-    # the left half of node i), so every link costs no extra table look-up.
+
+
+@njit(cache=True)
+def conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju):
+    """Capacities Cap [J/K] and enthalpies H [J] of the wall nodes, and the conduction between
+    them: Kirchhoff links G (K(T_i) - K(T_j)) [W] (G the geometry factor [m], K = int k dT) or
+    contact conductances [W/K]; adds to F [W] and the tridiagonal Jd, Jl, Ju [W/K].
+
+    Each node's materials are evaluated once at its own temperature; the link i-1 -> i uses
+    the right-half value of node i-1 (same material as the left half of node i), so every
+    link costs no extra table look-up.
+    """
+    N = node_i.shape[0]
     kr_prev = 0.0
     Kr_prev = 0.0
     for i in range(N):
@@ -282,6 +308,8 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
         mr = node_i[i, NI_MAT_R]
         kl = 0.0
         Kl = 0.0
+        c = 0.0
+        h = 0.0
         if ml >= 0:
             kl, Kl, c, h = mat_eval(m_off, mtab, ml, Ti)
             v = node_f[i, NF_VOL_L]
@@ -321,9 +349,42 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
                 Jd[i] += dj
         kr_prev = kr
         Kr_prev = Kr
-    has_ch = ch_i[CHI_PRESENT] == 1
-    nc_idx = N
-    # faces
+
+
+@njit(cache=True)
+def film(face_i, face_f, hpar, f, A, Ts, Tf):
+    """Convective film of face ``f`` (area A [m2], surface Ts and fluid Tf [K]): film
+    coefficient [W/m2/K], heat into the wall [W] and its derivatives d/dTs, d/dTf [W/K]."""
+    hcv, dhs, dhf = face_h(face_i, face_f, hpar, f, Ts, Tf)
+    qc = A * hcv * (Tf - Ts)
+    dqc_s = A * (dhs * (Tf - Ts) - hcv)
+    dqc_f = A * (dhf * (Tf - Ts) + hcv)
+    return hcv, qc, dqc_s, dqc_f
+
+
+@njit(cache=True)
+def radiation(s_off, stab, face_i, f, A, Ts, Tr):
+    """Grey radiation of face ``f`` (area A [m2], emissivity table against Ts) with
+    surroundings at Tr [K]: heat into the wall [W], its derivatives d/dTs, d/dTr [W/K] and
+    the linearised radiative film coefficient [W/m2/K] (Stefan-Boltzmann)."""
+    eps, deps = sched_eval_slope(s_off, stab, face_i[f, FI_EMISSIVITY], Ts)
+    Ts2 = Ts * Ts
+    Tr2 = Tr * Tr
+    diff4 = Tr2 * Tr2 - Ts2 * Ts2
+    qr = A * eps * SIGMA * diff4
+    dqr_s = A * SIGMA * (deps * diff4 - 4.0 * eps * Ts2 * Ts)
+    dqr_o = A * eps * SIGMA * 4.0 * Tr2 * Tr
+    hr = eps * SIGMA * (Ts2 + Tr2) * (Ts + Tr)
+    return qr, dqr_s, dqr_o, hr
+
+
+@njit(cache=True)
+def faces(T, t, left, face_i, face_f, hpar, s_off, stab, has_ch, nc_idx, F, Jd, Jcol, Jrow,
+          qf, hc, hr):
+    """Heat into the wall at every face not held at a fixed temperature: imposed flux,
+    film and radiation; a face open to the chamber takes them from the chamber node
+    ``nc_idx`` (border of the arrow matrix).  Fills qf [W], hc, hr [W/m2/K]; adds to F [W],
+    Jd, Jcol, Jrow [W/K]."""
     nf = face_i.shape[0]
     for f in range(nf):
         i = face_i[f, FI_NODE]
@@ -335,8 +396,6 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
             continue  # Dirichlet: the face flow is whatever holds the temperature
         Ts = T[i]
         q = 0.0
-        dq_s = 0.0
-        dq_o = 0.0   # derivative with respect to the chamber temperature
         if face_i[f, FI_FLUX] >= 0:
             q += A * sched_eval(s_off, stab, face_i[f, FI_FLUX], t, left)
         to_ch = face_i[f, FI_TO_CHAMBER] == 1 and has_ch
@@ -346,46 +405,43 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
             Tf = sched_eval(s_off, stab, face_i[f, FI_FLUID], t, left)
         else:
             Tf = Ts
-        hcv, dhs, dhf = face_h(face_i, face_f, hpar, f, Ts, Tf)
-        qc = A * hcv * (Tf - Ts)
-        dqc_s = A * (dhs * (Tf - Ts) - hcv)
-        dqc_f = A * (dhf * (Tf - Ts) + hcv)
+        hcv, qc, dqc_s, dqc_f = film(face_i, face_f, hpar, f, A, Ts, Tf)
         hc[f] = hcv
         qr = 0.0
         dqr_s = 0.0
         dqr_o = 0.0
         if face_i[f, FI_EMISSIVITY] >= 0:
-            eps, deps = sched_eval_slope(s_off, stab, face_i[f, FI_EMISSIVITY], Ts)
             if to_ch:
                 Tr = Tf
             elif face_i[f, FI_RADIANT] >= 0:
                 Tr = sched_eval(s_off, stab, face_i[f, FI_RADIANT], t, left)
             else:
                 Tr = Tf
-            Ts2 = Ts * Ts
-            Tr2 = Tr * Tr
-            diff4 = Tr2 * Tr2 - Ts2 * Ts2
-            qr = A * eps * SIGMA * diff4
-            dqr_s = A * SIGMA * (deps * diff4 - 4.0 * eps * Ts2 * Ts)
-            dqr_o = A * eps * SIGMA * 4.0 * Tr2 * Tr
-            hr[f] = eps * SIGMA * (Ts2 + Tr2) * (Ts + Tr)
+            qr, dqr_s, dqr_o, hrf = radiation(s_off, stab, face_i, f, A, Ts, Tr)
+            hr[f] = hrf
         q += qc + qr
         dq_s = dqc_s + dqr_s
         F[i] += q
         Jd[i] += dq_s
         qf[f] = q
         if to_ch:
-            dq_o = dqc_f + dqr_o
+            dq_o = dqc_f + dqr_o    # derivative with respect to the chamber temperature
             Jcol[i] += dq_o
             # the chamber loses what the wall gains (the imposed flux part is not from the chamber)
             qx = qc + qr
             F[nc_idx] -= qx
             Jrow[i] -= dqc_s + dqr_s
             Jd[nc_idx] -= dq_o
-    # chamber capacity and losses
+
+
+@njit(cache=True)
+def chamber(T, t, left, ch_i, ch_f, m_off, mtab, s_off, stab, nc_idx, F, Cap, H, Jd, extra):
+    """The chamber node ``nc_idx``: capacity [J/K] and enthalpy [J] from its table, and the
+    loss to the room, extra UA plus leakage air (rho*cp of room air at 1 atm) times
+    (Tc - T_room) [W]; sets extra[EX_LOSS] (and zeroes extra[EX_HEATER])."""
     extra[EX_HEATER] = 0.0
     extra[EX_LOSS] = 0.0
-    if has_ch:
+    if ch_i[CHI_PRESENT] == 1:
         Tc = T[nc_idx]
         k, K, c, h = mat_eval(m_off, mtab, ch_i[CHI_CAPACITY], Tc)
         Cap[nc_idx] = c
@@ -400,7 +456,13 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
         F[nc_idx] -= loss
         Jd[nc_idx] -= ua
         extra[EX_LOSS] = loss
-    # heater
+
+
+@njit(cache=True)
+def heater(T, t, left, u_ctl, ctl_i, ctl_f, s_off, stab, F, Jd, extra):
+    """Heater power into its node [W]: rated power x power factor x on-fraction x enable,
+    divided by 1 + alpha (T - t_ref) for an element whose resistance rises with temperature;
+    adds to F [W] and Jd [W/K], sets extra[EX_HEATER]."""
     hn = ctl_i[CI_HEATER_NODE]
     if hn >= 0:
         if u_ctl >= 0.0:
