@@ -695,6 +695,133 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hca, hra, hcb, hrb
 
 
 @njit(cache=True)
+def controller(T, t, t_target, jump_target, cs, mode, period, ev_tol, ctl_i, ctl_f, s_off,
+               stab):
+    """The heater controller at the start of a step at time t [s]: samples the duty schedule
+    or the PID law once per period (anti-windup), or switches the thermostat at its band;
+    updates the control state ``cs``.  Returns the on-fraction for the step (-1: the duty
+    schedule itself) and the step target [s], shortened to the next sampling or switch-off
+    time (jump_target True then)."""
+    u = -1.0
+    if mode == CTL_DUTY_SWITCHED or mode == CTL_PID_AVERAGED or mode == CTL_PID_SWITCHED:
+        if t >= cs[CS_NEXT] - 1e-9 * period:
+            sp = 0.0
+            if mode == CTL_DUTY_SWITCHED:
+                ufrac = sched_eval(s_off, stab, ctl_i[CI_DUTY], t, 0.0)
+            else:
+                y = _sensor(T, ctl_i, ctl_f)
+                sp = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t, 0.0)
+                e = sp - y
+                de = 0.0
+                if cs[CS_PREV] > -1e299:
+                    de = (e - cs[CS_PREV]) / period
+                ui = cs[CS_INT] + ctl_f[CF_KI] * e * period
+                ufrac = ctl_f[CF_KP] * e + ui + ctl_f[CF_KD] * de
+                enabled = sched_eval(s_off, stab, ctl_i[CI_ENABLE], t, 0.0) > 0.0
+                # anti-windup: integrate only while enabled and unsaturated, or when it
+                # unwinds; the integral is frozen while the heater is switched off
+                if enabled and ((ufrac < 1.0 and ufrac > 0.0) or (ufrac >= 1.0 and e < 0)
+                                or (ufrac <= 0.0 and e > 0)):
+                    cs[CS_INT] = ui
+                if ufrac > 1.0:
+                    ufrac = 1.0
+                if ufrac < 0.0:
+                    ufrac = 0.0
+                cs[CS_PREV] = e
+            cs[CS_U] = ufrac
+            cs[CS_OFF] = t + ufrac * period
+            cs[CS_NEXT] = t + period
+        if cs[CS_NEXT] < t_target:
+            t_target = cs[CS_NEXT]
+            jump_target = True
+        if mode == CTL_PID_AVERAGED:
+            u = cs[CS_U]
+        else:
+            if cs[CS_OFF] > t + 1e-9 * period:
+                u = 1.0
+                if cs[CS_OFF] < t_target:
+                    t_target = cs[CS_OFF]
+                    jump_target = True
+            else:
+                u = 0.0
+    elif mode == CTL_THERMOSTAT:
+        y = _sensor(T, ctl_i, ctl_f)
+        sp = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t, 0.0)
+        half = 0.5 * ctl_f[CF_BAND]
+        if cs[CS_ON] > 0.5 and y >= sp + half - ev_tol:
+            cs[CS_ON] = 0.0
+        elif cs[CS_ON] < 0.5 and y <= sp - half + ev_tol:
+            cs[CS_ON] = 1.0
+        u = cs[CS_ON]
+    return u, t_target, jump_target
+
+
+@njit(cache=True)
+def ledger(acc, hs, q0, qg, q1, F0, Fg, F1, H0, H1, ex0, exg, ex1, dirich_node, dirich_face):
+    """Add one accepted step of length hs [s] to the cumulative energies ``acc`` [J] with the
+    TR-BDF2 quadrature weights: face flows q [W] (a fixed-temperature face: the change of its
+    node's enthalpy H [J] minus the conduction F [W] into it), heater power and chamber loss
+    (ex [W]); states at the step start (0), the stage (g) and the end (1)."""
+    nf = q0.shape[0]
+    for f in range(nf):
+        acc[f] += hs * (W0 * (q0[f] + qg[f]) + W2 * q1[f])
+    for kk in range(dirich_node.shape[0]):
+        i = dirich_node[kk]
+        f = dirich_face[kk]
+        acc[f] += (H1[i] - H0[i]) - hs * (W0 * (F0[i] + Fg[i]) + W2 * F1[i])
+    acc[nf + EX_HEATER] += hs * (W0 * (ex0[EX_HEATER] + exg[EX_HEATER]) + W2 * ex1[EX_HEATER])
+    acc[nf + EX_LOSS] += hs * (W0 * (ex0[EX_LOSS] + exg[EX_LOSS]) + W2 * ex1[EX_LOSS])
+
+
+@njit(cache=True)
+def events(ev_i, ev_f, ev_out, t, hs, T0, T1, F0, C0, F1, C1):
+    """Record the first upward / downward crossing time [s] of each watched event within the
+    step (t, t + hs], located on the cubic Hermite interpolant of the states T [K] with
+    slopes F/C [K/s] at both ends."""
+    for e in range(ev_i.shape[0]):
+        a = ev_i[e, EV_NODE_A]
+        b = ev_i[e, EV_NODE_B]
+        w = ev_f[e, EV_WEIGHT]
+        thr = ev_f[e, EV_THRESHOLD]
+        y0 = w * T0[a] + (1 - w) * T0[b]
+        y1 = w * T1[a] + (1 - w) * T1[b]
+        if (y0 - thr) * (y1 - thr) <= 0.0 and y0 != y1:
+            d0 = w * F0[a] / C0[a] + (1 - w) * F0[b] / C0[b]
+            d1 = w * F1[a] / C1[a] + (1 - w) * F1[b] / C1[b]
+            fr = _hermite_cross(y0, y1, d0, d1, hs, thr)
+            col = EV_UP if y1 > y0 else EV_DOWN
+            if ev_out[e, col] != ev_out[e, col]:
+                ev_out[e, col] = t + fr * hs
+
+
+@njit(cache=True)
+def balance(acc, stats, H1, has_ext):
+    """Energy ledger check after a step: heat in from outside (faces with ``has_ext``, the
+    heater) minus the chamber loss, against the change of stored enthalpy H [J] since the
+    start; keeps the largest residual and the energy scale [J] in ``stats``."""
+    nf = has_ext.shape[0]
+    nun = H1.shape[0]
+    ext = acc[nf + EX_HEATER] - acc[nf + EX_LOSS]
+    sc = abs(acc[nf + EX_HEATER])
+    for f in range(nf):
+        if has_ext[f]:
+            ext += acc[f]
+        if abs(acc[f]) > sc:
+            sc = abs(acc[f])
+    hsum = 0.0
+    for i in range(nun):
+        hsum += H1[i]
+    dH = hsum - stats[ST_H0]
+    res = abs(ext - dH)
+    if res > stats[ST_RESMAX]:
+        stats[ST_RESMAX] = res
+    if abs(dH) > sc:
+        sc = abs(dH)
+    if sc > stats[ST_SCALE]:
+        stats[ST_SCALE] = sc
+
+
+@njit(cache=True)
 def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_step, node_i, node_f, chains,
               face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
               dirich_node, dirich_sched, dirich_face, qd_state, ev_i, ev_f, ev_out,
@@ -782,7 +909,6 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     after_jump = ks[KS_AFTER_JUMP] > 0.5
     u_last = ks[KS_ULAST]
     k = k0
-    nev = ev_i.shape[0]
     nsteps = 0
     acc_prev = acc.copy()
     qd_b = np.zeros(nd)
@@ -798,57 +924,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
             jump_target = True
             target_bp = ibp
         # controller: sampling and switching times
-        u = -1.0
-        if mode == CTL_DUTY_SWITCHED or mode == CTL_PID_AVERAGED or mode == CTL_PID_SWITCHED:
-            if t >= cs[CS_NEXT] - 1e-9 * period:
-                sp = 0.0
-                if mode == CTL_DUTY_SWITCHED:
-                    ufrac = sched_eval(s_off, stab, ctl_i[CI_DUTY], t, 0.0)
-                else:
-                    y = _sensor(T, ctl_i, ctl_f)
-                    sp = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t, 0.0)
-                    e = sp - y
-                    de = 0.0
-                    if cs[CS_PREV] > -1e299:
-                        de = (e - cs[CS_PREV]) / period
-                    ui = cs[CS_INT] + ctl_f[CF_KI] * e * period
-                    ufrac = ctl_f[CF_KP] * e + ui + ctl_f[CF_KD] * de
-                    enabled = sched_eval(s_off, stab, ctl_i[CI_ENABLE], t, 0.0) > 0.0
-                    # anti-windup: integrate only while enabled and unsaturated, or when it
-                    # unwinds; the integral is frozen while the heater is switched off
-                    if enabled and ((ufrac < 1.0 and ufrac > 0.0) or (ufrac >= 1.0 and e < 0)
-                                    or (ufrac <= 0.0 and e > 0)):
-                        cs[CS_INT] = ui
-                    if ufrac > 1.0:
-                        ufrac = 1.0
-                    if ufrac < 0.0:
-                        ufrac = 0.0
-                    cs[CS_PREV] = e
-                cs[CS_U] = ufrac
-                cs[CS_OFF] = t + ufrac * period
-                cs[CS_NEXT] = t + period
-            if cs[CS_NEXT] < t_target:
-                t_target = cs[CS_NEXT]
-                jump_target = True
-            if mode == CTL_PID_AVERAGED:
-                u = cs[CS_U]
-            else:
-                if cs[CS_OFF] > t + 1e-9 * period:
-                    u = 1.0
-                    if cs[CS_OFF] < t_target:
-                        t_target = cs[CS_OFF]
-                        jump_target = True
-                else:
-                    u = 0.0
-        elif mode == CTL_THERMOSTAT:
-            y = _sensor(T, ctl_i, ctl_f)
-            sp = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t, 0.0)
-            half = 0.5 * ctl_f[CF_BAND]
-            if cs[CS_ON] > 0.5 and y >= sp + half - ev_tol:
-                cs[CS_ON] = 0.0
-            elif cs[CS_ON] < 0.5 and y <= sp - half + ev_tol:
-                cs[CS_ON] = 1.0
-            u = cs[CS_ON]
+        u, t_target, jump_target = controller(T, t, t_target, jump_target, cs, mode, period,
+                                              ev_tol, ctl_i, ctl_f, s_off, stab)
         # step size; after the heater switches, restart from the step that worked last time
         switched = u != cs[CS_UPREV] and (mode == CTL_DUTY_SWITCHED or mode == CTL_THERMOSTAT
                                           or mode == CTL_PID_SWITCHED)
@@ -983,29 +1060,9 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
             cs[CS_HJ] = hs
         after_jump = land and target_bp >= 0 and bpj[target_bp] > 0.5
         # accept the step: ledger with the step's quadrature weights
-        for f in range(nf):
-            acc[f] += hs * (W0 * (q0[f] + qg[f]) + W2 * q1[f])
-        for kk in range(nd):
-            i = dirich_node[kk]
-            f = dirich_face[kk]
-            acc[f] += (H1[i] - H0[i]) - hs * (W0 * (F0[i] + Fg[i]) + W2 * F1[i])
-        acc[nf + EX_HEATER] += hs * (W0 * (ex0[EX_HEATER] + exg[EX_HEATER]) + W2 * ex1[EX_HEATER])
-        acc[nf + EX_LOSS] += hs * (W0 * (ex0[EX_LOSS] + exg[EX_LOSS]) + W2 * ex1[EX_LOSS])
+        ledger(acc, hs, q0, qg, q1, F0, Fg, F1, H0, H1, ex0, exg, ex1, dirich_node, dirich_face)
         # events (cubic Hermite location within the step)
-        for e in range(nev):
-            a = ev_i[e, EV_NODE_A]
-            b = ev_i[e, EV_NODE_B]
-            w = ev_f[e, EV_WEIGHT]
-            thr = ev_f[e, EV_THRESHOLD]
-            y0 = w * T[a] + (1 - w) * T[b]
-            y1 = w * T1[a] + (1 - w) * T1[b]
-            if (y0 - thr) * (y1 - thr) <= 0.0 and y0 != y1:
-                d0 = w * F0[a] / C0[a] + (1 - w) * F0[b] / C0[b]
-                d1 = w * F1[a] / Cap[a] + (1 - w) * F1[b] / Cap[b]
-                fr = _hermite_cross(y0, y1, d0, d1, hs, thr)
-                col = EV_UP if y1 > y0 else EV_DOWN
-                if ev_out[e, col] != ev_out[e, col]:
-                    ev_out[e, col] = t + fr * hs
+        events(ev_i, ev_f, ev_out, t, hs, T, T1, F0, C0, F1, Cap)
         for i in range(nun):
             Tprev[i] = T[i]
             T[i] = T1[i]
@@ -1040,24 +1097,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
         while ibp < nbp and bp[ibp] <= t * (1 + 1e-14):
             ibp += 1
         # energy balance at every accepted step: heat in - out - change in stored enthalpy
-        ext = acc[nf + EX_HEATER] - acc[nf + EX_LOSS]
-        sc = abs(acc[nf + EX_HEATER])
-        for f in range(nf):
-            if has_ext[f]:
-                ext += acc[f]
-            if abs(acc[f]) > sc:
-                sc = abs(acc[f])
-        hsum = 0.0
-        for i in range(nun):
-            hsum += H1[i]
-        dH = hsum - stats[ST_H0]
-        res = abs(ext - dH)
-        if res > stats[ST_RESMAX]:
-            stats[ST_RESMAX] = res
-        if abs(dH) > sc:
-            sc = abs(dH)
-        if sc > stats[ST_SCALE]:
-            stats[ST_SCALE] = sc
+        balance(acc, stats, H1, has_ext)
         # heat flow at fixed-temperature faces at the step end: storage rate minus conduction
         for kk in range(nd):
             i = dirich_node[kk]
