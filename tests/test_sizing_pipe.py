@@ -123,3 +123,23 @@ def test_tradeoff_plot_of_the_two_intervals(tmp_path, monkeypatch):
     vl = [ln for ln in ax.get_lines() if ln.get_label().startswith("answer")]
     assert vl and vl[0].get_xdata()[0] == pytest.approx(r.thickness_m * 1000.0)
     assert "Caution" in " ".join(t.get_text() for t in figs[-1].texts)
+
+
+def test_sphere_loss_against_spherical_shell_network():
+    # Spherical shell (1/r1 - 1/r2)/(4 pi k) plus film 1/(4 pi r2^2 h) (Incropera 7th ed.,
+    # eq. 3.41 and Table 3.3); root for the loss limit by scipy brentq; critical radius 2k/h.
+    r1, k, h, q_lim = 0.2, 0.05, 8.0, 150.0
+
+    def q(L):
+        r2 = r1 + L
+        return (TI - TA) / ((1 / r1 - 1 / r2) / (4 * math.pi * k) + 1 / (4 * math.pi * r2 ** 2 * h)
+                           + 1 / (1e6 * 4 * math.pi * r1 ** 2))
+    L_ref = brentq(lambda L: q(L) - q_lim, 1e-4, 1.0)
+    mat = material_from_dict("t-sph", {"k": k, "cp": 900.0, "rho": 150.0})
+    case = Case(run=RunSettings(duration=3600.0, initial=TA),
+                wall=Wall(layers=(Layer(mat, 0.05),), geometry="sphere", inner_radius=r1),
+                inner=Face(fluid=TI, convection=1e6), outer=Face(fluid=TA, convection=h))
+    r = size_layer(case, 0, [LossTarget(q_lim, unit="W")], step=0.01)
+    assert r.thickness_exact_m == pytest.approx(L_ref, rel=2e-3)
+    assert r.critical_radius_m == pytest.approx(2 * k / h)
+    assert not any("critical radius" in n for n in r.notes)     # 12.5 mm < r1: no effect
