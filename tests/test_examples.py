@@ -37,3 +37,16 @@ def test_example_periodic_state(capsys):
     # a cold first day peaks well below the settled one (the contents start at ambient)
     assert out["cycles"][0]["chamber_max_K"] < out["cycles"][-1]["chamber_max_K"] - 10.0
     assert "closed form" in capsys.readouterr().out
+
+
+def test_example_sizing(capsys):
+    # closed form: series resistances of a plane wall (Incropera, Fundamentals of Heat and Mass
+    # Transfer, sec. 3.1) solved for the board thickness that puts the skin at the limit
+    ns = _script("example_sizing.py")
+    out = ns["main"]()
+    assert out["thickness_exact_m"] == pytest.approx(out["closed_form_m"], rel=1e-6)
+    # rounded up to the next 10 mm stock size, and that size is the smallest one above
+    assert out["thickness_m"] == pytest.approx(0.02)
+    assert out["thickness_m"] - 0.01 < out["closed_form_m"] <= out["thickness_m"]
+    text = capsys.readouterr().out
+    assert "closed form" in text and "engineering estimate" in text
