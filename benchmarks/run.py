@@ -263,8 +263,24 @@ def matched(geometry, quick, repeats, use_fipy, compile_s):
         fn = lambda kn=kn: M.solve_be(geometry, kn, x=x)
         timers.append((len(results), fn))
         mem = peak_memory(fn)
-        results.append(["fixed-step BE (numba)", f"dt={P.OUTPUT_INTERVAL / kn:.3g} s", n,
-                        st["steps"], 0, 0, mem, err, compile_s.get("be")])
+        results.append(["fixed-step BE, the suite's first peer (numba)",
+                        f"dt={P.OUTPUT_INTERVAL / kn:.3g} s", n, st["steps"], 0, 0, mem, err,
+                        compile_s.get("be")])
+        # the careful fixed-step kernel of (e) at the same mesh and dt: the same equations,
+        # so the same error; only the kernel differs (see section (e))
+        from .peers import be_careful
+        fvc = P.fv_problem(x, geometry)
+        tabs = be_careful.segment_tables(fvc)
+
+        def fn(kn=kn, fvc=fvc, tabs=tabs):
+            _, Tc, stc = be_careful.solve(fvc, kn, tables=tabs)
+            return Tc[:, [0, -1]], stc
+
+        Tc, stc = fn()
+        timers.append((len(results), fn))
+        mem = peak_memory(fn)
+        results.append(["fixed-step BE, careful (numba)", f"dt={P.OUTPUT_INTERVAL / kn:.3g} s",
+                        n, stc["steps"], 0, 0, mem, M.errors(Tc, ref), None])
     round_robin(results, timers, repeats)
     # FiPy
     if use_fipy:
@@ -999,7 +1015,9 @@ def main(argv=None):
             tol_a = float(fd[1].split("=")[1].split()[0])
         say("Targets for (a), measured in this run:")
         say()
-        for peer, target in (("scipy solve_ivp BDF", 10.0), ("fixed-step BE (numba)", 1.0)):
+        for peer, target in (("scipy solve_ivp BDF", 10.0),
+                             ("fixed-step BE, the suite's first peer (numba)", 1.0),
+                             ("fixed-step BE, careful (numba)", 1.0)):
             if fd and peer in r and np.isfinite(r[peer][4]):
                 ratio = r[peer][4] / fd[4]
                 rmin = r[peer][5] / fd[5]
