@@ -138,6 +138,12 @@ def cmd_study(args) -> int:
             for note in unc["notes"]:
                 if note.startswith(("sample size", "sensitivity")) or "failed" in note:
                     print(f"  note: {note}")
+        if not unc:
+            for k in [o for o in st["outputs"] if o not in TEXT_OUTPUTS]:
+                name, unit = k.rsplit("_", 1)
+                if f"{name}_min_{unit}" in summary:
+                    print(f"  {k:>16}: {summary[f'{name}_min_{unit}']:.6g} .. "
+                          f"{summary[f'{name}_max_{unit}']:.6g} {unit}")
         print(f"  {SAFETY_CAUTION}")
         for f in files:
             print(f"  {f}")
