@@ -192,7 +192,11 @@ def execute(st: dict, todo: list, rows: dict, csv_path, *, workers=None, schedul
     items = [(i, st["variants"][i], names[i]) for i in todo]
     if scheduler:
         client = _connect(scheduler, timeout)
-        nw = max(1, len(client.scheduler_info(n_workers=-1).get("workers", {})))
+        try:
+            info = client.scheduler_info(n_workers=-1)
+        except TypeError:                      # older distributed: all workers by default
+            info = client.scheduler_info()
+        nw = max(1, len(info.get("workers", {})))
     else:
         client = None
         nw = workers or os.cpu_count() or 1
