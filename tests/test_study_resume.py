@@ -23,7 +23,7 @@ base = "wall.toml"
 outputs = ["outer_T_K", "loss_W"]
 [[vary]]
 path = "wall.layers[0].thickness"
-values = ["20 mm", "30 mm", "40 mm", "60 mm"]
+values = ["20 mm", "30 mm", "40 mm", "60 mm", "70 mm", "80 mm", "90 mm", "100 mm"]
 [[vary]]
 path = "materials.demo-board.conductivity"
 values = ["0.05 W/m/K", "0.1 W/m/K", "0.2 W/m/K"]
@@ -63,12 +63,14 @@ def test_interrupt_and_resume(tmp_path, workers):
     with pytest.raises(_Stop):
         run_study(p, tmp_path, workers=workers, batch=2, on_batch=_stopper(5, first))
     part = read_table(tmp_path / "r-study.csv")
-    assert 5 <= len(part) < 12 and sorted(part["variant"]) == sorted(first)
+    # with processes, batches already running when the study stops are kept too
+    assert 5 <= len(part) < 24 and set(first) <= set(part["variant"])
+    first = list(part["variant"])
     _, rows = run_study(p, tmp_path, workers=workers, batch=2,
                         on_batch=lambda ix, rows: second.extend(ix))
     assert not set(first) & set(second)                       # no variant ran twice
-    assert sorted(first + second) == list(range(12))          # none is missing
-    assert [r["variant"] for r in rows] == list(range(12))
+    assert sorted(first + second) == list(range(24))          # none is missing
+    assert [r["variant"] for r in rows] == list(range(24))
     for r in rows:
         q, t = _closed_form(r)
         assert r["loss_W"] == pytest.approx(q, rel=1e-6)
@@ -87,15 +89,14 @@ def test_interrupt_and_resume(tmp_path, workers):
 def test_changed_study_refused_restart_starts_over(tmp_path):
     p = _files(tmp_path)
     run_study(p, tmp_path, workers=1, batch=4, on_batch=None)
-    p.write_text(GRID.replace('"60 mm"', '"80 mm"'))
+    p.write_text(GRID.replace('"60 mm"', '"65 mm"'))
     with pytest.raises(InputError, match="different study.*--restart"):
         run_study(p, tmp_path, workers=1)
     ran = []
     _, rows = run_study(p, tmp_path, workers=1, restart=True,
                         on_batch=lambda ix, rows: ran.extend(ix))
-    assert sorted(ran) == list(range(12))
-    assert {r["wall.layers[0].thickness"] for r in rows} == {"20 mm", "30 mm", "40 mm",
-                                                              "80 mm"}
+    assert sorted(ran) == list(range(24))
+    assert "65 mm" in {r["wall.layers[0].thickness"] for r in rows}
     # a changed base case is a changed study too (its text is in the hash)
     (tmp_path / "wall.toml").write_text(ONE_LAYER_WALL.replace('"10 W/m2/K"', '"12 W/m2/K"'))
     with pytest.raises(InputError, match="base case changed"):
