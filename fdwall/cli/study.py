@@ -151,9 +151,14 @@ def cmd_study(args) -> int:
 
 
 def register(sub) -> None:
-    p = sub.add_parser("study", help="run a grid of case variants (design study)",
-                       description="Run every variant of a study file and write one table "
-                                   "(CSV and HDF5) of steady answers per variant.")
+    p = sub.add_parser("study", help="run a design study: a grid or a random sample of case "
+                                     "variants, with an uncertainty summary",
+                       description="Run every variant of a study file (a grid, or a random "
+                                   "sample of uncertain inputs) on local processes or a Dask "
+                                   "cluster and write one table (CSV and HDF5) of answers per "
+                                   "variant, with quantiles, exceedance probabilities and a "
+                                   "sensitivity ranking for samples. A rerun into the same "
+                                   "folder resumes a partial table. See docs/studies.md.")
     p.add_argument("study", metavar="STUDY.toml", help="study file")
     p.add_argument("--workers", type=int, default=None, metavar="N",
                    help="local worker processes (default: all cores)")
