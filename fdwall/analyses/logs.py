@@ -2,7 +2,8 @@
 
 Analyses layer (after lumped). SI inside: time in s, temperature in K, power in W,
 R in K/W, C in J/K. Column headers are ``name [unit]``; units follow the case-file grammar
-(parsed by :func:`fdwall.units.parse_unit`).
+(split by :func:`fdwall.units.parse_header_unit`, parsed by
+:func:`fdwall.units.parse_unit`).
 """
 from __future__ import annotations
 
@@ -10,16 +11,26 @@ import io
 import re
 
 import numpy as np
-from scipy.optimize import least_squares
 
-from fdwall.errors import InputError
-from fdwall.units import parse_unit, ureg
-
-_HEADER = re.compile(r"^\s*([^\[\]]+?)\s*(?:\[([^\[\]]*)\])?\s*$")
-
+from fdwall.errors import CaseError, InputError
+from fdwall.units import parse_header_unit, parse_unit, ureg
 
 _EXAMPLE_UNIT = {"time": "s", "temperature": "degC", "power": "W", "duty": "1 or %",
                  "state": "1"}
+
+#: Repairs the reader may make when asked (``repair=``); each one it makes is reported.
+REPAIRS = ("sort", "duplicates", "outliers", "gaps")
+
+#: A time step longer than this many times the median step is a gap in the log.
+GAP_FACTOR = 10.0
+#: Outlier test (Hampel identifier): a reading further than max(OUTLIER_SIGMAS sigma,
+#: OUTLIER_MIN_K) from the median of its OUTLIER_WINDOW neighbours (centred), sigma being
+#: 1.4826 times the median absolute deviation of the column from those running medians.
+OUTLIER_WINDOW = 7
+OUTLIER_SIGMAS = 8.0
+OUTLIER_MIN_K = 3.0
+
+_CLOCK = re.compile(r"^\s*(\d{1,2}):(\d{2})(?::(\d{2}(?:\.\d*)?))?\s*$")
 
 
 def _err(file, what, allowed=""):
@@ -29,18 +40,133 @@ def _err(file, what, allowed=""):
     return InputError(msg)
 
 
+def _split_spec(spec, name, option_word):
+    """``"oven [degC]"`` -> ("oven", "degC"); ``"oven"`` -> ("oven", None) (strict grammar)."""
+    try:
+        return parse_header_unit(str(spec), where=option_word)
+    except CaseError as exc:
+        raise _err(name, f"{option_word} {spec!r}: {exc.problem}", exc.allowed) from None
+
+
+def parse_time_zone(text):
+    """A time zone: an IANA name (``"Europe/Berlin"``), ``"UTC"`` or an offset ``"+01:00"``.
+
+    Returns a :class:`datetime.tzinfo`; raises InputError naming what is allowed.
+    """
+    from datetime import timedelta, timezone
+    from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+    s = str(text).strip()
+    m = re.fullmatch(r"(?:UTC)?([+-])(\d{1,2}):?(\d{2})?", s)
+    if m:
+        h, mi = int(m.group(2)), int(m.group(3) or 0)
+        if h > 14 or mi > 59:
+            raise InputError(f"time zone {s!r}: the offset is out of range; allowed: offsets "
+                             "from -14:00 to +14:00")
+        sign = 1 if m.group(1) == "+" else -1
+        return timezone(sign * timedelta(hours=h, minutes=mi))
+    if s.upper() in ("UTC", "Z", "GMT"):
+        return timezone.utc
+    try:
+        return ZoneInfo(s)
+    except (ZoneInfoNotFoundError, ValueError, TypeError):
+        raise InputError(f"time zone {s!r} is not known; allowed: an IANA zone name such as "
+                         "'Europe/Berlin' or 'America/Chicago', 'UTC', or an offset such as "
+                         "'+01:00'") from None
+
+
+def _clock_or_timestamps(cells, key, name, time_zone):
+    """Elapsed seconds [s] from clock times (HH:MM[:SS]) or ISO 8601 timestamps.
+
+    Returns (seconds since the first row, start as ISO text or '', list of repair notes).
+    """
+    from datetime import datetime, timezone
+    notes = []
+    clock = [_CLOCK.match(str(c)) for c in cells]
+    if all(clock):
+        sec = np.array([int(m.group(1)) * 3600 + int(m.group(2)) * 60 + float(m.group(3) or 0)
+                        for m in clock])
+        for i, m in enumerate(clock):
+            if int(m.group(1)) > 23 or int(m.group(2)) > 59 or float(m.group(3) or 0) >= 60:
+                raise _err(name, f"row {i + 2}, column {key!r}: {cells[i]!r} is not a clock "
+                           "time", "HH:MM or HH:MM:SS with hours 0-23")
+        d = np.diff(sec)
+        wraps = np.flatnonzero(d < -12 * 3600.0)
+        if wraps.size:
+            sec = sec + 86400.0 * np.concatenate([[0], np.cumsum(d < -12 * 3600.0)])
+            notes.append(f"column {key!r}: clock time passes midnight at row"
+                         f"{'s' if wraps.size > 1 else ''} "
+                         + ", ".join(str(int(w) + 3) for w in wraps[:5])
+                         + " (a drop of more than 12 h is read as the next day)")
+        return sec - sec[0], "", notes
+    tz = None if time_zone is None else (time_zone if not isinstance(time_zone, str)
+                                         else parse_time_zone(time_zone))
+    stamps = []
+    for i, c in enumerate(cells):
+        row = i + 2
+        try:
+            ts = datetime.fromisoformat(str(c).strip())
+        except ValueError:
+            raise _err(name, f"row {row}, column {key!r}: {str(c)[:30]!r} is neither a number "
+                       "with the column's unit nor a clock time or ISO 8601 timestamp",
+                       "a time unit in the header ('time [s]', '[min]', '[h]'), or, with no "
+                       "unit, clock times HH:MM:SS or timestamps such as 2026-03-01T08:30:00 "
+                       "(with an offset, or with --time-zone)") from None
+        if ts.tzinfo is None:
+            if tz is None:
+                raise _err(name, f"row {row}, column {key!r}: timestamp {str(c).strip()!r} "
+                           "has no UTC offset and no time zone was stated",
+                           "timestamps with an offset (2026-03-01T08:30:00+01:00) or a stated "
+                           "time zone (--time-zone Europe/Berlin, UTC, +01:00)")
+            a, b = ts.replace(tzinfo=tz, fold=0), ts.replace(tzinfo=tz, fold=1)
+            back = a.astimezone(timezone.utc).astimezone(tz).replace(tzinfo=None)
+            if back != ts:
+                raise _err(name, f"row {row}, column {key!r}: local time {str(c).strip()!r} "
+                           f"does not exist in {time_zone} (clocks set forward)",
+                           "real local times, or timestamps with a UTC offset")
+            if a.utcoffset() != b.utcoffset():
+                raise _err(name, f"row {row}, column {key!r}: local time {str(c).strip()!r} "
+                           f"occurs twice in {time_zone} (clocks set back)",
+                           "timestamps with a UTC offset in that hour")
+            ts = a
+        stamps.append(ts.astimezone(timezone.utc))
+    t0 = stamps[0]
+    sec = np.array([(s - t0).total_seconds() for s in stamps])
+    return sec, t0.isoformat(), notes
+
+
+def _hampel(x):
+    """Indices of outliers in ``x`` (Hampel identifier, see OUTLIER_* constants) [same unit]."""
+    n = x.size
+    if n < OUTLIER_WINDOW:
+        return np.array([], dtype=int)
+    h = OUTLIER_WINDOW // 2
+    pad = np.concatenate([np.full(h, x[0]), x, np.full(h, x[-1])])
+    win = np.lib.stride_tricks.sliding_window_view(pad, OUTLIER_WINDOW)
+    med = np.median(win, axis=1)
+    dev = np.abs(x - med)
+    sigma = 1.4826 * np.median(dev)
+    return np.flatnonzero(dev > max(OUTLIER_SIGMAS * sigma, OUTLIER_MIN_K))
+
+
 def read_log(path_or_text, *, time, temperature, power=None, ambient, duty=None, state=None,
-             rated_power=None, file=None) -> dict:
+             rated_power=None, file=None, time_zone=None, repair=()) -> dict:
     """Read a CSV heating log into SI arrays.
+
+    Column options name a column by the part of its header before the bracket; a header
+    ``name [unit]`` gives the unit, or the option does (``"oven [degC]"`` for a header ``oven``;
+    when both give one they must agree).  Units follow the strict unit grammar
+    (:func:`fdwall.units.parse_header_unit`).
 
     Parameters
     ----------
     path_or_text : str or path
-        CSV file (lines starting with ``#`` are comments).
+        CSV file, or CSV text (lines starting with ``#`` are comments).
     time : str
-        Name of the time column (part of the header before the bracket); unit s, min or h.
+        Time column.  With a time unit (s, min, h) the cells are numbers; with no unit they are
+        clock times ``HH:MM[:SS]`` (a drop of more than 12 h is read as passing midnight, and
+        reported) or ISO 8601 timestamps (with a UTC offset, or local times in ``time_zone``).
     temperature : str or list of str
-        Temperature column name(s); several are averaged. Unit K or degC (degF).
+        Temperature column name(s); several are averaged. Unit K, degC or degF.
     power : str or float, optional
         Power column name, or a constant power in W.  Give exactly one of ``power``,
         ``duty`` or ``state``.
@@ -53,21 +179,36 @@ def read_log(path_or_text, *, time, temperature, power=None, ambient, duty=None,
         Rated heater power in W, needed with ``duty`` or ``state``.
     ambient : str or float
         Ambient column name, or a constant ambient temperature in K.
+    time_zone : str or tzinfo, optional
+        Zone of timestamps written without an offset (IANA name, ``"UTC"``, ``"+01:00"``).
+    repair : iterable of str
+        Repairs allowed (each one made is reported in ``repairs``), from :data:`REPAIRS`:
+        ``sort`` (stable sort of unsorted rows by time), ``duplicates`` (rows with the same
+        time averaged into one), ``outliers`` (rows with a temperature reading that fails the
+        Hampel test dropped), ``gaps`` (time steps over GAP_FACTOR x the median step kept,
+        the power of the row before held across).  Without them each is an error.
 
     Returns
     -------
     dict
-        ``t_s``, ``T_K``, ``P_W``, ``T_amb_K`` as float arrays of equal length.
+        ``t_s`` [s from the first row], ``T_K``, ``P_W``, ``T_amb_K`` as float arrays of
+        equal length, ``repairs`` (list of strings), ``start`` (ISO UTC text of the first
+        timestamp, or ''), ``rows`` (the file's row numbers kept, header = row 1).
 
     Raises
     ------
     InputError
         For unreadable files, unknown columns, text in number columns, gaps, duplicate or
-        unsorted times; the message names the file, row and column.
+        unsorted times, outliers (unless repaired); the message names the file, row and column.
     """
     import pandas as pd  # lazy: heavy optional dependency
 
-    name = str(file or path_or_text)
+    name = str(file or path_or_text) if not (isinstance(path_or_text, str)
+                                             and "\n" in path_or_text) else str(file or "log")
+    repair = set(repair or ())
+    unknown = repair - set(REPAIRS)
+    if unknown:
+        raise _err(name, f"unknown repair {sorted(unknown)[0]!r}", ", ".join(REPAIRS))
     try:
         if isinstance(path_or_text, str) and "\n" in path_or_text:
             src = io.StringIO(path_or_text)
@@ -82,75 +223,89 @@ def read_log(path_or_text, *, time, temperature, power=None, ambient, duty=None,
                    "comma-separated text with a header row 'name [unit],...'") from None
     cols = {}
     for raw in df.columns:
-        m = _HEADER.match(str(raw))
-        if not m:
-            raise _err(name, f"header {raw!r} is not 'name [unit]'", "headers like 'time [s]'")
-        key = m.group(1)
+        try:
+            key, unit = parse_header_unit(str(raw), where=f"header {str(raw)!r}")
+        except CaseError as exc:
+            raise _err(name, f"header {str(raw)!r}: {exc.problem}",
+                       exc.allowed or "headers like 'time [s]'") from None
         if key in cols:
             raise _err(name, f"column name {key!r} appears twice")
-        cols[key] = (raw, m.group(2))
+        cols[key] = (raw, unit)
     if len(df) < 3:
         raise _err(name, f"has {len(df)} data rows", "at least 3 rows")
 
-    def column(key, kind):
+    def cells(spec, option_word):
+        key, opt_unit = _split_spec(spec, name, option_word)
         if key not in cols:
             raise _err(name, f"no column named {key!r}", "one of " + ", ".join(map(repr, cols)))
         raw, unit = cols[key]
+        if opt_unit is not None:
+            if unit is not None and unit.replace(" ", "") != opt_unit.replace(" ", ""):
+                raise _err(name, f"column {key!r} has the unit [{unit}] in its header and "
+                           f"[{opt_unit}] in the option", "one unit, or the same in both")
+            unit = opt_unit
+        vals = df[raw].tolist()
+        for i, s in enumerate(vals):
+            if s is None or (isinstance(s, float) and np.isnan(s)) or str(s).strip() == "":
+                raise _err(name, f"row {i + 2}, column {key!r}: empty cell (gap)",
+                           "a number in every cell")
+        return key, unit, vals
+
+    def column(spec, kind):
+        key, unit, vals = cells(spec, f"the {kind} column")
         if not unit:
             raise _err(name, f"column {key!r} has no unit in brackets",
-                       f"a header such as '{key} [{_EXAMPLE_UNIT[kind]}]'")
+                       f"a header such as '{key} [{_EXAMPLE_UNIT[kind]}]', or the unit in the "
+                       f"option: '{key} [{_EXAMPLE_UNIT[kind].split()[0]}]'")
         try:
             u = parse_unit(unit, where=key, file=name)
         except InputError as exc:
-            raise _err(name, f"column {key!r}: {exc}") from None
-        vals = np.empty(len(df))
-        for i, s in enumerate(df[raw].tolist()):
+            raise _err(name, f"column {key!r}: {getattr(exc, 'problem', exc)}") from None
+        out = np.empty(len(vals))
+        for i, s in enumerate(vals):
             row = i + 2  # header is row 1
-            if s is None or (isinstance(s, float) and np.isnan(s)) or str(s).strip() == "":
-                raise _err(name, f"row {row}, column {key!r}: empty cell (gap)",
-                           "a number in every cell")
             try:
-                vals[i] = float(s)
+                out[i] = float(s)
             except ValueError:
                 raise _err(name, f"row {row}, column {key!r}: {str(s)[:30]!r} is not a number",
                            "a number in every cell") from None
-            if not np.isfinite(vals[i]):
+            if not np.isfinite(out[i]):
                 raise _err(name, f"row {row}, column {key!r}: non-finite value", "finite numbers")
         if kind in ("duty", "state"):
             try:
-                return np.asarray(ureg.Quantity(vals, u).to("dimensionless").magnitude, float)
+                return key, np.asarray(ureg.Quantity(out, u).to("dimensionless").magnitude,
+                                       float)
             except Exception:  # pint DimensionalityError
                 raise _err(name, f"column {key!r}: unit {unit!r} is not a fraction",
                            "[1] or [%]") from None
         target = {"time": "s", "temperature": "K", "power": "W"}[kind]
         try:
-            return np.asarray(ureg.Quantity(vals, u).to(target).magnitude, float)
+            return key, np.asarray(ureg.Quantity(out, u).to(target).magnitude, float)
         except Exception:  # pint DimensionalityError and offset-unit errors
             raise _err(name, f"column {key!r}: unit {unit!r} is not a {kind} unit") from None
 
-    t = column(time, "time")
-    d = np.diff(t)
-    if np.any(d == 0):
-        i = int(np.argmax(d == 0)) + 3
-        raise _err(name, f"row {i}, column {time!r}: duplicate time", "strictly increasing times")
-    if np.any(d < 0):
-        i = int(np.argmax(d < 0)) + 3
-        raise _err(name, f"row {i}, column {time!r}: time goes backwards (rows unsorted)",
-                   "strictly increasing times")
+    repairs, start = [], ""
+    tkey, tunit, tcells = cells(time, "the time column")
+    if tunit is None:
+        t, start, notes = _clock_or_timestamps(tcells, tkey, name, time_zone)
+        repairs += notes
+    else:
+        tkey, t = column(time, "time")
     temps = [temperature] if isinstance(temperature, str) else list(temperature)
-    T = np.mean([column(c, "temperature") for c in temps], axis=0)
+    Tcols = [column(c, "temperature") for c in temps]
     given = [k for k, v in (("power", power), ("duty", duty), ("state", state)) if v is not None]
     if len(given) != 1:
         raise _err(name, "heater input given as " + (", ".join(given) or "nothing"),
                    "exactly one of a power (column or value), a duty column or a state column")
     if power is not None:
-        P = column(power, "power") if isinstance(power, str) else np.full(len(t), float(power))
+        P = (column(power, "power")[1] if isinstance(power, str)
+             else np.full(len(t), float(power)))
     else:
         if rated_power is None or not np.isfinite(rated_power) or rated_power <= 0:
             raise _err(name, f"a {given[0]} column needs a positive rated power "
                        f"(got {rated_power!r})", "a rated power > 0 W")
-        key = duty if duty is not None else state
-        f = column(key, "duty" if duty is not None else "state")
+        key, f = column(duty if duty is not None else state,
+                        "duty" if duty is not None else "state")
         if duty is not None:
             bad = np.flatnonzero((f < 0) | (f > 1))
             if bad.size:
@@ -162,9 +317,77 @@ def read_log(path_or_text, *, time, temperature, power=None, ambient, duty=None,
                 raise _err(name, f"row {bad[0] + 2}, column {key!r}: state {f[bad[0]]:g} is "
                            "not 0 or 1", "0 (off) or 1 (on)")
         P = f * float(rated_power)
-    Ta = (column(ambient, "temperature") if isinstance(ambient, str)
-          else np.full(len(t), float(ambient)))
-    return {"t_s": t, "T_K": T, "P_W": P, "T_amb_K": Ta}
+    Acol = column(ambient, "temperature") if isinstance(ambient, str) else None
+    Ta = Acol[1] if Acol else np.full(len(t), float(ambient))
+    rows = np.arange(2, len(t) + 2)
+    data = np.column_stack([t, P, Ta] + [c[1] for c in Tcols])
+
+    d = np.diff(data[:, 0])
+    if np.any(d < 0):
+        i = int(np.argmax(d < 0)) + 3
+        if "sort" not in repair:
+            raise _err(name, f"row {i}, column {tkey!r}: time goes backwards (rows unsorted)",
+                       "strictly increasing times, or the repair 'sort' (--repair sort)")
+        order = np.argsort(data[:, 0], kind="stable")
+        data, rows = data[order], rows[order]
+        repairs.append(f"column {tkey!r}: rows sorted by time ({int(np.sum(d < 0))} "
+                       f"backward step(s), the first at row {i})")
+    d = np.diff(data[:, 0])
+    if np.any(d == 0):
+        i = int(rows[int(np.argmax(d == 0)) + 1])
+        if "duplicates" not in repair:
+            raise _err(name, f"row {i}, column {tkey!r}: duplicate time",
+                       "strictly increasing times, or the repair 'duplicates' (--repair "
+                       "duplicates averages rows of the same time)")
+        uniq, inv, counts = np.unique(data[:, 0], return_inverse=True, return_counts=True)
+        merged = np.zeros((uniq.size, data.shape[1]))
+        np.add.at(merged, inv, data)
+        merged /= counts[:, None]
+        first = np.full(uniq.size, -1)
+        for j in range(len(inv) - 1, -1, -1):
+            first[inv[j]] = rows[j]
+        repairs.append(f"column {tkey!r}: {int(np.sum(counts - 1))} duplicate time(s) averaged "
+                       f"with the row of the same time (the first at row {i})")
+        data, rows = merged, first
+    bad_rows = {}
+    for j, (ckey, _) in enumerate([(c[0], None) for c in Tcols] + ([(Acol[0], None)] if Acol
+                                                                   else [])):
+        col = data[:, 3 + j] if j < len(Tcols) else data[:, 2]
+        for k in _hampel(col):
+            bad_rows.setdefault(int(k), (ckey, col[k]))
+    if bad_rows:
+        k0 = min(bad_rows)
+        ckey, v = bad_rows[k0]
+        if "outliers" not in repair:
+            raise _err(name, f"row {rows[k0]}, column {ckey!r}: reading {v - 273.15:.6g} degC "
+                       f"is an outlier (more than max({OUTLIER_SIGMAS:g} sigma, "
+                       f"{OUTLIER_MIN_K:g} K) from the median of its {OUTLIER_WINDOW} "
+                       f"neighbours; {len(bad_rows)} such row(s))",
+                       "check the sensor, or the repair 'outliers' (--repair outliers drops "
+                       "those rows)")
+        keep = np.setdiff1d(np.arange(len(rows)), list(bad_rows))
+        repairs.append(f"{len(bad_rows)} outlier row(s) dropped: rows "
+                       + ", ".join(str(int(rows[k])) for k in sorted(bad_rows)[:10])
+                       + (" ..." if len(bad_rows) > 10 else ""))
+        data, rows = data[keep], rows[keep]
+    d = np.diff(data[:, 0])
+    if d.size:
+        med = float(np.median(d))
+        gaps = np.flatnonzero(d > GAP_FACTOR * med)
+        if gaps.size:
+            g = int(gaps[0])
+            if "gaps" not in repair:
+                raise _err(name, f"row {rows[g + 1]}, column {tkey!r}: a gap of {d[g]:.6g} s "
+                           f"in the times (over {GAP_FACTOR:g} x the median step {med:.6g} s; "
+                           f"{gaps.size} such gap(s))",
+                           "a log without gaps, or the repair 'gaps' (--repair gaps holds the "
+                           "power of the row before across the gap)")
+            repairs.append(f"{gaps.size} time gap(s) kept, the power of the row before held "
+                           "across: rows " + ", ".join(str(int(rows[k + 1])) for k in gaps[:10]))
+    if len(rows) < 3:
+        raise _err(name, f"has {len(rows)} data rows after repairs", "at least 3 rows")
+    return {"t_s": data[:, 0] - data[0, 0], "T_K": data[:, 3:].mean(axis=1), "P_W": data[:, 1],
+            "T_amb_K": data[:, 2], "repairs": repairs, "start": start, "rows": rows}
 
 
 def one_node_propagate(t, P, T_amb, R, C, T0):
@@ -198,49 +421,21 @@ def _check_inputs(t, T, P, T_amb):
                          "only)")
 
 
-def fit_one_node_log(t, T, P, T_amb) -> dict:
+def fit_one_node_log(t, T, P, T_amb, **kw) -> dict:
     """Fit R (K/W), C (J/K) and the start temperature to a log by least squares.
 
-    Standard errors are from the Jacobian, scaled by the residual variance and inflated for
-    lag-1 residual autocorrelation through the effective sample size n_eff = n (1-r1)/(1+r1).
-    Returns keys ``R_K_per_W``, ``R_stderr_K_per_W``, ``C_J_per_K``, ``C_stderr_J_per_K``,
-    ``tau_s``, ``rms_K``, ``lag1_autocorrelation``, ``n_eff``, ``correlation_RC``.
+    The one-node case of :func:`fdwall.analyses.twonode.fit_log` (keyword arguments go there:
+    ``sensor_lag``, ``dead_time``, ``n_boot``, ``seed``).  Standard errors are from the
+    Jacobian, scaled by the residual variance and inflated for lag-1 residual autocorrelation
+    through the effective sample size n_eff = n (1-r1)/(1+r1); a moving-block bootstrap gives
+    intervals beside them.  Returns at least ``R_K_per_W``, ``R_stderr_K_per_W``,
+    ``C_J_per_K``, ``C_stderr_J_per_K``, ``tau_s``, ``T0_K``, ``rms_K``,
+    ``lag1_autocorrelation``, ``n_eff``, ``correlation_RC``, ``warnings``.
     """
+    from fdwall.analyses.twonode import fit_log
     t, T, P, Ta = (np.asarray(a, float) for a in (t, T, P, T_amb))
     _check_inputs(t, T, P, Ta)
-    Pm = max(np.mean(np.abs(P)), 1e-9)
-    R0 = max((np.max(T) - np.mean(Ta)) / np.max(np.abs(P)), 1e-6)
-    C0 = max((t[-1] - t[0]) / 3.0 / R0, 1e-6)
-
-    def res(x):
-        R, C = np.exp(x[0]), np.exp(x[1])
-        return one_node_propagate(t, P, Ta, R, C, x[2]) - T
-
-    sol = least_squares(res, [np.log(R0), np.log(C0), T[0]], x_scale=[1, 1, 1.0])
-    r = sol.fun
-    n, p = len(r), 3
-    rms = float(np.sqrt(np.mean(r ** 2)))
-    r1 = float(np.sum(r[1:] * r[:-1]) / max(np.sum(r ** 2), 1e-300)) if n > 2 else 0.0
-    r1c = min(max(r1, 0.0), 0.99)
-    n_eff = n * (1 - r1c) / (1 + r1c)
-    s2 = np.sum(r ** 2) / max(n - p, 1) * (n - p) / max(n_eff - p, 1.0)
-    J = sol.jac
-    try:
-        cov = np.linalg.inv(J.T @ J) * s2
-    except np.linalg.LinAlgError:
-        cov = np.full((3, 3), np.inf)
-    R, C = float(np.exp(sol.x[0])), float(np.exp(sol.x[1]))
-    sR, sC = float(np.sqrt(cov[0, 0])), float(np.sqrt(cov[1, 1]))
-    corr = float(cov[0, 1] / np.sqrt(cov[0, 0] * cov[1, 1])) if np.isfinite(cov).all() else 1.0
-    warnings = []
-    if abs(corr) > 0.95:
-        warnings.append(f"R and C are strongly correlated ({corr:+.2f}): the log may be too "
-                        "short to see equilibrium")
-    del Pm
-    return {"R_K_per_W": R, "R_stderr_K_per_W": R * sR, "C_J_per_K": C,
-            "C_stderr_J_per_K": C * sC, "tau_s": R * C, "T0_K": float(sol.x[2]),
-            "rms_K": rms, "lag1_autocorrelation": r1, "n_eff": float(n_eff),
-            "correlation_RC": corr, "warnings": warnings}
+    return fit_log(t, T, P, Ta, model="one-node", **kw)
 
 
 def physics_check(fit: dict, implied: dict, log_duration_s: float) -> dict:
@@ -269,12 +464,18 @@ def physics_check(fit: dict, implied: dict, log_duration_s: float) -> dict:
         if not (np.isfinite(v) and v > 0):
             raise InputError(f"physics cross-check: the case implies {k} = {v!r}; allowed: a "
                              "case whose heater drives it above ambient at steady state")
+    reading, warns = [], []
+    n_tau = log_duration_s / fit["tau_s"]
+    if fit.get("R_K_per_W") is None:  # zero-power log: the time constant only
+        rt = fit["tau_s"] / phys["tau_s"]
+        reading.append(f"The log has no heating power, so it gives the time constant only: "
+                       f"fitted/implied tau {rt:.2f}. R and C cannot be compared one by one.")
+        return {"physics": phys, "ratios": {"tau": rt}, "reading": reading, "warnings": warns,
+                "log_time_constants": float(n_tau)}
     rR = fit["R_K_per_W"] / phys["R_K_per_W"]
     rC = fit["C_J_per_K"] / phys["C_stored_J_per_K"]
     ratios = {"R": rR, "C_stored": rC, "C_total": fit["C_J_per_K"] / phys["C_total_J_per_K"],
               "tau": fit["tau_s"] / phys["tau_s"]}
-    reading, warns = [], []
-    n_tau = log_duration_s / fit["tau_s"]
     if n_tau < 3.0:
         warns.append(f"the log lasts {n_tau:.1f} fitted time constants (under about 3): it is "
                      "too short to see equilibrium, so R is extrapolated and R and C trade off")
@@ -304,6 +505,9 @@ def physics_check(fit: dict, implied: dict, log_duration_s: float) -> dict:
                        "in a short log only the inner part of a thick lining has warmed "
                        "(distributed capacity), or the sensor reads the fast air node rather "
                        "than the walls (sensor placement).")
+    reading.append("R and C hold at the temperatures the log ran at: radiation loss grows "
+                   "roughly as T^3 and the conductivity of insulation rises with temperature, "
+                   "so R falls and C moves (cp(T)) when the equipment runs hotter.")
     return {"physics": phys, "ratios": ratios, "reading": reading, "warnings": warns,
             "log_time_constants": float(n_tau)}
 

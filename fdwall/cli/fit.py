@@ -1,4 +1,4 @@
-"""``fdwall fit LOG.csv``: fit a one-node R/C model to a measured heating log."""
+"""``fdwall fit LOG.csv``: fit a lumped R/C network (one node or two) to a heating log."""
 from __future__ import annotations
 
 from pathlib import Path
@@ -21,12 +21,16 @@ def _value_or_column(text, kind, option):
     return common.quantity(text, kind, option)  # bare number: rejected, naming the option
 
 
-def cmd_fit(args) -> int:
-    from ..analyses.logs import fit_one_node_log, read_log
-    from ..errors import InputError as LibInputError
-    if args.model != "one-node":
-        raise InputError(f"--model {args.model}: only one-node is available in this version. "
-                         "Allowed: one-node.")
+def _time_or_fit(text, option):
+    """``fit`` or a time with a unit ("30 s") [s]; None when not given."""
+    if text is None:
+        return None
+    if str(text).strip().lower() == "fit":
+        return "fit"
+    return common.quantity(text, "time", option, nonnegative=True)
+
+
+def _heater(args):
     given = [o for o, v in (("--power", args.power), ("--duty", args.duty),
                             ("--state", args.state)) if v is not None]
     if len(given) != 1:
@@ -47,21 +51,57 @@ def cmd_fit(args) -> int:
         raise InputError(f"{given[0]} needs --rated-power VALUE (the heater's full power, "
                          'e.g. "2 kW").')
     power = None if args.power is None else _value_or_column(args.power, "power", "--power")
+    return power, rated
+
+
+def _scalars(d):
+    """The numbers, strings and None of a flat dict (what goes into ``summary``)."""
+    out = {}
+    for k, v in d.items():
+        if v is None or isinstance(v, (bool, str, int)):
+            out[k] = v
+        elif isinstance(v, (int, float)) or hasattr(v, "dtype") and getattr(v, "ndim", 1) == 0:
+            out[k] = float(v)
+    return out
+
+
+def cmd_fit(args) -> int:
+    import numpy as np
+
+    from ..analyses.logs import REPAIRS, read_log
+    from ..analyses.twonode import fit_log, predict
+    from ..errors import InputError as LibInputError
+    power, rated = _heater(args)
     ambient = _value_or_column(args.ambient, "temperature", "--ambient")
     temps = [c.strip() for c in args.temperature.split(",") if c.strip()]
     if not temps:
         raise InputError("--temperature: no column named. Allowed: COLUMN[,COLUMN...].")
-    try:
-        log = read_log(args.log, time=args.time, temperature=temps, power=power,
-                       ambient=ambient, duty=args.duty, state=args.state, rated_power=rated)
-        fit = fit_one_node_log(log["t_s"], log["T_K"], log["P_W"], log["T_amb_K"])
-    except LibInputError as exc:
-        raise InputError(str(exc)) from None
+    lag = _time_or_fit(args.sensor_lag, "--sensor-lag")
+    dead = _time_or_fit(args.dead_time, "--dead-time")
+    repair = [r.strip() for r in (args.repair or "").split(",") if r.strip()]
+    for r in repair:
+        if r not in REPAIRS:
+            raise InputError(f"--repair {r}: not a repair of the log reader. Allowed: "
+                             + ", ".join(REPAIRS) + " (comma-separated).")
+    if args.bootstrap < 0:
+        raise InputError(f"--bootstrap {args.bootstrap}: must be 0 or more resamples.")
     setpoint = (None if args.setpoint is None
                 else common.quantity(args.setpoint, "temperature", "--setpoint"))
     at_power = (None if args.at_power is None
                 else common.quantity(args.at_power, "power", "--at-power"))
-    check = None
+    try:
+        log = read_log(args.log, time=args.time, temperature=temps, power=power,
+                       ambient=ambient, duty=args.duty, state=args.state, rated_power=rated,
+                       time_zone=args.time_zone, repair=repair)
+        fit = fit_log(log["t_s"], log["T_K"], log["P_W"], log["T_amb_K"], model=args.model,
+                      sensor_lag=lag, dead_time=dead, n_boot=args.bootstrap)
+    except LibInputError as exc:
+        raise InputError(str(exc)) from None
+    warns = [f"log repaired: {r}" for r in log["repairs"]] + list(fit["warnings"])
+    check = cal = None
+    if args.calibrate and not args.case:
+        raise InputError("--calibrate needs --case CASE (the case whose physics is fitted to "
+                         "the log).")
     if args.case:
         case, case_warns = common._load(args.case)
         from ..analyses.logs import physics_check
@@ -71,102 +111,207 @@ def cmd_fit(args) -> int:
             check = physics_check(fit, implied, float(log["t_s"][-1] - log["t_s"][0]))
         except (LibInputError, ValueError) as exc:
             raise InputError(f"--case {args.case}: {exc}") from None
-        fit["warnings"].extend(check["warnings"])
-    import numpy as _np
-
-    from ..analyses.logs import predict_one_node
-    full = rated if rated else float(_np.max(log["P_W"]))
-    pred = predict_one_node(fit["R_K_per_W"], fit["C_J_per_K"], float(_np.mean(log["T_amb_K"])),
-                            setpoint=setpoint, power=at_power if at_power is not None else full,
-                            rated_power=full, T0=float(_np.mean(log["T_amb_K"])),
-                            R_stderr=fit["R_stderr_K_per_W"])
+        warns.extend(check["warnings"])
+        if args.calibrate:
+            from ..analyses.calibrate import calibrate
+            keys = [k.strip() for k in args.calibrate.split(",") if k.strip()]
+            try:
+                cal = calibrate(case, log["t_s"], log["T_K"], log["P_W"], keys,
+                                n_boot=args.bootstrap)
+            except LibInputError as exc:
+                raise InputError(f"--calibrate {args.calibrate}: {exc}") from None
+            except (RuntimeError, ArithmeticError) as exc:
+                common.error(f"--calibrate: the solver failed on '{args.case}' driven by the "
+                             f"log: {exc}")
+                return common.EXIT_NOT_CONVERGED
+            warns.extend(f"calibration: {w}" for w in cal["warnings"])
+    Ta = float(np.mean(log["T_amb_K"]))
+    full = rated if rated else float(np.max(log["P_W"]))
+    pred = predict(fit, Ta, setpoint=setpoint,
+                   power=at_power if at_power is not None else full, rated_power=full)
     if pred.get("duty_at_setpoint", 0.0) > 1.0:
-        fit["warnings"].append(f"holding {args.setpoint} needs {pred['duty_at_setpoint']:.2f} of "
-                               f"the heater's {full:.4g} W: more than it can give")
+        warns.append(f"holding {args.setpoint} needs {pred['duty_at_setpoint']:.2f} of the "
+                     f"heater's {full:.4g} W: more than it can give")
     stem = Path(args.log).stem
     outdir = common.output_dir(args, stem)
     h5 = outdir / f"{stem}-fit.h5"
-    warns = fit.pop("warnings")
-    summary = {k: float(v) for k, v in fit.items()}
-    resid = log["T_K"] - _model(log, fit)
-    groups_extra, notes = {}, ["R and C are the fitted lumped values of the whole equipment"]
-    groups_extra["predictions"] = pred
-    notes.append("predictions use the one-node closed forms: steady T = T_amb + P R; time to "
-                 "a setpoint from ambient t = R C ln((T_inf - T_amb)/(T_inf - T_set)); duty = "
-                 f"(T_set - T_amb)/(R P_full) with P_full = {full:.6g} W")
+    keys = ("R_K_per_W", "R_stderr_K_per_W", "C_J_per_K", "C_stderr_J_per_K", "tau_s",
+            "tau_stderr_s", "T0_K", "rms_K", "lag1_autocorrelation", "n_eff", "n",
+            "correlation_RC", "identifiable", "block_length", "bootstrap_samples",
+            "sensor_lag_s", "dead_time_s", "C_ignoring_lag_J_per_K", "R_ignoring_lag_K_per_W",
+            "C_lag_bias_fraction", "tau_ignoring_lag_s")
+    summary = {"model": fit["model"], **_scalars({k: fit[k] for k in keys if k in fit})}
+    for nm in ("R", "C"):
+        src = (fit["parameters"].get(nm) or fit["parameters"].get(f"{nm}_total") or {})
+        unit = "K_per_W" if nm == "R" else "J_per_K"
+        if "boot_ci95" in src:
+            summary[f"{nm}_boot_stderr_{unit}"] = src["boot_stderr"]
+    if log["start"]:
+        summary["log_start_utc"] = log["start"]
+    notes = [f"model {fit['model']}: " + {
+        "one-node": "C dT/dt = P - (T - T_amb)/R",
+        "two-node": "chamber C_chamber -- R_chamber_wall -- wall C_wall -- R_wall_ambient -- "
+                    "ambient; R = R_chamber_wall + R_wall_ambient, C = C_chamber + C_wall",
+        "time-constant": "zero power throughout: T = T_amb + (T0 - T_amb) exp(-t/tau)"}[
+        fit["model"]]]
+    if fit["sensor_lag_s"] or fit["dead_time_s"]:
+        notes.append(f"sensor: first-order lag {fit['sensor_lag_s']:.4g} s and dead time "
+                     f"{fit['dead_time_s']:.4g} s between the chamber and the logged value")
+    if "C_lag_bias_fraction" in fit:
+        notes.append(f"ignoring the sensor lag and dead time the same fit gives C = "
+                     f"{fit['C_ignoring_lag_J_per_K']:.5g} J/K, {100 * fit['C_lag_bias_fraction']:+.1f} "
+                     "% against the fit with them (a lagging sensor makes the warm-up look "
+                     "slower)")
+    notes.append("R and C are the fitted lumped values of the whole equipment, at the "
+                 "temperatures of the log: radiation and k(T) make them depend on the "
+                 "operating temperature")
     if check:
-        groups_extra["physics"] = check["physics"]
-        groups_extra["ratios"] = check["ratios"]
         summary["log_time_constants"] = check["log_time_constants"]
         notes += check["reading"]
-    files = common.write_analysis(args, h5, {
-            "inputs": {"log": str(args.log), "time": args.time, "temperature": ",".join(temps),
-                       "power": str(args.power), "duty": str(args.duty),
-                       "state": str(args.state), "rated_power": str(args.rated_power),
-                       "rated_power_W": float(rated) if rated else 0.0,
-                       "ambient": str(args.ambient),
-                       "model": args.model},
-            "summary": summary,
-            "tables": {"log": {"time_s": log["t_s"], "T_K": log["T_K"], "P_W": log["P_W"],
-                               "T_amb_K": log["T_amb_K"], "residual_K": resid}},
-            "warnings": {"items": warns or ["none"]},
-            "references": {"items": ["one-node lumped model, exact piecewise-constant-power propagation",
-                           "scipy.optimize.least_squares; standard errors from the Jacobian "
-                           "with an effective sample size n(1-r1)/(1+r1)"]},
-            "notes": {"items": notes},
-            **groups_extra,
-        }, kind="fit", case_name=stem)
+    params = {k: {kk: vv for kk, vv in v.items()} for k, v in fit["parameters"].items()}
+    names = fit["parameter_names"]
+    groups = {
+        "inputs": {"log": str(args.log), "time": args.time, "temperature": ",".join(temps),
+                   "power": str(args.power), "duty": str(args.duty), "state": str(args.state),
+                   "rated_power": str(args.rated_power),
+                   "rated_power_W": float(rated) if rated else 0.0,
+                   "ambient": str(args.ambient), "model": args.model,
+                   "sensor_lag": str(args.sensor_lag), "dead_time": str(args.dead_time),
+                   "time_zone": str(args.time_zone), "repair": ",".join(repair) or "none"},
+        "summary": summary,
+        "parameters": params,
+        "tables": {"log": {"time_s": log["t_s"], "row": log["rows"], "T_K": log["T_K"],
+                           "model_K": fit["model_K"], "P_W": log["P_W"],
+                           "T_amb_K": log["T_amb_K"], "residual_K": fit["residual_K"]},
+                   "residual_acf": {"lag": list(range(1, len(fit["residual_acf"]) + 1)),
+                                    "autocorrelation": fit["residual_acf"]},
+                   "correlation": {"parameter": names,
+                                   **{n: fit["correlation"][:, i] for i, n in
+                                      enumerate(names)}}},
+        "predictions": pred,
+        "warnings": {"items": warns or ["none"]},
+        "repairs": {"items": log["repairs"] or ["none"]},
+        "references": {"items": [
+            "lumped network propagated exactly between rows (eigen-decomposition of the "
+            "state matrix; checked against scipy.linalg.expm)",
+            "scipy.optimize.least_squares; standard errors from the Jacobian with an "
+            "effective sample size n(1-r1)/(1+r1) and Student t on n_eff - k",
+            "moving-block residual bootstrap, linearised at the fit (Kuensch 1989)"]},
+        "notes": {"items": notes},
+    }
+    if check:
+        groups["physics"] = check["physics"]
+        groups["ratios"] = check["ratios"]
+    if cal:
+        groups["calibration"] = {"parameters": cal["parameters"], "rms_K": cal["rms_K"],
+                                 "lag1_autocorrelation": cal["lag1_autocorrelation"],
+                                 "n_eff": cal["n_eff"], "runs": cal["runs"],
+                                 "keys": cal["keys"]}
+        groups["tables"]["log"]["calibrated_K"] = cal["model_K"]
+        groups["notes"]["items"].append(
+            "calibration: the case driven by the logged power (heater power, or the inner "
+            "face's flux over the wall area), started at the log's first temperature, fitted "
+            "by least squares through the solver; intervals as for the fit")
+    png = outdir / f"{stem}-fit.png"
+    files = common.write_analysis(args, h5, groups, kind="fit", case_name=stem)
+    if not args.no_plots:
+        from ..report.fitplot import plot_fit
+        label = {"one-node": "one-node fit", "two-node": "two-node fit",
+                 "time-constant": "time-constant fit"}[fit["model"]]
+        try:
+            files.append(plot_fit(log["t_s"], log["T_K"], fit["model_K"], log["P_W"], png,
+                                  title=f"{stem}: {label}, residual RMS {fit['rms_K']:.3g} K",
+                                  model_label=label, T_amb_K=log["T_amb_K"],
+                                  extra=None if not cal else
+                                  (cal["model_K"], "solver, calibrated")))
+        except OSError as exc:
+            raise common.WriteError(f"cannot write the plot '{png}': "
+                                    f"{exc.strerror or exc}.") from None
     for w in warns:
         common.warn(w)
     if args.json:
-        out = {**summary, "predictions": pred, "warnings": warns, "files": files}
+        out = {**summary, "parameters": params, "residual_acf": fit["residual_acf"],
+               "predictions": pred, "warnings": warns, "repairs": log["repairs"],
+               "files": files}
         if check:
             out.update(physics=check["physics"], ratios=check["ratios"],
                        reading=check["reading"])
+        if cal:
+            out["calibration"] = groups["calibration"]
         print(common.dumps(out))
     elif not args.quiet:
-        print(f"One-node fit of '{args.log}'")
-        print(f"  R    {fit['R_K_per_W']:.5g} +/- {fit['R_stderr_K_per_W']:.2g} K/W")
-        print(f"  C    {fit['C_J_per_K']:.5g} +/- {fit['C_stderr_J_per_K']:.2g} J/K")
-        print(f"  tau  {fit['tau_s']:.5g} s")
-        print(f"  residual RMS {fit['rms_K']:.3g} K, lag-1 autocorrelation "
-              f"{fit['lag1_autocorrelation']:.2f} (effective samples {fit['n_eff']:.0f})")
-        if "steady_temperature_K" in pred:
-            print(f"  steady temperature at {at_power if at_power is not None else full:.4g} W: "
-                  f"{pred['steady_temperature_K'] - 273.15:.1f} degC")
-        if "duty_at_setpoint" in pred:
-            ts = pred["time_to_setpoint_s"]
-            when = (f"{ts / 60:.1f} min from ambient" if ts != float("inf")
-                    else "never reached at that power")
-            print(f"  at setpoint {args.setpoint}: duty {pred['duty_at_setpoint']:.3f}, {when}")
-        if check:
-            ph, ra = check["physics"], check["ratios"]
-            print(f"Physics of '{args.case}' (implied):")
-            print(f"  R    {ph['R_K_per_W']:.5g} K/W        fitted/implied {ra['R']:.3f}")
-            print(f"  C    {ph['C_stored_J_per_K']:.5g} J/K (stored)  fitted/implied "
-                  f"{ra['C_stored']:.3f}; total {ph['C_total_J_per_K']:.5g} J/K")
-            print(f"  tau  {ph['tau_s']:.5g} s         fitted/implied {ra['tau']:.3f}")
-            for line in check["reading"]:
-                print(f"  - {line}")
-        print("\nFiles written:")
-        for f in files:
-            print(f"  {f}")
+        print(_text(args, fit, pred, check, full, at_power, files, cal), end="")
     return EXIT_OK
 
 
-def _model(log, fit):
-    from ..analyses.logs import one_node_propagate
-    return one_node_propagate(log["t_s"], log["P_W"], log["T_amb_K"], fit["R_K_per_W"],
-                              fit["C_J_per_K"], fit["T0_K"])
+def _pm(item, fmt=".5g"):
+    s = f"{item['value']:{fmt}} +/- {item['stderr']:.2g}"
+    lo, hi = item["ci95"]
+    s += f"  (95 %: {lo:{fmt}} .. {hi:{fmt}}"
+    if "boot_ci95" in item:
+        a, b = item["boot_ci95"]
+        s += f"; bootstrap {a:{fmt}} .. {b:{fmt}}"
+    return s + ")"
+
+
+def _text(args, fit, pred, check, full, at_power, files, cal=None) -> str:
+    P = fit["parameters"]
+    L = [f"{fit['model']} fit of '{args.log}'"
+         + ("" if fit["identifiable"] else "  [NOT IDENTIFIABLE: see the warnings]")]
+    units = {"K_per_W": "K/W", "J_per_K": "J/K", "K": "K", "s": "s"}
+    for k, v in P.items():
+        L.append(f"  {k:<16s} {_pm(v)} {units.get(v['unit'], v['unit'])}")
+    if fit["model"] != "one-node":
+        L.append("  time constants   " + ", ".join(f"{x:.5g} s" for x in fit["time_constants_s"]))
+    else:
+        L.append(f"  tau = R C        {fit['tau_s']:.5g} s")
+    L.append(f"  residual RMS {fit['rms_K']:.3g} K; residual autocorrelation lag 1..3: "
+             + ", ".join(f"{a:.2f}" for a in fit["residual_acf"][:3])
+             + f" (effective samples {fit['n_eff']:.0f} of {fit['n']}; bootstrap blocks of "
+             f"{fit['block_length']})")
+    if "C_lag_bias_fraction" in fit:
+        L.append(f"  ignoring the sensor lag: C {fit['C_ignoring_lag_J_per_K']:.5g} J/K "
+                 f"({100 * fit['C_lag_bias_fraction']:+.1f} %)")
+    if "steady_temperature_K" in pred:
+        L.append(f"  steady temperature at {at_power if at_power is not None else full:.4g} W: "
+                 f"{pred['steady_temperature_K'] - 273.15:.1f} degC")
+    if "duty_at_setpoint" in pred:
+        ts = pred["time_to_setpoint_s"]
+        when = (f"{ts / 60:.1f} min from ambient" if ts != float("inf")
+                else "never reached at that power")
+        L.append(f"  at setpoint {args.setpoint}: duty {pred['duty_at_setpoint']:.3f}, {when}")
+    if check:
+        ph, ra = check["physics"], check["ratios"]
+        L.append(f"Physics of '{args.case}' (implied):")
+        if "R" in ra:
+            L.append(f"  R    {ph['R_K_per_W']:.5g} K/W        fitted/implied {ra['R']:.3f}")
+            L.append(f"  C    {ph['C_stored_J_per_K']:.5g} J/K (stored)  fitted/implied "
+                     f"{ra['C_stored']:.3f}; total {ph['C_total_J_per_K']:.5g} J/K")
+        L.append(f"  tau  {ph['tau_s']:.5g} s         fitted/implied {ra['tau']:.3f}")
+        for line in check["reading"]:
+            L.append(f"  - {line}")
+    if cal:
+        L.append(f"Calibration of '{args.case}' through the solver ({cal['runs']} runs, "
+                 f"residual RMS {cal['rms_K']:.3g} K):")
+        for k, v in cal["parameters"].items():
+            L.append(f"  {k:<28s} {_pm(v, '.4g')} [{v['unit']}] (started at {v['start']:.4g})")
+    L.append("\nFiles written:")
+    L += [f"  {f}" for f in files]
+    return "\n".join(L) + "\n"
 
 
 def register(sub) -> None:
     """Add the ``fit`` command."""
-    p = sub.add_parser("fit", help="fit a one-node R/C model to a measured heating log",
+    p = sub.add_parser("fit", help="fit a one- or two-node R/C model to a measured heating log",
                        description="Read a CSV heating log (headers 'name [unit]') and fit "
-                       "R (K/W) and C (J/K) of a one-node model over the whole power history.")
+                       "R (K/W) and C (J/K) of a one-node model, or a chamber-and-wall "
+                       "two-node model, over the whole power history, optionally with a "
+                       "sensor lag and dead time; intervals from an effective sample size and "
+                       "a block bootstrap.")
     p.add_argument("log", metavar="LOG.csv", help="CSV log")
-    p.add_argument("--time", required=True, metavar="COLUMN", help="time column")
+    p.add_argument("--time", required=True, metavar="COLUMN",
+                   help="time column: with a unit [s], [min], [h] (in the header or here, "
+                   "'time [min]'), or without one clock times HH:MM:SS or ISO timestamps")
     p.add_argument("--temperature", required=True, metavar="COLUMN[,COLUMN...]",
                    help="temperature column(s); several are averaged")
     p.add_argument("--power", metavar="COLUMN|VALUE",
@@ -179,6 +324,21 @@ def register(sub) -> None:
                    help='full heater power for --duty/--state, e.g. "2 kW"')
     p.add_argument("--ambient", required=True, metavar="COLUMN|VALUE",
                    help='ambient temperature column or a value, e.g. "20 degC"')
+    p.add_argument("--time-zone", metavar="ZONE",
+                   help="zone of timestamps written without a UTC offset: an IANA name "
+                   "(Europe/Berlin), UTC, or an offset (+01:00)")
+    p.add_argument("--repair", metavar="KIND[,KIND]",
+                   help="let the reader repair the log, each repair reported: sort, "
+                   "duplicates (averaged), outliers (dropped), gaps (kept, power held)")
+    p.add_argument("--model", default="one-node", choices=("one-node", "two-node"),
+                   help="one-node (default) or two-node (chamber plus wall)")
+    p.add_argument("--sensor-lag", metavar="TIME|fit",
+                   help='first-order time constant of the sensor, e.g. "40 s", or fit')
+    p.add_argument("--dead-time", metavar="TIME|fit",
+                   help='dead time between the chamber and the logged value, e.g. "20 s", '
+                   "or fit")
+    p.add_argument("--bootstrap", type=int, default=400, metavar="N",
+                   help="block-bootstrap resamples (default 400; 0: none)")
     p.add_argument("--setpoint", metavar="TEMPERATURE",
                    help='setpoint for the predicted duty and warm-up time, e.g. "180 degC"')
     p.add_argument("--at-power", metavar="POWER",
@@ -186,6 +346,9 @@ def register(sub) -> None:
                    "rated power, else the largest logged power)")
     p.add_argument("--case", metavar="CASE",
                    help="case file whose implied R and C the fit is compared with")
-    p.add_argument("--model", default="one-node", metavar="MODEL", help="one-node (default)")
-    common.add_output_options(p, plots=False, progress=False)
+    p.add_argument("--calibrate", metavar="KEY[,KEY]",
+                   help="with --case: fit these physics of the case to the log through the "
+                   "solver: conductivity_factor:[WALL:]LAYER, emissivity:[WALL:]outer|inner, "
+                   "contact_resistance:[WALL:]INTERFACE, leakage (WALL a position, name or *)")
+    common.add_output_options(p, plots=True, progress=False)
     p.set_defaults(func=cmd_fit)

@@ -1,0 +1,360 @@
+"""Calibration of a case's physics to a heating log, by least squares through the solver.
+
+Analyses layer (uses the solver through :func:`fdwall.run`).  SI inside: time [s],
+temperature [K], power [W]; calibrated quantities in their own SI units (see KEYS).
+
+The log's power history drives the case: an enclosure's heater power becomes the logged
+power (steps at the log rows, fixed control, rated voltage, no element drift); a single
+wall's inner face gets the logged power over the wall's area as a flux.  The run starts
+uniformly at the log's first temperature and lasts as long as the log.  The logged
+temperature is compared with the chamber temperature (enclosure) or the inner-face
+temperature (single wall) at the log's times.  Ambient conditions stay those of the case.
+
+Calibration keys (names of fdwall's own):
+
+* ``conductivity_factor:LAYER`` (single wall) or ``conductivity_factor:WALL:LAYER``
+  (enclosure): a factor [-] on the layer's conductivity k(T) as the case gives it;
+* ``emissivity:outer`` / ``emissivity:inner`` (single wall) or ``emissivity:WALL:outer``
+  / ``emissivity:WALL:inner`` (enclosure): the face's grey emissivity [-];
+* ``contact_resistance:INTERFACE`` or ``contact_resistance:WALL:INTERFACE``: the contact
+  resistance [m2K/W] of an interface (1 = between layers 1 and 2);
+* ``leakage``: the chamber's leakage air flow [m3/s] (enclosure).
+
+WALL is a wall's 1-based position, its name, or ``*`` for every wall (the same layer or
+interface position in each); LAYER and INTERFACE are 1-based.
+Positive quantities are fitted in log space, emissivities in logit space.
+"""
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import numpy as np
+
+from fdwall.errors import InputError
+
+__all__ = ["KEYS", "parse_key", "apply_value", "current_value", "log_driven_case",
+           "simulate_log", "calibrate"]
+
+KEYS = ("conductivity_factor", "emissivity", "contact_resistance", "leakage")
+_UNITS = {"conductivity_factor": "1", "emissivity": "1", "contact_resistance": "m2*K/W",
+          "leakage": "m3/s"}
+_ALLOWED = ("conductivity_factor:LAYER, emissivity:outer|inner, contact_resistance:INTERFACE "
+            "(single wall); conductivity_factor:WALL:LAYER, emissivity:WALL:outer|inner, "
+            "contact_resistance:WALL:INTERFACE, leakage (enclosure); WALL a 1-based position, "
+            "a wall name or * for every wall, LAYER and INTERFACE 1-based")
+
+
+def _bad(key, what):
+    return InputError(f"calibration key {key!r}: {what}; allowed: {_ALLOWED}")
+
+
+def _wall_index(case, token, key):
+    names = [ew.wall.name for ew in case.walls]
+    if token == "*":
+        return "*"
+    if token in names:
+        return names.index(token)
+    try:
+        i = int(token) - 1
+    except ValueError:
+        raise _bad(key, f"no wall named {token!r} (walls: {', '.join(names)})") from None
+    if not 0 <= i < len(names):
+        raise _bad(key, f"wall {token} does not exist (1..{len(names)})")
+    return i
+
+
+def parse_key(case, key):
+    """``(kind, wall index or None, item)`` of a calibration key, checked against ``case``."""
+    parts = [p.strip() for p in str(key).split(":")]
+    kind = parts[0]
+    if kind not in KEYS:
+        raise _bad(key, f"{kind!r} is not a calibration quantity")
+    if kind == "leakage":
+        if len(parts) != 1 or not case.is_enclosure:
+            raise _bad(key, "leakage is a chamber's (enclosure cases), written alone")
+        return kind, None, None
+    want = 3 if case.is_enclosure else 2
+    if len(parts) != want:
+        raise _bad(key, f"needs {want - 1} part(s) after the name for "
+                   + ("an enclosure" if case.is_enclosure else "a single wall"))
+    w = _wall_index(case, parts[1], key) if case.is_enclosure else None
+    item = parts[-1]
+    if kind == "emissivity":
+        if item not in ("outer", "inner"):
+            raise _bad(key, f"face {item!r} is neither outer nor inner")
+        return kind, w, item
+    try:
+        i = int(item) - 1
+    except ValueError:
+        raise _bad(key, f"{item!r} is not a 1-based number") from None
+    for wi in (range(len(case.walls)) if w == "*" else [w]):
+        wall = _wall_of(case, wi)
+        n = len(wall.layers) if kind == "conductivity_factor" else len(wall.layers) - 1
+        if not 0 <= i < n:
+            raise _bad(key, f"{'layer' if kind == 'conductivity_factor' else 'interface'} "
+                       f"{item} does not exist in wall '{wall.name}' (1..{n})")
+    return kind, w, i
+
+
+def _wall_of(case, w):
+    return case.walls[w].wall if w is not None else case.wall
+
+
+def _with_wall(case, w, wall):
+    if w is None:
+        return dataclasses.replace(case, wall=wall)
+    walls = list(case.walls)
+    walls[w] = dataclasses.replace(walls[w], wall=wall)
+    return dataclasses.replace(case, walls=tuple(walls))
+
+
+def current_value(case, parsed):
+    """The case's own value of a parsed key (conductivity factor 1 = as the case gives it)."""
+    kind, w, item = parsed
+    if w == "*":
+        return current_value(case, (kind, 0, item))
+    if kind == "conductivity_factor":
+        return 1.0
+    if kind == "leakage":
+        return float(case.chamber.leakage)
+    if kind == "contact_resistance":
+        c = _wall_of(case, w).contact
+        return float(c[item]) if item < len(c) else 0.0
+    if w is None:
+        e = (case.outer if item == "outer" else case.inner).emissivity
+    else:
+        ew = case.walls[w]
+        e = ew.outer.emissivity if item == "outer" else ew.inner_emissivity
+    if e is not None and not isinstance(e, (int, float)):
+        raise InputError(f"calibration of emissivity:{item}: the case gives it as a table "
+                         "against temperature; allowed: a face with one emissivity number")
+    return None if e is None else float(e)
+
+
+def apply_value(case, parsed, value, base=None):
+    """A copy of ``case`` with the parsed key set to ``value`` (SI).  ``base`` is the case
+    whose layer materials a conductivity factor scales (default ``case``)."""
+    kind, w, item = parsed
+    base = case if base is None else base
+    if w == "*":
+        for wi in range(len(case.walls)):
+            case = apply_value(case, (kind, wi, item), value, base=base)
+        return case
+    if kind == "leakage":
+        return dataclasses.replace(case, chamber=dataclasses.replace(case.chamber,
+                                                                     leakage=float(value)))
+    if kind == "conductivity_factor":
+        wall = _wall_of(case, w)
+        layers = list(wall.layers)
+        m0 = _wall_of(base, w).layers[item].material
+        layers[item] = dataclasses.replace(layers[item],
+                                           material=m0.with_conductivity_factor(float(value)))
+        return _with_wall(case, w, dataclasses.replace(wall, layers=tuple(layers)))
+    if kind == "contact_resistance":
+        wall = _wall_of(case, w)
+        c = list(wall.contact) + [0.0] * (len(wall.layers) - 1 - len(wall.contact))
+        c[item] = float(value)
+        return _with_wall(case, w, dataclasses.replace(wall, contact=tuple(c)))
+    if w is None:
+        face = case.outer if item == "outer" else case.inner
+        face = dataclasses.replace(face, emissivity=float(value))
+        return dataclasses.replace(case, **{item: face})
+    walls = list(case.walls)
+    ew = walls[w]
+    if item == "outer":
+        walls[w] = dataclasses.replace(ew, outer=dataclasses.replace(ew.outer,
+                                                                     emissivity=float(value)))
+    else:
+        walls[w] = dataclasses.replace(ew, inner_emissivity=float(value))
+    return dataclasses.replace(case, walls=tuple(walls))
+
+
+def _steps(t, v):
+    """Schedule knots holding v[i] on [t[i], t[i+1]) (a step at every change)."""
+    from fdwall.schedule import Schedule
+    tt, vv = [float(t[0])], [float(v[0])]
+    for i in range(1, len(t)):
+        if v[i] != v[i - 1]:
+            tt += [float(t[i]), float(t[i])]
+            vv += [float(v[i - 1]), float(v[i])]
+    tt.append(float(t[-1]))
+    vv.append(float(v[-1]))
+    return Schedule(tt, vv)
+
+
+def log_driven_case(case, t, P, T_start, tolerance=None):
+    """``case`` driven by the logged power ``P`` [W] at times ``t`` [s], started uniformly
+    at ``T_start`` [K], run for the log's length with outputs at its median step."""
+    from fdwall.model import Control, Heater, RunSettings
+    span = float(t[-1] - t[0])
+    dt = float(np.median(np.diff(t)))
+    sched = _steps(np.asarray(t) - t[0], np.asarray(P, float))
+    if case.is_enclosure:
+        if case.heater is None:
+            raise InputError("calibration: the case has no [heater]; allowed: an enclosure "
+                             "with a heater (its power is replaced by the logged power)")
+        heater = dataclasses.replace(case.heater, power=sched, voltage_ratio=1.0, alpha=0.0)
+        new = dataclasses.replace(case, heater=heater, control=Control(mode="fixed"),
+                                  chamber=dataclasses.replace(case.chamber, initial=None))
+    else:
+        w = case.wall
+        if w.geometry == "slab":
+            area = w.area
+        elif w.geometry == "cylinder":
+            area = 2 * math.pi * w.inner_radius * w.length
+        else:
+            area = 4 * math.pi * w.inner_radius ** 2
+        from fdwall.schedule import Schedule
+        flux = Schedule(sched.times, [v / area for v in sched.values])
+        new = dataclasses.replace(case, inner=dataclasses.replace(case.inner, flux=flux,
+                                                                  temperature=None),
+                                  heater=None, control=Control(mode="fixed"))
+        del Heater
+    walls = []
+    for ew in (new.walls or ()):
+        walls.append(dataclasses.replace(ew, wall=dataclasses.replace(
+            ew.wall, layers=tuple(dataclasses.replace(ly, initial=None)
+                                  for ly in ew.wall.layers))))
+    if walls:
+        new = dataclasses.replace(new, walls=tuple(walls))
+    if new.wall is not None:
+        new = dataclasses.replace(new, wall=dataclasses.replace(new.wall, layers=tuple(
+            dataclasses.replace(ly, initial=None) for ly in new.wall.layers)))
+    run = RunSettings(duration=span, initial=float(T_start), output_interval=dt,
+                      tolerance=tolerance or new.run.tolerance, max_step=new.run.max_step)
+    return dataclasses.replace(new, run=run)
+
+
+def simulate_log(case, t):
+    """Run a log-driven case; the heated node's temperature [K] at the log times ``t`` [s]."""
+    from fdwall import run
+    res = run(case)
+    y = res.chamber_T if case.is_enclosure else res.face_T[:, 0]
+    return np.interp(np.asarray(t) - t[0], res.times, y)
+
+
+def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
+    """Fit the chosen physics of ``case`` to a log by least squares through the solver.
+
+    Parameters
+    ----------
+    case : Case
+        The case (its ambient, films, materials and geometry).
+    t, T, P : array_like
+        Log times [s], logged temperature [K], heater power [W] held on [t_i, t_i+1).
+    keys : list of str
+        Calibration keys (see the module notes).
+    tolerance : float
+        Solver tolerance per step [K] for these runs (tight, so the finite-difference
+        Jacobian is not noise).
+    n_boot, seed
+        Moving-block bootstrap resamples (linearised at the fit) and its seed.
+
+    Returns
+    -------
+    dict
+        ``parameters`` (key -> ``value``, ``stderr``, ``ci95`` (effective-n, Student t),
+        ``boot_ci95``, ``start``, ``unit``), ``start_temperature_K`` (the uniform start of
+        the runs, fitted) with its stderr, ``rms_K``, ``lag1_autocorrelation``, ``n_eff``,
+        ``correlation`` (matrix over ``keys``), ``runs`` (solver runs made), ``model_K``
+        (the calibrated run at ``t``), ``warnings``.
+    """
+    from scipy.optimize import least_squares
+    from scipy.special import stdtrit
+
+    from fdwall.analyses.twonode import block_length, residual_acf
+    t, T, P = (np.asarray(a, float) for a in (t, T, P))
+    keys = [k.strip() for k in keys if k.strip()]
+    if not keys or len(set(keys)) != len(keys):
+        raise InputError(f"calibration keys {keys!r}: give one or more, each once; allowed: "
+                         + _ALLOWED)
+    parsed = [parse_key(case, k) for k in keys]
+    base = log_driven_case(case, t, P, T[0], tolerance=tolerance)
+    starts = []
+    for pk in parsed:
+        v = current_value(base, pk)
+        if pk[0] == "emissivity":
+            v = 0.5 if v is None else min(max(v, 0.02), 0.98)
+        elif pk[0] == "contact_resistance":
+            v = v if v and v > 0 else 1e-3
+        elif pk[0] == "leakage":
+            v = v if v > 0 else 1e-3
+        starts.append(v)
+
+    def to_x(v, pk):
+        return math.log(v / (1 - v)) if pk[0] == "emissivity" else math.log(v)
+
+    def from_x(x, pk):
+        x = min(max(float(x), -700.0), 700.0)  # an interval of a lost parameter stays finite
+        return 1 / (1 + math.exp(-x)) if pk[0] == "emissivity" else math.exp(x)
+
+    runs = [0]
+
+    def model(x):
+        # the last entry is the uniform start temperature [K], fitted too (one noisy first
+        # reading would otherwise bias everything after it)
+        c = dataclasses.replace(base, run=dataclasses.replace(base.run, initial=float(x[-1])))
+        for xi, pk in zip(x[:-1], parsed):
+            c = apply_value(c, pk, from_x(xi, pk), base=base)
+        runs[0] += 1
+        return simulate_log(c, t)
+
+    def res(x):
+        return model(x) - T
+
+    x0 = np.array([to_x(v, pk) for v, pk in zip(starts, parsed)] + [float(T[0])])
+    # relative finite-difference steps: 1e-2 of a log/logit parameter, about 3 K of the start
+    sol = least_squares(res, x0, method="trf", diff_step=1e-2, x_scale=[1.0] * len(keys)
+                        + [1.0], xtol=1e-5, ftol=1e-7, max_nfev=60)
+    x = sol.x
+    r = sol.fun
+    e = -r
+    n, k = r.size, x.size
+    acf = residual_acf(e)
+    r1c = min(max(float(acf[0]), 0.0), 0.99)
+    n_eff = n * (1 - r1c) / (1 + r1c)
+    s2 = float(np.sum(r ** 2)) / max(n_eff - k, 1.0)
+    J = sol.jac
+    JtJi = np.linalg.pinv(J.T @ J)
+    cov = JtJi * s2
+    sd = np.sqrt(np.clip(np.diag(cov), 0, None))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        corr = cov / np.outer(sd, sd)
+    zq = float(stdtrit(max(n_eff - k, 1.0), 0.975))
+    L = block_length(n, float(acf[0]))
+    boot = None
+    if n_boot:
+        rng = np.random.default_rng(seed)
+        ec = (e - e.mean()) * math.sqrt(n / max(n - k * n / n_eff, 1.0))
+        nb = int(math.ceil(n / L))
+        st = rng.integers(0, n - L + 1, size=(n_boot, nb))
+        idx = (st[:, :, None] + np.arange(L)[None, None, :]).reshape(n_boot, -1)[:, :n]
+        boot = x[None, :] + (ec[idx] @ J) @ JtJi
+    params, warnings = {}, []
+    for i, (key, pk) in enumerate(zip(keys, parsed)):
+        v = from_x(x[i], pk)
+        # delta method: dv/dx = v (log) or v (1 - v) (logit)
+        g = v * (1 - v) if pk[0] == "emissivity" else v
+        item = {"value": v, "stderr": float(g * sd[i]),
+                "ci95": [from_x(x[i] - zq * sd[i], pk), from_x(x[i] + zq * sd[i], pk)],
+                "start": starts[i], "unit": _UNITS[pk[0]]}
+        if boot is not None:
+            b = np.array([from_x(bx, pk) for bx in boot[:, i]])
+            item["boot_ci95"] = [float(a) for a in np.percentile(b, [2.5, 97.5])]
+        params[key] = item
+        if pk[0] == "emissivity" and not 0.01 < v < 0.99:
+            warnings.append(f"{key} = {v:.3g} sits at the edge of 0..1: the log does not "
+                            "fix it (or something else is wrong in the case)")
+    for a in range(k - 1):
+        for b in range(a + 1, k - 1):
+            if np.isfinite(corr[a, b]) and abs(corr[a, b]) > 0.95:
+                warnings.append(f"{keys[a]} and {keys[b]} are strongly correlated "
+                                f"({corr[a, b]:+.3f}): the log does not separate them")
+    if not sol.success:
+        warnings.append(f"the calibration stopped before converging ({sol.message})")
+    rms = float(np.sqrt(np.mean(r ** 2)))
+    return {"parameters": params, "rms_K": rms, "start_temperature_K": float(x[-1]),
+            "start_temperature_stderr_K": float(sd[-1]), "lag1_autocorrelation": float(acf[0]),
+            "n_eff": float(n_eff), "correlation": corr, "keys": keys, "runs": runs[0],
+            "model_K": model(x), "warnings": warnings}
