@@ -138,9 +138,11 @@ def test_drawn_seed_is_taken_from_the_table(tmp_path):
         run_study(read_study(p, seed=seed + 1), tmp_path, workers=1)
 
 
-def test_cli_sigint_then_resume(tmp_path):
-    # a real interrupt: SIGINT to the command while it runs, exit 130, a valid partial table;
-    # the same command again finishes the table without repeating a variant
+@pytest.mark.parametrize("sig, code", [(signal.SIGINT, 130), (signal.SIGTERM, 143)])
+def test_cli_signal_then_resume(tmp_path, sig, code):
+    # a real interrupt: SIGINT / SIGTERM to the command while it runs, exit 130 / 143, a
+    # valid partial table; the same command again finishes the table without repeating a
+    # variant (exit codes: fdwall/cli/common.py)
     vals = ", ".join(f'"{20 + i * 0.25:.2f} mm"' for i in range(400))
     p = _files(tmp_path, f'base = "wall.toml"\noutputs = ["outer_T_K", "loss_W"]\n'
                          f'[[vary]]\npath = "wall.layers[0].thickness"\nvalues = [{vals}]\n',
@@ -156,11 +158,11 @@ def test_cli_sigint_then_resume(tmp_path):
         if table.exists() and sum(1 for _ in open(table)) > 60:
             break
         time.sleep(0.05)
-    proc.send_signal(signal.SIGINT)
+    proc.send_signal(sig)
     _, err = proc.communicate(timeout=60)
     if proc.returncode == 0:
         pytest.skip("the study finished before the signal arrived (machine too fast)")
-    assert proc.returncode == 130, err
+    assert proc.returncode == code, err
     assert "resume" in err
     part = {r[0]: r for r in csv.reader(open(table)) if r and r[0].isdigit()}
     assert 0 < len(part) < 400
