@@ -162,3 +162,44 @@ def test_enclosure_one_pair_network_is_the_one_node_model():
         assert Cch <= p["C_J_per_K"] <= Cch + 100.0
     assert net["R_total_K_per_W"] == pytest.approx(R_ref, rel=1e-9)
     assert net["max_error_fraction"] < 2e-3
+
+
+def test_two_node_from_physics_of_a_chamber_behind_a_plate():
+    # A chamber (20 kJ/K) behind a 5 mm steel-like plate (k 50 W/(m K), rho c 3.9e6
+    # J/(m3 K), so it is near-isothermal) and 50 mm of insulation of negligible capacity
+    # (k 0.04 W/(m K)), films 10 W/(m2 K) inside and 8 outside, 2 m2, is a two-node model
+    # by construction (common practice, no source): C1 = chamber, R12 = 1/(h_in A) + L_p/(k_p A),
+    # C2 = plate (+ the insulation's 50 J/K), R2 = L/(k A) + 1/(h_out A) (series resistances,
+    # Incropera Sec. 3.1). The 2-stage Cauer ladder from the physics gives these values, and
+    # the two-node model's step response (scipy.linalg.expm of its state matrix) matches the
+    # full model's to 1e-6 of R.
+    from scipy.linalg import expm
+
+    from fdwall.analyses.lumped import two_node_from_modes
+    from fdwall.model import Chamber, EnclosureWall, Heater
+    plate = Material("rc-plate", k=Constant(50.0), cp=Constant(500.0), rho=7800.0)
+    ins = Material("rc-ins", k=Constant(0.04), cp=Constant(1000.0), rho=0.5)
+    A, hin, hout, Cch = 2.0, 10.0, 8.0, 2e4
+    case = Case(run=RunSettings(duration=1000.0, initial=293.15),
+                walls=(EnclosureWall(Wall((Layer(plate, 0.005, cells=4),
+                                           Layer(ins, 0.05, cells=8)), area=A, name="w"),
+                                     Face.exchange(293.15, hout), inner_h=hin),),
+                chamber=Chamber(capacity=Cch, ambient=293.15), heater=Heater(power=500.0),
+                name="rc-two-node")
+    m = wall_time_constants(case)
+    p = two_node_from_modes(m)
+    R12, R2 = 1 / (hin * A) + 0.005 / (50 * A), 0.05 / (0.04 * A) + 1 / (hout * A)
+    assert p["C_chamber_J_per_K"] == pytest.approx(Cch, rel=1e-4)
+    assert p["R_chamber_wall_K_per_W"] == pytest.approx(R12, rel=1e-3)
+    assert p["C_wall_J_per_K"] == pytest.approx(7800 * 500 * 0.005 * A, rel=2e-3)
+    assert p["R_wall_ambient_K_per_W"] == pytest.approx(R2, rel=1e-3)
+    C1, C2, r12, r2 = (p[k] for k in ("C_chamber_J_per_K", "C_wall_J_per_K",
+                                      "R_chamber_wall_K_per_W", "R_wall_ambient_K_per_W"))
+    Am = np.array([[-1 / (r12 * C1), 1 / (r12 * C1)],
+                   [1 / (r12 * C2), -1 / (r12 * C2) - 1 / (r2 * C2)]])
+    b = np.array([1 / C1, 0.0])
+    Ai_b = np.linalg.solve(Am, b)
+    t = np.geomspace(1.0, 3e5, 60)
+    two = np.array([((expm(Am * tt) - np.eye(2)) @ Ai_b)[0] for tt in t])
+    full = (m["mode_R_K_per_W"][None, :] * -np.expm1(-np.outer(t, 1 / m["time_constants_s"]))).sum(1)
+    assert np.max(np.abs(two - full)) < 1e-6 * (R12 + R2)

@@ -61,6 +61,10 @@ def test_networks_and_log_lengths(tmp_path):
     assert sum(x["R_K_per_W"] for x in d["cauer"]) == pytest.approx(0.1, rel=0.01)
     assert (Rf * tf).sum() / Rf.sum() == pytest.approx(L * L / (3 * ALPHA), rel=0.01)
     assert d["networks"]["max_error_fraction"] < 0.005
+    tn = d["two_node"]   # the 2-stage Cauer ladder: its resistances add up to L/k as well
+    assert tn["R_chamber_wall_K_per_W"] + tn["R_wall_ambient_K_per_W"] == pytest.approx(
+        0.1, rel=0.01)
+    assert tn["C_chamber_J_per_K"] > 0 and tn["C_wall_J_per_K"] > 0
     ll = d["log_length_fits"]
     assert [r["log_length_s"] for r in ll["rows"]] == pytest.approx([1800, 7200, 40536])
     assert ll["closest"] == "C_effective"

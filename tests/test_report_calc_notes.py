@@ -164,3 +164,19 @@ def test_run_report_has_every_section_and_no_external_resource(run):
     assert not re.search(r'(src|href)\s*=\s*"(https?:|//)', text)
     assert "@import" not in text and "url(" not in text
     assert "counter(page)" in text and "counter(pages)" in text
+
+
+def test_run_summary_tables_equal_file(run):
+    """Summary rows are the stored datasets' last and highest values (degC = K - 273.15,
+    NIST SP 811); event times shown in s and h (1 h = 3600 s)."""
+    import numpy as np
+    text = (run / "panel-report.html").read_text()
+    faces = _tables(text, "summary")[0]
+    with h5py.File(run / "panel.h5") as h:
+        T = h["faces/temperature"][()]
+        q = h["faces/heat_flow"][()]
+    out = faces[2]
+    assert out[0] == "panel:outer"
+    assert float(out[1]) == pytest.approx(T[-1, 1] - 273.15, abs=1e-4)
+    assert float(out[2]) == pytest.approx(np.max(T[:, 1]) - 273.15, abs=1e-4)
+    assert float(out[3]) == pytest.approx(q[-1, 1], rel=1e-5)

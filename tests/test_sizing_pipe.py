@@ -87,3 +87,59 @@ def test_pipe_skin_with_correlation_at_the_insulated_diameter():
     r = size_layer(case, 0, [SkinTarget(Ts)], step=0.01)
     # correlation property data differ between libraries; checked to 1 % (common practice)
     assert r.thickness_exact_m == pytest.approx(L_ref, rel=0.01)
+
+
+def test_tradeoff_plot_of_the_two_intervals(tmp_path, monkeypatch):
+    # The plot presents the stored numbers: loss curve = the log network above (Incropera eq.
+    # 3.33), the limit as a horizontal line, one shaded band per feasible interval, the answer
+    # as a vertical line; per-metre unit on a pipe.  Checked on the matplotlib objects.
+    from matplotlib.patches import Polygon, Rectangle
+
+    from fdwall.report import sizing_plot
+    figs = []
+    real = sizing_plot._save
+    monkeypatch.setattr(sizing_plot, "_save", lambda fig, p: (figs.append(fig), real(fig, p))[1])
+    rc = critical_radius_cylinder(K, H)
+    q_lim = 0.5 * (_q(0.0) + _q(rc - R1))
+    a = brentq(lambda L: _q(L) - q_lim, 1e-6, rc - R1)
+    b = brentq(lambda L: _q(L) - q_lim, rc - R1, 1.0)
+    stock = [round(a + 0.5 * (b - a), 4), round(b + 0.002, 4), 0.05]
+    r = size_layer(_tube(), 0, [LossTarget(q_lim, unit="W/m")], t_min=0.0005, t_max=0.1,
+                   stock=stock)
+    d = r.to_dict()
+    path = sizing_plot.plot_tradeoff(d, tmp_path / "t.png", "tube", "W/m")
+    assert (tmp_path / "t.png").stat().st_size > 10000 and path.endswith("t.png")
+    ax = figs[-1].axes[1]
+    assert ax.get_ylabel() == "heat loss [W/m]"
+    line = [ln for ln in ax.get_lines() if ln.get_label() == "heat loss, steady"][0]
+    for x_mm, y in zip(line.get_xdata(), line.get_ydata()):
+        assert y == pytest.approx(_q(x_mm / 1000.0), rel=1e-3)
+    hl = [ln for ln in ax.get_lines() if list(ln.get_ydata()) == [q_lim, q_lim]]
+    assert hl
+    spans = [p for p in ax.patches if isinstance(p, (Polygon, Rectangle))]
+    assert len(spans) == 2
+    xs = sorted((min(p.get_xy()[:, 0]) if isinstance(p, Polygon) else p.get_x()) for p in spans)
+    assert xs[1] == pytest.approx(r.feasible_m[1][0] * 1000.0)
+    vl = [ln for ln in ax.get_lines() if ln.get_label().startswith("answer")]
+    assert vl and vl[0].get_xdata()[0] == pytest.approx(r.thickness_m * 1000.0)
+    assert "Caution" in " ".join(t.get_text() for t in figs[-1].texts)
+
+
+def test_sphere_loss_against_spherical_shell_network():
+    # Spherical shell (1/r1 - 1/r2)/(4 pi k) plus film 1/(4 pi r2^2 h) (Incropera 7th ed.,
+    # eq. 3.41 and Table 3.3); root for the loss limit by scipy brentq; critical radius 2k/h.
+    r1, k, h, q_lim = 0.2, 0.05, 8.0, 150.0
+
+    def q(L):
+        r2 = r1 + L
+        return (TI - TA) / ((1 / r1 - 1 / r2) / (4 * math.pi * k) + 1 / (4 * math.pi * r2 ** 2 * h)
+                           + 1 / (1e6 * 4 * math.pi * r1 ** 2))
+    L_ref = brentq(lambda L: q(L) - q_lim, 1e-4, 1.0)
+    mat = material_from_dict("t-sph", {"k": k, "cp": 900.0, "rho": 150.0})
+    case = Case(run=RunSettings(duration=3600.0, initial=TA),
+                wall=Wall(layers=(Layer(mat, 0.05),), geometry="sphere", inner_radius=r1),
+                inner=Face(fluid=TI, convection=1e6), outer=Face(fluid=TA, convection=h))
+    r = size_layer(case, 0, [LossTarget(q_lim, unit="W")], step=0.01)
+    assert r.thickness_exact_m == pytest.approx(L_ref, rel=2e-3)
+    assert r.critical_radius_m == pytest.approx(2 * k / h)
+    assert not any("critical radius" in n for n in r.notes)     # 12.5 mm < r1: no effect

@@ -37,7 +37,7 @@ from fdwall.solver.layout import FI_FIXED_T, FI_FLUID, FI_NODE, system_args
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
            "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
            "rc_analysis", "step_response_from_modes", "foster_fit", "rc_networks",
-           "simulated_fit", "fit_vs_log_length"]
+           "two_node_from_modes", "simulated_fit", "fit_vs_log_length"]
 
 SIGMA_SB = 5.670374419e-8  # Stefan-Boltzmann constant [W/(m2 K4)], CODATA 2018
 
@@ -427,8 +427,9 @@ def rc_analysis(case, t=None, networks=None) -> dict:
         ``C_effective_J_per_K`` [J/K] of the heated node (None when it is held at a fixed
         temperature), ``R_differential_K_per_W`` (dT/dQ of the linearised wall) [K/W],
         ``mode_R_K_per_W`` (list, the heated node's resistance in each mode)
-        [K/W], ``n_unknowns``, ``notes`` (list of plain-language strings) and, with
-        ``networks``, ``networks`` (the dict of :func:`rc_networks`).
+        [K/W], ``two_node`` (:func:`two_node_from_modes`), ``n_unknowns``, ``notes`` (list of
+        plain-language strings) and, with ``networks``, ``networks`` (the dict of
+        :func:`rc_networks`).
     """
     from fdwall.solver.steady import solve_steady
     from fdwall.system import build_system
@@ -457,6 +458,8 @@ def rc_analysis(case, t=None, networks=None) -> dict:
                             "C_effective and networks are those of the wall heated by a flux at "
                             "its inner face, the face's own held temperature, film or radiation "
                             "being the source side.")
+    if "mode_R_K_per_W" in modes:
+        out["two_node"] = two_node_from_modes(modes)
     if networks is not None:
         if "mode_R_K_per_W" not in modes:
             raise InputError("rc networks: the heated node is held at a fixed temperature, so "
@@ -615,6 +618,42 @@ def rc_networks(modes, n_terms, t=None) -> dict:
         "cauer_foster_max_K_per_W": float(np.max(np.abs(yc - yf))),
         "R_total_K_per_W": Rt,
     }
+
+
+def two_node_from_modes(modes, t=None) -> dict:
+    """The two-node model (chamber plus wall) the physics implies: the 2-stage Cauer ladder.
+
+    The two-node model ``C1 dT1/dt = P - (T1 - T2)/R12``, ``C2 dT2/dt = (T1 - T2)/R12 -
+    (T2 - T_amb)/R2`` is a Cauer ladder of two stages, so the 2-pair Foster network fitted to
+    the heated node's step response (:func:`rc_networks`) turned into its ladder gives the
+    physics' values of the parameters a two-node fit of a log estimates.  For a single wall
+    the "chamber" node is the heated inner face and what the wall holds near it.
+
+    Parameters
+    ----------
+    modes : dict
+        :func:`wall_time_constants` output (``time_constants_s`` [s], ``mode_R_K_per_W``
+        [K/W]).
+    t : array_like, optional
+        Times of the fit [s] (as :func:`rc_networks`).
+
+    Returns
+    -------
+    dict
+        ``C_chamber_J_per_K``, ``C_wall_J_per_K`` [J/K], ``R_chamber_wall_K_per_W``,
+        ``R_wall_ambient_K_per_W`` [K/W] (None when one pair already fits: then only
+        ``C_chamber_J_per_K`` and ``R_wall_ambient_K_per_W`` of the one node are given),
+        ``max_error_fraction`` [-] of its step response against the full model.
+    """
+    net = rc_networks(modes, 2, t=t)
+    c = net["cauer"]
+    if len(c) < 2:
+        return {"C_chamber_J_per_K": c[0]["C_J_per_K"], "C_wall_J_per_K": None,
+                "R_chamber_wall_K_per_W": None, "R_wall_ambient_K_per_W": c[0]["R_K_per_W"],
+                "max_error_fraction": net["max_error_fraction"]}
+    return {"C_chamber_J_per_K": c[0]["C_J_per_K"], "R_chamber_wall_K_per_W": c[0]["R_K_per_W"],
+            "C_wall_J_per_K": c[1]["C_J_per_K"], "R_wall_ambient_K_per_W": c[1]["R_K_per_W"],
+            "max_error_fraction": net["max_error_fraction"]}
 
 
 # ---------------------------------------------------------------- like-for-like comparison

@@ -42,6 +42,13 @@ def format_rc(r, case_file, n_show=5) -> str:
     if r.get("first_moment_tau_s") is not None:
         L.append(f"  first moment   {_fmt_s(r['first_moment_tau_s'])}")
         L.append(f"  C_effective    {r['C_effective_J_per_K']:.5g} J/K")
+    tn = r.get("two_node")
+    if tn is not None and tn.get("C_wall_J_per_K") is not None:
+        L.append(f"  two-node model (2-stage Cauer ladder, step response to "
+                 f"{100 * tn['max_error_fraction']:.2g} % of R): C_chamber "
+                 f"{tn['C_chamber_J_per_K']:.5g} J/K, R_chamber_wall "
+                 f"{tn['R_chamber_wall_K_per_W']:.5g} K/W, C_wall {tn['C_wall_J_per_K']:.5g} "
+                 f"J/K, R_wall_ambient {tn['R_wall_ambient_K_per_W']:.5g} K/W")
     tc = r["time_constants_s"]
     L.append(f"  time constants (slowest {min(n_show, len(tc))} of {len(tc)}):")
     for i, x in enumerate(tc[:n_show], 1):
@@ -164,6 +171,7 @@ def cmd_rc(args) -> int:
     d.update({"T_hot_K": r["T_hot_K"], "T_amb_K": r["T_amb_K"], "Q_W": r["Q_W"],
               "stored_J": r["stored_J"], "mode_R_K_per_W": r.get("mode_R_K_per_W"),
               "R_differential_K_per_W": r.get("R_differential_K_per_W"),
+              "two_node": r.get("two_node"),
               "case_file": str(args.case), "fdwall_version": common.version(),
               "input_warnings": warns})
     net = r.get("networks")
@@ -184,6 +192,9 @@ def cmd_rc(args) -> int:
     for k in ("first_moment_tau_s", "C_effective_J_per_K", "R_differential_K_per_W"):
         if r.get(k) is not None:
             summary[k] = r[k]
+    for k, v in (r.get("two_node") or {}).items():
+        if v is not None:
+            summary[f"two_node_{k}"] = v
     modes = {"mode": list(range(1, len(tc) + 1)), "tau_s": list(tc)}
     if r.get("mode_R_K_per_W") is not None:
         modes["R_K_per_W"] = r["mode_R_K_per_W"]

@@ -255,8 +255,11 @@ def _run_results(data: dict, system: str) -> dict:
     ev = data.get("events") or {}
     for n, up, down in zip(_names(ev.get("names")), np.ravel(ev.get("up", [])),
                            np.ravel(ev.get("down", []))):
-        out["events"].append((n, _q(up, "s", system)[0] or "none",
-                              _q(down, "s", system)[0] or "none"))
+        def _h(v):
+            v = _num(v)
+            return _fmt(v / 3600.0) if v is not None else "none"
+        out["events"].append((n, _q(up, "s", system)[0] or "none", _h(up),
+                              _q(down, "s", system)[0] or "none", _h(down)))
     t = np.asarray(data.get("time", []), dtype=float)
     if t.size and T.ndim == 2 and T.shape[0] == t.size:
         step = max(1, int(np.ceil((t.size - 1) / 12)))

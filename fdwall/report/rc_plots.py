@@ -120,14 +120,16 @@ def plot_rc(rc: dict, path, title: str, log_lengths: dict | None = None) -> str:
         ax.plot(Ln, [r["C_fit_J_per_K"] / 1e3 for r in rows_], "s--", color=_CAUER, ms=4,
                 label="fitted C, R fitted too")
         imp = log_lengths["implied"]
-        for key, lab, ls in (("C_effective_J_per_K", "C_effective", "-"),
-                             ("C_stored_J_per_K", "C_stored", "--"),
-                             ("C_total_J_per_K", "C_total", ":")):
+        # labels alternate left / right so that close values stay readable
+        for key, lab, ls, side in (("C_effective_J_per_K", "C_effective", "-", 0.0),
+                                   ("C_stored_J_per_K", "C_stored", "--", 1.0),
+                                   ("C_total_J_per_K", "C_total", ":", 0.0)):
             if imp.get(key):
                 ax.axhline(imp[key] / 1e3, color="#4d4d4d", ls=ls, lw=1.0)
-                ax.annotate(lab, (1.0, imp[key] / 1e3), xycoords=("axes fraction", "data"),
-                            xytext=(-4, 3), textcoords="offset points", ha="right",
-                            fontsize=8, color="#4d4d4d")
+                ax.annotate(lab, (side, imp[key] / 1e3), xycoords=("axes fraction", "data"),
+                            xytext=(4 if side == 0.0 else -4, 3), textcoords="offset points",
+                            ha="left" if side == 0.0 else "right", fontsize=8,
+                            color="#4d4d4d")
         if len(Ln) > 1 and Ln.max() / Ln.min() > 5:
             ax.set_xscale("log")
         ax.set_ylim(bottom=0.0)
