@@ -104,3 +104,15 @@ def test_balance_of_a_closed_ledger_is_zero():
     assert stats[L.ST_SCALE] == 650.0
     Kr.balance(acc, stats, np.array([1200.0, 460.0]), has_ext)    # 10 J unaccounted
     assert stats[L.ST_RESMAX] == pytest.approx(10.0, rel=1e-12)
+
+
+def test_thermostat_cut_puts_the_step_end_near_the_crossing():
+    # heater on, threshold 375.15 K (setpoint + band/2); the sensor runs 373 -> 377 K: the
+    # straight line crosses at (375.15 - 373) / 4 of the step
+    ctl_i, ctl_f, s_off, stab = _ctl(L.CTL_THERMOSTAT, band=4.0)
+    frac = Kr.thermostat_cut(np.array([373.0]), np.array([377.0]), 1.0, 10.0, ctl_i, ctl_f,
+                             s_off, stab, 0.01)
+    assert frac == pytest.approx((375.15 - 373.0) / 4.0, rel=1e-12)
+    # within the tolerance: the step stands
+    assert Kr.thermostat_cut(np.array([373.0]), np.array([375.155]), 1.0, 10.0, ctl_i, ctl_f,
+                             s_off, stab, 0.01) == 0.0

@@ -822,6 +822,54 @@ def balance(acc, stats, H1, has_ext):
 
 
 @njit(cache=True)
+def error_norm(F0, Fg, F1, hs, dh, Cap, Jd, Jl, Ju, Jcol, Jrow, dirich_node, chains, N, has_ch,
+               R, dx, wc, wy, wz, tol):
+    """Local error of a TR-BDF2 step of hs [s] relative to ``tol`` [K] (accept when <= 1):
+    the embedded estimate of Bank et al. (1985) from the flows F [W] at the start, stage and
+    end, filtered by the stage matrix Cap - dh J (Hosea & Shampine 1996), max norm.  Jd ..
+    Jrow hold dF/dT at the step end on entry and the Newton matrix on return."""
+    nun = F0.shape[0]
+    for i in range(nun):
+        R[i] = 2.0 * KERR * hs * (F0[i] / GAMMA - Fg[i] / (GAMMA * (1.0 - GAMMA))
+                                  + F1[i] / (1.0 - GAMMA))
+    _newton_matrix(Cap, 1.0, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R)
+    solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
+    err = 0.0
+    for i in range(nun):
+        a = abs(dx[i])
+        if a > err:
+            err = a
+    err /= tol
+    return err
+
+
+@njit(cache=True)
+def thermostat_cut(T0, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol):
+    """Fraction (0.05 .. 0.95) to shorten a step by when the thermostat's sensor passes its
+    switching threshold (setpoint +- band/2 [K]) by more than ``ev_tol`` [K] between the
+    states T0 and T1 [K] (heater fraction u); 0 when the step may stand.  The fraction puts
+    the end near the crossing of the straight line between the two sensor readings."""
+    y0 = _sensor(T0, ctl_i, ctl_f)
+    y1 = _sensor(T1, ctl_i, ctl_f)
+    sp1 = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t1, 1.0)
+    half = 0.5 * ctl_f[CF_BAND]
+    thr = sp1 + half if u > 0.5 else sp1 - half
+    over = (y1 - thr) if u > 0.5 else (thr - y1)
+    if not over > ev_tol:
+        return 0.0
+    d0 = (y0 - thr)
+    d1 = (y1 - thr)
+    frac = 0.5
+    if d1 != d0:
+        frac = d0 / (d0 - d1)
+    if frac < 0.05:
+        frac = 0.05
+    if frac > 0.95:
+        frac = 0.95
+    return frac
+
+
+@njit(cache=True)
 def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_step, node_i, node_f, chains,
               face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
               dirich_node, dirich_sched, dirich_face, qd_state, ev_i, ev_f, ev_out,
@@ -1007,17 +1055,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                     return k - k0
                 continue
             # error estimate (Bank et al. 1985), filtered by the stage matrix (Hosea & Shampine 1996)
-            for i in range(nun):
-                R[i] = 2.0 * KERR * hs * (F0[i] / GAMMA - Fg[i] / (GAMMA * (1.0 - GAMMA))
-                                          + F1[i] / (1.0 - GAMMA))
-            _newton_matrix(Cap, 1.0, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R)
-            solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
-            err = 0.0
-            for i in range(nun):
-                a = abs(dx[i])
-                if a > err:
-                    err = a
-            err /= tol
+            err = error_norm(F0, Fg, F1, hs, dh, Cap, Jd, Jl, Ju, Jcol, Jrow, dirich_node, chains,
+                             N, has_ch, R, dx, wc, wy, wz, tol)
             if not (err <= 1.0):
                 stats[ST_REJ] += 1
                 fac = 0.9 * err ** (-1.0 / 3.0) if err < 1e200 else 0.1
@@ -1033,22 +1072,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                 continue
             # thermostat: do not step across a switching threshold by more than ev_tol
             if mode == CTL_THERMOSTAT:
-                y0 = _sensor(T, ctl_i, ctl_f)
-                y1 = _sensor(T1, ctl_i, ctl_f)
-                sp1 = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t1, 1.0)
-                half = 0.5 * ctl_f[CF_BAND]
-                thr = sp1 + half if u > 0.5 else sp1 - half
-                over = (y1 - thr) if u > 0.5 else (thr - y1)
-                if over > ev_tol and hs > hmin * 10:
-                    d0 = (y0 - thr)
-                    d1 = (y1 - thr)
-                    frac = 0.5
-                    if d1 != d0:
-                        frac = d0 / (d0 - d1)
-                    if frac < 0.05:
-                        frac = 0.05
-                    if frac > 0.95:
-                        frac = 0.95
+                frac = thermostat_cut(T, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol)
+                if frac > 0.0 and hs > hmin * 10:
                     hs *= frac
                     land = False
                     stats[ST_EVRETRY] += 1
