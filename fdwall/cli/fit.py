@@ -226,20 +226,24 @@ def cmd_fit(args) -> int:
             "face's flux over the wall area), started at the log's first temperature, fitted "
             "by least squares through the solver; intervals as for the fit")
     png = outdir / f"{stem}-fit.png"
-    files = common.write_analysis(args, h5, groups, kind="fit", case_name=stem)
-    if not args.no_plots:
+    plots = []
+    if not args.no_plots:  # drawn first, so that --report embeds it
         from ..report.fitplot import plot_fit
         label = {"one-node": "one-node fit", "two-node": "two-node fit",
                  "time-constant": "time-constant fit"}[fit["model"]]
         try:
-            files.append(plot_fit(log["t_s"], log["T_K"], fit["model_K"], log["P_W"], png,
+            outdir.mkdir(parents=True, exist_ok=True)
+            plots.append(plot_fit(log["t_s"], log["T_K"], fit["model_K"], log["P_W"], png,
                                   title=f"{stem}: {label}, residual RMS {fit['rms_K']:.3g} K",
                                   model_label=label, T_amb_K=log["T_amb_K"],
                                   extra=None if not cal else
                                   (cal["model_K"], "solver, calibrated")))
         except OSError as exc:
             raise common.WriteError(f"cannot write the plot '{png}': "
-                                    f"{exc.strerror or exc}.") from None
+                                    f"{exc.strerror or exc}. Choose another folder with "
+                                    "--out DIR.") from None
+    files = common.write_analysis(args, h5, groups, kind="fit", case_name=stem)
+    files[1:1] = plots
     for w in warns:
         common.warn(w)
     if args.json:
