@@ -141,9 +141,10 @@ def test_interval_coverage_with_white_and_ar1_noise(phi):
     # Source: coverage of a nominal 95 % interval over independent seeds is binomial (any
     # statistics text): with 200 seeds its standard deviation is sqrt(0.95 0.05/200) = 0.015,
     # so the effective-n intervals must cover the true R and C in 0.95 +/- 0.05 (3.2 sd).
-    # The block bootstrap of fitted residuals is known to run narrow for short, correlated
-    # records (its variance bias is of order 1/block length: S. N. Lahiri, Resampling Methods
-    # for Dependent Data, Springer 2003, ch. 3; from memory): it must reach 0.85 at least.
+    # The pre-whitened block bootstrap runs somewhat narrow on short, correlated records
+    # (block resampling underestimates the long-run variance by a term of order 1/block
+    # length: S. N. Lahiri, Resampling Methods for Dependent Data, Springer 2003, ch. 3; from
+    # memory): it must reach 0.89 at least (measured 0.915 to 0.935 with these seeds).
     R, C = 0.05, 4e4
     t = np.arange(0, 14400, 60.0)
     P = np.where(t < 7200, 2000.0, 0.0)
@@ -162,7 +163,7 @@ def test_interval_coverage_with_white_and_ar1_noise(phi):
             hits[2 * j + 1] += lo <= v <= hi
     cov = hits / n
     assert abs(cov[0] - 0.95) <= 0.05 and abs(cov[2] - 0.95) <= 0.05, cov
-    assert cov[1] >= 0.85 and cov[3] >= 0.85, cov
+    assert cov[1] >= 0.89 and cov[3] >= 0.89, cov
 
 
 def test_zero_power_gives_time_constant_only_and_bad_input():

@@ -263,7 +263,7 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
     from scipy.optimize import least_squares
     from scipy.special import stdtrit
 
-    from fdwall.analyses.twonode import block_length, residual_acf
+    from fdwall.analyses.twonode import block_length, bootstrap_errors, residual_acf
     t, T, P = (np.asarray(a, float) for a in (t, T, P))
     keys = [k.strip() for k in keys if k.strip()]
     if not keys or len(set(keys)) != len(keys):
@@ -322,15 +322,12 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
     with np.errstate(invalid="ignore", divide="ignore"):
         corr = cov / np.outer(sd, sd)
     zq = float(stdtrit(max(n_eff - k, 1.0), 0.975))
-    L = block_length(n, float(acf[0]))
+    L = block_length(n, 0.0)
     boot = None
     if n_boot:
-        rng = np.random.default_rng(seed)
-        ec = (e - e.mean()) * math.sqrt(n / max(n - k * n / n_eff, 1.0))
-        nb = int(math.ceil(n / L))
-        st = rng.integers(0, n - L + 1, size=(n_boot, nb))
-        idx = (st[:, :, None] + np.arange(L)[None, None, :]).reshape(n_boot, -1)[:, :n]
-        boot = x[None, :] + (ec[idx] @ J) @ JtJi
+        E = bootstrap_errors(e, n_boot, np.random.default_rng(seed), float(acf[0]), L,
+                             scale=math.sqrt(n / max(n - k * n / n_eff, 1.0)))
+        boot = x[None, :] + (E @ J) @ JtJi
     params, warnings = {}, []
     for i, (key, pk) in enumerate(zip(keys, parsed)):
         v = from_x(x[i], pk)

@@ -206,7 +206,8 @@ def cmd_fit(args) -> int:
             "state matrix; checked against scipy.linalg.expm)",
             "scipy.optimize.least_squares; standard errors from the Jacobian with an "
             "effective sample size n(1-r1)/(1+r1) and Student t on n_eff - k",
-            "moving-block residual bootstrap, linearised at the fit (Kuensch 1989)"]},
+            "block bootstrap of AR(1)-whitened residuals, post-blackened, linearised at "
+            "the fit (Kuensch 1989; Davison & Hinkley 1997, sec. 8.2.3)"]},
         "notes": {"items": notes},
     }
     if check:
