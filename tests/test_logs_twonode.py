@@ -180,3 +180,21 @@ def test_zero_power_gives_time_constant_only_and_bad_input():
         fit_log(t[::-1], T, np.ones(t.size), np.full(t.size, TA))
     with pytest.raises(InputError, match="non-finite"):
         fit_log(t, np.where(t == 60.0, np.nan, T), np.ones(t.size), np.full(t.size, TA))
+
+
+def test_stamped_demo_log_gives_back_its_generator():
+    # Source: the inputs of cases/make-lab-oven-log.py (invented demo): two-node oven
+    # C_chamber 20 kJ/K, C_wall 120 kJ/K, R 0.02 + 0.12 K/W, probe lag 90 s, dead time 30 s,
+    # thermostat on/off at 1500 W, local timestamps in Europe/Berlin; each within 4 standard
+    # errors.
+    from fdwall.analyses.logs import read_log
+    d = read_log("cases/lab-oven-log-stamped.csv", time="timestamp", temperature="probe",
+                 state="heater on", rated_power=1500.0, ambient="room",
+                 time_zone="Europe/Berlin")
+    assert d["t_s"][-1] == 5 * 3600.0
+    f = fit_log(d["t_s"], d["T_K"], d["P_W"], d["T_amb_K"], model="two-node",
+                sensor_lag="fit", dead_time="fit", n_boot=0)
+    for k, v in (TWO | {"tau_sensor": 90.0, "dead_time": 30.0}).items():
+        p = f["parameters"][k]
+        assert abs(p["value"] - v) < 4 * p["stderr"], (k, p)
+    assert f["C_lag_bias_fraction"] > 0
