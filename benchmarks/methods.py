@@ -175,3 +175,92 @@ def loosest_integer(solve, ref, start=1, limit=4096):
         else:
             lo = mid
     return hit[0], hit[1], hit[2], hit[3], trials
+
+
+# ---- problem (e): the flux-step wall, 60-s samples ----------------------------------------------
+# Every solver is judged on the same both-face criterion (TOL_INNER, TOL_OUTER) at every 60-s
+# sample against the same reference.  The peers get fdwall's graded mesh at a refinement factor
+# of their choice (the search below picks the cheapest that meets the criterion), so the peers
+# and fdwall always solve on meshes of the same quality.
+
+STEP_REFINES = (1.0, 1.5, 2.0, 3.0, 4.0)
+
+
+def step_nodes(refine=1.0, hot_face="dense"):
+    """Node positions [m] of fdwall's graded mesh for problem (e) at ``refine`` x its default
+    cell counts (refine 1 = the mesh fdwall itself chooses at default settings)."""
+    from fdwall.system import build_system
+    return build_system(P.step_case(refine=refine, hot_face=hot_face)).meshes[0].x.copy()
+
+
+def step_fv(x, duration=P.DURATION, t_off=P.STEP_OFF, hot_face="dense"):
+    """The benchmark's own finite-volume arrays of problem (e) on nodes ``x`` [m]."""
+    mats, thick = P.STEP_WALLS[hot_face]
+    return P.fv_problem(x, "slab", thickness=thick, flux=P.STEP_FLUX, t_off=t_off,
+                        materials=mats)
+
+
+def solve_step_fdwall(tolerance=None, refine=None, duration=P.DURATION, t_off=P.STEP_OFF,
+                      hot_face="dense"):
+    """fdwall on problem (e); None keeps fdwall's default tolerance / mesh.  Stats carry
+    steps, nodes and newton (Newton iterations, all stages)."""
+    from fdwall.solver import run
+    r = run(P.step_case(tolerance=tolerance, refine=refine, duration=duration, t_off=t_off,
+                        hot_face=hot_face))
+    st = dict(r.stats)
+    st["steps"] = st["accepted_steps"]
+    st["newton"] = st["newton_iterations"]
+    return r.face_T.copy(), st
+
+
+def solve_step_scipy(rtol, fv, duration=P.DURATION):
+    """scipy BDF on the FV arrays ``fv`` of problem (e) (atol = 300 K x rtol).  ``newton`` is
+    the number of right-hand-side evaluations (one per Newton iteration of BDF, plus the
+    Jacobian's)."""
+    from .peers import scipy_bdf
+    _, T, st = scipy_bdf.solve(fv, *scipy_tols(rtol), duration=duration,
+                               interval=P.STEP_INTERVAL)
+    st["nodes"] = fv.n
+    st["newton"] = st["nfev"]
+    return T[:, [0, -1]].copy(), st
+
+
+def solve_step_be(nsub, fv, careful=True, duration=P.DURATION, newton_tol=None, tables=None):
+    """Fixed-step backward Euler on problem (e), ``nsub`` steps per 60-s sample: the careful
+    peer (default) or the suite's first peer (``careful=False``, its own Newton tolerance)."""
+    from .peers import be_careful, be_kernel
+    if careful:
+        kw = {} if newton_tol is None else {"newton_tol": newton_tol}
+        _, T, st = be_careful.solve(fv, nsub, duration=duration, interval=P.STEP_INTERVAL,
+                                    tables=tables, **kw)
+    else:
+        kw = {} if newton_tol is None else {"newton_tol": newton_tol}
+        _, T, st = be_kernel.solve(fv, nsub, duration=duration, interval=P.STEP_INTERVAL,
+                                   **kw)
+    st["nodes"] = fv.n
+    return T[:, [0, -1]].copy(), st
+
+
+def step_references(quick=False, duration=P.DURATION, t_off=P.STEP_OFF, hot_face="dense"):
+    """Two independent converged solutions of problem (e): scipy BDF on a fine uniform mesh with
+    the benchmark's own FV arrays (the reference), and fdwall on a much refined graded mesh at a
+    tight tolerance (the cross-check).  Returns (reference face_T (n, 2) [K], info dict)."""
+    if quick:
+        fd_refine, fd_tol, cells, rtol = 8.0, 1e-4, (400, 400, 8), 1e-8
+    else:
+        fd_refine, fd_tol, cells, rtol = 16.0, 1e-5, (800, 800, 16), 1e-9
+    fd, fst = solve_step_fdwall(fd_tol, fd_refine, duration=duration, t_off=t_off,
+                                hot_face=hot_face)
+    fv = step_fv(P.uniform_nodes(cells, thickness=P.STEP_WALLS[hot_face][1]), duration, t_off,
+                 hot_face)
+    from .peers import scipy_bdf
+    _, T, _ = scipy_bdf.solve(fv, rtol, rtol * 100.0, duration=duration,
+                              interval=P.STEP_INTERVAL)
+    sp = T[:, [0, -1]].copy()
+    e = errors(fd, sp)
+    info = {"fdwall_fine": f"fdwall graded mesh x{fd_refine:g} ({fst['nodes']} nodes), "
+                           f"tolerance {fd_tol:g} K",
+            "scipy_fine": f"scipy BDF on a uniform mesh ({fv.n} nodes, the benchmark's own "
+                          f"finite-volume code), rtol {rtol:g}, atol {rtol * 100:g} K",
+            "agree_inner": e[0], "agree_outer": e[1]}
+    return sp, info

@@ -1,10 +1,11 @@
 """Run the fdwall benchmark suite and print the tables.
 
-    python -m benchmarks.run [--quick] [--only a,b,c,d,h,cli,cold,scaling] [--repeats N]
+    python -m benchmarks.run [--quick] [--only a,b,e,c,d,h,cli,cold,scaling] [--repeats N]
                              [--no-fipy] [--write-readme]
 
 Sections: (a) furnace slab wall and (b) insulated pipe at matched accuracy against peers,
-(c) a five-wall enclosure with a thermostat, (d) a 1,000-variant study, the CLI on a bundled
+(e) the flux-step wall sampled every 60 s against scipy BDF and a careful fixed-step kernel
+with a bare tridiagonal solve timed beside them, (c) a five-wall enclosure with a thermostat, (d) a 1,000-variant study, the CLI on a bundled
 case, cold compilation, and scaling with node count, simulated duration and outputs.
 Timings are medians of several runs (the machine is shared: expect noise).
 """
@@ -29,6 +30,7 @@ from . import problems as P
 
 ROOT = Path(__file__).resolve().parent.parent
 OUT = []          # markdown lines of this run (for --write-readme)
+E_LINES = []      # the lines of section (e), also written to their own README block
 
 
 def say(line=""):
@@ -329,6 +331,302 @@ def matched(geometry, quick, repeats, use_fipy, compile_s):
     return {r[0]: r for r in results}
 
 
+# ---- (e): the flux-step wall, 60-s samples, honest peers ---------------------------------------
+
+STEP_RTOLS = (1e-2, 5e-3, 2e-3, 1e-3, 5e-4, 2e-4, 1e-4, 5e-5, 2e-5, 1e-5, 5e-6, 2e-6, 1e-6)
+
+
+def _quick_time(fn, n=3):
+    """Median of ``n`` wall times of fn() [s] (candidate selection only; the table's times
+    come from :func:`round_robin`)."""
+    fn()
+    return median_time(fn, n)[0]
+
+
+def flux_step(quick, repeats, hot_face="dense"):
+    """Problem (e): every solver at the same both-face accuracy on the same reference; fdwall
+    at its defaults (headline) and tuned; scipy BDF and the fixed-step peers at their cheapest
+    passing mesh and setting; a bare Thomas solve timed in the same run."""
+    from fdwall.solver import run
+    from fdwall.system import build_system
+
+    from .peers import be_careful
+    say(f"### (e) flux-step furnace wall, {P.STEP_LABELS[hot_face]}, both faces sampled "
+        f"every 60 s")
+    say()
+    layers = ", ".join(f"{m.name} {t * 1e3:g} mm" for m, t in zip(*P.STEP_WALLS[hot_face]))
+    say(f"Layers (DEMO DATA): {layers}; {P.STEP_FLUX / 1e3:g} kW/m2 on the inner face from 0 to "
+        f"{P.STEP_OFF / 3600:g} h, then 0; the outer face of (a); 8 h; "
+        f"{int(P.DURATION / P.STEP_INTERVAL) + 1} samples of both faces, every "
+        f"{P.STEP_INTERVAL:g} s. Criterion: heated face within {M.TOL_INNER:g} K and outer face "
+        f"within {M.TOL_OUTER:g} K of the reference at every sample.")
+    say()
+    t_ref = time.perf_counter()
+    ref, info = M.step_references(quick, hot_face=hot_face)
+    say(f"Reference: {info['scipy_fine']}. Cross-check: {info['fdwall_fine']}. The two "
+        f"independent solutions agree within {info['agree_inner']:.4f} K (heated face) and "
+        f"{info['agree_outer']:.5f} K (outer face) at every sample "
+        f"({time.perf_counter() - t_ref:.0f} s for both).")
+    say()
+    # spatial error of each candidate mesh (time-converged scipy on it)
+    refines = M.STEP_REFINES if not quick else (1.0, 2.0, 4.0)
+    meshes = {}
+    rows = []
+    for rf in refines:
+        x = M.step_nodes(rf, hot_face)
+        fv = M.step_fv(x, hot_face=hot_face)
+        Tm, _ = M.solve_step_scipy(1e-8, fv)
+        e = M.errors(Tm, ref)
+        meshes[rf] = (x, fv, e)
+        rows.append((f"{rf:g}", x.size, f"{e[0]:.3f}", f"{e[1]:.4f}",
+                     "yes" if e[0] < 0.9 * M.TOL_INNER and e[1] < 0.9 * M.TOL_OUTER else "no"))
+    say("Candidate meshes (fdwall's graded mesh for (e) at refine x its default cell counts; "
+        "spatial error = scipy BDF rtol 1e-8 on it against the reference):")
+    say()
+    table(["refine", "nodes", "spatial err heated [K]", "spatial err outer [K]",
+           "searched (< 0.9 x criterion)"], rows)
+    usable = [rf for rf in refines
+              if meshes[rf][2][0] < 0.9 * M.TOL_INNER and meshes[rf][2][1] < 0.9 * M.TOL_OUTER]
+
+    cands = {}        # label -> list of (time, knob, refine, T, st, err)
+    tried = []
+
+    def pick(label, rf, kn, T, st, err, fn):
+        cands.setdefault(label, []).append((_quick_time(fn), kn, rf, T, st, err, fn))
+
+    # fdwall at its defaults: the headline (no tuning of any kind)
+    T_def, st_def = M.solve_step_fdwall(hot_face=hot_face)
+    e_def = M.errors(T_def, ref)
+    case_def = P.step_case(hot_face=hot_face)
+    # fdwall tuned: mesh refine x tolerance, loosest tolerance per mesh, fastest passing
+    for rf in usable:
+        kn, T, st, err, tr = M.loosest(
+            lambda tol, rf=rf: M.solve_step_fdwall(tol, rf, hot_face=hot_face), FD_TOLS, ref)
+        tried.append((f"fdwall refine {rf:g}, tolerance [K]", tr))
+        if kn is not None:
+            case = P.step_case(tolerance=kn, refine=rf, hot_face=hot_face)
+            pick("fdwall tuned", rf, kn, T, st, err, lambda case=case: run(case))
+    # scipy BDF
+    for rf in usable:
+        fv = meshes[rf][1]
+        kn, T, st, err, tr = M.loosest(lambda r, fv=fv: M.solve_step_scipy(r, fv), STEP_RTOLS,
+                                       ref)
+        tried.append((f"scipy BDF refine {rf:g}, rtol", tr))
+        if kn is not None:
+            pick("scipy", rf, kn, T, st, err, lambda kn=kn, fv=fv: M.solve_step_scipy(kn, fv))
+    # careful fixed-step backward Euler
+    for rf in usable:
+        fv = meshes[rf][1]
+        tabs = be_careful.segment_tables(fv)
+        kn, T, st, err, tr = M.loosest_integer(
+            lambda m, fv=fv, tabs=tabs: M.solve_step_be(m, fv, tables=tabs), ref, limit=256)
+        tried.append((f"careful BE refine {rf:g}, steps per 60 s", tr))
+        if kn is not None:
+            pick("be", rf, kn, T, st, err,
+                 lambda kn=kn, fv=fv, tabs=tabs: M.solve_step_be(kn, fv, tables=tabs))
+    best = {k: min(v, key=lambda c: c[0]) for k, v in cands.items()}
+
+    results = []      # [name, setting, nodes, steps, median, min, newton, err, extra]
+    timers = []
+
+    def add(name, setting, st, err, fn, extra=None):
+        timers.append((len(results), fn))
+        results.append([name, setting, st["nodes"], st["steps"], 0.0, 0.0, st["newton"], err,
+                        extra or {}])
+
+    add("fdwall, default settings", f"tolerance {st_def['tolerance_K']:g} K, default mesh",
+        st_def, e_def, lambda: run(case_def))
+    sys_def = build_system(case_def)
+    add("fdwall, default settings, system prebuilt", "as above", st_def, e_def,
+        lambda: run(case_def, system=sys_def))
+    if "fdwall tuned" in best:
+        _, kn, rf, T, st, err, fn = best["fdwall tuned"]
+        add("fdwall, tuned", f"refine {rf:g}, tolerance {kn:g} K", st, err, fn)
+        case_t = P.step_case(tolerance=kn, refine=rf, hot_face=hot_face)
+        sys_t = build_system(case_t)
+        add("fdwall, tuned, system prebuilt", "as above", st, err,
+            lambda: run(case_t, system=sys_t))
+    if "scipy" in best:
+        _, kn, rf, T, st, err, fn = best["scipy"]
+        add("scipy solve_ivp BDF (compiled rhs, banded Jacobian)",
+            f"refine {rf:g}, rtol {kn:g}", st, err, fn,
+            {"nlu": st["nlu"], "njev": st["njev"]})
+    be_set = None
+    if "be" in best:
+        _, kn, rf, T, st, err, fn = best["be"]
+        be_set = (kn, rf)
+        add("fixed-step BE, careful (numba)", f"refine {rf:g}, dt {P.STEP_INTERVAL / kn:.3g} s",
+            st, err, fn)
+        fv = meshes[rf][1]
+        T_old, st_old = M.solve_step_be(kn, fv, careful=False)
+        add("fixed-step BE, the suite's first peer (numba: predictor assembly, table search "
+            "from scratch, Newton tolerance 1e-6 K)", "same mesh and dt", st_old,
+            M.errors(T_old, ref), lambda kn=kn, fv=fv: M.solve_step_be(kn, fv, careful=False))
+        # agreement of the two fixed-step peers on the same mesh and dt
+        be_agree = float(np.max(np.abs(T_old - T)))
+    round_robin(results, timers, repeats)
+    # bare Thomas solves on the node counts in the table, in this run
+    thomas = {}
+    for n in sorted({r[2] for r in results}):
+        thomas[n] = be_careful.time_thomas(n) / n
+    fd0 = results[0][4]
+    fdt = next((r[4] for r in results if r[0] == "fdwall, tuned"), None)
+    rows = []
+    for name, setting, nn, steps, med, mn, newton, err, extra, first in results:
+        ni = nn * newton
+        rows.append((name, setting, nn, steps, newton, fmt_ms(med), fmt_ms(mn),
+                     f"{med / (nn * steps) * 1e9:.0f}", f"{med / ni * 1e9:.1f}",
+                     f"{med / ni / thomas[nn]:.1f}", f"{err[0]:.3f}", f"{err[1]:.4f}",
+                     "yes" if M.passes(err) else "**no**", f"{med / fd0:.1f}",
+                     f"{med / fdt:.1f}" if fdt else "-"))
+    table(["method", "setting", "nodes", "steps", "Newton its", "wall median [ms]",
+           "wall min [ms]", "ns per node-step", "ns per node-iteration",
+           "node-iteration / bare Thomas per node", "err heated [K]", "err outer [K]", "meets",
+           "time / fdwall default", "time / fdwall tuned"], rows)
+    say("Newton its: fdwall's Newton iterations over all stages (`stats['newton_iterations']`); "
+        "scipy: right-hand-side evaluations (`nfev`, one per Newton iteration of BDF plus the "
+        "finite-difference part of the Jacobian); fixed-step BE: Newton iterations. scipy's "
+        "LU factorisations (sparse, `nlu`) come on top of its per-evaluation cost.")
+    say()
+    say("Bare tridiagonal (Thomas) solve in this run, one division per row, compiled loop: "
+        + ", ".join(f"{thomas[n] * 1e9:.1f} ns per node at {n} nodes" for n in sorted(thomas))
+        + ".")
+    if be_set is not None:
+        say(f"The two fixed-step peers on the same mesh and dt agree within {be_agree:.2e} K at "
+            f"both faces (same equations, different kernels).")
+    say()
+    # the gain split in two parts: cost per node-iteration, and node-iterations needed
+    gain = []
+    by = {r[0]: r for r in results}
+    for fd_name in ("fdwall, default settings", "fdwall, tuned"):
+        if fd_name not in by:
+            continue
+        f = by[fd_name]
+        for peer in [r for r in results if not r[0].startswith("fdwall")]:
+            t_ratio = peer[4] / f[4]
+            c_ratio = (peer[4] / (peer[2] * peer[6])) / (f[4] / (f[2] * f[6]))
+            gain.append((f"{peer[0].split(' (')[0]} vs {fd_name}", f"{t_ratio:.1f}",
+                         f"{c_ratio:.2f}", f"{peer[2] * peer[6] / (f[2] * f[6]):.1f}",
+                         f"{peer[2] / f[2]:.2f}", f"{peer[3] / f[3]:.1f}",
+                         f"{(peer[6] / peer[3]) / (f[6] / f[3]):.2f}"))
+    say("The ratio of times split into its two parts (time ratio = cost per node-iteration "
+        "ratio x node-iterations ratio; node-iterations = nodes x steps x Newton iterations per "
+        "step):")
+    say()
+    table(["comparison", "time ratio", "cost per node-iteration ratio",
+           "node-iterations ratio", "nodes ratio", "steps ratio", "iterations per step ratio"],
+          gain)
+    per_node_cost(quick, repeats, be_set, hot_face)
+    say("Settings tried (loosest first), error heated/outer [K]:")
+    say()
+    for name, tr in tried:
+        say(f"- {name}: " + "; ".join(f"{k:g} -> {e[0]:.3g}/{e[1]:.3g}" for k, e, _ in tr))
+    say()
+    # targets of the issue
+    say("Targets of (e), measured in this run:")
+    say()
+    say(f"- fdwall at default settings meets the accuracy: {'yes' if M.passes(e_def) else 'NO'} "
+        f"(heated face {e_def[0]:.3f} K, outer face {e_def[1]:.4f} K off; "
+        f"{st_def['nodes']} nodes, tolerance {st_def['tolerance_K']:g} K).")
+    for key, label, target in (("scipy", "scipy BDF", 30.0), ("fixed-step BE, careful", "the "
+                               "careful fixed-step BE", 20.0)):
+        r = next((r for r in results if r[0].startswith(key)), None)
+        if r is None:
+            say(f"- {label}: no passing setting found.")
+            continue
+        ratio = r[4] / fd0
+        say(f"- {label} time / fdwall default time = {ratio:.1f} (target >= {target:g}: "
+            f"{'met' if ratio >= target and M.passes(e_def) else 'MISSED'}"
+            f"{'' if M.passes(e_def) else ', and the default misses the accuracy'})"
+            + (f"; / fdwall tuned = {r[4] / fdt:.1f}" if fdt else "") + ".")
+    for name in ("fdwall, default settings, system prebuilt", "fdwall, tuned, system prebuilt"):
+        if name in by:
+            r = by[name]
+            per = r[4] / (r[2] * r[6])
+            say(f"- {name}: {per * 1e9:.1f} ns per node and Newton iteration = "
+                f"{per / thomas[r[2]]:.1f} x the bare Thomas solve (target <= 3: "
+                f"{'met' if per / thomas[r[2]] <= 3 else 'MISSED'}).")
+    if "fixed-step BE, careful (numba)" in by:
+        r = by["fixed-step BE, careful (numba)"]
+        say(f"- careful fixed-step BE: {r[4] / (r[2] * r[3]) * 1e9:.1f} ns per node-step "
+            f"(aim: about 10 ns on a quiet machine; "
+            f"{r[4] / (r[2] * r[3]) / thomas[r[2]]:.1f} x the bare Thomas solve here).")
+    say()
+    return results
+
+
+def per_node_cost(quick, repeats, be_set, hot_face="dense"):
+    """Cost per node and Newton iteration as the mesh grows (problem (e)), so that the fixed
+    cost of a run (Python set-up, allocation) and the cost of the 481 samples are told apart
+    from the per-node cost of the stepping: fdwall at its default tolerance with the system
+    prebuilt, with 60-s samples and with hourly samples (the same steps: fdwall's outputs are
+    interpolated, not stepped to), the careful BE at its passing dt, and the bare Thomas
+    solve, on fdwall's mesh at refine 1, 4, 16."""
+    from dataclasses import replace
+
+    from fdwall.solver import run
+    from fdwall.system import build_system
+
+    from .peers import be_careful
+    refines = (1.0, 4.0, 16.0) if not quick else (1.0, 8.0)
+    nsub = be_set[0] if be_set else 4
+    rows = []
+    pts = {"fd": [], "fdh": [], "be": []}
+    for rf in refines:
+        case = P.step_case(refine=rf, hot_face=hot_face)
+        sysm = build_system(case)
+        r = run(case, system=sysm)
+        case_h = replace(case, run=replace(case.run, output_interval=3600.0))
+        sys_h = build_system(case_h)
+        rh = run(case_h, system=sys_h)
+        fv = M.step_fv(M.step_nodes(rf, hot_face), hot_face=hot_face)
+        tabs = be_careful.segment_tables(fv)
+        _, sb = M.solve_step_be(nsub, fv, tables=tabs)
+        res = [["fd", 0, 0, 0, 0.0, 0.0], ["fdh", 0, 0, 0, 0.0, 0.0],
+               ["be", 0, 0, 0, 0.0, 0.0]]
+        round_robin(res, [(0, lambda: run(case, system=sysm)),
+                          (1, lambda: run(case_h, system=sys_h)),
+                          (2, lambda: M.solve_step_be(nsub, fv, tables=tabs))],
+                    max(1, repeats // 2) if rf > 4 else repeats)
+        n = fv.n
+        its = r.stats["newton_iterations"]
+        ni_fd = n * its
+        ni_fdh = n * rh.stats["newton_iterations"]
+        ni_be = n * sb["newton"]
+        pts["fd"].append((ni_fd, res[0][4]))
+        pts["fdh"].append((ni_fdh, res[1][4]))
+        pts["be"].append((ni_be, res[2][4]))
+        th = be_careful.time_thomas(n) / n
+        n_out = r.times.size - rh.times.size
+        rows.append((f"{rf:g}", n, r.stats["accepted_steps"], its,
+                     fmt_ms(res[0][4]), f"{res[0][4] / ni_fd * 1e9:.1f}",
+                     f"{res[0][4] / ni_fd / th:.1f}",
+                     f"{rh.stats['accepted_steps']}/{rh.stats['newton_iterations']}",
+                     fmt_ms(res[1][4]), f"{res[1][4] / ni_fdh * 1e9:.1f}",
+                     f"{res[1][4] / ni_fdh / th:.1f}",
+                     f"{(res[0][4] - res[1][4]) / (n * n_out) * 1e9:.0f}",
+                     sb["newton"], fmt_ms(res[2][4]),
+                     f"{res[2][4] / ni_be * 1e9:.1f}", f"{res[2][4] / ni_be / th:.1f}",
+                     f"{th * 1e9:.1f}"))
+    say(f"Cost per node and Newton iteration as the mesh grows (problem (e); fdwall at its "
+        f"default tolerance, system prebuilt, with the 60-s samples and with hourly samples "
+        f"(same steps); careful BE at {P.STEP_INTERVAL / nsub:.3g} s; x Thomas = cost per "
+        f"node-iteration over the bare Thomas solve per node at that size, timed here):")
+    say()
+    table(["refine", "nodes", "fdwall steps", "fdwall Newton its", "fdwall 60-s [ms]",
+           "ns per node-it", "x Thomas", "hourly: steps/its", "fdwall hourly [ms]",
+           "ns per node-it", "x Thomas", "sample cost [ns per node-sample]", "BE Newton its",
+           "BE [ms]", "BE ns per node-it", "BE x Thomas", "bare Thomas [ns per node]"], rows)
+    slopes = []
+    for key, label in (("fd", "fdwall with 60-s samples"), ("fdh", "fdwall hourly samples"),
+                       ("be", "careful BE")):
+        (a0, t0), (a1, t1) = pts[key][0], pts[key][-1]
+        slopes.append(f"{label} {(t1 - t0) / (a1 - a0) * 1e9:.1f} ns")
+    say("Marginal cost per node-iteration between the smallest and the largest mesh (the "
+        "fixed cost of a run removed): " + ", ".join(slopes) + ".")
+    say()
+
+
 # ---- (c) enclosure ------------------------------------------------------------------------------
 
 def enclosure(quick, repeats):
@@ -589,17 +887,27 @@ def scaling(quick, tol, repeats):
 
 # ---- main --------------------------------------------------------------------------------------
 
-def write_readme():
+def write_readme(sections):
+    """Write this run's results into benchmarks/README.md: the whole run between the
+    ``results`` markers, and section (e) (with the run's header line) also between the
+    ``results-e`` markers; a run of ``--only e`` writes the latter only."""
     path = Path(__file__).with_name("README.md")
     text = path.read_text()
-    a, b = "<!-- results:start -->", "<!-- results:end -->"
-    if a not in text or b not in text:
-        print(f"(README markers {a} ... {b} not found; results not written)")
-        return
-    head, rest = text.split(a, 1)
-    _, tail = rest.split(b, 1)
-    path.write_text(head + a + "\n" + "\n".join(OUT) + "\n" + b + tail)
-    print(f"results written to {path}")
+    blocks = []
+    if sections != {"e"}:
+        blocks.append(("results", OUT))
+    if E_LINES:
+        blocks.append(("results-e", OUT[:2] + E_LINES))
+    for key, lines in blocks:
+        a, b = f"<!-- {key}:start -->", f"<!-- {key}:end -->"
+        if a not in text or b not in text:
+            print(f"(README markers {a} ... {b} not found; results not written)")
+            continue
+        head, rest = text.split(a, 1)
+        _, tail = rest.split(b, 1)
+        text = head + a + "\n" + "\n".join(lines) + "\n" + b + tail
+        print(f"results ({key}) written to {path}")
+    path.write_text(text)
 
 
 def exchange_cost(repeats, tol):
@@ -648,8 +956,8 @@ def exchange_cost(repeats, tol):
 def main(argv=None):
     ap = argparse.ArgumentParser(description="fdwall benchmark suite")
     ap.add_argument("--quick", action="store_true", help="smaller references, fewer repeats")
-    ap.add_argument("--only", default="a,b,c,d,h,cli,cold,scaling",
-                    help="comma-separated sections: a,b,c,d,h,cli,cold,scaling")
+    ap.add_argument("--only", default="a,b,e,c,d,h,cli,cold,scaling",
+                    help="comma-separated sections: a,b,e,c,d,h,cli,cold,scaling")
     ap.add_argument("--repeats", type=int, default=None, help="timing repeats (median)")
     ap.add_argument("--no-fipy", action="store_true", help="skip the FiPy peer")
     ap.add_argument("--write-readme", action="store_true",
@@ -692,6 +1000,11 @@ def main(argv=None):
                     f"right after the other solvers) (target >= {target:g}): "
                     f"{'met' if min(ratio, rmin) >= target else 'MISSED' if max(ratio, rmin) < target else 'met on one measure only'}")
         say()
+    if "e" in sections:
+        i0 = len(OUT)
+        for hf in ("light", "dense"):
+            res["e-" + hf] = flux_step(a.quick, repeats, hf)
+        E_LINES[:] = OUT[i0:]
     if "h" in sections:
         exchange_cost(repeats, tol_a)
     if "c" in sections:
@@ -725,7 +1038,7 @@ def main(argv=None):
         scaling(a.quick, tol_a, repeats)
     say(f"Suite wall time {time.perf_counter() - t0:.0f} s.")
     if a.write_readme:
-        write_readme()
+        write_readme(sections)
 
 
 if __name__ == "__main__":

@@ -585,6 +585,9 @@ class Case:
     control: Control = field(default_factory=Control)
     name: str = "case"
     source: str = ""   # case file text, kept verbatim in results
+    #: Identification for the calculation report, ((key, text), ...) with keys among
+    #: project, equipment, author, checker, revision, date (case-file table [report]).
+    report: tuple = ()
 
     def __post_init__(self):
         object.__setattr__(self, "walls", tuple(self.walls))

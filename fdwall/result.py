@@ -348,6 +348,34 @@ class Result:
                 cols[f"{w.name}: {a.label} | {b.label} [K]"] = Ti[:, i]
         return pd.DataFrame(cols, index=pd.Index(self.times, name="time [s]"))
 
+    def profiles_frame(self, times=None, wall: int = 0):
+        """Temperature profiles through one wall as a pandas DataFrame: index ``x [m]``
+        (depth from the inner face) [m], one column per output time, the column index named
+        ``time [s]`` holding the actual output times [s]; values are node temperatures [K].
+
+        Parameters
+        ----------
+        times : sequence of float, optional
+            Wanted times [s]; each is taken at the nearest output time (as
+            :meth:`profile`).  Default: the case's profile times, or else every output time.
+        wall : int
+            Path index of the wall (see :meth:`path_of`) [-].
+        """
+        import pandas as pd
+        if times is None:
+            times = list(self.case.run.profile_times) or list(self.times)
+        idx = []
+        for t in times:
+            k = int(np.argmin(np.abs(self.times - float(t))))
+            if k not in idx:
+                idx.append(k)
+        Tw = self.wall_T(wall)
+        df = pd.DataFrame(Tw[idx].T, index=pd.Index(self.x(wall), name="x [m]"),
+                          columns=pd.Index(self.times[idx], name="time [s]"))
+        df.attrs.update({"units": "K", "wall": self.system.walls[wall].name,
+                         "case": self.case.name})
+        return df
+
     def to_xarray(self, wall: int = 0):
         """Node temperatures of one wall as an xarray Dataset: variable ``T`` [K] on dims
         ``time`` [s] x ``x`` (depth from the inner face) [m].  Needs xarray (optional)."""
@@ -400,6 +428,11 @@ class Result:
         h.attrs["created"] = datetime.now(timezone.utc).isoformat()
         h.attrs["kind"] = "transient"
         stamp_h5(h, provenance(self.case))
+        ident = dict(getattr(self.case, "report", ()) or ())
+        if ident:  # the case file's [report] table: identification block of the HTML report
+            rg = h.create_group("report")
+            for k, v in ident.items():
+                rg.attrs[k] = str(v)
         g = h.create_group("input")
         g.create_dataset("case_text", data=self.case.source or "")
         g.create_dataset("resolved_json", data=json.dumps(resolved_inputs(self.case), default=str))

@@ -57,3 +57,25 @@ def test_logged_fit_tends_to_C_effective_not_C_stored():
     f = fit_one_node(t, 293.15 + _slab_surface_rise(t), Q, 293.15, R=L / 1.0)
     assert f["C_J_per_K"] == pytest.approx(1e6 * L / 3, rel=0.03)
     assert f["C_J_per_K"] < 0.75 * (1e6 * L / 2)
+
+
+def test_rc_analysis_held_inner_face_with_outer_film():
+    # The wall of cases/example_implied_rc.py: 60 mm board (k 0.05 W/(m K), rho c 1.08e5
+    # J/(m3 K)), inner face held at 90 degC, film 8 W/(m2 K) to 20 degC air, 1 m2. Closed forms
+    # of the linear steady profile (Incropera Sec. 3.1 series resistances; first moment as in
+    # tests/test_lumped_modes.py): per watt theta runs from a = R to b = 1/h over the board,
+    # so C_effective = rho c L (a^2 + a b + b^2)/(3 R^2); the input is the inner-face heat flow.
+    from fdwall.materials import material_from_dict
+    board = material_from_dict("rc-board", {"k": 0.05, "cp": 900.0, "rho": 120.0})
+    Lb, h = 0.060, 8.0
+    case = Case(run=RunSettings(duration=3600.0, initial=293.15),
+                wall=Wall((Layer(board, Lb, cells=40),), area=1.0),
+                inner=Face.fixed(363.15), outer=Face.exchange(293.15, h))
+    r = rc_analysis(case, networks=3)
+    R = Lb / 0.05 + 1 / h
+    a, b = R, 1 / h
+    C_eff = 120 * 900 * Lb * (a * a + a * b + b * b) / (3 * R * R)
+    assert r["R_K_per_W"] == pytest.approx(R, rel=1e-9)
+    assert r["R_differential_K_per_W"] == pytest.approx(R, rel=1e-9)
+    assert r["C_effective_J_per_K"] == pytest.approx(C_eff, rel=2e-3)
+    assert sum(p["R_K_per_W"] for p in r["networks"]["foster"]) == pytest.approx(R, rel=0.01)

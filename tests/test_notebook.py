@@ -111,3 +111,27 @@ def test_repr_html_summary_table(res):
     assert "final T [degC]" in p.cells
     row = p.cells.index(res.face_names[0])
     assert float(p.cells[row + 1]) == pytest.approx(res.face_T[-1, 0] - K0, abs=0.006)
+
+
+def test_profiles_frame_equals_arrays_and_steady_profile(res):
+    df = res.profiles_frame()
+    assert df.index.name == "x [m]" and df.columns.name == "time [s]"
+    np.testing.assert_array_equal(df.columns.to_numpy(), res.times)   # no profile_times
+    np.testing.assert_array_equal(df.index.to_numpy(), res.x(0))
+    np.testing.assert_array_equal(df[res.times[3]].to_numpy(), res.wall_T(0)[3])
+    assert df.attrs["units"] == "K" and df.attrs["wall"] == "slab"
+    # nearest output times, as Result.profile
+    sel = res.profiles_frame(times=[3600.0 * 2.1, 3600.0 * 40])
+    assert list(sel.columns) == [2 * 3600.0, 40 * 3600.0]
+    # steady plane wall with films (Incropera ch. 3): piecewise linear, each layer's drop
+    # = q L / k with q = dT / (1/h1 + L1/k1 + L2/k2 + 1/h2)
+    q = (T1 - T2) / (1 / H1 + L1 / K1 + L2 / K2 + 1 / H2)
+    x = sel.index.to_numpy()
+    ts = T1 - q / H1
+    exact = np.where(x <= L1, ts - q * x / K1, ts - q * L1 / K1 - q * (x - L1) / K2) + K0
+    np.testing.assert_allclose(sel[40 * 3600.0].to_numpy(), exact, atol=2e-3)
+    # the same numbers as the xarray Dataset (when xarray is installed)
+    xr = pytest.importorskip("xarray")
+    assert xr is not None
+    ds = res.to_xarray()
+    np.testing.assert_array_equal(ds["T"].sel(time=2 * 3600.0).values, sel[2 * 3600.0].values)

@@ -83,3 +83,127 @@ def test_layers_labelled_by_material(pipe, tmp_path, monkeypatch):
     plots.plot_energy(pipe, tmp_path / "e.png")
     labels = [ln.get_label() for ln in figs[-1].axes[1].get_lines()]
     assert "stored: demo-tube" in labels and "stored: lagging (demo-wool)" in labels
+
+
+# ----------------------------------------------------------------- enclosure temperature plot
+# An invented box: two identical side walls (by symmetry their temperatures are the same, so
+# one must hide the other), a thinner roof, a thermostat on the chamber air.
+def _enclosure():
+    from fdwall.model import Chamber, Control, EnclosureWall, Heater
+    from fdwall.schedule import Schedule
+    wool = material_from_dict("demo-wool", {"k": 0.05, "cp": 900.0, "rho": 120.0})
+    sheet = material_from_dict("demo-sheet", {"k": 45.0, "cp": 480.0, "rho": 7800.0})
+    board = material_from_dict("demo-board", {"k": 0.2, "cp": 1000.0, "rho": 600.0})
+    def side(name):
+        return EnclosureWall(wall=Wall(layers=(Layer(board, 0.02), Layer(wool, 0.08),
+                                               Layer(sheet, 0.0015)), area=0.5, name=name),
+                             outer=Face.exchange(K0 + 20.0, 8.0), inner_h=10.0)
+    roof = EnclosureWall(wall=Wall(layers=(Layer(board, 0.02), Layer(wool, 0.04),
+                                           Layer(sheet, 0.0015)), area=0.4, name="roof"),
+                         outer=Face.exchange(K0 + 20.0, 8.0), inner_h=10.0)
+    sp = Schedule((0.0, 1800.0), (K0 + 20.0, K0 + 250.0))
+    return Case(run=RunSettings(duration=3 * 3600.0, output_interval=120.0, max_step=60.0),
+                walls=(side("left"), side("right"), roof),
+                chamber=Chamber(capacity=8000.0, ambient=K0 + 20.0),
+                heater=Heater(power=3000.0),
+                control=Control(mode="thermostat", setpoint=sp, band=4.0), name="demo-box")
+
+
+@pytest.fixture(scope="module")
+def box():
+    return fdwall.run(_enclosure(), progress=False)
+
+
+def test_enclosure_outer_faces_in_their_own_panel(box, tmp_path, monkeypatch):
+    figs = _figs(monkeypatch)
+    plots.plot_temperatures(box, tmp_path / "t.png")
+    top, bottom = figs[-1].axes[:2]
+    gids = lambda ax: {ln.get_gid() for ln in ax.get_lines() if ln.get_gid()}  # noqa: E731
+    assert gids(bottom) == {"outer-0", "outer-1", "outer-2"}
+    assert not any(g.startswith("outer") for g in gids(top))
+    # the skin panel is scaled to the skin curves: its span is at most ~1.3x theirs
+    skin = box.face_T[:, 1::2] - K0
+    lo, hi = bottom.get_ylim()
+    assert hi - lo < 1.3 * (skin.max() - skin.min())
+    assert hi < 0.5 * top.get_ylim()[1]
+
+
+def test_interfaces_have_distinct_colour_and_dash(box, tmp_path, monkeypatch):
+    from matplotlib.colors import to_hex
+    figs = _figs(monkeypatch)
+    plots.plot_temperatures(box, tmp_path / "t.png")
+    top = figs[-1].axes[0]
+    styles = {}
+    for ln in top.get_lines():
+        g = ln.get_gid() or ""
+        if g.startswith("interface-"):
+            styles[g] = (to_hex(ln.get_color()), tuple(ln._unscaled_dash_pattern[1] or ()))
+    assert len(styles) == 3 * 2
+    for j in range(3):   # within one wall: every interface its own colour and dash
+        mine = [v for k, v in styles.items() if k.startswith(f"interface-{j}-")]
+        assert len({c for c, _ in mine}) == len(mine) and len({d for _, d in mine}) == len(mine)
+    # across walls: no two interfaces look the same
+    assert len(set(styles.values())) == len(styles)
+
+
+def test_legend_lists_only_visible_curves(box, tmp_path, monkeypatch):
+    figs = _figs(monkeypatch)
+    plots.plot_temperatures(box, tmp_path / "t.png")
+    top, bottom = figs[-1].axes[:2]
+    labels = [t.get_text().replace("\n", " ").replace("   ", " ").replace("  ", " ")
+              for t in top.get_legend().get_texts()]
+    # the two side walls are the same construction in the same conditions (symmetry): one
+    # curve of each pair hides the other, and the legend merges their names
+    assert "left: inner face = right: inner face" in labels
+    assert not any(lab.startswith("right: inner face") for lab in labels)
+    out_labels = [t.get_text() for t in bottom.get_legend().get_texts()]
+    assert "left: outer face = right: outer face" in out_labels
+    assert "roof: outer face" in out_labels
+
+
+def test_merge_hidden_pixel_tolerance():
+    """Two curves 0.5 px apart are one curve to the eye, 6 px apart are two (pixel distances
+    measured with matplotlib's own data-to-display transform)."""
+    fig, (ax,) = plots._figure(6.0, 4.0)
+    x = np.linspace(0.0, 1.0, 50)
+    ax.plot(x, x, label="a")
+    ax.set_ylim(0.0, 1.0)
+    fig.canvas.draw()
+    px = ax.transData.transform([[0, 0], [0, 1]])
+    per_px = 1.0 / abs(px[1, 1] - px[0, 1])         # data units per pixel
+    ax.plot(x, x + 0.5 * per_px, label="b")
+    ax.plot(x, x + 6.0 * per_px, label="c")
+    ax.set_ylim(0.0, 1.0)
+    groups = plots.merge_hidden(ax)
+    assert [g[1] for g in groups] == [["a", "b"], ["c"]]
+    assert groups[0][0].get_label() == "a = b"
+
+
+def test_setpoint_drawn(box, tmp_path, monkeypatch):
+    figs = _figs(monkeypatch)
+    plots.plot_temperatures(box, tmp_path / "t.png")
+    top = figs[-1].axes[0]
+    sp = [ln for ln in top.get_lines() if ln.get_gid() == "setpoint"]
+    assert len(sp) == 1 and "setpoint" in sp[0].get_label()
+    want = np.interp(box.times, [0.0, 1800.0], [20.0, 250.0])   # the schedule above
+    np.testing.assert_allclose(sp[0].get_ydata(), want, atol=1e-9)
+
+
+def test_profile_legend_merges_coinciding_profiles(pipe, tmp_path, monkeypatch):
+    """The pipe's lagging has a diffusion time L^2/alpha = (0.03 m)^2 / (0.05/(800*100)) m2/s
+    = 24 min (Incropera sec. 5.5: the plane-wall response is steady after a few of these),
+    so the profiles from 6 h on are all the steady one: one legend entry for all of them."""
+    figs = _figs(monkeypatch)
+    plots.plot_profiles(pipe, tmp_path / "p.png")
+    fig = figs[-1]
+    texts = [t.get_text() for t in fig.legends[0].get_texts()]
+    assert texts == ["t = 6 h = t = 12 h = t = 18 h = t = 24 h = t = 30 h"]
+    # and the merged curves really are within the tolerance on the drawn axes (pixels by
+    # matplotlib's own transform)
+    ax = fig.axes[0]
+    fig.canvas.draw()
+    ys = [ax.transData.transform(np.c_[ln.get_xdata(), ln.get_ydata()])[:, 1]
+          for ln in ax.get_lines() if ln.get_label().startswith("t = ")]
+    assert len(ys) == 5
+    spread = max(np.max(np.abs(a - ys[-1])) for a in ys[:-1])
+    assert spread <= plots.HIDDEN_TOLERANCE_PX * 1.5

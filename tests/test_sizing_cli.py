@@ -9,6 +9,18 @@ import h5py
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
 
+def _main(capsys, *a):
+    """In-process run for bad-input checks (no interpreter start-up): (exit code, stderr)."""
+    from fdwall.cli import main
+    cwd = os.getcwd()
+    os.chdir(ROOT)
+    try:
+        code = main(["size", *a])
+    finally:
+        os.chdir(cwd)
+    return code, capsys.readouterr().err
+
+
 def _run(*a):
     env = dict(os.environ, PYTHONPATH=ROOT)
     return subprocess.run([sys.executable, "-m", "fdwall.cli", "size", *a], cwd=ROOT, env=env,
@@ -31,17 +43,17 @@ def test_json_and_h5(tmp_path):
         assert h.attrs["kind"] == "size" and "caution" in h.attrs
 
 
-def test_bad_input_exit_2(tmp_path):
+def test_bad_input_exit_2(tmp_path, capsys):
     # common practice, no source: wrong unit for the geometry, unknown layer material
-    p = _run("cases/hot-oil-pipe.toml", "--layer", "1", "--loss-limit", "50 W/m2",
-             "--out", str(tmp_path))
-    assert p.returncode == 2 and "W/m" in p.stderr
-    p = _run("cases/hot-oil-pipe.toml", "--layer", "mineral-wool-12", "--loss-limit", "50 W/m",
-             "--out", str(tmp_path))
-    assert p.returncode == 2 and "mineral-wool-128" in p.stderr
-    p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50",
-             "--out", str(tmp_path))
-    assert p.returncode == 2
+    code, err = _main(capsys, "cases/hot-oil-pipe.toml", "--layer", "1", "--loss-limit",
+                      "50 W/m2", "--out", str(tmp_path))
+    assert code == 2 and "W/m" in err
+    code, err = _main(capsys, "cases/hot-oil-pipe.toml", "--layer", "mineral-wool-12",
+                      "--loss-limit", "50 W/m", "--out", str(tmp_path))
+    assert code == 2 and "mineral-wool-128" in err
+    code, err = _main(capsys, "cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit",
+                      "50", "--out", str(tmp_path))
+    assert code == 2
 
 
 def test_touch_target_cli(tmp_path):
@@ -79,7 +91,7 @@ def test_service_limit_warning_cli(tmp_path):
         assert any(b"plasterboard-gypsum" in x for x in h["warnings/items"][()])
 
 
-def test_energy_and_cost_cli(tmp_path):
+def test_energy_and_cost_cli(tmp_path, capsys):
     # Hand computation (definitions, common practice, no source): annual supplied energy
     # = loss [W/m2] * 6000 h * 3600 s/h / 0.8, cost = energy [GJ] * 9 per GJ.
     p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50 degC",
@@ -94,6 +106,6 @@ def test_energy_and_cost_cli(tmp_path):
     for bad in (["--energy-price", "0.1 kWh", "--hours-per-year", "8000 h"],
                 ["--supply-efficiency", "1.2", "--hours-per-year", "8000 h"],
                 ["--hours-per-year", "9000 h"], ["--energy-price", "0.1 /kWh"]):
-        p = _run("cases/curing-oven-panel.toml", "--layer", "1", "--skin-limit", "50 degC",
-                 "--out", str(tmp_path), *bad)
-        assert p.returncode == 2 and "--" in p.stderr, (bad, p.stderr)
+        code, err = _main(capsys, "cases/curing-oven-panel.toml", "--layer", "1",
+                          "--skin-limit", "50 degC", "--out", str(tmp_path), *bad)
+        assert code == 2 and "--" in err, (bad, err)

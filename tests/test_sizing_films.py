@@ -42,3 +42,36 @@ def test_skin_with_correlation_and_radiation():
     # correlation property data differ between libraries: measured 0.05 %, checked to 1 % (common practice)
     assert r.thickness_exact_m == pytest.approx(L_ref, rel=0.01)
     assert math.isfinite(r.thickness_m)
+
+
+def test_wind_design_condition_mixed_film():
+    # Wind design condition on a vertical plate: laminar flat plate Nu = 0.664 Re^1/2 Pr^1/3
+    # (Incropera 7th ed., eq. 7.30; Re = 2e5 < 5e5 here), natural part from the ht library's
+    # Churchill-Chu vertical plate, combined as (h_N^3 + h_F^3)^(1/3) (Churchill's mixed
+    # convection combination, Incropera eq. 9.63 with n = 3), air properties by CoolProp at
+    # the film temperature of each row's skin.
+    from fdwall.sizing import Conditions
+    V = 3.0
+    mat = material_from_dict("t", {"k": K, "cp": 840.0, "rho": 100.0})
+    case = Case(run=RunSettings(duration=3600.0, initial=Ta),
+                wall=Wall(layers=(Layer(mat, 0.05),)),
+                inner=Face(fluid=Ti, convection=1e7),
+                outer=Face(fluid=Ta, convection=Convection.natural_vertical(H)))
+    r = size_layer(case, 0, [SkinTarget(Ts, conditions=Conditions(wind=V))], step=0.025,
+                   t_max=0.2)
+    for T, hc in zip(r.table["skin_K"], r.table["h_conv_W_m2K"]):
+        Tf = 0.5 * (T + Ta)
+        k = PropsSI("L", "T", Tf, "P", 101325, "Air")
+        mu = PropsSI("V", "T", Tf, "P", 101325, "Air")
+        rho = PropsSI("D", "T", Tf, "P", 101325, "Air")
+        cp = PropsSI("C", "T", Tf, "P", 101325, "Air")
+        Re, Pr = rho * V * H / mu, cp * mu / k
+        assert Re < 5e5
+        hF = 0.664 * Re ** 0.5 * Pr ** (1 / 3) * k / H
+        ref = (_h_conv(T) ** 3 + hF ** 3) ** (1 / 3)
+        assert hc == pytest.approx(ref, rel=0.02)
+    # still air under the same wind option: the natural film alone
+    r0 = size_layer(case, 0, [SkinTarget(Ts, conditions=Conditions(wind=0.0))], step=0.025,
+                    t_max=0.2)
+    assert r0.table["h_conv_W_m2K"][0] == pytest.approx(_h_conv(r0.table["skin_K"][0]),
+                                                        rel=0.02)

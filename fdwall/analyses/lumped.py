@@ -24,14 +24,19 @@ semi-infinite solid, late it relaxes with its slowest mode.  :func:`fit_one_node
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 import numpy as np
 
+from fdwall.analyses.networks import cauer_from_foster, cauer_step_response, foster_step_response
 from fdwall.errors import InputError
+from fdwall.model import Control, Face, Heater, ModelError
+from fdwall.schedule import Schedule
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
            "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
-           "rc_analysis", "step_response_from_modes", "foster_fit"]
+           "rc_analysis", "step_response_from_modes", "foster_fit", "rc_networks",
+           "two_node_from_modes", "simulated_fit", "fit_vs_log_length"]
 
 SIGMA_SB = 5.670374419e-8  # Stefan-Boltzmann constant [W/(m2 K4)], CODATA 2018
 
@@ -159,6 +164,21 @@ def one_node_response(t, P, R, C, T_amb, T0):
     return Tinf + (T0 - Tinf) * np.exp(-t / (R * C))
 
 
+def _ambient(case, sysm, t) -> float:
+    """Ambient [K] of the lumped model at time ``t`` [s]: the chamber's room air for an
+    enclosure, else the outer face's fixed or fluid temperature (ValueError if it has none)."""
+    from ..solver.native import sched_eval
+    if case.is_enclosure:
+        return float(case.chamber.ambient(t))
+    f = sysm.face_i[1]
+    s = f[1] if f[1] >= 0 else f[3]
+    if s < 0:
+        raise ValueError("the lumped R/C needs an ambient: a fixed_temperature or a "
+                         "fluid_temperature at the outer face, and this case has neither. "
+                         "Give the outer face one of them.")
+    return float(sched_eval(sysm.s_off, sysm.stab, s, float(t), 0.0))
+
+
 def implied_rc(case, t=None) -> dict:
     """Lumped R and C that the walls (and chamber) of ``case`` imply at steady state.
 
@@ -182,7 +202,6 @@ def implied_rc(case, t=None) -> dict:
         mean steady temperature), ``tau_s`` = R C_stored [s], ``T_hot_K`` and ``T_amb_K`` [K],
         ``Q_W`` the heat flow [W], ``stored_J`` the energy held above ambient [J].
     """
-    from ..solver.native import sched_eval
     from ..solver.steady import solve_steady
     from ..system import build_system
     sysm = build_system(case)
@@ -195,13 +214,7 @@ def implied_rc(case, t=None) -> dict:
     else:
         T_hot = float(st.face_T[0])
         Q = float(st.face_flow[0])
-        f = sysm.face_i[1]
-        s = f[1] if f[1] >= 0 else f[3]
-        if s < 0:
-            raise ValueError("the lumped R/C needs an ambient: a fixed_temperature or a "
-                             "fluid_temperature at the outer face, and this case has neither. "
-                             "Give the outer face one of them.")
-        T_amb = float(sched_eval(sysm.s_off, sysm.stab, s, tt, 0.0))
+        T_amb = _ambient(case, sysm, tt)
     if abs(Q) <= 0.0 or abs(T_hot - T_amb) < 1e-9:
         raise ValueError("the lumped R/C needs a steady state with heat flowing: the heater "
                          "or the inner face must drive the wall above ambient at the time "
@@ -368,6 +381,13 @@ def _rc_notes(rc, modes, case) -> list:
         notes.append(f"The wall is not one exponential: its slowest time constant is "
                      f"{slow:.4g} s, the first-moment time constant {tau1:.4g} s and R C_stored "
                      f"{rc['tau_s']:.4g} s; a one-node fit can only match one of them.")
+    Rd = modes.get("R_heated_K_per_W")
+    if Rd is not None and abs(Rd / rc["R_K_per_W"] - 1) > 0.005:
+        notes.append(f"The time constants, C_effective and the networks come from the wall "
+                     f"linearised at the operating point: their resistance is the differential "
+                     f"dT/dQ there, {Rd:.4g} K/W, not the secant R = (T_hot - T_amb)/Q = "
+                     f"{rc['R_K_per_W']:.4g} K/W; the two differ because radiation or k(T) "
+                     f"make the loss grow faster than the temperature rise.")
     notes.append("R and C hold at this operating point only: radiation loss grows roughly as "
                  "T^3 and k(T) of insulation rises with temperature, so R falls as the wall "
                  "runs hotter, and cp(T) moves C. Compare a fit with the numbers at the "
@@ -375,11 +395,29 @@ def _rc_notes(rc, modes, case) -> list:
     return notes
 
 
-def rc_analysis(case, t=None) -> dict:
+def _pure_flux(face) -> bool:
+    """True when a face has nothing but (at most) an imposed flux."""
+    return (face.temperature is None and face.fluid is None and face.convection is None
+            and face.emissivity is None)
+
+
+def _flux_inner(case, flux):
+    """``case`` with its inner face replaced by the imposed flux ``flux`` [W/m2] (a number or
+    a Schedule), touch marks kept."""
+    f = case.inner
+    return replace(case, inner=Face(flux=flux, touch=f.touch, surface_class=f.surface_class))
+
+
+def rc_analysis(case, t=None, networks=None) -> dict:
     """Lumped R/C of ``case`` from the physics of its walls, with its time constants.
 
     Gathers :func:`implied_rc` (at the steady state at time ``t`` [s], default as there) and
-    :func:`wall_time_constants` (linearised at that same steady state).
+    :func:`wall_time_constants` (linearised at that same steady state); with ``networks`` = N
+    also the N-pair Foster and Cauer networks of the heated node (:func:`rc_networks`).  For a
+    single wall the input is the heat flow into the inner face, as in :func:`implied_rc`: the
+    inner face's own conditions (a fixed temperature, a film or radiation to a hot fluid) are
+    the source side and are replaced by that flow for the linearisation, so the time
+    constants are those of the wall heated by a flux at its inner face.
 
     Returns
     -------
@@ -388,19 +426,47 @@ def rc_analysis(case, t=None) -> dict:
         = R C_stored [s], ``T_hot_K``, ``T_amb_K`` [K], ``Q_W`` [W], ``stored_J`` [J],
         ``time_constants_s`` (list, slowest first) [s], ``first_moment_tau_s`` [s] and
         ``C_effective_J_per_K`` [J/K] of the heated node (None when it is held at a fixed
-        temperature), ``n_unknowns`` and ``notes`` (list of plain-language strings).
+        temperature), ``R_differential_K_per_W`` (dT/dQ of the linearised wall) [K/W],
+        ``mode_R_K_per_W`` (list, the heated node's resistance in each mode)
+        [K/W], ``two_node`` (:func:`two_node_from_modes`), ``n_unknowns``, ``notes`` (list of
+        plain-language strings) and, with ``networks``, ``networks`` (the dict of
+        :func:`rc_networks`).
     """
     from fdwall.solver.steady import solve_steady
     from fdwall.system import build_system
 
     out = implied_rc(case, t=t)
     st = solve_steady(case, t=t, system=build_system(case))
-    modes = wall_time_constants(case, T_op=st.T, t=st.time)
+    lin = case
+    if not case.is_enclosure and case.heater is None and not _pure_flux(case.inner):
+        # the single wall's input is the heat flow into its inner face: linearise the wall
+        # driven by that flow (the inner face's own fixed temperature, film or radiation is
+        # the source side, as in implied_rc), at the same steady profile
+        lin = _flux_inner(case, out["Q_W"] / case.wall.inner_area)
+    modes = wall_time_constants(lin, T_op=st.T, t=st.time)
     out.update({"time_constants_s": [float(x) for x in modes["time_constants_s"]],
                 "first_moment_tau_s": modes.get("first_moment_tau_s"),
                 "C_effective_J_per_K": modes.get("C_effective_J_per_K"),
                 "n_unknowns": modes["n_unknowns"]})
+    out["R_differential_K_per_W"] = modes.get("R_heated_K_per_W")
+    if "mode_R_K_per_W" in modes:
+        out["mode_R_K_per_W"] = [float(x) for x in modes["mode_R_K_per_W"]]
     out["notes"] = _rc_notes(out, modes, case)
+    if lin is not case:
+        out["notes"].insert(0, "This single wall's inner face is not driven by a plain heat "
+                            "flux; the wall's input is taken as the heat flow into that face "
+                            f"({out['Q_W']:.4g} W at the steady state), so its time constants, "
+                            "C_effective and networks are those of the wall heated by a flux at "
+                            "its inner face, the face's own held temperature, film or radiation "
+                            "being the source side.")
+    if "mode_R_K_per_W" in modes:
+        out["two_node"] = two_node_from_modes(modes)
+    if networks is not None:
+        if "mode_R_K_per_W" not in modes:
+            raise InputError("rc networks: the heated node is held at a fixed temperature, so "
+                             "there is no impedance from heat flow to its temperature; give "
+                             "the inner face a heat flux or a film instead.")
+        out["networks"] = rc_networks(modes, int(networks))
     return out
 
 
@@ -425,7 +491,8 @@ def foster_fit(time_constants_s, mode_R_K_per_W, n_terms=4, per_decade=4, t=None
     found by scipy.optimize.nnls; adjacent terms are then merged (R added, tau the R-weighted
     mean, which keeps the first moment sum R tau), each time the pair whose merge refits
     best, until ``n_terms`` remain, and the R are refitted by nnls on the merged time
-    constants.
+    constants.  Finally the time constants are polished by scipy.optimize.least_squares on
+    their logarithms (with the R from nnls at each step), kept when that fits better.
 
     Returns
     -------
@@ -457,16 +524,393 @@ def foster_fit(time_constants_s, mode_R_K_per_W, n_terms=4, per_decade=4, t=None
         best = None
         for i in range(len(taus) - 1):  # greedy: the merge whose refit fits best
             Rn = Rs[i] + Rs[i + 1]
-            tn = (Rs[i] * taus[i] + Rs[i + 1] * taus[i + 1]) / Rn
+            tn = ((Rs[i] * taus[i] + Rs[i + 1] * taus[i + 1]) / Rn if Rn > 0
+                  else math.sqrt(taus[i] * taus[i + 1]))
             tt = taus[:i] + [tn] + taus[i + 2:]
             Rt, res = nnls(basis(tt), y)
             if best is None or res < best[0]:
                 best = (res, tt, list(Rt))
         _, taus, Rs = best
+        # a refit may zero a term: drop it (its time constant carries nothing)
+        pos = [j for j, r in enumerate(Rs) if r > 0]
+        if pos:
+            taus, Rs = [taus[j] for j in pos], [Rs[j] for j in pos]
     taus = np.asarray(taus)
-    Rs, _ = nnls(basis(taus), y)
+    Rs, res0 = nnls(basis(taus), y)
+    # polish: move the time constants too (variable projection: R by nnls for given taus,
+    # log taus by scipy.optimize.least_squares); kept only when it fits better
+    from scipy.optimize import least_squares
+
+    def vp(x):
+        A = basis(np.exp(x))
+        return A @ nnls(A, y)[0] - y
+
+    try:
+        sol = least_squares(vp, np.log(taus), method="trf", x_scale=1.0, max_nfev=200)
+        tp = np.exp(sol.x)
+        Rp, resp = nnls(basis(tp), y)
+        if resp < res0 and np.all(np.isfinite(tp)):
+            taus, Rs = tp, Rp
+    except (ValueError, RuntimeError, np.linalg.LinAlgError):  # pragma: no cover - keep merge
+        pass
+    order = np.argsort(taus)
+    taus, Rs = taus[order], Rs[order]
     ok = Rs > 0
     taus, Rs = taus[ok][::-1], Rs[ok][::-1]
     err = float(np.max(np.abs(basis(taus) @ Rs - y))) if taus.size else float(np.max(y))
     return {"R_K_per_W": Rs, "C_J_per_K": taus / Rs, "tau_s": taus,
             "max_error_K_per_W": err, "max_error_fraction": err / float(r_m.sum())}
+
+
+def rc_networks(modes, n_terms, t=None) -> dict:
+    """N-pair Foster and Cauer networks of the heated node, with their step responses.
+
+    Parameters
+    ----------
+    modes : dict
+        :func:`wall_time_constants` output (``time_constants_s`` [s], ``mode_R_K_per_W``
+        [K/W]): the full (linearised finite-volume) model of the heated node.
+    n_terms : int
+        Number of resistor-capacitor pairs, 1 to 12 [-].
+    t : array_like, optional
+        Times [s] over which the networks are fitted and checked (default 200 log-spaced
+        times from a tenth of the fastest mode to ten times the slowest).
+
+    Returns
+    -------
+    dict
+        ``foster``: list of ``{"R_K_per_W", "C_J_per_K", "tau_s"}`` (slowest first, from
+        :func:`foster_fit`); ``cauer``: list of ``{"R_K_per_W", "C_J_per_K"}`` (stage 1 at
+        the heated node, from :func:`fdwall.analyses.networks.cauer_from_foster` in exact
+        arithmetic); ``t_s`` [s] and the rise after a 1 W step from rest of the full model
+        (``full_K_per_W``), the Foster network (``foster_K_per_W``) and the Cauer ladder
+        (``cauer_K_per_W``) [K/W]; ``foster_max_error_K_per_W`` and
+        ``cauer_max_error_K_per_W`` (largest deviation from the full model over ``t``),
+        ``max_error_fraction`` (the larger of the two over the full model's resistance) [-],
+        ``cauer_foster_max_K_per_W`` (largest Cauer-Foster difference, round-off only),
+        ``R_total_K_per_W`` (the full model's resistance) and ``n_terms``.
+    """
+    n = int(n_terms)
+    if not 1 <= n <= 12:
+        raise InputError(f"rc networks: the number of resistor-capacitor pairs must be 1 to "
+                         f"12, got {n_terms!r}.")
+    tau_m = np.asarray(modes["time_constants_s"], dtype=float)
+    r_m = np.asarray(modes["mode_R_K_per_W"], dtype=float)
+    if t is None:
+        t = np.geomspace(tau_m.min() / 10.0, tau_m.max() * 10.0, 200)
+    t = np.asarray(t, dtype=float)
+    f = foster_fit(tau_m, r_m, n_terms=n, t=t)
+    c = cauer_from_foster(f["R_K_per_W"], f["C_J_per_K"])
+    full = step_response_from_modes(t, tau_m, r_m)
+    yf = foster_step_response(t, f["R_K_per_W"], f["C_J_per_K"])
+    yc = cauer_step_response(t, c["R_K_per_W"], c["C_J_per_K"])
+    ef = float(np.max(np.abs(yf - full)))
+    ec = float(np.max(np.abs(yc - full)))
+    Rt = float(r_m.sum())
+    return {
+        "n_terms": n,
+        "foster": [{"R_K_per_W": float(r), "C_J_per_K": float(cc), "tau_s": float(tt)}
+                   for r, cc, tt in zip(f["R_K_per_W"], f["C_J_per_K"], f["tau_s"])],
+        "cauer": [{"R_K_per_W": float(r), "C_J_per_K": float(cc)}
+                  for r, cc in zip(c["R_K_per_W"], c["C_J_per_K"])],
+        "t_s": t, "full_K_per_W": full, "foster_K_per_W": yf, "cauer_K_per_W": yc,
+        "foster_max_error_K_per_W": ef, "cauer_max_error_K_per_W": ec,
+        "max_error_fraction": max(ef, ec) / Rt,
+        "cauer_foster_max_K_per_W": float(np.max(np.abs(yc - yf))),
+        "R_total_K_per_W": Rt,
+    }
+
+
+def two_node_from_modes(modes, t=None) -> dict:
+    """The two-node model (chamber plus wall) the physics implies: the 2-stage Cauer ladder.
+
+    The two-node model ``C1 dT1/dt = P - (T1 - T2)/R12``, ``C2 dT2/dt = (T1 - T2)/R12 -
+    (T2 - T_amb)/R2`` is a Cauer ladder of two stages, so the 2-pair Foster network fitted to
+    the heated node's step response (:func:`rc_networks`) turned into its ladder gives the
+    physics' values of the parameters a two-node fit of a log estimates.  For a single wall
+    the "chamber" node is the heated inner face and what the wall holds near it.
+
+    Parameters
+    ----------
+    modes : dict
+        :func:`wall_time_constants` output (``time_constants_s`` [s], ``mode_R_K_per_W``
+        [K/W]).
+    t : array_like, optional
+        Times of the fit [s] (as :func:`rc_networks`).
+
+    Returns
+    -------
+    dict
+        ``C_chamber_J_per_K``, ``C_wall_J_per_K`` [J/K], ``R_chamber_wall_K_per_W``,
+        ``R_wall_ambient_K_per_W`` [K/W] (None when one pair already fits: then only
+        ``C_chamber_J_per_K`` and ``R_wall_ambient_K_per_W`` of the one node are given),
+        ``max_error_fraction`` [-] of its step response against the full model.
+    """
+    net = rc_networks(modes, 2, t=t)
+    c = net["cauer"]
+    if len(c) < 2:
+        return {"C_chamber_J_per_K": c[0]["C_J_per_K"], "C_wall_J_per_K": None,
+                "R_chamber_wall_K_per_W": None, "R_wall_ambient_K_per_W": c[0]["R_K_per_W"],
+                "max_error_fraction": net["max_error_fraction"]}
+    return {"C_chamber_J_per_K": c[0]["C_J_per_K"], "R_chamber_wall_K_per_W": c[0]["R_K_per_W"],
+            "C_wall_J_per_K": c[1]["C_J_per_K"], "R_wall_ambient_K_per_W": c[1]["R_K_per_W"],
+            "max_error_fraction": net["max_error_fraction"]}
+
+
+# ---------------------------------------------------------------- like-for-like comparison
+
+def _power_steps(power, duration):
+    """A power history -> (step times [s], powers [W]): power[i] holds from times[i] on."""
+    if np.ndim(power) == 0:
+        tp, pp = np.array([0.0]), np.array([float(power)])
+    else:
+        try:
+            tp, pp = (np.asarray(x, dtype=float).ravel() for x in power)
+        except (TypeError, ValueError):
+            raise InputError("simulated_fit: the power history must be a power [W] or a pair "
+                             "(times [s], powers [W]) of equal length.") from None
+    if tp.size == 0 or tp.shape != pp.shape or not (np.all(np.isfinite(tp))
+                                                     and np.all(np.isfinite(pp))):
+        raise InputError("simulated_fit: the power history needs equally many finite times "
+                         f"[s] and powers [W]; got {tp.size} times and {pp.size} powers.")
+    if tp[0] != 0.0 or np.any(np.diff(tp) <= 0):
+        raise InputError("simulated_fit: the power history's times must start at 0 s and "
+                         "increase strictly (power[i] holds from times[i] to times[i+1]).")
+    if np.any(pp < 0):
+        raise InputError("simulated_fit: heater power must not be negative [W].")
+    if not (duration > 0 and math.isfinite(duration)):
+        raise InputError(f"simulated_fit: the log length must be a positive time [s], got "
+                         f"{duration!r}.")
+    keep = tp < duration
+    return tp[keep], pp[keep]
+
+
+def _one_node_history(t, tp, pp, R, C, T_amb, T0):
+    """One-node temperature [K] at sorted times ``t`` [s] from ``T0`` [K] at ``t[0]`` under the
+    piecewise-constant power ``pp[i]`` [W] from ``tp[i]`` [s] on (exact propagation)."""
+    tau = R * C
+    grid = np.union1d(t, tp[(tp > t[0]) & (tp < t[-1])])
+    idx = np.searchsorted(tp, grid[:-1], side="right") - 1
+    P = pp[np.clip(idx, 0, None)]
+    a = np.exp(-np.diff(grid) / tau)
+    Tinf = T_amb + P * R
+    T = np.empty(grid.size)
+    T[0] = T0
+    for k in range(grid.size - 1):
+        T[k + 1] = Tinf[k] + (T[k] - Tinf[k]) * a[k]
+    return T[np.searchsorted(grid, t)]
+
+
+def _fit_history(t, T, tp, pp, T_amb, R=None):
+    """Least-squares one-node fit (scipy least_squares, log parameters) under a power history.
+
+    Returns R [K/W], C [J/K], tau [s], rms [K] and, with R free, the correlation of the log
+    parameters from the Jacobian [-] (near +-1: R and C are not separately identifiable).
+    """
+    from scipy.optimize import least_squares
+    T0 = float(T[0])
+    Pmax = float(np.max(pp)) if pp.size else 0.0
+    rise = max(float(T.max() - T_amb), 1e-6)
+    R0 = R if R is not None else rise / max(Pmax, 1e-12) * 1.2
+    C0 = max(t[-1] - t[0], 1.0) / 3.0 / R0
+    if R is None:
+        def res(x):
+            return _one_node_history(t, tp, pp, math.exp(x[0]), math.exp(x[1]), T_amb, T0) - T
+        sol = least_squares(res, [math.log(R0), math.log(C0)], method="lm", x_scale="jac")
+        Rf, Cf = (float(v) for v in np.exp(sol.x))
+        corr = None
+        try:
+            cov = np.linalg.inv(sol.jac.T @ sol.jac)
+            corr = float(cov[0, 1] / math.sqrt(cov[0, 0] * cov[1, 1]))
+        except np.linalg.LinAlgError:  # pragma: no cover - singular Jacobian
+            corr = 1.0
+    else:
+        def res(x):
+            return _one_node_history(t, tp, pp, R, math.exp(x[0]), T_amb, T0) - T
+        sol = least_squares(res, [math.log(C0)], method="lm", x_scale="jac")
+        Rf, Cf, corr = float(R), float(math.exp(sol.x[0])), None
+    return {"R_K_per_W": Rf, "C_J_per_K": Cf, "tau_s": Rf * Cf,
+            "rms_K": float(np.sqrt(np.mean(sol.fun ** 2))), "corr_logR_logC": corr}
+
+
+def _driven_case(case, tp, pp, duration, initial, n_points):
+    """``case`` with its heat input replaced by the power history (no control) and a run of
+    ``duration`` [s] from a uniform ``initial`` [K] with ``n_points`` outputs."""
+    kt, kv = [], []
+    for i in range(tp.size):
+        kt += [tp[i], tp[i + 1] if i + 1 < tp.size else max(duration, tp[i])]
+        kv += [pp[i], pp[i]]
+    run = replace(case.run, duration=float(duration), initial=float(initial),
+                  output_interval=float(duration) / n_points, profile_times=(), events=(),
+                  steady_at=None)
+    try:
+        if case.is_enclosure or case.heater is not None:
+            sched = Schedule(kt, kv)
+            if case.heater is None:
+                heater = Heater(power=sched, location="chamber")
+            else:
+                heater = replace(case.heater, power=sched, voltage_ratio=1.0, alpha=0.0)
+            return replace(case, run=run, heater=heater, control=Control())
+        A = case.wall.inner_area
+        return replace(_flux_inner(case, Schedule(kt, [v / A for v in kv])), run=run)
+    except ModelError as exc:  # pragma: no cover - the power history was validated above
+        raise InputError(f"simulated_fit: {exc}") from None
+
+
+def _simulate(case, power, duration, n_points, initial=None, progress=False):
+    from ..solver.transient import run as run_transient
+    from ..system import build_system
+    tp, pp = _power_steps(power, duration)
+    sysm0 = build_system(case)
+    T_amb = _ambient(case, sysm0, 0.0)
+    T_start = T_amb if initial is None else float(initial)
+    c2 = _driven_case(case, tp, pp, duration, T_start, int(n_points))
+    res = run_transient(c2, progress=progress)
+    T = res.chamber_T if res.system.has_chamber else res.face_T[:, 0]
+    return c2, res, np.asarray(res.times, dtype=float), np.asarray(T, dtype=float), tp, pp, T_amb
+
+
+def _implied_for_compare(case, power, duration):
+    """rc_analysis numbers that a fit is compared with: at the steady state of ``case`` when
+    it has heat flowing there, else under the largest power of the history [W] held."""
+    try:
+        r = rc_analysis(case)
+    except ValueError:
+        tp, pp = _power_steps(power, duration)
+        if not np.any(pp > 0):
+            raise InputError("simulated_fit: the power history is zero throughout and the "
+                             "case has no heat flowing at its steady state, so there is no R "
+                             "or C to compare with; give a power.") from None
+        r = rc_analysis(_driven_case(case, np.array([0.0]), np.array([pp.max()]), duration,
+                                     case.run.initial if np.ndim(case.run.initial) == 0
+                                     else 293.15, 10))
+    return {k: r.get(k) for k in ("R_K_per_W", "C_stored_J_per_K", "C_total_J_per_K",
+                                  "C_effective_J_per_K", "tau_s", "first_moment_tau_s",
+                                  "T_hot_K", "T_amb_K", "Q_W")} | {
+        "slowest_time_constant_s": r["time_constants_s"][0] if r["time_constants_s"] else None}
+
+
+def simulated_fit(case, power, duration, *, R=None, initial=None, n_points=400,
+                  progress=False) -> dict:
+    """The one-node fit that fdwall's own simulated curve gives, like for like with a log.
+
+    ``case`` is run from a uniform start (default its ambient) with its heat input replaced by
+    the power history (no control: the heater of an enclosure, else a flux into the inner face
+    of a single wall, which replaces that face's own conditions), for the log length ``duration``; the heated node's curve (chamber, or
+    inner face) is fitted by the one-node model under the same power history, with R and C
+    free and with R fixed (``R`` [K/W], default the implied R of ``case``: the field practice
+    of reading R off the equilibrium).
+
+    Parameters
+    ----------
+    case : Case
+        The problem (its steady state, at ``run.steady_at`` or the end, gives the implied
+        values compared with).
+    power : float or (array_like, array_like)
+        Heater power [W], constant, or a pair (times [s], powers [W]): ``powers[i]`` holds from
+        ``times[i]`` to ``times[i+1]`` (times from 0, strictly increasing).
+    duration : float
+        Log length [s].
+    R : float, optional
+        Resistance held fixed in the second fit [K/W].
+    initial : float, optional
+        Uniform start temperature [K] (default the ambient).
+    n_points : int
+        Number of curve points [-].
+    progress : bool or None
+        Progress bar of the run (None: only for long runs), as ``fdwall.run``.
+
+    Returns
+    -------
+    dict
+        ``R_K_per_W`` [K/W], ``C_J_per_K`` [J/K], ``tau_s`` [s], ``rms_K`` [K] and
+        ``corr_logR_logC`` [-] of the free fit; ``C_R_fixed_J_per_K`` [J/K] and
+        ``rms_R_fixed_K`` [K] of the fit with R fixed at ``R_fixed_K_per_W``; ``implied``
+        (R_K_per_W, C_stored_J_per_K, C_total_J_per_K, C_effective_J_per_K, tau_s,
+        first_moment_tau_s, slowest_time_constant_s, T_hot_K, T_amb_K, Q_W of ``case``);
+        ``t_s`` [s], ``T_K`` [K] the simulated curve, ``T_amb_K`` [K], ``duration_s`` [s],
+        ``energy_residual_relative`` [-] of the run.
+    """
+    implied = _implied_for_compare(case, power, float(duration))
+    c2, res, t, T, tp, pp, T_amb = _simulate(case, power, float(duration), n_points, initial,
+                                             progress)
+    free = _fit_history(t, T, tp, pp, T_amb)
+    Rfix = float(implied["R_K_per_W"] if R is None else R)
+    fixed = _fit_history(t, T, tp, pp, T_amb, R=Rfix)
+    return {"R_K_per_W": free["R_K_per_W"], "C_J_per_K": free["C_J_per_K"],
+            "tau_s": free["tau_s"], "rms_K": free["rms_K"],
+            "corr_logR_logC": free["corr_logR_logC"], "R_fixed_K_per_W": Rfix,
+            "C_R_fixed_J_per_K": fixed["C_J_per_K"], "rms_R_fixed_K": fixed["rms_K"],
+            "implied": implied, "t_s": t, "T_K": T, "T_amb_K": T_amb,
+            "duration_s": float(duration),
+            "energy_residual_relative": float(res.relative_residual)}
+
+
+def fit_vs_log_length(case, power, lengths, *, R=None, points_per_log=200,
+                      progress=False) -> dict:
+    """How the one-node C fitted to fdwall's own simulated curve depends on the log length.
+
+    One run of ``case`` under the power history (as :func:`simulated_fit`) to the longest of
+    ``lengths`` [s]; each shorter log is the start of that curve (the same as a shorter run,
+    the model being causal) and is fitted with R and C free and with R fixed.
+
+    Parameters
+    ----------
+    case : Case
+        The problem.
+    power : float or (array_like, array_like)
+        Power history as in :func:`simulated_fit` [W], [s].
+    lengths : sequence of float
+        Log lengths [s], positive.
+    R : float, optional
+        Resistance for the fixed-R fits [K/W] (default the implied R).
+    points_per_log : int
+        Curve points in the shortest log (at least) [-].
+    progress : bool or None
+        Progress bar of the run (None: only for long runs), as ``fdwall.run``.
+
+    Returns
+    -------
+    dict
+        ``rows``: one dict per length with ``log_length_s`` [s], ``C_fit_J_per_K``,
+        ``R_fit_K_per_W``, ``corr_logR_logC``, ``C_fit_R_fixed_J_per_K`` [J/K], ``rms_K``,
+        ``rms_R_fixed_K`` [K] and the ratios ``C_R_fixed_over_C_effective``,
+        ``C_R_fixed_over_C_stored``, ``C_R_fixed_over_C_total`` [-], ``below_slowest_tau``
+        (True when the log is shorter than the slowest time constant: equilibrium not in
+        sight, R and C of the free fit not separately determined); ``implied`` (as in
+        :func:`simulated_fit`); ``closest`` the implied C nearest the fixed-R fit of the
+        longest log (``"C_effective"``, ``"C_stored"`` or ``"C_total"``);
+        ``R_fixed_K_per_W`` [K/W]; ``energy_residual_relative`` [-] of the run.
+    """
+    L = sorted(float(x) for x in lengths)
+    if not L or L[0] <= 0 or not all(math.isfinite(x) for x in L):
+        raise InputError("fit_vs_log_length: the log lengths must be positive times [s].")
+    n_points = int(min(max(points_per_log * L[-1] / L[0], 400), 20000))
+    implied = _implied_for_compare(case, power, L[-1])
+    c2, res, t, T, tp, pp, T_amb = _simulate(case, power, L[-1], n_points, progress=progress)
+    Rfix = float(implied["R_K_per_W"] if R is None else R)
+    rows = []
+    for Ln in L:
+        m = t <= Ln * (1 + 1e-9)
+        if m.sum() < 5:
+            raise InputError(f"fit_vs_log_length: the log length {Ln:g} s is too short for "
+                             f"the curve spacing ({t[1] - t[0]:g} s); give fewer decades.")
+        free = _fit_history(t[m], T[m], tp, pp, T_amb)
+        fixed = _fit_history(t[m], T[m], tp, pp, T_amb, R=Rfix)
+        Cf = fixed["C_J_per_K"]
+        rows.append({"log_length_s": Ln, "C_fit_J_per_K": free["C_J_per_K"],
+                     "R_fit_K_per_W": free["R_K_per_W"],
+                     "corr_logR_logC": free["corr_logR_logC"], "rms_K": free["rms_K"],
+                     "C_fit_R_fixed_J_per_K": Cf, "rms_R_fixed_K": fixed["rms_K"],
+                     "C_R_fixed_over_C_effective": Cf / implied["C_effective_J_per_K"]
+                     if implied["C_effective_J_per_K"] else None,
+                     "C_R_fixed_over_C_stored": Cf / implied["C_stored_J_per_K"],
+                     "C_R_fixed_over_C_total": Cf / implied["C_total_J_per_K"],
+                     "below_slowest_tau": bool(implied["slowest_time_constant_s"] is not None
+                                               and Ln < implied["slowest_time_constant_s"])})
+    last = rows[-1]["C_fit_R_fixed_J_per_K"]
+    cands = {k: implied[f"{k}_J_per_K"] for k in ("C_effective", "C_stored", "C_total")
+             if implied.get(f"{k}_J_per_K")}
+    closest = min(cands, key=lambda k: abs(math.log(last / cands[k])))
+    return {"rows": rows, "implied": implied, "closest": closest, "R_fixed_K_per_W": Rfix,
+            "energy_residual_relative": float(res.relative_residual)}

@@ -37,73 +37,41 @@ temperature of the last face), ``loss_W`` (steady heat flow out of the last face
 from __future__ import annotations
 
 import copy
-import csv
-import difflib
 import hashlib
 import itertools
 import os
 import re
-import socket
-import time
-from concurrent.futures import ProcessPoolExecutor
 
 import numpy as np
 import tomllib
 from scipy import stats
 from scipy.stats import qmc
 
-from ..atomic import atomic_path
 from ..case.loader import case_from_dict
 from ..errors import FdwallError, InputError
-from ..solver import solve_steady
 from ..units import parse_quantity
+from .study_outputs import (
+    DEFAULT_OUTPUTS,
+    TEXT_OUTPUTS,
+    _set,
+    check_outputs,
+    evaluate_variant,
+)
+from .study_run import SCHEDULER_TIMEOUT, execute, read_partial, read_stamp
+from .study_stats import (
+    check_correlation,
+    delta_indices,
+    iman_conover,
+    prcc,
+    sobol_indices,
+    sobol_unit_sample,
+    spearman,
+)
 
-_STEP = re.compile(r"([A-Za-z_][A-Za-z0-9_\-]*)(\[(\d+)\])?$")
-OUTPUTS = ("outer_T_K", "loss_W")
-
-
-def _steps(path: str, file: str):
-    out = []
-    for part in path.split("."):
-        m = _STEP.match(part)
-        if not m:
-            raise InputError(f"{file}: [[vary]] path {path!r}: part {part!r} is not a key or "
-                             "key[index] (allowed e.g. 'wall.layers[1].thickness').")
-        out.append(m.group(1))
-        if m.group(3) is not None:
-            out.append(int(m.group(3)))
-    return out
-
-
-def _set(data: dict, path: str, value, file: str) -> None:
-    """Set ``value`` at case-file ``path`` in the parsed case ``data`` (in place)."""
-    steps = _steps(path, file)
-    node = data
-    for i, s in enumerate(steps):
-        last = i == len(steps) - 1
-        if isinstance(s, int):
-            if not isinstance(node, list) or s >= len(node):
-                n = len(node) if isinstance(node, list) else 0
-                raise InputError(f"{file}: [[vary]] path {path!r}: index [{s}] is out of range "
-                                 f"(the base case has {n} entries there).")
-        else:
-            if not isinstance(node, dict) or (s not in node and not last):
-                near = difflib.get_close_matches(s, list(node) if isinstance(node, dict) else [])
-                hint = f" Did you mean {', '.join(near)}?" if near else ""
-                raise InputError(f"{file}: [[vary]] path {path!r}: key {s!r} is not in the base "
-                                 f"case.{hint}")
-            if last and s not in node:
-                near = difflib.get_close_matches(s, list(node))
-                if near:
-                    raise InputError(f"{file}: [[vary]] path {path!r}: key {s!r} is not in the "
-                                     f"base case. Did you mean {', '.join(near)}?")
-        if last:
-            node[s] = value
-        else:
-            node = node[s]
+OUTPUTS = DEFAULT_OUTPUTS
 
 
-METHODS = ("monte-carlo", "latin-hypercube")
+METHODS = ("monte-carlo", "latin-hypercube", "sobol")
 _PARAMS = {"uniform": (("low", "high"), ()),
            "normal": (("mean", "spread"), ("low", "high")),
            "lognormal": (("median", "log_spread"), ("low", "high")),
@@ -185,21 +153,33 @@ def _distribution(entry: dict, i: int, file: str):
     return dict(dist=dist, c_lo=c_lo, c_hi=c_hi, unit=unit, name=name)
 
 
-def sample_inputs(dists: list, method: str, n: int, seed: int) -> np.ndarray:
-    """``n`` x len(dists) sample (numbers in each entry's unit) by ``method``, seeded.
+def sample_inputs(dists: list, method: str, n: int, seed: int, correlation=None) -> np.ndarray:
+    """Sample (numbers in each entry's unit) of ``dists`` by ``method``, seeded.
 
-    Monte Carlo draws independent uniforms; Latin hypercube (scipy.stats.qmc) puts one point
-    in each of ``n`` equal-probability strata per input.  Uniforms map through the inverse
-    CDF, restricted to [F(low), F(high)] for a truncated entry.
+    Monte Carlo draws ``n`` rows of independent uniforms; Latin hypercube (scipy.stats.qmc)
+    puts one point in each of ``n`` equal-probability strata per input; ``sobol`` is
+    Saltelli's design of ``n`` (d + 2) rows for Sobol indices (SALib).  A ``correlation``
+    matrix (Spearman, d x d) reorders the uniforms by Iman & Conover (1982) before they map
+    through the inverse CDF, restricted to [F(low), F(high)] for a truncated entry.
     """
     rng = np.random.default_rng(seed)
     d = len(dists)
-    u = (qmc.LatinHypercube(d=d, seed=rng).random(n) if method == "latin-hypercube"
-         else rng.random((n, d)))
-    out = np.empty((n, d))
+    if method == "sobol":
+        u = sobol_unit_sample(d, n, seed)
+    else:
+        u = (qmc.LatinHypercube(d=d, seed=rng).random(n) if method == "latin-hypercube"
+             else rng.random((n, d)))
+        if correlation is not None:
+            u = iman_conover(u, np.asarray(correlation, float), rng)
+    out = np.empty(u.shape)
     for j, dd in enumerate(dists):
         out[:, j] = dd["dist"].ppf(dd["c_lo"] + u[:, j] * (dd["c_hi"] - dd["c_lo"]))
     return out
+
+
+SENSITIVITY = ("spearman", "prcc", "delta")
+#: delta (SALib, bootstrap) takes about a second per output and few hundred variants: on request
+DEFAULT_SENSITIVITY = ("spearman", "prcc")
 
 
 def _read_sampling(doc: dict, file: str, base_data: dict, seed) -> dict:
@@ -227,28 +207,65 @@ def _read_sampling(doc: dict, file: str, base_data: dict, seed) -> dict:
         if e["path"] in paths:
             raise InputError(f"{file}: uncertain[{i}].path {e['path']!r} is given twice.")
         paths.append(e["path"])
+    corr = None
+    if "correlation" in doc:
+        if method == "sobol":
+            raise InputError(f"{file}: correlation cannot be used with method = \"sobol\": "
+                             "Sobol indices need independent inputs. Use latin-hypercube or "
+                             "monte-carlo with sensitivity = [\"delta\"] for correlated "
+                             "inputs.")
+        corr = check_correlation(doc["correlation"], len(dists), file)
+    if method == "sobol":
+        if n < 2 or n & (n - 1):
+            raise InputError(f"{file}: samples = {n}: for method = \"sobol\" give a power of "
+                             "2 (e.g. 256 or 1024); the study then runs samples x (inputs + 2) "
+                             "variants.")
+        if len(dists) < 2:
+            raise InputError(f"{file}: method = \"sobol\" needs at least two [[uncertain]] "
+                             "inputs (with one, its index is 1 by definition).")
+        sens = ["sobol"]
+        if "sensitivity" in doc:
+            raise InputError(f"{file}: sensitivity: method = \"sobol\" computes Sobol indices "
+                             "only; leave the key out.")
+    else:
+        sens = doc.get("sensitivity", list(DEFAULT_SENSITIVITY))
+        if isinstance(sens, str):
+            sens = [sens]
+        if not isinstance(sens, list) or not sens or any(m not in SENSITIVITY for m in sens):
+            raise InputError(f"{file}: sensitivity = {doc.get('sensitivity')!r}: give a list "
+                             f"of methods from {', '.join(SENSITIVITY)} (the first ranks the "
+                             "inputs); Sobol indices need method = \"sobol\".")
     if seed is None:
         seed = int(np.random.SeedSequence().entropy % (2**63))
-    x = sample_inputs(dists, method, n, seed)
+    x = sample_inputs(dists, method, n, seed, corr)
     variants = [{p: (f"{v:.12g} {dd['unit']}".strip() if dd["unit"] else float(v))
                  for p, v, dd in zip(paths, row, dists)} for row in x]
     return dict(method=method, seed=seed, samples=x, uncertain=paths, variants=variants,
+                correlation=None if corr is None else corr.tolist(), sensitivity=sens,
+                base_samples=n,
                 vary=[(p, None) for p in paths],
                 distributions=[dd["name"] for dd in dists])
 
 
-def _read_limits(doc: dict, file: str) -> dict:
+def _limit_kind(out: str) -> str:
+    """Quantity kind of the [exceed] limit of a numeric output."""
+    if out == "touch_margin_K":
+        return "temperature_difference"
+    return {"K": "temperature", "W": "power", "J": "energy", "s": "time"}[out.rsplit("_", 1)[1]]
+
+
+def _read_limits(doc: dict, file: str, outputs=DEFAULT_OUTPUTS) -> dict:
     lim = doc.get("exceed", {})
     if not isinstance(lim, dict):
         raise InputError(f"{file}: [exceed] must be a table of output = limit "
                          "(e.g. outer_T_K = \"60 degC\").")
-    kinds = {"outer_T_K": "temperature", "loss_W": "power"}
+    numeric = [o for o in outputs if o not in TEXT_OUTPUTS]
     out = {}
     for k, v in lim.items():
-        if k not in kinds:
-            raise InputError(f"{file}: exceed.{k}: not an output; allowed: "
-                             f"{', '.join(kinds)}.")
-        out[k] = parse_quantity(v, kinds[k], f"exceed.{k}", file=file)
+        if k not in numeric:
+            raise InputError(f"{file}: exceed.{k}: not a numeric output of this study; "
+                             f"allowed: {', '.join(numeric)}.")
+        out[k] = parse_quantity(v, _limit_kind(k), f"exceed.{k}", file=file)
     return out
 
 
@@ -271,17 +288,33 @@ def read_study(path, seed=None) -> dict:
                          "base case file, relative to the study file.")
     base_file = os.path.join(os.path.dirname(os.path.abspath(file)), base)
     try:
-        base_data = tomllib.loads(open(base_file, "rb").read().decode("utf-8"))
+        base_raw = open(base_file, "rb").read()
+        base_data = tomllib.loads(base_raw.decode("utf-8"))
     except OSError as e:
         raise InputError(f"{file}: key 'base': cannot read {base_file} ({e.strerror}).") from None
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as e:
         raise InputError(f"{file}: key 'base': {base_file} is not valid TOML ({e}).") from None
-    limits = _read_limits(doc, file)
-    sha = hashlib.sha256(raw).hexdigest()
+    try:
+        base_case = case_from_dict(copy.deepcopy(base_data), base_file)
+    except (FdwallError, ValueError) as e:
+        raise InputError(f"{file}: key 'base': the base case does not load: "
+                         f"{' '.join(str(e).split())}") from None
+    outputs = check_outputs(doc.get("outputs"), file, base_case)
+    limits = _read_limits(doc, file, outputs)
+    skin_limit = None
+    if "skin_limit" in doc:
+        skin_limit = parse_quantity(doc["skin_limit"], "temperature", "skin_limit", file=file)
+    elif "time_to_limit_s" in outputs:
+        raise InputError(f"{file}: output time_to_limit_s needs skin_limit, the outer-face "
+                         "temperature whose first reaching is timed (e.g. skin_limit = "
+                         "\"60 degC\").")
+    # the hash covers the study and the base case: a change to either is a new study
+    sha = hashlib.sha256(raw + b"\0" + base_raw).hexdigest()
+    common = dict(file=file, base_file=base_file, base=base_data, sha=sha, limits=limits,
+                  outputs=outputs, skin_limit=skin_limit, seed_given=seed is not None)
     if "uncertain" in doc:
         smp = _read_sampling(doc, file, base_data, seed)
-        return dict(file=file, base_file=base_file, base=base_data, sha=sha, limits=limits,
-                    **smp)
+        return dict(**common, input_paths=list(smp["uncertain"]), **smp)
     vary = doc.get("vary")
     if not isinstance(vary, list) or not vary:
         raise InputError(f"{file}: no [[vary]] or [[uncertain]] entries; a study needs at "
@@ -299,82 +332,100 @@ def read_study(path, seed=None) -> dict:
         items.append((v["path"], vals))
     variants = [dict(zip([p for p, _ in items], combo))
                 for combo in itertools.product(*[vals for _, vals in items])]
-    return dict(file=file, base_file=base_file, base=base_data, vary=items,
-                variants=variants, sha=sha, limits=limits, method="grid", seed=None)
+    return dict(**common, vary=items, input_paths=[p for p, _ in items], variants=variants,
+                method="grid", seed=None)
 
 
-def run_variant(base: dict, edits: dict, name: str = "<variant>") -> dict:
-    """Apply ``edits`` (path -> value) to the base case dict, load and solve steady.
+def run_variant(base: dict, edits: dict, name: str = "<variant>", outputs=DEFAULT_OUTPUTS,
+                skin_limit=None) -> dict:
+    """Apply ``edits`` (path -> value) to the base case dict, load it and compute ``outputs``.
 
-    Returns a row: outputs in SI (``outer_T_K`` [K], ``loss_W`` [W]), ``status``, ``error``,
-    ``run_time_s`` [s], ``host``, ``worker``.
+    Returns a row: outputs in SI (keys with unit suffix, see
+    :mod:`fdwall.analyses.study_outputs`), ``status``, ``error``, ``run_time_s`` [s],
+    ``host``, ``worker``.  A failure is recorded in the row, never raised.
     """
-    t0 = time.perf_counter()
-    row = {k: float("nan") for k in OUTPUTS}
-    try:
-        data = copy.deepcopy(base)
-        for p, v in edits.items():
-            _set(data, p, v, name)
-        case = case_from_dict(data, name)
-        ss = solve_steady(case)
-        row["outer_T_K"] = float(ss.face_T[-1])
-        row["loss_W"] = float(-ss.face_flow[-1])
-        row.update(status="done", error="")
-    except (FdwallError, ValueError, ArithmeticError) as e:
-        row.update(status="failed", error=str(e).replace("\n", " "))
-    row.update(run_time_s=time.perf_counter() - t0, host=socket.gethostname(),
-               worker=str(os.getpid()))
-    return row
+    return evaluate_variant(base, edits, name, outputs, skin_limit)
 
 
-def _job(args):
-    base, edits, name = args
-    return run_variant(base, edits, name)
-
-
-def run_study(path, out_dir=".", workers=None, seed=None) -> tuple[str, list]:
-    """Run every variant of study file ``path``; write DIR/<stem>-study.csv atomically.
-
-    Returns (csv path, rows).  ``workers`` local processes (default: all cores; 1 = serial).
-    ``path`` may also be a study already read by :func:`read_study`.  ``seed`` fixes the
-    random sample (same seed, same table apart from run time, host and worker).
-    """
-    st = path if isinstance(path, dict) else read_study(path, seed=seed)
+def table_path(st: dict, out_dir) -> str:
+    """``DIR/<stem>-study.csv`` of study ``st`` (a trailing ``-study`` of the stem dropped)."""
     stem = os.path.splitext(os.path.basename(st["file"]))[0]
     if stem.endswith("-study"):
         stem = stem[: -len("-study")]
-    jobs = [(st["base"], v, f"{st['file']} variant {i}") for i, v in enumerate(st["variants"])]
-    workers = workers or os.cpu_count() or 1
-    if workers == 1:
-        results = [_job(j) for j in jobs]
-    else:
-        with ProcessPoolExecutor(workers) as ex:
-            results = list(ex.map(_job, jobs, chunksize=max(1, len(jobs) // (4 * workers))))
-    rows = []
-    for i, (v, r) in enumerate(zip(st["variants"], results)):
-        rows.append({"variant": i, **v, **r})
-    csv_path = os.path.join(out_dir, f"{stem}-study.csv")
-    head = ["variant"] + [p for p, _ in st["vary"]] + [
-        "outer_T [K]", "loss [W]", "status", "error", "run_time [s]", "host", "worker"]
-    keys = ["variant"] + [p for p, _ in st["vary"]] + list(OUTPUTS) + [
-        "status", "error", "run_time_s", "host", "worker"]
-    with atomic_path(csv_path) as tmp, open(tmp, "w", newline="") as f:
-        w = csv.writer(f)
-        w.writerow([f"# study_sha256={st['sha']} method={st['method']} seed={st['seed']}"])
-        w.writerow(head)
-        for r in rows:
-            w.writerow([r[k] for k in keys])
-    return csv_path, rows
+    return os.path.join(os.fspath(out_dir), f"{stem}-study.csv")
+
+
+def run_study(path, out_dir=".", workers=None, seed=None, *, scheduler=None, restart=False,
+              batch=None, progress=False, on_batch=None,
+              timeout=SCHEDULER_TIMEOUT) -> tuple[str, list]:
+    """Run every variant of study file ``path``; write DIR/<stem>-study.csv atomically.
+
+    Returns (csv path, rows in variant order).  ``workers`` local processes (default: all
+    cores; 1 = in this process), or ``scheduler`` the address of a Dask scheduler (an
+    InputError if none answers within ``timeout`` [s]).  ``path`` may also be a study
+    already read by :func:`read_study`.  ``seed`` fixes the random sample (same seed, same
+    table apart from run time, host and worker).
+
+    Resume: when the table already exists for the same study (same hash of the study and
+    base case files), only the missing variants run; a seed drawn for the first run is
+    taken from the table (and a study dict passed in is updated to that sample).  A table
+    of another study is refused (InputError) unless
+    ``restart``, which starts the table over.  ``on_batch(indices, rows)`` is called after
+    each batch is written (see :func:`fdwall.analyses.study_run.execute`).
+    """
+    st = path if isinstance(path, dict) else read_study(path, seed=seed)
+    csv_path = table_path(st, out_dir)
+    rows = {}
+    stamp = None if restart else read_stamp(csv_path)
+    if stamp is not None:
+        if stamp["sha"] != st["sha"]:
+            raise InputError(
+                f"{csv_path} holds a partial or finished table of a different study: the "
+                f"study file {st['file']} or its base case changed since that table was "
+                "written (their hash differs). Run with --restart to start the table over, "
+                "or choose another --out DIR.")
+        if st["method"] != "grid" and stamp["seed"] != str(st["seed"]):
+            if st.get("seed_given"):
+                raise InputError(
+                    f"{csv_path} was drawn with seed {stamp['seed']}, not {st['seed']}: "
+                    f"resume with --seed {stamp['seed']} (or without --seed), or run with "
+                    "--restart to start over with the new seed.")
+            # the caller's study dict is updated in place: its samples are the table's
+            st.update(read_study(st["file"], seed=int(stamp["seed"])))
+        rows = read_partial(csv_path, st)
+    todo = [i for i in range(len(st["variants"])) if i not in rows]
+    execute(st, todo, rows, csv_path, workers=workers, scheduler=scheduler, batch=batch,
+            progress=progress, on_batch=on_batch, timeout=timeout)
+    st["resumed"] = len(st["variants"]) - len(todo)
+    return csv_path, [rows[i] for i in sorted(rows)]
 
 
 def read_table(path):
-    """Read a study table (DIR/<stem>-study.csv) into a pandas DataFrame.
+    """Read a study table into a pandas DataFrame: ``DIR/<stem>-study.csv`` or ``.h5``.
 
-    Column names keep their ``name [unit]`` headers; the study hash line is skipped.
+    Column names keep their ``name [unit]`` headers; the study hash line of the CSV is
+    skipped; from HDF5 the ``tables/variants`` group is read, columns in the CSV's order.
     """
     import pandas as pd  # optional heavy library, imported lazily
+    if os.fspath(path).endswith((".h5", ".hdf5")):
+        import h5py
+        with h5py.File(path, "r") as h:
+            g = h["tables/variants"]
+            cols = {}
+            for k in g:
+                v = g[k][()]
+                if v.dtype.kind in "OS":
+                    v = [x.decode() if isinstance(x, bytes) else x for x in v]
+                cols[k] = v
+        order = [c for c in pd.read_csv(_csv_beside(path), comment="#", nrows=0).columns
+                 if c in cols] if os.path.exists(_csv_beside(path)) else list(cols)
+        return pd.DataFrame({c: cols[c] for c in order})
     return pd.read_csv(path, comment="#", keep_default_na=False,
                        na_values=["nan"])
+
+
+def _csv_beside(h5_path) -> str:
+    return os.path.splitext(os.fspath(h5_path))[0] + ".csv"
 
 
 def quantile_interval(n: int, p: float, confidence: float = 0.95):
@@ -417,6 +468,86 @@ def _samples_for_bounded(p: float, confidence: float) -> int:
 PERCENTS = (5, 50, 95)
 
 
+def _sens_columns(st: dict) -> list:
+    cols = ["output", "input"]
+    for m in st.get("sensitivity", ["spearman"]):
+        cols += {"spearman": ["spearman_rho", "p_value"], "prcc": ["prcc", "prcc_p_value"],
+                 "delta": ["delta", "delta_conf", "delta_S1", "delta_S1_conf"],
+                 "sobol": ["sobol_S1", "sobol_S1_conf", "sobol_ST", "sobol_ST_conf"]}[m]
+    return cols + ["ranked_by", "rank"]
+
+
+_RANK_KEY = {"spearman": "spearman_rho", "prcc": "prcc", "delta": "delta", "sobol": "sobol_ST"}
+
+
+def _sensitivity(st, out, x, y, n, nf, se, summ, base):
+    """Append the sensitivity rows of output ``out`` to the table ``se`` (columns lists)."""
+    d = len(st["uncertain"])
+    methods = st.get("sensitivity", ["spearman"])
+    cols = {}
+    fin = np.isfinite(y)
+    xf, yf = x[fin], y[fin]          # 'never reached' (inf) cannot enter delta or Sobol
+    for m in methods:
+        if m == "spearman":        # ranks: an 'inf' (never reached) ranks above all
+            cols["spearman_rho"], cols["p_value"] = spearman(x, y)
+        elif m == "prcc":
+            cols["prcc"], cols["prcc_p_value"] = prcc(x, y)
+        elif m == "delta":
+            r = delta_indices(xf, yf, st["seed"])
+            cols.update(delta=r["delta"], delta_conf=r["delta_conf"], delta_S1=r["S1"],
+                        delta_S1_conf=r["S1_conf"])
+        elif m == "sobol":
+            if nf or not np.all(fin) or len(np.unique(y)) < 2:
+                cols.update({k: np.full(d, np.nan) for k in ("sobol_S1", "sobol_S1_conf",
+                                                             "sobol_ST", "sobol_ST_conf")})
+            else:
+                r = sobol_indices(y, d, st["seed"])
+                cols.update(sobol_S1=r["S1"], sobol_S1_conf=r["S1_conf"], sobol_ST=r["ST"],
+                            sobol_ST_conf=r["ST_conf"])
+    key = _RANK_KEY[methods[0]]
+    v = np.abs(cols[key])
+    order = sorted(range(d), key=lambda j: -v[j] if np.isfinite(v[j]) else 1.0)
+    for rank, j in enumerate(order, 1):
+        se["output"].append(out)
+        se["input"].append(st["uncertain"][j])
+        for c in cols:
+            se[c].append(float(cols[c][j]))
+        se["ranked_by"].append(key)
+        se["rank"].append(rank)
+    if d and np.isfinite(v[order[0]]):
+        summ[f"{base}_top_input"] = st["uncertain"][order[0]]
+
+
+def _sens_notes(st: dict, n_rows: int, nf: int) -> list:
+    """What the sensitivity figures mean and how many variants they need."""
+    m = st.get("sensitivity", ["spearman"])
+    out = []
+    if "sobol" in m:
+        d = len(st["uncertain"])
+        out.append(f"sensitivity: Sobol first-order (S1) and total (ST) indices from "
+                   f"Saltelli's design, {st['base_samples']} base samples x ({d} inputs + 2) "
+                   f"= {n_rows} variants, with 95 % bootstrap half-widths (_conf); inputs "
+                   "are ranked by ST; if a half-width exceeds about 0.1 double samples")
+        return out
+    names = {"spearman": "Spearman rank correlation (monotone effects; misses effects "
+                         "that rise and fall)",
+             "prcc": "partial rank correlation (the other inputs' monotone effects "
+                     "removed; p-values from a t-test)",
+             "delta": "Borgonovo's delta (moment-independent: any shape of effect, "
+                      "correlated inputs allowed; with a first-order index S1)"}
+    out.append("sensitivity: " + "; ".join(names[k] for k in m) + f"; inputs ranked by "
+               f"{m[0]}")
+    if "delta" in m:
+        out.append("sample size for delta: its bootstrap half-width (delta_conf) shrinks as "
+                   "1/sqrt(n); a few hundred successful variants usually separate inputs "
+                   "whose delta differs by 0.05")
+    if st.get("correlation") is not None:
+        out.append("inputs are correlated as given (Iman-Conover rank correlation): "
+                   "Spearman and delta then share an input's effect with the inputs "
+                   "correlated with it; partial rank correlation separates them")
+    return out
+
+
 def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
     """Uncertainty summary of a sampled study: dict(summary, tables, notes, references, json).
 
@@ -433,20 +564,35 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
             "confidence": confidence}
     qt = {k: [] for k in ("output", "percent", "value_si", "ci_low_si", "ci_high_si",
                           "ci_coverage", "unit")}
-    se = {k: [] for k in ("output", "input", "spearman_rho", "p_value", "rank")}
+    se = {k: [] for k in _sens_columns(st)}
     ex = {k: [] for k in ("output", "limit_si", "unit", "exceed_count", "probability",
                           "ci_low", "ci_high")}
-    for out in OUTPUTS:
+    outs = st.get("outputs", OUTPUTS)
+    if "touch_verdict" in outs:
+        k = sum(1 for i in done if rows[i]["touch_verdict"] == "above-limit")
+        lo, hi = wilson_interval(k, n, confidence)
+        summ["touch_above_limit_probability"] = k / n if n else float("nan")
+        summ["touch_above_limit_probability_low"] = lo
+        summ["touch_above_limit_probability_high"] = hi
+        for key, val in zip(ex, ("touch_verdict", float("nan"), "", k,
+                                 k / n if n else float("nan"), lo, hi)):
+            ex[key].append(val)
+    for out in [o for o in outs if o not in TEXT_OUTPUTS]:
         base, suf = out.rsplit("_", 1)
         suf = "_" + suf
         unit = suf[1:]
         y = np.array([rows[i][out] for i in done], dtype=float)
         ys = np.sort(y)
-        summ[f"{base}_mean{suf}"] = float(y.mean()) if n else float("nan")
-        summ[f"{base}_std{suf}"] = float(y.std(ddof=1)) if n > 1 else float("nan")
+        finite = bool(np.all(np.isfinite(y)))   # 'inf' = limit never reached: no mean
+        summ[f"{base}_mean{suf}"] = float(y.mean()) if n and finite else float("nan")
+        summ[f"{base}_std{suf}"] = float(y.std(ddof=1)) if n > 1 and finite else float("nan")
+        if not finite:
+            summ[f"{base}_never_reached"] = int(np.sum(np.isinf(y)))
         for pc in PERCENTS:
             p = pc / 100
-            v = float(np.quantile(y, p)) if n else float("nan")
+            # an 'inf' (limit never reached) enters as the largest values: order statistic
+            how = "inverted_cdf" if np.isinf(y).any() else "linear"
+            v = float(np.quantile(y, p, method=how)) if n else float("nan")
             r, s, cover = quantile_interval(n, p, confidence) if n else (0, 1, float("nan"))
             lo = float(ys[r - 1]) if r >= 1 else float("nan")
             hi = float(ys[s - 1]) if s <= n else float("nan")
@@ -466,20 +612,7 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
             summ[f"{base}_exceed_probability_high"] = hi
             for key, val in zip(ex, (out, lim, unit, k, prob, lo, hi)):
                 ex[key].append(val)
-        rho = []
-        for j, path in enumerate(st["uncertain"]):
-            if n >= 3 and np.ptp(y) > 0 and np.ptp(x[:, j]) > 0:
-                res = stats.spearmanr(x[:, j], y)
-                rho.append((path, float(res.statistic), float(res.pvalue)))
-            else:
-                rho.append((path, float("nan"), float("nan")))
-        order = sorted(range(len(rho)), key=lambda i: -abs(rho[i][1])
-                       if np.isfinite(rho[i][1]) else 0.0)
-        for rank, i in enumerate(order, 1):
-            for key, val in zip(se, (out, rho[i][0], rho[i][1], rho[i][2], rank)):
-                se[key].append(val)
-        if rho and np.isfinite(rho[order[0]][1]):
-            summ[f"{base}_top_input"] = rho[order[0]][0]
+        _sensitivity(st, out, x, y, n, nf, se, summ, base)
     need = _samples_for_bounded(0.95, confidence)
     summ["samples_for_bounded_p95_interval"] = need
     notes = [f"random sample: {st['method']}, {len(rows)} variants, seed {st['seed']} "
@@ -487,13 +620,26 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
              f"quantiles p05/p50/p95 with {confidence:.0%} distribution-free intervals from "
              "order statistics; NaN bounds mean the sample is too small for that side "
              f"(at least {need} successful variants bound both sides of the 95 % quantile)",
-             "sensitivity: Spearman rank correlation of each input with each output; it "
-             "ranks monotone effects and misses effects that rise and fall"]
-    if nf:
+             ] + _sens_notes(st, len(rows), nf)
+    if nf and st["method"] != "sobol":
         notes.append(f"{nf} of {len(rows)} variants failed ({nf / len(rows):.1%}) and are left "
                      "out of every figure above; if the failures gather in one part of the "
-                     "input range the quantiles and probabilities are biased towards the "
-                     "rest; see the error column of the table")
+                     "input range the quantiles, probabilities and sensitivity measures are "
+                     "biased towards the rest; see the error column of the table")
+    elif nf:
+        notes.append(f"{nf} of {len(rows)} variants failed ({nf / len(rows):.1%}): the Sobol "
+                     "design is incomplete, so no Sobol index is given (NaN); the quantiles "
+                     "leave the failed variants out and are biased towards the rest if the "
+                     "failures gather in one part of the input range; see the error column")
+    for e_out, e_p in zip(ex["output"], ex["probability"]):
+        if n and 0 < e_p < 1:
+            z = float(stats.norm.ppf(0.5 + confidence / 2))
+            need_p = int(np.ceil(z * z * (1 - e_p) / (e_p * 0.2 ** 2)))
+            key = e_out.rsplit("_", 1)[0] if e_out != "touch_verdict" else "touch_above_limit"
+            summ[f"{key}_samples_for_20pct_error"] = need_p
+            notes.append(f"sample size for {e_out}: the probability {e_p:.3g} is known to "
+                         f"+-20 % (at {confidence:.0%}) with about {need_p} successful "
+                         f"variants (z^2 (1 - p) / (0.2^2 p)); this study has {n}")
     if ex["output"]:
         notes.append("probability of exceeding a limit: fraction of successful variants "
                      f"above it, with a {confidence:.0%} Wilson score interval")
@@ -501,6 +647,13 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
             "Nagaraja, Order Statistics, 3rd ed., sec. 7.1)",
             "Wilson score interval of a proportion (E. B. Wilson, JASA 22, 1927)",
             "Spearman rank correlation, scipy.stats.spearmanr",
+            "partial rank correlation (S. Marino et al., J. Theor. Biol. 254, 178-196, 2008)",
+            "delta moment-independent measure (E. Borgonovo, Reliab. Eng. Syst. Saf. 92, "
+            "771-784, 2007; SALib.analyze.delta)",
+            "Sobol indices by Saltelli's design (A. Saltelli et al., Comput. Phys. Commun. "
+            "181, 259-270, 2010; SALib.sample.sobol, SALib.analyze.sobol)",
+            "induced rank correlation (R. L. Iman & W. J. Conover, Commun. Statist. B 11, "
+            "311-334, 1982)",
             "Latin hypercube sampling, scipy.stats.qmc.LatinHypercube (McKay, Beckman & "
             "Conover, Technometrics 21, 1979)"]
     tables = {"quantiles": qt, "sensitivity": se}

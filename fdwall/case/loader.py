@@ -222,6 +222,7 @@ class _Loader:
         top = self.top
         title = top.text("title", self.stem)
         top.text("description", "")
+        ident = self._report(top.table("report", S.REPORT, "the [report] table", None))
         self.user_materials = self._materials()
         run = top.table("run", S.RUN, "the [run] table")
         duration = run.quantity("duration", "time", positive=True)
@@ -299,11 +300,28 @@ class _Loader:
         with _model(self.file, "(case)", "the case"):
             if kind == "wall":
                 case = Case(run=settings, wall=walls[0], inner=inner, outer=outer,
-                            heater=heater, control=control, name=title, source=self.text)
+                            heater=heater, control=control, name=title, source=self.text,
+                            report=ident)
             else:
                 case = Case(run=settings, walls=tuple(ews), chamber=chamber, heater=heater,
-                            control=control, name=title, source=self.text)
+                            control=control, name=title, source=self.text, report=ident)
         return self._check(case)
+
+    def _report(self, sec) -> tuple:
+        """The [report] table as ((key, text), ...) in the order of schema.REPORT."""
+        if sec is None:
+            return ()
+        out = []
+        for k in S.REPORT:
+            if not sec.has(k):
+                continue
+            v = sec.raw(k)
+            if k == "date" and hasattr(v, "isoformat"):   # a TOML date or date-time
+                v = v.isoformat()
+            if not isinstance(v, str):
+                raise sec.error(k, f"expected text, got {v!r}", S.REPORT[k])
+            out.append((k, v))
+        return tuple(out)
 
     def _check_outputs(self, run, duration, out_every, n_snaps):
         """Refuse runs that would store more results than memory holds."""

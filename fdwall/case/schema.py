@@ -17,6 +17,16 @@ TOP = {
     "chamber": "table [chamber]: the lumped chamber of an enclosure",
     "heater": "table [heater]: an electric heater",
     "control": "table [control]: how the heater is switched",
+    "report": "table [report]: identification block of the HTML report (project, author ...)",
+}
+
+REPORT = {
+    "project": "text: project name or number",
+    "equipment": "text: the equipment the case describes",
+    "author": "text: who made the calculation",
+    "checker": "text: who checked it",
+    "revision": "text: revision of the calculation",
+    "date": 'text or a TOML date, e.g. 2026-12-03',
 }
 
 RUN = {

@@ -75,6 +75,9 @@ def cmd_run(args) -> int:
     except OSError as exc:
         raise WriteError(f"cannot write the results to '{outdir}': {exc.strerror or exc}. "
                          "Choose another folder with --out DIR.") from None
+    if args.report:  # convergence check and report data, stored in the result first
+        from ..analyses import convergence
+        convergence.store_report_data(result, h5, case, progress=progress)
     report = common.write_report(args, h5)
     if report:
         files.append(str(report))

@@ -7,7 +7,7 @@ from . import common
 
 __all__ = ["register", "cmd_report"]
 
-_IDENT = ("project", "equipment", "author", "checker", "revision")
+_IDENT = ("project", "equipment", "author", "checker", "revision", "date")
 
 
 def cmd_report(args) -> int:
@@ -40,5 +40,7 @@ def register(sub) -> None:
     p.add_argument("--units", choices=("si", "us"), default="si",
                    help="display units: si (degC, default) or us (degF, in, Btu/h ...)")
     for k in _IDENT:
-        p.add_argument(f"--{k}", default=None, metavar="TEXT", help=f"{k} for the identification block")
+        p.add_argument(f"--{k}", default=None, metavar="TEXT",
+                       help=f"{k} for the identification block (overrides the case file's "
+                            "[report] table)")
     p.set_defaults(func=cmd_report)

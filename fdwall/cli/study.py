@@ -3,9 +3,14 @@ from __future__ import annotations
 
 import datetime
 import os
+import signal
+import sys
+import threading
 from pathlib import Path
 
-from ..analyses.study import OUTPUTS, read_study, run_study, uncertainty_summary
+from ..analyses.study import read_study, run_study, table_path, uncertainty_summary
+from ..analyses.study_outputs import TEXT_OUTPUTS
+from ..analyses.study_run import table_header
 from ..cautions import SAFETY_CAUTION
 from ..errors import InputError as LibInputError
 from ..h5tree import write_file
@@ -13,37 +18,67 @@ from . import common
 from .common import InputError, WriteError
 
 
+class _Terminated(Exception):
+    """SIGTERM arrived while the study ran (the table holds every finished batch)."""
+
+
+def _on_term(signum, frame):
+    raise _Terminated()
+
+
 def cmd_study(args) -> int:
     if args.workers is not None and args.workers < 1:
         raise InputError(f"--workers: {args.workers} is not allowed; give a whole number >= 1.")
-    if args.scheduler:
-        raise InputError("--scheduler: running on a Dask scheduler is not available yet in this "
-                         "version; leave the option out to run on local processes.")
+    if args.scheduler is not None and not args.scheduler.strip():
+        raise InputError("--scheduler: the address is empty; give the address of a Dask "
+                         "scheduler, e.g. tcp://10.0.0.5:8786.")
     stem = Path(args.study).stem
     stem = stem[:-len("-study")] if stem.endswith("-study") else stem
     outdir = common.output_dir(args, stem)
+    try:
+        st = read_study(args.study, seed=args.seed)
+    except LibInputError as exc:
+        raise InputError(str(exc)) from None
     try:
         outdir.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
         raise WriteError(f"cannot create '{outdir}': {exc.strerror or exc}. Choose another "
                          "folder with --out DIR.") from None
+    show = args.progress if args.progress is not None else (
+        sys.stderr.isatty() and not args.quiet and not args.json)
+    old = None
+    if threading.current_thread() is threading.main_thread():
+        old = signal.signal(signal.SIGTERM, _on_term)
     try:
-        st = read_study(args.study, seed=args.seed)
-        csv_path, rows = run_study(st, outdir, workers=args.workers)
+        csv_path, rows = run_study(st, outdir, workers=args.workers, scheduler=args.scheduler,
+                                   restart=args.restart, progress=show)
     except LibInputError as exc:
         raise InputError(str(exc)) from None
+    except (KeyboardInterrupt, _Terminated) as exc:
+        print(f"fdwall: study interrupted; the table {table_path(st, outdir)} holds every "
+              "finished batch. Run the same command again to resume (--restart starts "
+              "over).", file=sys.stderr)
+        return common.EXIT_TERMINATED if isinstance(exc, _Terminated) else \
+            common.EXIT_INTERRUPTED
+    finally:
+        if old is not None:
+            signal.signal(signal.SIGTERM, old)
+    if st.get("resumed") and not args.quiet and not args.json:
+        print(f"fdwall: resumed {csv_path}: {st['resumed']} variants were already in the "
+              "table and were not run again.", file=sys.stderr)
     done = [r for r in rows if r["status"] == "done"]
-    keys = [k for k in rows[0] if k not in ("status", "error", "host", "worker")] if rows else []
-    table = {k.replace(".", "/") if k not in OUTPUTS else k: [r[k] for r in rows] for k in keys}
-    table.update(status=[r["status"] for r in rows], error=[r["error"] for r in rows])
+    keys, head = table_header(st)
+    table = {h: [r[k] for r in rows] for k, h in zip(keys, head)}
     summary = {"variants": len(rows), "done": len(done), "failed": len(rows) - len(done)}
-    for k in OUTPUTS:
+    for k in [o for o in st["outputs"] if o not in TEXT_OUTPUTS]:
         vals = [r[k] for r in done]
         if vals:
-            summary[f"{k[:-2]}_max{k[-2:]}"] = max(vals)
-            summary[f"{k[:-2]}_min{k[-2:]}"] = min(vals)
+            name, unit = k.rsplit("_", 1)
+            summary[f"{name}_max_{unit}"] = max(vals)
+            summary[f"{name}_min_{unit}"] = min(vals)
     notes = ["every combination of the [[vary]] values is one variant"]
-    refs = ["steady state by fdwall.solve_steady"]
+    refs = ["steady state by fdwall.solve_steady, transient outputs by fdwall.run (one "
+            "system per variant shared by both)"]
     tables = {"variants": table}
     unc = None
     if st["method"] != "grid":
@@ -66,6 +101,13 @@ def cmd_study(args) -> int:
     except OSError as exc:
         raise WriteError(f"cannot write '{h5}': {exc.strerror or exc}.") from None
     files = [str(csv_path), str(h5)]
+    if not getattr(args, "no_plots", False) and rows:
+        from ..report.study_plots import write_study_plots
+        try:
+            files += write_study_plots(st, rows, unc, str(outdir), stem)
+        except OSError as exc:
+            raise WriteError(f"cannot write the study plots into '{outdir}': "
+                             f"{exc.strerror or exc}.") from None
     report = common.write_report(args, h5)
     if report:
         files.append(str(report))
@@ -82,12 +124,20 @@ def cmd_study(args) -> int:
                 print(f"  {q['output']:>10} p{q['percent']:02d} = {q['value_si']:.6g} "
                       f"{q['unit']}  ({q['ci_low_si']:.6g} .. {q['ci_high_si']:.6g})")
             for e in unc["json"]["exceedance"]:
+                if e["output"] == "touch_verdict":
+                    print(f"  P(peak skin above the touch limit) = {e['probability']:.3f}  "
+                          f"({e['ci_low']:.3f} .. {e['ci_high']:.3f})")
+                    continue
                 print(f"  P({e['output']} > {e['limit_si']:.6g} {e['unit']}) = "
                       f"{e['probability']:.3f}  ({e['ci_low']:.3f} .. {e['ci_high']:.3f})")
-            for o in OUTPUTS:
+            for o in [o for o in st["outputs"] if o not in TEXT_OUTPUTS]:
                 top = summary.get(f"{o.rsplit('_', 1)[0]}_top_input")
                 if top:
-                    print(f"  {o}: strongest input {top}")
+                    how = unc["tables"]["sensitivity"]["ranked_by"][0]
+                    print(f"  {o}: strongest input {top} (by {how})")
+            for note in unc["notes"]:
+                if note.startswith(("sample size", "sensitivity")) or "failed" in note:
+                    print(f"  note: {note}")
         print(f"  {SAFETY_CAUTION}")
         for f in files:
             print(f"  {f}")
@@ -102,10 +152,14 @@ def register(sub) -> None:
     p.add_argument("--workers", type=int, default=None, metavar="N",
                    help="local worker processes (default: all cores)")
     p.add_argument("--scheduler", default=None, metavar="ADDRESS",
-                   help="Dask scheduler address (not available yet)")
+                   help="run on the Dask distributed cluster of this scheduler (e.g. "
+                        "tcp://10.0.0.5:8786); an address that does not answer within 10 s "
+                        "is an error (exit 2)")
     p.add_argument("--seed", type=int, default=None, metavar="N",
                    help="random seed of an [[uncertain]] sample (same seed, same table; "
                         "grids do not use it)")
-    p.add_argument("--restart", action="store_true", help="start the table over")
+    p.add_argument("--restart", action="store_true",
+                   help="start the table over (default: resume a partial table of the same "
+                        "study in DIR)")
     common.add_output_options(p)
     p.set_defaults(func=cmd_study)

@@ -111,13 +111,28 @@ def read_result(h5_path) -> tuple[dict, dict]:
     return attrs, data
 
 
-def _images(h5_path: Path):
-    """PNG plots written beside the result (<stem>*.png) as base64 data URIs."""
-    out = []
+#: A PNG beside the result older than the result's ``created`` time by more than this is
+#: from an earlier run (e.g. the result was rewritten with --no-plots) and is not embedded [s].
+STALE_PLOT_S = 120.0
+
+
+def _images(h5_path: Path, created: str = ""):
+    """PNG plots written beside the result (<stem>*.png) as base64 data URIs; plots older
+    than the result (by more than :data:`STALE_PLOT_S`) belong to an earlier run: skipped,
+    and returned by name as the second item."""
+    from datetime import datetime
+    try:
+        t_created = datetime.fromisoformat(str(created).replace("Z", "+00:00")).timestamp()
+    except ValueError:
+        t_created = None
+    out, stale = [], []
     for png in sorted(h5_path.parent.glob(f"{h5_path.stem}*.png")):
+        if t_created is not None and png.stat().st_mtime < t_created - STALE_PLOT_S:
+            stale.append(png.name)
+            continue
         uri = "data:image/png;base64," + base64.b64encode(png.read_bytes()).decode("ascii")
         out.append((png.stem, uri))
-    return out
+    return out, stale
 
 
 def _q(value, unit, system, key=""):
@@ -128,6 +143,165 @@ def _q(value, unit, system, key=""):
         return _fmt(value), ""
     conv, label = _units.display(float(value), unit, system, key=key)
     return _fmt(float(conv)), label
+
+
+_NOT_STORED = ("not computed: this result file does not hold it (fdwall run CASE --report "
+               "computes it and stores it in the result)")
+
+
+def _num(v):
+    try:
+        v = float(v)
+    except (TypeError, ValueError):
+        return None
+    return v if np.isfinite(v) else None
+
+
+def _notes(data: dict, system: str) -> dict:
+    """Resolved inputs, materials, correlations, Biot numbers and assumptions stored by the
+    run in ``/report_data`` (see fdwall.analyses.calc_notes), as display rows."""
+    rd = data.get("report_data")
+    if not isinstance(rd, dict) or "inputs" not in rd:
+        return {"status": _NOT_STORED}
+    resolved = []
+    for r in rd.get("inputs") or []:
+        if not isinstance(r, dict):
+            continue
+        v, hi, u = _num(r.get("value")), _num(r.get("value_max")), r.get("unit", "")
+        if v is None:
+            resolved.append((r.get("section", ""), r.get("quantity", ""), r.get("text", ""), ""))
+            continue
+        key = r.get("quantity", "")
+        txt, lab = _q(v, u, system, key=key)
+        if hi is not None:
+            txt = f"{txt} .. {_q(hi, u, system, key=key)[0]}"
+        if r.get("text"):
+            txt = f"{txt} ({r['text']})"
+        resolved.append((r.get("section", ""), key, txt, lab or "-"))
+    mats, mat_units = [], {}
+    for m in rd.get("materials") or []:
+        if not isinstance(m, dict):
+            continue
+        row = [m.get("name", ""), m.get("category", "")]
+        for key, unit in (("rho_kg_m3", "kg/m3"), ("k_20_W_mK", "W/m/K"),
+                          ("cp_20_J_kgK", "J/kg/K"), ("T_top_K", "K"), ("k_top_W_mK", "W/m/K"),
+                          ("cp_top_J_kgK", "J/kg/K"), ("t_max_K", "K")):
+            txt, _ = _q(_num(m.get(key)), unit, system, key=key)
+            row.append(txt or "not given")
+            mat_units[key] = _q(300.0, unit, system, key=key)[1]
+        row.append(m.get("source", ""))
+        mats.append(row)
+    ref20 = _q(293.15, "K", system)
+    biot, bu = [], {}
+    for b in rd.get("biot") or []:
+        if not isinstance(b, dict):
+            continue
+        row = [b.get("wall", "")]
+        for key, unit in (("R_wall_K_per_W", "K/W"), ("h_outer_W_m2K", "W/m2/K"),
+                          ("biot", ""), ("spread_m", "m")):
+            txt, _ = _q(_num(b.get(key)), unit, system, key=key)
+            row.append(txt or "n/a (fixed surface temperature)")
+            bu[key] = _q(1.0, unit, system, key=key)[1] or "-"
+        row.insert(4, b.get("outer_layer", ""))
+        biot.append(row)
+    return {"status": "computed", "resolved": resolved, "materials": mats, "mat_units": mat_units,
+            "at20": f"{ref20[0]} {ref20[1]}", "biot": biot, "biot_units": bu,
+            "correlations": [(c.get("face", ""), c.get("model", ""), c.get("reference", ""))
+                             for c in rd.get("correlations") or [] if isinstance(c, dict)],
+            "assumptions": _as_list(rd.get("assumptions")),
+            "criteria": _as_list(rd.get("criteria")),
+            "references": _as_list(rd.get("references"))}
+
+
+def _names(v) -> list:
+    return [x.decode() if isinstance(x, bytes) else str(x) for x in (v if v is not None else [])]
+
+
+def _run_results(data: dict, system: str) -> dict:
+    """Result tables of a run read from its stored datasets: per face the last and the
+    highest stored temperature, last heat flow and cumulative energy; per interface the last
+    and highest temperature; the watched events; and the main series at about a dozen of
+    the stored output times (every k-th row, the last always included)."""
+    faces = data.get("faces") or {}
+    names = _names(faces.get("names"))
+    T = np.asarray(faces.get("temperature", np.zeros((0, 0))), dtype=float)
+    q = np.asarray(faces.get("heat_flow", np.zeros((0, 0))), dtype=float)
+    E = np.asarray(faces.get("energy", np.zeros((0, 0))), dtype=float)
+    out = {"faces": [], "interfaces": [], "events": [], "series": None}
+    lab_T = _q(300.0, "K", system)[1]
+    lab_W, lab_J = _q(1.0, "W", system)[1], _q(1.0, "J", system)[1]
+    out["units"] = {"T": lab_T, "W": lab_W, "J": lab_J}
+    if T.ndim == 2 and T.shape[0] and T.shape[1] == len(names):
+        for f, n in enumerate(names):
+            out["faces"].append((n, _q(T[-1, f], "K", system)[0], _q(T[:, f].max(), "K",
+                                                                        system)[0],
+                                 _q(q[-1, f], "W", system)[0] if q.ndim == 2 else "",
+                                 _q(E[-1, f], "J", system)[0] if E.ndim == 2 else ""))
+    itf = data.get("interfaces") or {}
+    for name in sorted(k for k in itf if k.startswith("wall_")):
+        arr = np.asarray(itf[name], dtype=float)
+        mesh = (data.get("mesh") or {}).get(name) or {}
+        wall = mesh.get("name", name)
+        try:
+            import json
+            labels = json.loads(mesh.get("layers", "[]"))
+        except (TypeError, ValueError):
+            labels = []
+        for i in range(arr.shape[1] if arr.ndim == 2 else 0):
+            between = (f"{labels[i]} | {labels[i + 1]}" if i + 1 < len(labels)
+                       else f"interface {i + 1}")
+            out["interfaces"].append((wall, between, _q(arr[-1, i], "K", system)[0],
+                                      _q(arr[:, i].max(), "K", system)[0]))
+    ev = data.get("events") or {}
+    for n, up, down in zip(_names(ev.get("names")), np.ravel(ev.get("up", [])),
+                           np.ravel(ev.get("down", []))):
+        def _h(v):
+            v = _num(v)
+            return _fmt(v / 3600.0) if v is not None else "none"
+        out["events"].append((n, _q(up, "s", system)[0] or "none", _h(up),
+                              _q(down, "s", system)[0] or "none", _h(down)))
+    t = np.asarray(data.get("time", []), dtype=float)
+    if t.size and T.ndim == 2 and T.shape[0] == t.size:
+        step = max(1, int(np.ceil((t.size - 1) / 12)))
+        idx = sorted(set(range(0, t.size, step)) | {t.size - 1})
+        heads = ["time [h]"] + [f"{n} temperature [{lab_T}]" for n in names]
+        cols = [[_fmt(float(v) / 3600.0) for v in t[idx]]]
+        cols += [[_q(v, "K", system)[0] for v in T[idx, f]] for f in range(len(names))]
+        stored = (data.get("energy") or {}).get("stored")
+        if isinstance(stored, np.ndarray) and stored.size == t.size:
+            heads.append(f"stored energy [{lab_J}]")
+            cols.append([_q(v, "J", system)[0] for v in stored[idx]])
+        power = (data.get("heater") or {}).get("power")
+        if isinstance(power, np.ndarray) and power.size == t.size and np.any(power):
+            heads.append(f"heater power [{lab_W}]")
+            cols.append([_q(v, "W", system)[0] for v in power[idx]])
+        out["series"] = (heads, [list(r) for r in zip(*cols)])
+    return out
+
+
+def _convergence(data: dict, system: str) -> dict:
+    """The stored convergence check (``/report_data/convergence``) as display rows, or its
+    status ("not computed ...") when the run stored none."""
+    conv = (data.get("report_data") or {}).get("convergence")
+    if not isinstance(conv, dict):
+        return {"status": _NOT_STORED, "rows": []}
+    rows = []
+    if conv.get("status") == "computed":
+        for row in conv.get("rows") or []:
+            q, u, b, r, d, rel = (row.get(k) for k in ("quantity", "unit", "base", "refined",
+                                                        "difference", "relative"))
+            u = "" if u == "-" else u
+            bt, lab = _q(b, u, system)
+            rt, _ = _q(r, u, system)
+            dt, dlab = _q(d, u, system, key="difference")
+            rows.append((q, bt, rt, lab or "-", dt, dlab or "-", f"{float(rel):.2g}"))
+    return {"status": conv.get("status", "not recorded"), "rows": rows,
+            "note": conv.get("note") or "",
+            "factor": _fmt(conv.get("refine_factor", "")),
+            "tolerance": _q(conv.get("tolerance_K"), "K", system, key="tolerance"),
+            "refined_tolerance": _q(conv.get("refined_tolerance_K"), "K", system,
+                                    key="tolerance"),
+            "nodes": conv.get("nodes", ""), "refined_nodes": conv.get("refined_nodes", "")}
 
 
 def _run_sections(data: dict, system: str) -> dict:
@@ -203,6 +377,8 @@ def _run_sections(data: dict, system: str) -> dict:
         meshes.append((m.get("name", name), m.get("geometry", ""), x.size, cells, layers))
     if steps or meshes:
         out["steps"], out["meshes"] = steps, meshes
+        out["convergence"] = _convergence(data, system)
+    out["results"] = _run_results(data, system)
     touch = data.get("touch")
     if isinstance(touch, dict):
         faces = []
@@ -234,19 +410,29 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
     stored = data.get("report") if isinstance(data.get("report"), dict) else {}
     ident = {**{k: stored.get(k, "") for k in _IDENT_KEYS}, **(ident or {})}
     run = _run_sections(data, units) if attrs.get("kind") in ("transient", "steady") else {}
-    skip = {"inputs", "summary", "tables", "warnings", "references", "notes", "report"}
+    skip = {"inputs", "summary", "tables", "warnings", "references", "notes", "report",
+            "report_data"}
+    notes = _notes(data, units) if run else {}
     summary = _scalar_rows(data.get("summary", {}) or {}, units)
     tables = [_table(n, t, units) for n, t in (data.get("tables") or {}).items()
               if isinstance(t, dict)]
     texts = []
     for name, grp in data.items():  # long stored texts (case text, resolved case) as blocks
+        if run and name not in ("input",):
+            continue
+        if name == "input" and run:   # shown as "as given" / "as resolved" in the inputs
+            if notes.get("status") == "computed" or not isinstance(grp, dict):
+                continue
+            grp = {k: v for k, v in grp.items() if k != "case_text"}
         if isinstance(grp, dict):
             for k in [k for k, v in grp.items() if isinstance(v, str) and len(v) > 120]:
                 texts.append((f"{name}.{k}", grp[k]))
     long_keys = {t[0] for t in texts}
     # groups whose scalars a run result shows in its dedicated sections
     shown = {"solver", "energy", "touch", "mesh"} if run else set()
-    for name, grp in data.items():  # other groups (run results): their 1-D columns as tables
+    if run:  # a run's groups are shown by the dedicated sections above
+        skip |= set(data)
+    for name, grp in data.items():  # other groups: their 1-D columns as tables
         if name in skip or not isinstance(grp, dict):
             continue
         cols = {k: v for k, v in grp.items() if isinstance(v, np.ndarray) and v.ndim == 1}
@@ -263,6 +449,10 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         attrs.setdefault("caution", run["touch"]["caution"])
     inputs = data.get("inputs", {}) or {}
     case_text = inputs.get("case_text", "") if isinstance(inputs, dict) else ""
+    if run and isinstance(data.get("input"), dict):
+        case_text = data["input"].get("case_text", "") or "(the case was built in Python: "\
+            "no case file text)"
+    images, stale = _images(h5_path, attrs.get("created", ""))
     env = jinja2.Environment(loader=jinja2.PackageLoader("fdwall.report", "templates"),
                              autoescape=True)
     return env.get_template("report.html.j2").render(
@@ -270,12 +460,14 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
         ident=[(k, ident.get(k) or "") for k in _IDENT_KEYS], summary=summary,
         inputs=_scalar_rows({k: v for k, v in inputs.items() if k != "case_text"}, units)
         if isinstance(inputs, dict) else [], case_text=case_text, texts=texts, tables=tables,
-        images=_images(h5_path), run=run,
+        images=images, stale_images=stale, run=run, calc=notes,
         warnings=_as_list(data.get("warnings")) + run.get("touch", {}).get("warnings", []),
         references=_as_list(data.get("references")), notes=_as_list(data.get("notes")),
         version=attrs.get("fdwall_version", "not recorded"), kind=attrs.get("kind", "unknown"),
         created=attrs.get("created", "not recorded"),
-        sha=attrs.get("input_sha256") or "not recorded", source=h5_path.name)
+        sha=attrs.get("input_sha256") or "not recorded", source=h5_path.name,
+        provenance=sorted((k, _fmt(v)) for k, v in (data.get("provenance") or {}).items()
+                          if not isinstance(v, (dict, list, np.ndarray))))
 
 
 def write_report(h5_path, out, units: str = "si", ident: dict | None = None) -> Path:

@@ -73,14 +73,177 @@ def _style(ax, xlabel=None, ylabel=None):
 
 
 def _legend(ax, n_entries):
+    """Legend of the curves one can see (hidden ones merged, see :func:`merge_hidden`)."""
+    handles, labels = _visible_legend(ax)
     if n_entries > 9:
-        ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=7, frameon=False)
+        ax.legend(handles, labels, loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=7,
+                  frameon=False)
     else:
-        ax.legend(loc="best", fontsize=8, framealpha=0.85)
+        ax.legend(handles, labels, loc="best", fontsize=8, framealpha=0.85)
+
+
+#: Dash patterns of interface curves (on/off lengths in points), one per interface index.
+_DASHES = [(6.0, 2.0), (2.0, 1.6), (8.0, 2.0, 1.6, 2.0), (3.5, 3.5), (11.0, 2.5),
+           (1.2, 1.2, 5.0, 1.2)]
+#: Curves whose largest vertical distance is below this many pixels count as one (the
+#: lower one cannot be seen): the legend merges their labels.
+HIDDEN_TOLERANCE_PX = 1.5
+
+
+def _tint(colour, f):
+    """``colour`` mixed with white by the fraction ``f`` (0: unchanged) [-]."""
+    from matplotlib.colors import to_rgb
+    r, g, b = to_rgb(colour)
+    return (r + (1 - r) * f, g + (1 - g) * f, b + (1 - b) * f)
+
+
+def merge_hidden(ax, tol_px: float = HIDDEN_TOLERANCE_PX) -> list:
+    """Give the legend of ``ax`` only the curves one can see.
+
+    A curve that lies under a later-drawn one within ``tol_px`` pixels over its whole length
+    (same x samples) is hidden: its label joins the visible curve's label (``'a = b'``, in
+    drawing order) and leaves the legend; curves with no finite point are dropped.
+
+    Returns
+    -------
+    list of (Line2D, list of str)
+        Per visible curve, in the order of the first-drawn member of its group: the curve
+        and the original labels it stands for (drawing order).
+    """
+    fig = ax.figure
+    lines = [ln for ln in ax.get_lines() if not ln.get_label().startswith("_")]
+    h_px = ax.get_position().height * fig.get_figheight() * fig.dpi
+    y0, y1 = ax.get_ylim()
+    tol = tol_px * abs(y1 - y0) / max(h_px, 1.0)
+    order = sorted(range(len(lines)), key=lambda i: (lines[i].get_zorder(), i), reverse=True)
+    groups = []   # lists of indices into lines, the visible (topmost) one first
+    for i in order:
+        y = np.asarray(lines[i].get_ydata(), dtype=float)
+        if not np.any(np.isfinite(y)):
+            lines[i].set_label("_empty: " + lines[i].get_label())
+            continue
+        x = np.asarray(lines[i].get_xdata(), dtype=float)
+        for g in groups:
+            xt = np.asarray(lines[g[0]].get_xdata(), dtype=float)
+            yt = np.asarray(lines[g[0]].get_ydata(), dtype=float)
+            if xt.shape == x.shape and np.allclose(xt, x) and \
+                    np.nanmax(np.abs(yt - y)) <= tol:
+                g.append(i)
+                break
+        else:
+            groups.append([i])
+    out = []
+    for g in sorted(groups, key=min):
+        labels = [lines[i].get_label() for i in sorted(g)]
+        top = lines[g[0]]
+        if len(g) > 1:
+            top.set_label(" = ".join(labels))
+            for i in g[1:]:
+                lines[i].set_label("_hidden: " + lines[i].get_label())
+        out.append((top, labels))
+    return out
+
+
+def _close_pairs(ax, tol_px: float) -> dict:
+    """{(label_a, label_b): True} for the labelled curves of ``ax`` that stay within
+    ``tol_px`` pixels of each other over their whole length (same x samples)."""
+    fig = ax.figure
+    lines = [ln for ln in ax.get_lines() if not ln.get_label().startswith("_")]
+    h_px = ax.get_position().height * fig.get_figheight() * fig.dpi
+    y0, y1 = ax.get_ylim()
+    tol = tol_px * abs(y1 - y0) / max(h_px, 1.0)
+    out = {}
+    for a in lines:
+        for b in lines:
+            if a is b:
+                continue
+            xa, xb = np.asarray(a.get_xdata(), float), np.asarray(b.get_xdata(), float)
+            ya, yb = np.asarray(a.get_ydata(), float), np.asarray(b.get_ydata(), float)
+            if xa.shape == xb.shape and np.allclose(xa, xb) and \
+                    np.nanmax(np.abs(ya - yb)) <= tol:
+                out[(a.get_label(), b.get_label())] = True
+    return out
+
+
+def shared_visible_legend(axes, tol_px: float = HIDDEN_TOLERANCE_PX):
+    """Handles and labels for one legend shared by ``axes`` whose curves carry the same
+    labels (profiles at the same times in every wall): a curve is merged into a later-drawn
+    one (``'a = b'``) only when it is hidden under it in every one of the axes."""
+    axes = [a for a in axes if a.get_visible()]
+    if not axes:
+        return [], []
+    pairs = [_close_pairs(a, tol_px) for a in axes]
+    lines = [ln for ln in axes[0].get_lines() if not ln.get_label().startswith("_")]
+    labels = [ln.get_label() for ln in lines]
+    top_of = {}
+    for i in range(len(labels) - 1, -1, -1):       # topmost (last drawn) first
+        for j in range(len(labels) - 1, i, -1):
+            top = top_of.get(labels[j], labels[j])
+            if top == labels[j] and all(p.get((labels[i], labels[j])) for p in pairs):
+                top_of[labels[i]] = labels[j]
+                break
+    handles, out = [], []
+    for ln, lab in zip(lines, labels):
+        if lab in top_of:
+            continue
+        members = [x for x in labels if top_of.get(x) == lab] + [lab]
+        members.sort(key=labels.index)
+        handles.append(ln)
+        out.append(" = ".join(members))
+    return handles, out
+
+
+def _visible_legend(ax, width=60):
+    """Handles and labels of the curves :func:`merge_hidden` leaves visible, long labels
+    wrapped at ``width`` characters."""
+    import textwrap
+    handles, labels = [], []
+    for ln, _ in merge_hidden(ax):
+        handles.append(ln)
+        labels.append("\n".join(textwrap.wrap(ln.get_label(), width, subsequent_indent="  ")))
+    return handles, labels
+
+
+def _split_outer(result, walls) -> bool:
+    """Outer faces get their own panel on an enclosure, and on a single wall whose outer
+    face moves over less than 30 % of the whole temperature range (it would be squashed)."""
+    if len(walls) > 1 or result.system.has_chamber:
+        return True
+    T = result.wall_T(0)
+    outer = T[:, -1]
+    span_o = float(np.ptp(outer)) if outer.size else 0.0
+    span = float(np.ptp(T)) if T.size else 0.0
+    return 0.5 < span_o < 0.3 * span
+
+
+def _setpoint(ax, result, th):
+    """Draw the controller setpoint (thermostat: with its band) on ``ax``; True if drawn."""
+    case = result.case
+    ctl = getattr(case, "control", None)
+    if case.heater is None or ctl is None or ctl.mode not in ("thermostat", "pid") \
+            or ctl.setpoint is None:
+        return False
+    t = np.asarray(result.times, dtype=float)
+    sp = np.asarray(ctl.setpoint(t), dtype=float) - KELVIN_OFFSET
+    if ctl.enable is not None:   # no setpoint while the master switch is off
+        sp = np.where(np.asarray(ctl.enable(t), dtype=float) > 0.5, sp, np.nan)
+    where = "chamber" if ctl.sensor == "chamber" else f"wall sensor at {ctl.sensor_depth * 1e3:g} mm"
+    ax.plot(th, sp, color="#555555", lw=1.3, dashes=(4.0, 1.5, 1.0, 1.5), zorder=6,
+            label=f"setpoint ({where})", gid="setpoint")
+    if ctl.mode == "thermostat" and ctl.band > 0:
+        ax.fill_between(th, sp - ctl.band / 2, sp + ctl.band / 2, color="#999999", alpha=0.18,
+                        lw=0, zorder=0.5, label="_thermostat band")
+    return True
 
 
 def plot_temperatures(result, path) -> str:
-    """Face and interface temperatures [degC] (and the chamber's) against time [h].
+    """Face and interface temperatures [degC] (and the chamber's, with the controller
+    setpoint) against time [h].
+
+    On an enclosure (or a wall whose outer face would be squashed against the hot curves)
+    the outer faces, the ones that matter for touch, get their own lower panel.  Inner
+    faces are solid, interfaces dashed with a distinct dash and tint each, outer faces
+    dotted; the legend lists only the curves one can see (see :func:`merge_hidden`).
 
     Parameters
     ----------
@@ -93,55 +256,73 @@ def plot_temperatures(result, path) -> str:
     str
         The path written.
     """
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
     case = result.case
     th = _hours(result)
     walls = _walls(result)
+    split = _split_outer(result, walls)
     n_curves = sum(len(w.layers) + 1 for w in walls) + int(result.system.has_chamber)
-    fig, (ax,) = _figure(12.0 if n_curves > 9 else 9.0, 5.5)
-    n = 0
+    wide = n_curves > 9
+    fig = Figure(figsize=(12.5 if wide else 9.0, 8.0 if split else 5.5), dpi=110,
+                 layout="constrained")
+    FigureCanvasAgg(fig)
+    if split:
+        ax, ax_out = fig.subplots(2, 1, sharex=True, gridspec_kw={"height_ratios": [3, 2]})
+    else:
+        ax = ax_out = fig.subplots(1, 1)
+    single = len(walls) == 1
+    mids = ["#e08214", "#1b7837", "#762a83", "#35978f", "#8c510a", "#de77ae"]
     for j, w in enumerate(walls):
         T = result.wall_T(j) - KELVIN_OFFSET
-        Ti = result.interface_T(j) - KELVIN_OFFSET
-        curves = [("inner face", T[:, 0])]
+        Ti = result.interface_T(j).reshape(len(th), -1) - KELVIN_OFFSET
+        pre = "" if single else f"{w.name}: "
+        c = _WALL_COLOURS[0] if single else _WALL_COLOURS[j % len(_WALL_COLOURS)]
+        ax.plot(th, T[:, 0], "-", color=c, lw=2.0 if single else 1.8, label=f"{pre}inner face",
+                gid=f"inner-{j}")
         for i in range(len(w.layers) - 1):
-            curves.append((f"{w.layers[i].label} | {w.layers[i + 1].label}", Ti[:, i]))
-        curves.append(("outer face", T[:, -1]))
-        if len(walls) == 1:
-            # hot face red, cold face blue, interfaces in distinct mid colours
-            mids = ["#e08214", "#1b7837", "#762a83", "#35978f", "#8c510a", "#de77ae"]
-            cols = ([_WALL_COLOURS[0]] + [mids[i % len(mids)] for i in range(len(curves) - 2)]
-                    + [_WALL_COLOURS[1]])
-            styles = ["-"] * len(curves)
-            widths = [2.0] + [1.4] * (len(curves) - 2) + [2.0]
-        else:
-            c = _WALL_COLOURS[j % len(_WALL_COLOURS)]
-            cols = [c] * len(curves)
-            styles = ["-"] + ["--"] * (len(curves) - 2) + [":"]
-            widths = [1.8] + [1.1] * (len(curves) - 2) + [2.0]
-        for (lab, y), col, ls, lw in zip(curves, cols, styles, widths):
-            name = lab if len(walls) == 1 else f"{w.name}: {lab}"
-            ax.plot(th, y, ls, color=col, lw=lw, label=name)
-            n += 1
+            col = mids[i % len(mids)] if single else _tint(c, 0.45 * (i % 3) / 2)
+            ax.plot(th, Ti[:, i], color=col, lw=1.4 if single else 1.2,
+                    dashes=_DASHES[i % len(_DASHES)], gid=f"interface-{j}-{i}",
+                    label=f"{pre}{layer_label(w.layers[i])} | {layer_label(w.layers[i + 1])}")
+        c_out = _WALL_COLOURS[1] if single else c
+        ax_out.plot(th, T[:, -1], ":" if not single else "-", color=c_out, lw=2.0,
+                    label=f"{pre}outer face", gid=f"outer-{j}")
     if result.system.has_chamber:
-        ax.plot(th, result.chamber_T - KELVIN_OFFSET, "-", color="black", lw=2.2, label="chamber")
-        n += 1
-    # event crossings as small markers on the time axis
+        ax.plot(th, result.chamber_T - KELVIN_OFFSET, "-", color="black", lw=2.2,
+                label="chamber", zorder=3, gid="chamber")
+    _setpoint(ax, result, th)
+    # event crossings as small markers on the panel of the watched spot
     for (name, (up, down)), ev in zip(result.events.items(), case.run.events):
+        a = ax_out if ev.where == "outer" else ax
         for t, mk in ((up, "^"), (down, "v")):
             if np.isfinite(t):
-                ax.plot([t / 3600.0], [ev.threshold - KELVIN_OFFSET], mk, color="#444444", ms=7,
-                        mfc="white", mew=1.3, zorder=5)
-                ax.annotate(name, (t / 3600.0, ev.threshold - KELVIN_OFFSET),
-                            textcoords="offset points", xytext=(5, 5), fontsize=7,
-                            color="#444444")
-    _style(ax, "time [h]", "temperature [degC]")
+                a.plot([t / 3600.0], [ev.threshold - KELVIN_OFFSET], mk, color="#444444", ms=7,
+                       mfc="white", mew=1.3, zorder=7, label="_event")
+                a.annotate(name, (t / 3600.0, ev.threshold - KELVIN_OFFSET),
+                           textcoords="offset points", xytext=(5, 5), fontsize=7,
+                           color="#444444")
+    axes = [ax, ax_out] if split else [ax]
+    for a in axes:
+        _style(a, None, "temperature [degC]")
+    axes[-1].set_xlabel("time [h]")
     ax.set_xlim(0.0, max(th[-1], 1e-9))
+    if split:
+        ax.set_title("chamber, inner faces and interfaces" if not single else
+                     "inner face and interfaces", fontsize=9)
+        ax_out.set_title("outer faces (skin: the surfaces people can touch)" if not single
+                         else "outer face (skin)", fontsize=9)
     _suptitle(fig, result, "face and interface temperatures")
-    if n > 9:
-        _legend(ax, n)
-    else:  # below the axes, so it never hides a curve or an event label
-        fig.legend(*ax.get_legend_handles_labels(), loc="outside lower center",
-                   ncol=min(n, 3), fontsize=8, frameon=False)
+    for a in axes:
+        handles, labels = _visible_legend(a)
+        if not handles:
+            continue
+        if wide or split:
+            a.legend(handles, labels, loc="upper left", bbox_to_anchor=(1.01, 1.0),
+                     fontsize=7, frameon=False)
+        else:  # below the axes, so it never hides a curve or an event label
+            fig.legend(handles, labels, loc="outside lower center", ncol=min(len(labels), 3),
+                       fontsize=8, frameon=False)
     return _save(fig, path)
 
 
@@ -161,7 +342,7 @@ def layer_label(layer) -> str:
     one that differs (``'hot face (castable-dense)'``)."""
     mat = getattr(layer.material, "name", "") or "layer"
     own = getattr(layer, "name", "") or ""
-    return f"{own} ({mat})" if own and own != mat else mat
+    return f"{own} ({mat})" if own and mat not in own else (own or mat)
 
 
 def _per_length(result):
@@ -199,7 +380,6 @@ def plot_profiles(result, path, times=None) -> str:
     nrow = -(-len(walls) // ncol)
     fig, axes = _figure(9.0 if ncol == 1 else 13.0, 3.4 * nrow + 1.2, rows=nrow, cols=ncol)
     cmap = colormaps["viridis"]
-    handles = None
     for j, (w, ax) in enumerate(zip(walls, axes)):
         edges = np.concatenate([[0.0], np.cumsum([l.thickness for l in w.layers])]) * 1e3
         total = edges[-1]
@@ -217,8 +397,6 @@ def plot_profiles(result, path, times=None) -> str:
                     color="black", lw=1.3,
                     label=f"steady state (conditions at {result.steady.time / 3600.0:.3g} h)",
                     zorder=4)
-        if handles is None:
-            handles = ax.get_legend_handles_labels()
         _style(ax, "depth from inner face [mm]", "temperature [degC]")
         ax.set_xlim(-0.01 * total, 1.01 * total)
         # layer labels along the top (numbers only for narrow layers, named in the title)
@@ -243,7 +421,8 @@ def plot_profiles(result, path, times=None) -> str:
     for ax in axes[len(walls):]:
         ax.set_visible(False)
     _suptitle(fig, result, "temperature profiles through the wall" + ("s" if len(walls) > 1 else ""))
-    if handles:
+    handles = shared_visible_legend(axes[:len(walls)])
+    if handles[0]:
         fig.legend(*handles, loc="outside lower center", ncol=min(len(handles[0]), 6),
                    fontsize=8, frameon=False)
     return _save(fig, path)

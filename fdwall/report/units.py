@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["display", "UNIT_SYSTEMS"]
+__all__ = ["display", "UNIT_SYSTEMS", "SAME_IN_US"]
 
 UNIT_SYSTEMS = ("si", "us")
 
@@ -19,9 +19,17 @@ _US = {
     "m2*K/W": ("hour*ft**2*delta_degF/Btu", "h ft2 F/Btu"), "W/m/K": ("Btu/hour/ft/delta_degF",
                                                                        "Btu/(h ft F)"),
     "J": ("Btu", "Btu"), "kg": ("lb", "lb"), "kg/m3": ("lb/ft**3", "lb/ft3"),
+    "W/K": ("Btu/hour/delta_degF", "Btu/(h F)"), "K/W": ("delta_degF*hour/Btu", "h F/Btu"),
+    "J/K": ("Btu/delta_degF", "Btu/F"), "J/kg/K": ("Btu/lb/delta_degF", "Btu/(lb F)"),
+    "m3/s": ("ft**3/minute", "ft3/min"), "m/s": ("ft/minute", "ft/min"),
+    "J/m2": ("Btu/ft**2", "Btu/ft2"), "J/m": ("Btu/ft", "Btu/ft"), "Pa": ("psi", "psi"),
 }
 _PINT_SI = {"m2*K/W": "m**2*delta_degC/W", "W/m2/K": "W/m**2/delta_degC",
-            "W/m/K": "W/m/delta_degC"}
+            "W/m/K": "W/m/delta_degC", "W/K": "W/delta_degC", "K/W": "delta_degC/W",
+            "J/K": "J/delta_degC", "J/kg/K": "J/kg/delta_degC", "m3/s": "m**3/s",
+            "J/m2": "J/m**2"}
+#: SI units shown unchanged in US display (time, energy in kWh, rates): the same in both.
+SAME_IN_US = ("s", "h", "kWh", "1/s", "1", "-", "")
 
 _ureg = None
 
