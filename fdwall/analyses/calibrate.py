@@ -34,7 +34,7 @@ import numpy as np
 from fdwall.errors import InputError
 
 __all__ = ["KEYS", "parse_key", "apply_value", "current_value", "log_driven_case",
-           "simulate_log", "calibrate", "like_for_like"]
+           "simulate_log", "sensor_filter", "calibrate", "like_for_like"]
 
 KEYS = ("conductivity_factor", "emissivity", "contact_resistance", "leakage")
 _UNITS = {"conductivity_factor": "1", "emissivity": "1", "contact_resistance": "m2*K/W",
@@ -234,7 +234,32 @@ def simulate_log(case, t):
     return np.interp(np.asarray(t) - t[0], res.times, y)
 
 
-def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
+def sensor_filter(t, y, tau=0.0, dead_time=0.0):
+    """What a probe with a first-order lag ``tau`` [s] and a ``dead_time`` [s] logs at ``t``
+    [s] when the true temperature is ``y`` [K] at ``t``, taken as linear between the times.
+
+    The dead time shifts the curve (``numpy.interp`` at t - dead_time, the start value held
+    before the first time); the lag is the exact response of tau dy_s/dt = y - y_s to a
+    piecewise-linear input, from y_s = y at the start.
+    """
+    t = np.asarray(t, float)
+    u = np.asarray(y, float)
+    if dead_time:
+        u = np.interp(t - float(dead_time), t, u)
+    if not tau:
+        return u
+    out = np.empty_like(u)
+    out[0] = u[0]
+    for k in range(t.size - 1):
+        h = t[k + 1] - t[k]
+        m = (u[k + 1] - u[k]) / h
+        e = math.exp(-h / tau)
+        out[k + 1] = u[k + 1] - m * tau + (out[k] - u[k] + m * tau) * e
+    return out
+
+
+def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0, sensor_lag=0.0,
+              dead_time=0.0):
     """Fit the chosen physics of ``case`` to a log by least squares through the solver.
 
     Parameters
@@ -249,7 +274,10 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
         Solver tolerance per step [K] for these runs (tight, so the finite-difference
         Jacobian is not noise).
     n_boot, seed
-        Moving-block bootstrap resamples (linearised at the fit) and its seed.
+        Block-bootstrap resamples (linearised at the fit) and its seed.
+    sensor_lag, dead_time : float
+        A probe's first-order lag and dead time [s] between the simulated temperature and
+        the log (:func:`sensor_filter`); 0: none.
 
     Returns
     -------
@@ -298,7 +326,7 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
         for xi, pk in zip(x[:-1], parsed):
             c = apply_value(c, pk, from_x(xi, pk), base=base)
         runs[0] += 1
-        return simulate_log(c, t)
+        return sensor_filter(t, simulate_log(c, t), sensor_lag, dead_time)
 
     def res(x):
         return model(x) - T

@@ -127,7 +127,8 @@ def cmd_fit(args) -> int:
             keys = [k.strip() for k in args.calibrate.split(",") if k.strip()]
             try:
                 cal = calibrate(case, log["t_s"], log["T_K"], log["P_W"], keys,
-                                n_boot=args.bootstrap)
+                                n_boot=args.bootstrap, sensor_lag=fit["sensor_lag_s"],
+                                dead_time=fit["dead_time_s"])
             except LibInputError as exc:
                 raise InputError(f"--calibrate {args.calibrate}: {exc}") from None
             except (RuntimeError, ArithmeticError) as exc:
@@ -224,8 +225,10 @@ def cmd_fit(args) -> int:
         groups["tables"]["log"]["calibrated_K"] = cal["model_K"]
         groups["notes"]["items"].append(
             "calibration: the case driven by the logged power (heater power, or the inner "
-            "face's flux over the wall area), started at the log's first temperature, fitted "
-            "by least squares through the solver; intervals as for the fit")
+            "face's flux over the wall area), started at a fitted uniform temperature, "
+            "fitted by least squares through the solver, seen through the fit's sensor lag "
+            f"({fit['sensor_lag_s']:.4g} s) and dead time ({fit['dead_time_s']:.4g} s); "
+            "intervals as for the fit")
     png = outdir / f"{stem}-fit.png"
     plots = []
     if not args.no_plots:  # drawn first, so that --report embeds it
