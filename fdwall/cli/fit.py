@@ -119,7 +119,9 @@ def cmd_fit(args) -> int:
         except (RuntimeError, ArithmeticError) as exc:
             common.error(f"--case {args.case}: the solver failed: {exc}")
             return common.EXIT_NOT_CONVERGED
-        warns.extend(check["warnings"])
+        short = any("too short to see equilibrium" in w for w in warns)
+        warns.extend(w for w in check["warnings"]
+                     if not (short and "too short to see equilibrium" in w))
         if lfl:
             check["reading"] = check["reading"] + lfl["reading"]
         if args.calibrate:
