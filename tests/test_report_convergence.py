@@ -210,3 +210,19 @@ def test_on_off_control_gets_a_note():
     thermo = Case(control=Control(mode="thermostat", setpoint=K0 + 100), **base)
     assert "switching" in _note(thermo)
     assert _note(Case(**base)) == "" and _note(_case(4)) == ""
+
+
+def test_touch_report_stores_the_check(tmp_path):
+    # common practice, no source: `fdwall touch --report` stores the same report data as
+    # `fdwall run --report`, so its report shows the convergence check, not "not computed"
+    from pathlib import Path
+
+    from fdwall.cli import main
+    case = Path(__file__).resolve().parents[1] / "cases" / "curing-oven-panel.toml"
+    assert main(["touch", str(case), "--out", str(tmp_path), "--report", "--quiet",
+                 "--no-plots"]) == 0
+    (h5,) = tmp_path.glob("*.h5")
+    with h5py.File(h5, "r") as f:
+        assert "convergence" in f["report_data"]
+    html = next(tmp_path.glob("*-report.html")).read_text(encoding="utf-8")
+    assert "refined" in html.lower()

@@ -3,6 +3,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+from ..analyses import convergence
 from . import common
 from .common import EXIT_NOT_CONVERGED, EXIT_OK, InputError, WriteError
 
@@ -160,6 +161,9 @@ def cmd_touch(args) -> int:
     except OSError as exc:
         raise WriteError(f"cannot write the results to '{outdir}': {exc.strerror or exc}. "
                          "Choose another folder with --out DIR.") from None
+    if args.report:  # convergence check and report data, stored in the result first
+        convergence.store_report_data(a.result, h5, case,
+                                      progress=bool(getattr(args, "progress", False)))
     report = common.write_report(args, h5)
     if report:
         files.append(str(report))
