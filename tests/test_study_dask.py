@@ -44,8 +44,9 @@ def test_dask_table_equals_local_table(tmp_path):
     (tmp_path / "a").mkdir()
     (tmp_path / "b").mkdir()
     run_study(read_study(p, seed=11), tmp_path / "a", workers=1)
-    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=False, protocol="tcp",
-                                  host="127.0.0.1", dashboard_address=None) as cluster:
+    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=False,
+                                  protocol="tcp", host="127.0.0.1",
+                                  dashboard_address=None) as cluster:
         _, rows = run_study(read_study(p, seed=11), tmp_path / "b",
                             scheduler=cluster.scheduler_address, batch=5)
     a = read_table(tmp_path / "a" / "d-study.csv").drop(columns=VOLATILE)
@@ -58,6 +59,28 @@ def test_dask_table_equals_local_table(tmp_path):
     ho = float(r["wall.outer_face.film_coefficient"].split()[0])
     q = 180.0 / (1 / 20 + 0.05 / k + 1 / ho)
     assert r["outer_T_K"] == pytest.approx(293.15 + q / ho, abs=1e-6)
+
+
+def test_cli_scheduler_option(tmp_path, capsys):
+    # the command on a loopback cluster writes the same table as on local processes
+    import json
+
+    from fdwall.cli import main
+    (tmp_path / "wall.toml").write_text(ONE_LAYER_WALL)
+    p = tmp_path / "d-study.toml"
+    p.write_text(STUDY)
+    assert main(["study", str(p), "--out", str(tmp_path / "a"), "--seed", "4", "--workers",
+                 "1", "--quiet", "--no-plots"]) == 0
+    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=False,
+                                  protocol="tcp", host="127.0.0.1",
+                                  dashboard_address=None) as cluster:
+        assert main(["study", str(p), "--out", str(tmp_path / "b"), "--seed", "4",
+                     "--scheduler", cluster.scheduler_address, "--json", "--no-plots"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["summary"]["done"] == 16
+    a = read_table(tmp_path / "a" / "d-study.csv").drop(columns=VOLATILE)
+    b = read_table(tmp_path / "b" / "d-study.csv").drop(columns=VOLATILE)
+    assert a.equals(b)
 
 
 def test_unreachable_scheduler_is_a_clear_error_in_time(tmp_path):

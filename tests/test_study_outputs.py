@@ -117,3 +117,56 @@ def test_cli_touch_outputs_carry_the_caution(tmp_path, capsys):
                  "--no-plots"]) == 0
     text = capsys.readouterr().out
     assert SAFETY_CAUTION in text
+
+
+# An enclosure whose walls store next to nothing (density 1 kg/m3, wall time constant about
+# 2 s) around a chamber of capacity C heated at full power P until the thermostat's setpoint:
+# C dT/dt = P - UA (T - T_a), UA = A / (1/h_i + L/k + 1/h_o) (lumped chamber with quasi-steady
+# walls; Incropera sec. 5.3 with a source term), so the warm-up time to the setpoint T_s is
+# -C/UA ln(1 - UA (T_s - T_a) / P).
+BOX = """
+title = "lumped chamber behind weightless walls (invented test case)"
+[run]
+duration = "3 h"
+start_temperature = "20 degC"
+output_every = "20 s"
+[materials.demo-foil]
+conductivity = "0.05 W/m/K"
+specific_heat = "1000 J/kg/K"
+density = "1 kg/m3"
+[chamber]
+heat_capacity = "50 kJ/K"
+room_temperature = "20 degC"
+[heater]
+power = "2 kW"
+placement = "chamber"
+[control]
+mode = "thermostat"
+sensor = "chamber"
+setpoint = "200 degC"
+band = "2 K"
+[[walls]]
+name = "box"
+area = "2 m2"
+[walls.inner_face]
+film_coefficient = "10 W/m2/K"
+[[walls.layers]]
+material = "demo-foil"
+thickness = "10 mm"
+[walls.outer_face]
+fluid_temperature = "20 degC"
+film_coefficient = "10 W/m2/K"
+"""
+
+
+def test_warmup_time_against_lumped_chamber(tmp_path):
+    (tmp_path / "box.toml").write_text(BOX)
+    p = tmp_path / "w-study.toml"
+    p.write_text('base = "box.toml"\noutputs = ["warmup_time_s"]\n[[vary]]\n'
+                 'path = "heater.power"\nvalues = ["2 kW", "3 kW"]\n')
+    _, rows = run_study(p, tmp_path, workers=1)
+    assert all(r["status"] == "done" for r in rows), rows[0]["error"]
+    ua = 2.0 / (1 / 10 + 0.01 / 0.05 + 1 / 10)
+    for r, P in zip(rows, (2000.0, 3000.0)):
+        t = -50e3 / ua * math.log(1 - ua * 180.0 / P)
+        assert r["warmup_time_s"] == pytest.approx(t, rel=0.01)

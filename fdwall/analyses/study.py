@@ -1,11 +1,15 @@
-"""Design studies: a grid of case variants, run in parallel, one table of answers.
+"""Design studies: case variants from a grid or a random sample, run in batches on local
+processes or a Dask cluster, gathered in one table, with an uncertainty summary.
 
-Grids of explicit values (``[[vary]]``) or random samples (``[[uncertain]]``), steady
-outputs, local processes, CSV table.  Dask and resume are not built yet.
+This module reads study files, samples the inputs and summarises; the outputs per variant are
+defined in :mod:`fdwall.analyses.study_outputs`, the execution (batches, pool, Dask, resume,
+the table) in :mod:`fdwall.analyses.study_run`, the statistics (correlated sampling, partial
+rank correlation, delta, Sobol) in :mod:`fdwall.analyses.study_stats`.  See docs/studies.md.
 
 A study file (TOML)::
 
     base = "../lab-furnace-wall.toml"        # relative to the study file
+    outputs = ["outer_T_K", "peak_skin_T_K"] # optional (default DEFAULT_OUTPUTS)
     [[vary]]
     path = "wall.layers[1].thickness"         # case-file path, as in loader messages
     values = ["100 mm", "150 mm"]            # written with units as in case files
@@ -14,8 +18,10 @@ Every combination of the ``values`` of all ``[[vary]]`` entries is one variant.
 
 Random sampling instead of a grid::
 
-    method = "latin-hypercube"               # or "monte-carlo"
+    method = "latin-hypercube"               # or "monte-carlo", or "sobol" (Saltelli design)
     samples = 200
+    correlation = [[1.0, 0.5], [0.5, 1.0]]   # optional Spearman matrix (Iman-Conover)
+    sensitivity = ["prcc", "spearman"]       # optional; "delta" too (SALib)
     [[uncertain]]
     path = "materials.demo-board.conductivity"
     distribution = "lognormal"               # uniform | normal | lognormal | triangular
@@ -29,10 +35,9 @@ Parameters per distribution: uniform ``low``, ``high``; normal ``mean``, ``sprea
 (standard deviation), optional ``low``/``high``; lognormal ``median``, ``log_spread``,
 optional ``low``/``high``; triangular ``low``, ``mode``, ``high``.  All parameters of one
 entry are written in one unit (as in case files); the sampled value goes into the case in
-that unit.  A variant
-edits the parsed TOML of the base case and goes through the normal loader, so validation
-lives in one place.  Outputs per variant (SI, unit suffixes): ``outer_T_K`` (steady
-temperature of the last face), ``loss_W`` (steady heat flow out of the last face).
+that unit.  A variant edits the parsed TOML of the base case and goes through the normal
+loader, so validation lives in one place.  Outputs are SI with unit suffixes
+(``outer_T_K`` [K], ``loss_W`` [W], ...).
 """
 from __future__ import annotations
 

@@ -161,6 +161,18 @@ class _Progress:
             self.bar.close()
 
 
+def _keep_finished(futures, rows, st, csv_path):
+    """Add the results of the futures that finished after a stop to the table."""
+    got = False
+    for fut in futures:
+        if fut.done() and not fut.cancelled() and fut.exception() is None:
+            for i, r in fut.result():
+                rows[i] = {"variant": i, **st["variants"][i], **r}
+                got = True
+    if got:
+        write_table(csv_path, st, rows)
+
+
 def _connect(address, timeout):
     """A dask.distributed Client of the scheduler at ``address``; InputError if unreachable."""
     try:
@@ -192,7 +204,11 @@ def execute(st: dict, todo: list, rows: dict, csv_path, *, workers=None, schedul
     items = [(i, st["variants"][i], names[i]) for i in todo]
     if scheduler:
         client = _connect(scheduler, timeout)
-        nw = max(1, len(client.scheduler_info(n_workers=-1).get("workers", {})))
+        try:
+            info = client.scheduler_info(n_workers=-1)
+        except TypeError:                      # older distributed: all workers by default
+            info = client.scheduler_info()
+        nw = max(1, len(info.get("workers", {})))
     else:
         client = None
         nw = workers or os.cpu_count() or 1
@@ -231,12 +247,19 @@ def execute(st: dict, todo: list, rows: dict, csv_path, *, workers=None, schedul
                 finished(_batch(st["base"], c, *args[1:]))
         else:
             ex = ProcessPoolExecutor(min(nw, len(chunks)), initializer=_warm)
+            pending = set()
             try:
                 pending = {ex.submit(_batch, st["base"], c, *args[1:]) for c in chunks}
                 while pending:
                     done, pending = wait(pending, return_when=FIRST_COMPLETED)
                     for fut in done:
                         finished(fut.result())
+            except BaseException:
+                # stopped: batches already running finish and are kept in the table, so a
+                # resume does not run them again; batches not started are dropped
+                ex.shutdown(wait=True, cancel_futures=True)
+                _keep_finished(pending, rows, st, csv_path)
+                raise
             finally:
                 ex.shutdown(wait=True, cancel_futures=True)
     finally:

@@ -138,6 +138,12 @@ def cmd_study(args) -> int:
             for note in unc["notes"]:
                 if note.startswith(("sample size", "sensitivity")) or "failed" in note:
                     print(f"  note: {note}")
+        if not unc:
+            for k in [o for o in st["outputs"] if o not in TEXT_OUTPUTS]:
+                name, unit = k.rsplit("_", 1)
+                if f"{name}_min_{unit}" in summary:
+                    print(f"  {k:>16}: {summary[f'{name}_min_{unit}']:.6g} .. "
+                          f"{summary[f'{name}_max_{unit}']:.6g} {unit}")
         print(f"  {SAFETY_CAUTION}")
         for f in files:
             print(f"  {f}")
@@ -145,9 +151,14 @@ def cmd_study(args) -> int:
 
 
 def register(sub) -> None:
-    p = sub.add_parser("study", help="run a grid of case variants (design study)",
-                       description="Run every variant of a study file and write one table "
-                                   "(CSV and HDF5) of steady answers per variant.")
+    p = sub.add_parser("study", help="run a design study: a grid or a random sample of case "
+                                     "variants, with an uncertainty summary",
+                       description="Run every variant of a study file (a grid, or a random "
+                                   "sample of uncertain inputs) on local processes or a Dask "
+                                   "cluster and write one table (CSV and HDF5) of answers per "
+                                   "variant, with quantiles, exceedance probabilities and a "
+                                   "sensitivity ranking for samples. A rerun into the same "
+                                   "folder resumes a partial table. See docs/studies.md.")
     p.add_argument("study", metavar="STUDY.toml", help="study file")
     p.add_argument("--workers", type=int, default=None, metavar="N",
                    help="local worker processes (default: all cores)")

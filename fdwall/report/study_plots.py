@@ -109,11 +109,57 @@ def _sensitivity_plot(st, unc, path, title):
     return _save(fig, path)
 
 
+def _number(v):
+    """The number at the start of a value as written ('100 mm' -> 100.0), or None."""
+    if isinstance(v, (int, float)) and not isinstance(v, bool):
+        return float(v)
+    try:
+        return float(str(v).split()[0])
+    except (ValueError, IndexError):
+        return None
+
+
+def _grid_plot(st, rows, key, path, title):
+    """Output against the first varied input, one line per combination of the others."""
+    first, vals = st["vary"][0]
+    xs = [_number(v) for v in vals]
+    if any(x is None for x in xs):
+        return _distribution_plot(st, rows, key, path, title)
+    unit_in = str(vals[0]).split(maxsplit=1)[1] if len(str(vals[0]).split()) > 1 else ""
+    others = [p for p, _ in st["vary"][1:]]
+    groups = {}
+    for r in rows:
+        groups.setdefault(tuple(str(r[p]) for p in others), []).append(r)
+    fig, (ax,) = _figure(9.0, 5.2 if key not in _TOUCH else 5.7)
+    name = key.rsplit("_", 1)[0].replace("_", " ")
+    unit = _shown(key, [0.0])[1]
+    for n, (g, rs) in enumerate(sorted(groups.items())):
+        pts = sorted((_number(r[first]), r[key]) for r in rs if r["status"] == "done")
+        if not pts:
+            continue
+        x, y = zip(*pts)
+        lab = ", ".join(f"{p.rsplit('.', 1)[-1]} = {v}" for p, v in zip(others, g)) or None
+        ax.plot(x, _shown(key, y)[0], marker="o", markersize=3.5, linewidth=1.3, label=lab)
+    if key in st.get("limits", {}):
+        lv = float(_shown(key, [st["limits"][key]])[0][0])
+        ax.axhline(lv, color="#cb181d", linestyle="--", linewidth=1.2, label=f"limit {lv:.4g}")
+    _style(ax, f"{first} [{unit_in}]" if unit_in else first, f"{name} [{unit}]")
+    if len(groups) > 1 or key in st.get("limits", {}):
+        ax.legend(fontsize=7.5, loc="best")
+    nf = sum(1 for r in rows if r["status"] != "done")
+    fig.suptitle(f"{title}: {name}, {len(rows) - nf} variants done, {nf} failed", fontsize=11)
+    if key in _TOUCH:
+        _caution(fig)
+    return _save(fig, path)
+
+
 def write_study_plots(st: dict, rows: list, unc, outdir, stem) -> list:
     """Write the study plots into ``outdir``; return their paths.
 
-    One ``<stem>-study-<output>.png`` per numeric output (histogram and empirical CDF, with
-    the ``[exceed]`` limit and ``skin_limit`` drawn) and, for a sampled study,
+    One ``<stem>-study-<output>.png`` per numeric output -- for a sampled study a histogram
+    and empirical CDF, with the ``[exceed]`` limit and ``skin_limit`` drawn; for a grid the
+    output against the first varied input, a line per combination of the others -- and, for
+    a sampled study,
     ``<stem>-study-sensitivity.png`` (bars of the ranking measure, with its confidence
     half-width where the method gives one).
     """
@@ -122,8 +168,8 @@ def write_study_plots(st: dict, rows: list, unc, outdir, stem) -> list:
     for key in st["outputs"]:
         if key == "touch_verdict":
             continue
-        files.append(_distribution_plot(st, rows, key,
-                                        os.path.join(outdir, f"{stem}-study-{key}.png"), title))
+        draw = _grid_plot if st["method"] == "grid" else _distribution_plot
+        files.append(draw(st, rows, key, os.path.join(outdir, f"{stem}-study-{key}.png"), title))
     if unc is not None:
         p = _sensitivity_plot(st, unc, os.path.join(outdir, f"{stem}-study-sensitivity.png"),
                               title)
