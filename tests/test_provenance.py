@@ -165,3 +165,28 @@ def test_analysis_files_carry_provenance_and_options_hash(tmp_path):
     (h5,) = sorted(out.glob("*.h5"))
     with h5py.File(h5, "r") as f, h5py.File(sorted((tmp_path / "size-a").glob("*.h5"))[0]) as g:
         assert f.attrs["input_sha256"] != g.attrs["input_sha256"]
+
+
+def test_study_file_carries_provenance(tmp_path):
+    # the same construction as above (FIPS 180-4 via hashlib): the study file as the case,
+    # the base case it names as an extra file, the library, and seed and method as options
+    import json as _json
+    study = os.path.join(ROOT, "cases", "studies", "curing-oven-insulation-study.toml")
+    out = tmp_path / "st"
+    assert _cli(["study", study, "--out", str(out), "--workers", "1", "--quiet",
+                 "--no-plots"]) == 0
+    (h5,) = sorted(out.glob("*.h5"))
+    with h5py.File(h5, "r") as f:
+        sha = f.attrs["input_sha256"]
+        prov = dict(f["provenance"].attrs)
+    base = prov["input_files"]
+    assert os.path.basename(base) == "curing-oven-panel.toml"
+    opts = _json.loads(prov["options"])
+    h = hashlib.sha256()
+    for label, data in (("case", open(study, "rb").read().replace(b"\r\n", b"\n")),
+                        ("file:" + os.path.basename(base), open(base, "rb").read()),
+                        ("library", LIBRARY_PATH.read_bytes()),
+                        ("options", _json.dumps(opts, sort_keys=True).encode())):
+        h.update(f"{label}\0{len(data)}\0".encode())
+        h.update(data)
+    assert sha == h.hexdigest()

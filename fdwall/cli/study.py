@@ -13,7 +13,8 @@ from ..analyses.study_outputs import TEXT_OUTPUTS
 from ..analyses.study_run import table_header
 from ..cautions import SAFETY_CAUTION
 from ..errors import InputError as LibInputError
-from ..h5tree import write_file
+from ..h5tree import h5_atomic, write_tree
+from ..provenance import provenance, stamp_h5
 from . import common
 from .common import InputError, WriteError
 
@@ -88,16 +89,25 @@ def cmd_study(args) -> int:
         notes = unc["notes"]
         refs += unc["references"]
     h5 = outdir / f"{stem}-study.h5"
+    groups = {"inputs": {"study_file": str(args.study), "method": st["method"],
+                         "seed": -1 if st["seed"] is None else st["seed"],
+                         "workers": args.workers or os.cpu_count() or 1},
+              "summary": summary, "tables": tables,
+              "references": {"items": refs},
+              "notes": {"items": notes}}
+    attrs = {"kind": "study", "fdwall_version": common.version(), "case_name": stem,
+             "caution": SAFETY_CAUTION,
+             "created": datetime.datetime.now(datetime.UTC).isoformat()}
+    # provenance: the study file, the base case it names, the library and the seed
+    prov = provenance(str(args.study), [st["base_file"]],
+                      {"seed": st["seed"], "method": st["method"]})
     try:
-        write_file(h5, {"inputs": {"study_file": str(args.study), "method": st["method"],
-                                   "seed": -1 if st["seed"] is None else st["seed"],
-                                   "workers": args.workers or os.cpu_count() or 1},
-                        "summary": summary, "tables": tables,
-                        "references": {"items": refs},
-                        "notes": {"items": notes}},
-                   attrs={"kind": "study", "fdwall_version": common.version(),
-                          "case_name": stem, "caution": SAFETY_CAUTION,
-                          "created": datetime.datetime.now(datetime.UTC).isoformat()})
+        with h5_atomic(h5) as h:
+            for k, v in attrs.items():
+                h.attrs[k] = v
+            for name, data in groups.items():
+                write_tree(h.create_group(name), data)
+            stamp_h5(h, prov)
     except OSError as exc:
         raise WriteError(f"cannot write '{h5}': {exc.strerror or exc}.") from None
     files = [str(csv_path), str(h5)]
