@@ -108,3 +108,21 @@ def test_cli_repairs_reported(tmp_path):
     d = json.loads(r.stdout)
     assert d["repairs"] and "averaged" in d["repairs"][0]
     assert "log repaired" in r.stderr
+
+
+def test_cli_zero_power_log_gives_the_time_constant_only(tmp_path):
+    # Source: exact cooling curve T = T_amb + (T0 - T_amb) exp(-t/tau) (Incropera sec. 5.3):
+    # with no power the log fixes tau = R C only, so R and C are null in JSON.
+    t = np.arange(0, 4 * 3600.0, 60.0)
+    T = TA + 120 * np.exp(-t / 5000.0) + np.random.default_rng(0).normal(0, 0.1, t.size)
+    lines = ["# invented data for a test", "time [s],oven [K],heater [W]"]
+    lines += [f"{a},{b:.3f},0" for a, b in zip(t, T)]
+    log = tmp_path / "cool.csv"
+    log.write_text("\n".join(lines) + "\n")
+    r = _fit(log, tmp_path / "o", "--time", "time", "--json", "--setpoint", "50 degC")
+    assert r.returncode == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert d["R_K_per_W"] is None and d["C_J_per_K"] is None and d["model"] == "time-constant"
+    assert abs(d["tau_s"] - 5000.0) < 4 * d["tau_stderr_s"]
+    assert d["predictions"] == {}
+    assert "time constant R C only" in r.stderr

@@ -118,3 +118,30 @@ def test_outliers_and_gaps():
         read_log(text, time="time", **KW)
     d = read_log(text, time="time", repair=["gaps"], **KW)
     assert d["t_s"].size == 60 and "gap" in d["repairs"][0]
+
+
+def test_timestamp_reader_never_tracebacks_on_mutated_csv():
+    # Source: property-based testing (hypothesis); common practice, no source: a mutated log
+    # with timestamps gives a result or an InputError, never another exception.
+    import tempfile
+
+    from hypothesis import HealthCheck, given, settings
+    from hypothesis import strategies as st
+    good = _log(["2026-03-29T01:58:00", "2026-03-29T01:59:00", "2026-03-29T03:00:00",
+                 "23:59"], head="stamp").encode()
+
+    @settings(max_examples=200, derandomize=True, deadline=None,
+              suppress_health_check=list(HealthCheck))
+    @given(st.integers(0, len(good) - 1), st.binary(max_size=4),
+           st.sampled_from([None, "Europe/Berlin", "+01:00", "UTC", "Nowhere/Land"]),
+           st.sampled_from([(), ("sort", "duplicates", "outliers", "gaps")]))
+    def check(i, b, zone, repair):
+        with tempfile.NamedTemporaryFile(suffix=".csv", delete=False) as f:
+            f.write(good[:i] + b + good[i + 1:])
+        try:
+            read_log(f.name, time="stamp", temperature="oven", power="heater",
+                     ambient=293.15, time_zone=zone, repair=repair)
+        except InputError:
+            pass
+
+    check()

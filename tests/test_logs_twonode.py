@@ -141,9 +141,10 @@ def test_interval_coverage_with_white_and_ar1_noise(phi):
     # Source: coverage of a nominal 95 % interval over independent seeds is binomial (any
     # statistics text): with 200 seeds its standard deviation is sqrt(0.95 0.05/200) = 0.015,
     # so the effective-n intervals must cover the true R and C in 0.95 +/- 0.05 (3.2 sd).
-    # The block bootstrap of fitted residuals is known to run narrow for short, correlated
-    # records (its variance bias is of order 1/block length: S. N. Lahiri, Resampling Methods
-    # for Dependent Data, Springer 2003, ch. 3; from memory): it must reach 0.85 at least.
+    # The pre-whitened block bootstrap runs somewhat narrow on short, correlated records
+    # (block resampling underestimates the long-run variance by a term of order 1/block
+    # length: S. N. Lahiri, Resampling Methods for Dependent Data, Springer 2003, ch. 3; from
+    # memory): it must reach 0.89 at least (measured 0.915 to 0.935 with these seeds).
     R, C = 0.05, 4e4
     t = np.arange(0, 14400, 60.0)
     P = np.where(t < 7200, 2000.0, 0.0)
@@ -162,7 +163,7 @@ def test_interval_coverage_with_white_and_ar1_noise(phi):
             hits[2 * j + 1] += lo <= v <= hi
     cov = hits / n
     assert abs(cov[0] - 0.95) <= 0.05 and abs(cov[2] - 0.95) <= 0.05, cov
-    assert cov[1] >= 0.85 and cov[3] >= 0.85, cov
+    assert cov[1] >= 0.89 and cov[3] >= 0.89, cov
 
 
 def test_zero_power_gives_time_constant_only_and_bad_input():
@@ -179,3 +180,21 @@ def test_zero_power_gives_time_constant_only_and_bad_input():
         fit_log(t[::-1], T, np.ones(t.size), np.full(t.size, TA))
     with pytest.raises(InputError, match="non-finite"):
         fit_log(t, np.where(t == 60.0, np.nan, T), np.ones(t.size), np.full(t.size, TA))
+
+
+def test_stamped_demo_log_gives_back_its_generator():
+    # Source: the inputs of cases/make-lab-oven-log.py (invented demo): two-node oven
+    # C_chamber 20 kJ/K, C_wall 120 kJ/K, R 0.02 + 0.12 K/W, probe lag 90 s, dead time 30 s,
+    # thermostat on/off at 1500 W, local timestamps in Europe/Berlin; each within 4 standard
+    # errors.
+    from fdwall.analyses.logs import read_log
+    d = read_log("cases/lab-oven-log-stamped.csv", time="timestamp", temperature="probe",
+                 state="heater on", rated_power=1500.0, ambient="room",
+                 time_zone="Europe/Berlin")
+    assert d["t_s"][-1] == 5 * 3600.0
+    f = fit_log(d["t_s"], d["T_K"], d["P_W"], d["T_amb_K"], model="two-node",
+                sensor_lag="fit", dead_time="fit", n_boot=0)
+    for k, v in (TWO | {"tau_sensor": 90.0, "dead_time": 30.0}).items():
+        p = f["parameters"][k]
+        assert abs(p["value"] - v) < 4 * p["stderr"], (k, p)
+    assert f["C_lag_bias_fraction"] > 0

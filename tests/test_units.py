@@ -240,3 +240,27 @@ def test_leakage_errors():
         parse_leakage(3, 1.0)
     with pytest.raises(CaseError, match="negative"):
         parse_leakage("-3 m3/h")
+
+
+def test_conversion_cache_gives_the_same_numbers_and_checks():
+    # common practice, no source: a repeated text converts to the identical number (checked
+    # against pint directly, the unit library itself), and the sign and range checks and the
+    # error messages (with the key) still apply on every call
+    import pint
+
+    from fdwall import units as U
+    from fdwall.errors import InputError
+    ureg = pint.UnitRegistry()
+    U._SI_CACHE.clear()
+    for text, kind, unit, si in [("123.4 mm", "length", "mm", "m"),
+                                 ("7.5 kW/m2", "heat_flux", "kW/m**2", "W/m**2")]:
+        first = U.parse_quantity(text, kind, "a.b")
+        again = U.parse_quantity(text, kind, "a.b")
+        assert first == again == ureg.Quantity(float(text.split()[0]), unit).to(si).magnitude
+    assert ("123.4 mm", "length") in U._SI_CACHE
+    U.parse_quantity("-5 mm", "length", "x")                     # cached without a sign check
+    with pytest.raises(InputError, match="layers.thickness"):
+        U.parse_quantity("-5 mm", "length", "layers.thickness", positive=True)
+    for _ in range(2):                                           # failures are never cached
+        with pytest.raises(InputError, match="k.one"):
+            U.parse_quantity("5 mm*", "length", "k.one")

@@ -34,7 +34,7 @@ import numpy as np
 from fdwall.errors import InputError
 
 __all__ = ["KEYS", "parse_key", "apply_value", "current_value", "log_driven_case",
-           "simulate_log", "calibrate"]
+           "simulate_log", "sensor_filter", "calibrate", "like_for_like"]
 
 KEYS = ("conductivity_factor", "emissivity", "contact_resistance", "leakage")
 _UNITS = {"conductivity_factor": "1", "emissivity": "1", "contact_resistance": "m2*K/W",
@@ -234,7 +234,32 @@ def simulate_log(case, t):
     return np.interp(np.asarray(t) - t[0], res.times, y)
 
 
-def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
+def sensor_filter(t, y, tau=0.0, dead_time=0.0):
+    """What a probe with a first-order lag ``tau`` [s] and a ``dead_time`` [s] logs at ``t``
+    [s] when the true temperature is ``y`` [K] at ``t``, taken as linear between the times.
+
+    The dead time shifts the curve (``numpy.interp`` at t - dead_time, the start value held
+    before the first time); the lag is the exact response of tau dy_s/dt = y - y_s to a
+    piecewise-linear input, from y_s = y at the start.
+    """
+    t = np.asarray(t, float)
+    u = np.asarray(y, float)
+    if dead_time:
+        u = np.interp(t - float(dead_time), t, u)
+    if not tau:
+        return u
+    out = np.empty_like(u)
+    out[0] = u[0]
+    for k in range(t.size - 1):
+        h = t[k + 1] - t[k]
+        m = (u[k + 1] - u[k]) / h
+        e = math.exp(-h / tau)
+        out[k + 1] = u[k + 1] - m * tau + (out[k] - u[k] + m * tau) * e
+    return out
+
+
+def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0, sensor_lag=0.0,
+              dead_time=0.0):
     """Fit the chosen physics of ``case`` to a log by least squares through the solver.
 
     Parameters
@@ -249,7 +274,10 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
         Solver tolerance per step [K] for these runs (tight, so the finite-difference
         Jacobian is not noise).
     n_boot, seed
-        Moving-block bootstrap resamples (linearised at the fit) and its seed.
+        Block-bootstrap resamples (linearised at the fit) and its seed.
+    sensor_lag, dead_time : float
+        A probe's first-order lag and dead time [s] between the simulated temperature and
+        the log (:func:`sensor_filter`); 0: none.
 
     Returns
     -------
@@ -263,7 +291,7 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
     from scipy.optimize import least_squares
     from scipy.special import stdtrit
 
-    from fdwall.analyses.twonode import block_length, residual_acf
+    from fdwall.analyses.twonode import block_length, bootstrap_errors, residual_acf
     t, T, P = (np.asarray(a, float) for a in (t, T, P))
     keys = [k.strip() for k in keys if k.strip()]
     if not keys or len(set(keys)) != len(keys):
@@ -298,7 +326,7 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
         for xi, pk in zip(x[:-1], parsed):
             c = apply_value(c, pk, from_x(xi, pk), base=base)
         runs[0] += 1
-        return simulate_log(c, t)
+        return sensor_filter(t, simulate_log(c, t), sensor_lag, dead_time)
 
     def res(x):
         return model(x) - T
@@ -322,15 +350,12 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
     with np.errstate(invalid="ignore", divide="ignore"):
         corr = cov / np.outer(sd, sd)
     zq = float(stdtrit(max(n_eff - k, 1.0), 0.975))
-    L = block_length(n, float(acf[0]))
+    L = block_length(n, 0.0)
     boot = None
     if n_boot:
-        rng = np.random.default_rng(seed)
-        ec = (e - e.mean()) * math.sqrt(n / max(n - k * n / n_eff, 1.0))
-        nb = int(math.ceil(n / L))
-        st = rng.integers(0, n - L + 1, size=(n_boot, nb))
-        idx = (st[:, :, None] + np.arange(L)[None, None, :]).reshape(n_boot, -1)[:, :n]
-        boot = x[None, :] + (ec[idx] @ J) @ JtJi
+        E = bootstrap_errors(e, n_boot, np.random.default_rng(seed), float(acf[0]), L,
+                             scale=math.sqrt(n / max(n - k * n / n_eff, 1.0)))
+        boot = x[None, :] + (E @ J) @ JtJi
     params, warnings = {}, []
     for i, (key, pk) in enumerate(zip(keys, parsed)):
         v = from_x(x[i], pk)
@@ -358,3 +383,102 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0):
             "start_temperature_stderr_K": float(sd[-1]), "lag1_autocorrelation": float(acf[0]),
             "n_eff": float(n_eff), "correlation": corr, "keys": keys, "runs": runs[0],
             "model_K": model(x), "warnings": warnings}
+
+
+def like_for_like(case, t, P, T_start, fit=None, *, model="one-node", T_amb=None,
+                  tau_hint=None, rc=None):
+    """The fit fdwall's own simulated curve gives, for the log's power history and length.
+
+    Parameters
+    ----------
+    case : Case
+        The case, run driven by the logged power (see :func:`log_driven_case`).
+    t, P : array_like
+        Log times [s] and power [W].
+    T_start : float
+        Uniform start temperature of the runs [K] (the log's start).
+    fit : dict, optional
+        The log's own fit (:func:`fdwall.analyses.twonode.fit_log`), for the ratios.
+    model : str
+        Network fitted to the simulated curve, as for the log.
+    T_amb : float, optional
+        Ambient for the network [K] (default: the case's implied ambient).
+    tau_hint : float, optional
+        The wall's first-moment time constant [s]: the warm-up at the log's largest power,
+        to which the same network is fitted over lengths from a quarter of the log to
+        max(16 logs, 5 tau_hint) (how C depends on the length), runs that long.
+    rc : dict, optional
+        :func:`fdwall.analyses.lumped.rc_analysis` of the case, for the reading of which
+        implied C the fits tend to.
+
+    Returns
+    -------
+    dict
+        ``R_K_per_W``, ``C_J_per_K``, ``tau_s``, ``rms_K`` of the simulated curve's fit,
+        ``ratios`` (log fit / simulated fit: ``R``, ``C``; with ``fit``), ``fit_vs_length``
+        (``length_s``, ``R_K_per_W``, ``C_J_per_K`` lists) and ``reading`` (sentences).
+    """
+    from fdwall.analyses.twonode import fit_log
+    t, P = np.asarray(t, float), np.asarray(P, float)
+    if T_amb is None:
+        from fdwall.analyses.lumped import implied_rc
+        T_amb = implied_rc(case)["T_amb_K"]
+    Ta = np.full(t.size, float(T_amb))
+    sim = simulate_log(log_driven_case(case, t, P, T_start), t)
+    f = fit_log(t, sim, P, Ta, model=model, n_boot=0)
+    out = {"R_K_per_W": f["R_K_per_W"], "C_J_per_K": f["C_J_per_K"], "tau_s": f["tau_s"],
+           "rms_K": f["rms_K"], "model_K": sim}
+    reading = []
+    if fit is not None and fit.get("R_K_per_W") is not None and f["R_K_per_W"] is not None:
+        rR = fit["R_K_per_W"] / f["R_K_per_W"]
+        rC = fit["C_J_per_K"] / f["C_J_per_K"]
+        out["ratios"] = {"R": rR, "C": rC}
+        reading.append(
+            f"Fitted the same way to fdwall's own curve for this power history and log length, "
+            f"the {model} model gives R {f['R_K_per_W']:.4g} K/W and C {f['C_J_per_K']:.4g} "
+            f"J/K; the log's fit is {rR:.2f} x that R and {rC:.2f} x that C. This comparison "
+            "takes the log length and the wall's distributed capacity out of the difference: "
+            "what is left is the equipment's (contents, leakage, edges, k data, sensor).")
+    Pmax = float(np.max(P))
+    if Pmax > 0:
+        span = float(t[-1] - t[0])
+        long = max(16.0 * span, 5.0 * float(tau_hint or 0.0))
+        dt = max(float(np.median(np.diff(t))), long / 4000.0)
+        tl = np.arange(int(round(long / dt)) + 1) * dt
+        Pl = np.full(tl.size, Pmax)
+        Tl = simulate_log(log_driven_case(case, tl, Pl, T_start), tl)
+        L, Rs, Cs = [], [], []
+        for m in np.geomspace(0.25 * span, long, 9):
+            k = int(round(m / dt)) + 1
+            if k < 10:
+                continue
+            g = fit_log(tl[:k], Tl[:k], Pl[:k], np.full(k, float(T_amb)), model=model,
+                        n_boot=0)
+            L.append(float(tl[k - 1]))
+            Rs.append(g["R_K_per_W"])
+            Cs.append(g["C_J_per_K"])
+        out["fit_vs_length"] = {"length_s": L, "R_K_per_W": Rs, "C_J_per_K": Cs, "step_s": dt,
+                                "power_W": Pmax}
+        if len(Cs) >= 2:
+            reading.append(
+                f"A constant-power warm-up of this case at {Pmax:.4g} W fitted over "
+                f"{L[0] / 3600:.3g} h to {L[-1] / 3600:.3g} h gives C from {Cs[0]:.4g} to "
+                f"{Cs[-1]:.4g} J/K: a short log sees only the inner part of the wall, so its "
+                "fitted C is smaller.")
+            if rc and rc.get("C_effective_J_per_K"):
+                ce, cs = rc["C_effective_J_per_K"], rc["C_stored_J_per_K"]
+                if abs(ce / cs - 1) < 0.05:
+                    tail = ("C_effective and C_stored lie within 5 % of each other here, so "
+                            "the fits cannot tell which one they tend to")
+                else:
+                    near = ("C_effective" if abs(Cs[-1] / ce - 1) <= abs(Cs[-1] / cs - 1)
+                            else "C_stored")
+                    tail = f"it lies nearer {near}"
+                reading.append(
+                    f"The longest fit's C is {Cs[-1] / ce:.2f} x C_effective ({ce:.4g} J/K, "
+                    f"the first-moment C) and {Cs[-1] / cs:.2f} x C_stored ({cs:.4g} J/K); "
+                    + tail + ".")
+        out["C_effective_J_per_K"] = (rc or {}).get("C_effective_J_per_K")
+        out["first_moment_tau_s"] = (rc or {}).get("first_moment_tau_s")
+    out["reading"] = reading
+    return out

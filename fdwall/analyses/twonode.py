@@ -18,8 +18,9 @@ when it is defective); the tests check it against scipy.linalg.expm.
 
 Fits are nonlinear least squares (scipy.optimize.least_squares) over the whole record.
 Intervals: standard errors from the Jacobian with the residual variance inflated for lag-1
-autocorrelation (effective sample size), and beside them a moving-block residual bootstrap
-(linearised: one Gauss-Newton step from the fit per resample).
+autocorrelation (effective sample size), and beside them a block bootstrap of the residuals
+whitened by their AR(1) fit and re-coloured after resampling (linearised: one Gauss-Newton
+step from the fit per resample).
 """
 from __future__ import annotations
 
@@ -32,7 +33,7 @@ from scipy.optimize import least_squares
 from fdwall.errors import InputError
 
 __all__ = ["MODELS", "network_matrices", "propagate", "simulate", "fit_log",
-           "block_length", "residual_acf"]
+           "block_length", "bootstrap_errors", "residual_acf", "time_to_level", "predict"]
 
 MODELS = ("one-node", "two-node")
 
@@ -177,6 +178,34 @@ def block_length(n, r1):
     r1 = min(max(r1, 0.0), 0.99)
     L = max(n ** (1.0 / 3.0), 3.0 * (1 + r1) / (1 - r1))
     return int(max(1, min(math.ceil(L), n // 5)))
+
+
+def bootstrap_errors(e, n_boot, rng, r1, L, scale=1.0):
+    """Resampled residual series [K] (n_boot, n) by the pre-whitened moving-block bootstrap.
+
+    The residuals ``e`` are whitened by their AR(1) fit (coefficient ``r1``, clipped to
+    0..0.99), the innovations resampled in moving blocks of ``L`` samples, and the series
+    rebuilt through the same AR(1) filter from a stationary start ("pre-whitening and
+    post-blackening": A. C. Davison and D. V. Hinkley, Bootstrap Methods and their
+    Application, Cambridge 1997, sec. 8.2.3).  The filter restores the slow part of the noise
+    that a fit takes out of its own residuals; the blocks keep what AR(1) misses.  ``scale``
+    multiplies the result (the caller's allowance for the samples the fit used up).
+    """
+    from scipy.signal import lfilter
+    e = np.asarray(e, float) - np.mean(e)
+    n = e.size
+    phi = min(max(float(r1), 0.0), 0.99)
+    u = e[1:] - phi * e[:-1]
+    u = u - u.mean()
+    m = u.size
+    L = int(max(1, min(L, m)))
+    nb = int(math.ceil(n / L))
+    st = rng.integers(0, m - L + 1, size=(n_boot, nb))
+    idx = (st[:, :, None] + np.arange(L)[None, None, :]).reshape(n_boot, -1)[:, :n]
+    U = u[idx]
+    # stationary start: e0 with the variance of the AR(1) series, sigma_u^2/(1 - phi^2)
+    U[:, 0] = rng.choice(e, size=n_boot)   # the first value is a residual itself
+    return scale * lfilter([1.0], [1.0, -phi], U, axis=1)
 
 
 def _exp(x):
@@ -343,20 +372,14 @@ def fit_log(t, T, P, T_amb, *, model="one-node", sensor_lag=None, dead_time=None
         corr = cov / np.outer(sd_x, sd_x)
     corr = np.where(np.isfinite(corr), corr, 1.0)
 
-    # moving-block residual bootstrap, linearised at the fit: x* = x + (J'J)^-1 J' e*
-    L = block_length(n, r1)
+    # block bootstrap of the residuals, linearised at the fit: x* = x + (J'J)^-1 J' e*
+    L = block_length(n, 0.0)
     boot = None
     if n_boot:
-        rng = np.random.default_rng(seed)
-        # residuals of a fit are shrunk: k parameters remove about k integrated
-        # autocorrelation times' worth of samples (k n/n_eff); rescale them back
-        ec = (e - e.mean()) * math.sqrt(n / max(n - k * n / n_eff, 1.0))
-        nb = int(math.ceil(n / L))
-        starts_b = rng.integers(0, n - L + 1, size=(n_boot, nb))
-        idx = (starts_b[:, :, None] + np.arange(L)[None, None, :]).reshape(n_boot, -1)[:, :n]
-        E = ec[idx]                                    # (n_boot, n)
-        dX = (E @ J) @ JtJi                            # (n_boot, k); JtJi symmetric
-        boot = x[None, :] + dX
+        # residuals of a fit are shrunk: k parameters use up about k n/n_eff samples
+        E = bootstrap_errors(e, n_boot, np.random.default_rng(seed), r1, L,
+                             scale=math.sqrt(n / max(n - k * n / n_eff, 1.0)))
+        boot = x[None, :] + (E @ J) @ JtJi             # (n_boot, k); JtJi symmetric
 
     def phys_value(i, xs):
         if i < n_phys or names_x[i] == "tau_sensor":

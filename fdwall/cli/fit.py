@@ -98,26 +98,39 @@ def cmd_fit(args) -> int:
     except LibInputError as exc:
         raise InputError(str(exc)) from None
     warns = [f"log repaired: {r}" for r in log["repairs"]] + list(fit["warnings"])
-    check = cal = None
+    check = cal = lfl = None
     if args.calibrate and not args.case:
         raise InputError("--calibrate needs --case CASE (the case whose physics is fitted to "
                          "the log).")
     if args.case:
         case, case_warns = common._load(args.case)
+        from ..analyses.calibrate import like_for_like
         from ..analyses.logs import physics_check
-        from ..analyses.lumped import implied_rc
+        from ..analyses.lumped import rc_analysis
         try:
-            implied = implied_rc(case)
+            implied = rc_analysis(case)
             check = physics_check(fit, implied, float(log["t_s"][-1] - log["t_s"][0]))
+            if fit["R_K_per_W"] is not None:
+                lfl = like_for_like(case, log["t_s"], log["P_W"], float(log["T_K"][0]), fit,
+                                    model=fit["model"], T_amb=implied["T_amb_K"],
+                                    tau_hint=implied.get("first_moment_tau_s"), rc=implied)
         except (LibInputError, ValueError) as exc:
             raise InputError(f"--case {args.case}: {exc}") from None
-        warns.extend(check["warnings"])
+        except (RuntimeError, ArithmeticError) as exc:
+            common.error(f"--case {args.case}: the solver failed: {exc}")
+            return common.EXIT_NOT_CONVERGED
+        short = any("too short to see equilibrium" in w for w in warns)
+        warns.extend(w for w in check["warnings"]
+                     if not (short and "too short to see equilibrium" in w))
+        if lfl:
+            check["reading"] = check["reading"] + lfl["reading"]
         if args.calibrate:
             from ..analyses.calibrate import calibrate
             keys = [k.strip() for k in args.calibrate.split(",") if k.strip()]
             try:
                 cal = calibrate(case, log["t_s"], log["T_K"], log["P_W"], keys,
-                                n_boot=args.bootstrap)
+                                n_boot=args.bootstrap, sensor_lag=fit["sensor_lag_s"],
+                                dead_time=fit["dead_time_s"])
             except LibInputError as exc:
                 raise InputError(f"--calibrate {args.calibrate}: {exc}") from None
             except (RuntimeError, ArithmeticError) as exc:
@@ -196,12 +209,16 @@ def cmd_fit(args) -> int:
             "state matrix; checked against scipy.linalg.expm)",
             "scipy.optimize.least_squares; standard errors from the Jacobian with an "
             "effective sample size n(1-r1)/(1+r1) and Student t on n_eff - k",
-            "moving-block residual bootstrap, linearised at the fit (Kuensch 1989)"]},
+            "block bootstrap of AR(1)-whitened residuals, post-blackened, linearised at "
+            "the fit (Kuensch 1989; Davison & Hinkley 1997, sec. 8.2.3)"]},
         "notes": {"items": notes},
     }
     if check:
         groups["physics"] = check["physics"]
         groups["ratios"] = check["ratios"]
+    if lfl:
+        groups["like_for_like"] = {k: v for k, v in lfl.items() if k != "model_K"}
+        groups["tables"]["log"]["simulated_K"] = lfl["model_K"]
     if cal:
         groups["calibration"] = {"parameters": cal["parameters"], "rms_K": cal["rms_K"],
                                  "lag1_autocorrelation": cal["lag1_autocorrelation"],
@@ -210,23 +227,29 @@ def cmd_fit(args) -> int:
         groups["tables"]["log"]["calibrated_K"] = cal["model_K"]
         groups["notes"]["items"].append(
             "calibration: the case driven by the logged power (heater power, or the inner "
-            "face's flux over the wall area), started at the log's first temperature, fitted "
-            "by least squares through the solver; intervals as for the fit")
+            "face's flux over the wall area), started at a fitted uniform temperature, "
+            "fitted by least squares through the solver, seen through the fit's sensor lag "
+            f"({fit['sensor_lag_s']:.4g} s) and dead time ({fit['dead_time_s']:.4g} s); "
+            "intervals as for the fit")
     png = outdir / f"{stem}-fit.png"
-    files = common.write_analysis(args, h5, groups, kind="fit", case_name=stem)
-    if not args.no_plots:
+    plots = []
+    if not args.no_plots:  # drawn first, so that --report embeds it
         from ..report.fitplot import plot_fit
         label = {"one-node": "one-node fit", "two-node": "two-node fit",
                  "time-constant": "time-constant fit"}[fit["model"]]
         try:
-            files.append(plot_fit(log["t_s"], log["T_K"], fit["model_K"], log["P_W"], png,
+            outdir.mkdir(parents=True, exist_ok=True)
+            plots.append(plot_fit(log["t_s"], log["T_K"], fit["model_K"], log["P_W"], png,
                                   title=f"{stem}: {label}, residual RMS {fit['rms_K']:.3g} K",
                                   model_label=label, T_amb_K=log["T_amb_K"],
                                   extra=None if not cal else
                                   (cal["model_K"], "solver, calibrated")))
         except OSError as exc:
             raise common.WriteError(f"cannot write the plot '{png}': "
-                                    f"{exc.strerror or exc}.") from None
+                                    f"{exc.strerror or exc}. Choose another folder with "
+                                    "--out DIR.") from None
+    files = common.write_analysis(args, h5, groups, kind="fit", case_name=stem)
+    files[1:1] = plots
     for w in warns:
         common.warn(w)
     if args.json:
@@ -238,9 +261,11 @@ def cmd_fit(args) -> int:
                        reading=check["reading"])
         if cal:
             out["calibration"] = groups["calibration"]
+        if lfl:
+            out["like_for_like"] = groups["like_for_like"]
         print(common.dumps(out))
     elif not args.quiet:
-        print(_text(args, fit, pred, check, full, at_power, files, cal), end="")
+        print(_text(args, fit, pred, check, full, at_power, files, cal, lfl), end="")
     return EXIT_OK
 
 
@@ -254,7 +279,7 @@ def _pm(item, fmt=".5g"):
     return s + ")"
 
 
-def _text(args, fit, pred, check, full, at_power, files, cal=None) -> str:
+def _text(args, fit, pred, check, full, at_power, files, cal=None, lfl=None) -> str:
     P = fit["parameters"]
     L = [f"{fit['model']} fit of '{args.log}'"
          + ("" if fit["identifiable"] else "  [NOT IDENTIFIABLE: see the warnings]")]
@@ -288,6 +313,17 @@ def _text(args, fit, pred, check, full, at_power, files, cal=None) -> str:
             L.append(f"  C    {ph['C_stored_J_per_K']:.5g} J/K (stored)  fitted/implied "
                      f"{ra['C_stored']:.3f}; total {ph['C_total_J_per_K']:.5g} J/K")
         L.append(f"  tau  {ph['tau_s']:.5g} s         fitted/implied {ra['tau']:.3f}")
+        if lfl and "ratios" in lfl:
+            L.append(f"  same {fit['model']} fit of fdwall's own curve (this power history "
+                     f"and length): R {lfl['R_K_per_W']:.5g} K/W, C {lfl['C_J_per_K']:.5g} "
+                     f"J/K; log/simulated R {lfl['ratios']['R']:.3f}, C "
+                     f"{lfl['ratios']['C']:.3f}")
+            fl = lfl.get("fit_vs_length")
+            if fl:
+                L.append("  fitted C against log length (constant-power warm-up of the case "
+                         f"at {fl['power_W']:.4g} W):")
+                for a, b in zip(fl["length_s"], fl["C_J_per_K"]):
+                    L.append(f"    {a / 3600:8.3g} h   C {b:.5g} J/K")
         for line in check["reading"]:
             L.append(f"  - {line}")
     if cal:
