@@ -45,6 +45,10 @@ from .solver.layout import (
     CTL_PID_AVERAGED,
     CTL_PID_SWITCHED,
     CTL_THERMOSTAT,
+    EV_NODE_A,
+    EV_NODE_B,
+    EV_THRESHOLD,
+    EV_WEIGHT,
     FF_AREA,
     FF_H,
     FI_EMISSIVITY,
@@ -75,7 +79,8 @@ from .solver.layout import (
     NI_MAT_R,
 )
 
-__all__ = ["System", "build_system"]
+__all__ = ["System", "build_system", "event_rows", "hand_over",
+           "handed_system"]
 
 
 def _integrated(T, k, c):
@@ -395,8 +400,48 @@ def _chains_of(case: Case):
     return out
 
 
+#: Attribute of a Case under which a system built for it waits for its first user.
+_HANDED = "_fdwall_built_system"
+
+
+def hand_over(case: Case, system: System) -> None:
+    """Leave ``system`` (built from ``case``) with the case for the next :func:`build_system`.
+
+    The case loader builds the system once to check a case; it hands it over so that the
+    first ``build_system(case)`` afterwards (a run, a steady state, a study variant) returns
+    that system instead of building it again.  The hand-over is taken once: later calls
+    build a fresh system, so no two callers ever share one (a System holds mutable arrays).
+    A copy of the case, or one made by ``dataclasses.replace``, does not take it.
+    """
+    if system.case is not case:
+        raise ModelError("hand_over: the system was not built from this case")
+    object.__setattr__(case, _HANDED, system)   # cases are frozen; like the material caches
+
+
+def handed_system(case: Case):
+    """The system waiting with ``case`` (see :func:`hand_over`), left in place; or None.
+
+    For read-only checks before a run: nothing may change the arrays of the returned system.
+    """
+    sysm = case.__dict__.get(_HANDED)
+    return sysm if sysm is not None and sysm.case is case else None
+
+
+def _take_handed(case):
+    """The system handed over to ``case`` (removed from it), or None."""
+    sysm = case.__dict__.pop(_HANDED, None)
+    return sysm if sysm is not None and sysm.case is case else None
+
+
 def build_system(case: Case) -> System:
-    """Assemble the kernel arrays for ``case``."""
+    """Assemble the kernel arrays for ``case``.
+
+    A system the case loader built for this very case (see :func:`hand_over`) is returned
+    the first time instead of being built again; the arrays are the same.
+    """
+    handed = _take_handed(case)
+    if handed is not None:
+        return handed
     tb = _Tables()
     specs = _chains_of(case)
     walls = [s[0] for s in specs]
@@ -565,6 +610,46 @@ def locate_depth(wall, mesh, depth):
         return a, b, 1.0
     w = (x[b] - depth) / (x[b] - x[a])
     return a, b, float(np.clip(w, 0.0, 1.0))
+
+
+def event_rows(system: System, case: Case):
+    """Kernel rows (node a, node b; weight on a, threshold [K]) of the case's events.
+
+    Raises ModelError for an event at a wall, interface or depth that does not exist, so it
+    also serves to validate a case's events before a run.
+    """
+    evs = case.run.events
+    ev_i = np.zeros((len(evs), 2), dtype=np.int64)
+    ev_f = np.zeros((len(evs), 2))
+    for e, ev in enumerate(evs):
+        if ev.where == "chamber":
+            if not system.has_chamber:
+                raise ModelError(f"event '{ev.name}' watches the chamber, but the case has none")
+            ev_i[e, EV_NODE_A] = ev_i[e, EV_NODE_B] = system.n_nodes
+            ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = 1.0, ev.threshold
+            continue
+        j = system.chain_of(ev.wall)
+        m, o = system.meshes[j], system.offsets[j]
+        wall = system.walls[j]
+        if ev.where == "inner":
+            a = b = o
+            w = 1.0
+        elif ev.where == "outer":
+            a = b = o + m.n - 1
+            w = 1.0
+        elif ev.where.startswith("interface:"):
+            n = int(ev.where.split(":")[1])
+            if not 1 <= n <= len(m.interface_nodes):
+                raise ModelError(f"event '{ev.name}': interface {n} does not exist "
+                                 f"(1..{len(m.interface_nodes)})")
+            a = b = o + m.interface_nodes[n - 1]
+            w = 1.0
+        else:
+            a, b, w = locate_depth(wall, m, ev.depth)
+            a, b = a + o, b + o
+        ev_i[e, EV_NODE_A], ev_i[e, EV_NODE_B] = a, b
+        ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = w, ev.threshold
+    return ev_i, ev_f
 
 
 def _time_schedules(case):

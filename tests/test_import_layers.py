@@ -37,8 +37,6 @@ KNOWN_UPWARD = {
         "the case checks build a system to check it (validation to move below the system)",
     ("fdwall.case.loader", "fdwall.system"):
         "the loader builds a system once to check the case (idem)",
-    ("fdwall.case.loader", "fdwall.solver.transient"):
-        "the loader validates the watched events with the driver's event_rows (idem)",
     ("fdwall.case.loader", "fdwall.mesh"):
         "the loader reads the mesh's default cell count to bound the stored outputs",
     ("fdwall.physics.convection", "fdwall.solver.native"):

@@ -133,8 +133,10 @@ def _service_warnings(case):
                                else "its start temperature")
     else:
         try:
-            from ..system import build_system
-            sysm = build_system(case)
+            from ..system import build_system, handed_system
+            sysm = handed_system(case)          # the loader's system, read only
+            if sysm is None:
+                sysm = build_system(case)
             if init.shape == (sysm.n_unknowns,):
                 seen = {}
                 gid = 0

@@ -341,13 +341,18 @@ class _Loader:
                             "a longer output_every, or fewer cells (cells, mesh_refine)")
 
     def _check(self, case):
-        """Assemble the system once: catches inconsistencies early, with the file named."""
-        from ..solver.transient import event_rows
-        from ..system import build_system
+        """Assemble the system once: catches inconsistencies early, with the file named.
+
+        The system built here is handed over to the case (:func:`fdwall.system.hand_over`):
+        the first ``build_system(case)`` afterwards (a run, a steady state, a study variant)
+        takes it instead of building it a second time.
+        """
+        from ..system import build_system, event_rows, hand_over
         with _model(self.file, "(case)", "the case"):
             sysm = build_system(case)
         with _model(self.file, "run.watch", "a [[run.watch]] entry"):
             event_rows(sysm, case)
+        hand_over(case, sysm)
         return case
 
     # ------------------------------------------------------------------ materials

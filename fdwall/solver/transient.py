@@ -16,7 +16,7 @@ import numpy as np
 
 from ..errors import ConvergenceError, Interrupted
 from ..model import Case, ModelError
-from ..system import System, build_system, locate_depth
+from ..system import build_system, event_rows  # noqa: F401  (event_rows: re-exported)
 from . import native as K
 from .layout import (
     CF_SENSOR_W,
@@ -27,10 +27,6 @@ from .layout import (
     CI_SETPOINT,
     CTL_DUTY_AVERAGED,
     CTL_THERMOSTAT,
-    EV_NODE_A,
-    EV_NODE_B,
-    EV_THRESHOLD,
-    EV_WEIGHT,
     EX_HEATER,
     KS_ARRAYS,
     N_EX,
@@ -55,46 +51,6 @@ def output_times(case: Case) -> np.ndarray:
     t = np.concatenate([np.arange(n + 1) * dt, [r.duration], list(r.profile_times)])
     t = np.unique(np.round(t[(t >= 0) & (t <= r.duration)], 9))
     return t
-
-
-def event_rows(system: System, case: Case):
-    """Kernel rows (node a, node b; weight on a, threshold [K]) of the case's events.
-
-    Raises ModelError for an event at a wall, interface or depth that does not exist, so it
-    also serves to validate a case's events before a run.
-    """
-    evs = case.run.events
-    ev_i = np.zeros((len(evs), 2), dtype=np.int64)
-    ev_f = np.zeros((len(evs), 2))
-    for e, ev in enumerate(evs):
-        if ev.where == "chamber":
-            if not system.has_chamber:
-                raise ModelError(f"event '{ev.name}' watches the chamber, but the case has none")
-            ev_i[e, EV_NODE_A] = ev_i[e, EV_NODE_B] = system.n_nodes
-            ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = 1.0, ev.threshold
-            continue
-        j = system.chain_of(ev.wall)
-        m, o = system.meshes[j], system.offsets[j]
-        wall = system.walls[j]
-        if ev.where == "inner":
-            a = b = o
-            w = 1.0
-        elif ev.where == "outer":
-            a = b = o + m.n - 1
-            w = 1.0
-        elif ev.where.startswith("interface:"):
-            n = int(ev.where.split(":")[1])
-            if not 1 <= n <= len(m.interface_nodes):
-                raise ModelError(f"event '{ev.name}': interface {n} does not exist "
-                                 f"(1..{len(m.interface_nodes)})")
-            a = b = o + m.interface_nodes[n - 1]
-            w = 1.0
-        else:
-            a, b, w = locate_depth(wall, m, ev.depth)
-            a, b = a + o, b + o
-        ev_i[e, EV_NODE_A], ev_i[e, EV_NODE_B] = a, b
-        ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = w, ev.threshold
-    return ev_i, ev_f
 
 
 def run(case, initial=None, progress=None, strict=True, system=None, control_state=None,
