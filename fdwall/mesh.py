@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["WallMesh", "mesh_wall", "default_cells"]
+__all__ = ["WallMesh", "mesh_wall", "default_cells", "cell_counts", "shape_key"]
 
 GRADING_BETA = 0.5
 
@@ -123,12 +123,36 @@ def _volume(geometry, r1, r2, area, length):
     return 4.0 / 3.0 * np.pi * (r2 ** 3 - r1 ** 3)
 
 
-def mesh_wall(wall) -> WallMesh:
-    """Mesh a :class:`fdwall.model.Wall` into nodes, half volumes and link conductances."""
+def cell_counts(wall) -> list:
+    """Cells per layer of the mesh of ``wall`` [-]: a layer's own ``cells`` (times the wall's
+    ``refine``), else :func:`default_cells`."""
     cells = [l.cells if l.cells is not None else c for l, c in zip(wall.layers, default_cells(wall))]
     if wall.refine != 1.0:
         cells = [int(np.ceil(l.cells * wall.refine)) if l.cells is not None else c
                  for l, c in zip(wall.layers, cells)]
+    return cells
+
+
+def shape_key(wall, cells=None) -> tuple:
+    """Everything :func:`mesh_wall` reads from ``wall``, as a tuple: two walls with equal keys
+    get identical meshes.
+
+    The key holds the geometry, area [m2], length [m], layer edges (radii or depths) [m],
+    contact resistances [m2K/W] and the cells per layer (:func:`cell_counts`, which depend
+    on the layers' materials through :func:`default_cells`).
+    """
+    cells = cell_counts(wall) if cells is None else cells
+    return (wall.geometry, float(wall.area), float(wall.length),
+            tuple(float(r) for r in wall.radii()), tuple(float(c) for c in wall.contact),
+            tuple(int(c) for c in cells))
+
+
+def mesh_wall(wall, cells=None) -> WallMesh:
+    """Mesh a :class:`fdwall.model.Wall` into nodes, half volumes and link conductances.
+
+    ``cells`` (per layer) defaults to :func:`cell_counts`; pass it when already known.
+    """
+    cells = cell_counts(wall) if cells is None else cells
     edges = wall.radii()
     geo, A, L = wall.geometry, wall.area, wall.length
     nl = len(cells)
@@ -184,6 +208,8 @@ def mesh_wall(wall) -> WallMesh:
         else:
             interface_nodes.append(int(base[j]))
     layer_nodes = [(int(base[j]), int(base[j] + n_c[j])) for j in range(nl)]
+    for a in (x, lay_l, lay_r, vl, vr, link_layer, link_g):
+        a.setflags(write=False)     # a mesh may be shared by systems (build_system like=)
     return WallMesh(
         x=x, layer_of_node_left=lay_l, layer_of_node_right=lay_r, vol_left=vl, vol_right=vr,
         link_layer=link_layer, link_g=link_g, interface_nodes=interface_nodes,

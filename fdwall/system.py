@@ -11,7 +11,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .mesh import mesh_wall
+from .mesh import cell_counts, mesh_wall, shape_key
 from .model import Case, Face, ModelError
 from .schedule import Schedule
 from .solver.layout import (
@@ -202,6 +202,8 @@ class System:
     wall_origin: list = field(default_factory=list)   # case wall index of each solved wall
     is_bridge: list = field(default_factory=list)     # True for a bridge path
     area_factor: float = 1.0                          # box edge/corner factor applied [-]
+    shape_keys: list = field(default_factory=list)    # mesh.shape_key of each solved wall
+    mesh_reused: list = field(default_factory=list)   # True where the mesh came from like=
 
     def chain_of(self, case_wall: int) -> int:
         """Index of the solved wall (clear path) for case wall ``case_wall``."""
@@ -433,8 +435,39 @@ def _take_handed(case):
     return sysm if sysm is not None and sysm.case is case else None
 
 
-def build_system(case: Case) -> System:
+def _meshes(walls, like):
+    """(meshes, shape keys, reused flags) of the solved walls; a wall whose shape key equals
+    that of the same solved wall of ``like`` takes its mesh."""
+    meshes, keys, reused = [], [], []
+    old = like.shape_keys if like is not None else []
+    for j, w in enumerate(walls):
+        cells = cell_counts(w)
+        key = shape_key(w, cells)
+        same = j < len(old) and old[j] == key and len(like.meshes) == len(old)
+        meshes.append(like.meshes[j] if same else mesh_wall(w, cells))
+        keys.append(key)
+        reused.append(same)
+    return meshes, keys, reused
+
+
+def build_system(case: Case, like: System | None = None) -> System:
     """Assemble the kernel arrays for ``case``.
+
+    Parameters
+    ----------
+    case : Case
+        The problem.
+    like : System, optional
+        A system built before for a case of the same wall shape, e.g. the previous variant of
+        a study.  Each solved wall whose shape is unchanged -- geometry, area [m2], length
+        [m], layer thicknesses [m], contact resistances [m2K/W] and cells per layer
+        (:func:`fdwall.mesh.shape_key`) -- takes its mesh (node positions, half volumes,
+        link geometry factors) from ``like`` instead of meshing again; every other array
+        (materials, faces, schedules, heater, control, chamber) is assembled from ``case``.
+        A wall whose shape differs (a thickness changed, or a conductivity factor that
+        changes the default cell count) is meshed afresh, so the result is always the system
+        ``build_system(case)`` would give, array for array (``System.mesh_reused`` tells
+        which walls were reused).  Meshes are never modified, so sharing them is safe.
 
     A system the case loader built for this very case (see :func:`hand_over`) is returned
     the first time instead of being built again; the arrays are the same.
@@ -445,7 +478,7 @@ def build_system(case: Case) -> System:
     tb = _Tables()
     specs = _chains_of(case)
     walls = [s[0] for s in specs]
-    meshes = [mesh_wall(w) for w in walls]
+    meshes, keys, reused = _meshes(walls, like)
     offsets = list(np.cumsum([0] + [m.n for m in meshes])[:-1])
     N = int(sum(m.n for m in meshes))
     node_i = np.zeros((N, N_NI), dtype=np.int64)
@@ -574,7 +607,7 @@ def build_system(case: Case) -> System:
                   face_names=names, external=np.array(external), layer_of_half=layer_of_half,
                   layer_names=layer_names, layer_wall=layer_wall, walls=walls,
                   wall_origin=[sp[1] for sp in specs], is_bridge=[sp[3] for sp in specs],
-                  area_factor=box_area_factor(case))
+                  area_factor=box_area_factor(case), shape_keys=keys, mesh_reused=reused)
 
 
 def _mode_code(ctl) -> int:

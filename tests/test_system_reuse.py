@@ -7,12 +7,15 @@ conductivity scaled, against the series-resistance formula q = dT / (1/h1 + L/k 
 """
 from __future__ import annotations
 
+import copy
 import dataclasses
 import pathlib
 
 import numpy as np
+import pytest
 import tomllib
 
+import fdwall
 import fdwall.system as fsys
 from fdwall.case import case_from_dict, case_warnings
 from fdwall.system import build_system, handed_system
@@ -73,3 +76,97 @@ def test_a_replaced_case_does_not_take_the_handover():
     s = build_system(other)
     assert s.case is other
     assert handed_system(case) is not None
+
+
+# ---------------------------------------------------------------- reuse per wall shape
+def _load(base, edits, like=None):
+    from fdwall.analyses.study_outputs import _set
+    d = copy.deepcopy(base)
+    for p, v in edits.items():
+        _set(d, p, v, "t")
+    return case_from_dict(d, "t.toml", like=like)
+
+
+NON_SHAPE = [  # curing-oven panel: only face conditions and finishes change
+    {"wall.inner_face.film_coefficient": "18 W/m2/K"},
+    {"wall.outer_face.fluid_temperature": "35 degC",
+     "wall.outer_face.surroundings_temperature": "30 degC"},
+    {"wall.outer_face.emissivity": 0.3},
+    {"wall.inner_face.fluid_temperature": [["0 min", "25 degC"], ["30 min", "180 degC"]]},
+]
+
+
+@pytest.mark.parametrize("edits", NON_SHAPE)
+def test_reused_build_equals_a_fresh_build(edits):
+    base = _base()
+    prev = build_system(case_from_dict(copy.deepcopy(base), "base.toml"))
+    case = _load(base, edits)
+    fresh = build_system(case)                    # the loader's own build (no like)
+    reused = build_system(case, like=prev)
+    assert fresh.mesh_reused == [False] and reused.mesh_reused == [True]
+    assert reused.meshes[0] is prev.meshes[0]
+    _same(reused, fresh)
+    # through the loader: the check itself reuses the mesh
+    via = build_system(_load(base, edits, like=prev))
+    assert via.mesh_reused == [True]
+    _same(via, fresh)
+
+
+def test_heater_variants_reuse_the_mesh():
+    base = tomllib.loads((CASES / "lab-furnace-wall.toml").read_text())
+    prev = build_system(case_from_dict(copy.deepcopy(base), "base.toml"))
+    case = _load(base, {"wall.inner_face.heater_power": "2.5 kW"})
+    fresh = build_system(case)                    # the loader's own build (no like)
+    reused = build_system(case, like=prev)
+    assert all(reused.mesh_reused) and not any(fresh.mesh_reused)
+    _same(reused, fresh)
+
+
+@pytest.mark.parametrize("edits", [{"wall.layers[1].thickness": "120 mm"},
+                                   {"wall.layers[1].cells": 7},
+                                   {"wall.area": "3 m2"}])
+def test_a_changed_shape_falls_back_to_a_full_build(edits):
+    base = _base()
+    prev = build_system(case_from_dict(copy.deepcopy(base), "base.toml"))
+    case = _load(base, edits)
+    fresh = build_system(case)
+    reused = build_system(case, like=prev)
+    assert reused.mesh_reused == [False]
+    assert reused.meshes[0] is not prev.meshes[0]
+    _same(reused, fresh)
+
+
+def test_meshes_are_read_only():
+    m = build_system(case_from_dict(_base(), "base.toml")).meshes[0]
+    with pytest.raises(ValueError):
+        m.vol_left[0] = 1.0
+
+
+@pytest.mark.parametrize("f", [0.5, 0.8, 1.25, 2.0])
+def test_conductivity_factor_variants_with_reuse_match_series_resistance(f):
+    from study_cases import ONE_LAYER_WALL
+    base = tomllib.loads(ONE_LAYER_WALL)
+    prev = build_system(case_from_dict(copy.deepcopy(base), "base.toml"))
+    case = _load(base, {"wall.layers[0].conductivity_factor": f}, like=prev)
+    sysm = build_system(case)
+    assert sysm.mesh_reused == [True]            # one layer: the cells do not depend on k
+    ss = fdwall.solve_steady(case, system=sysm)
+    # Incropera sec. 3.1: series resistance of two films and the scaled layer
+    q = (200.0 - 20.0) / (1 / 20.0 + 0.05 / (0.1 * f) + 1 / 10.0)
+    assert float(ss.face_T[-1]) == pytest.approx(293.15 + q / 10.0, abs=1e-6)
+    assert float(-ss.face_flow[-1]) == pytest.approx(q, rel=1e-9)
+
+
+def test_a_batch_gives_the_numbers_of_separate_variants():
+    from fdwall.analyses.study_outputs import evaluate_variant
+    from fdwall.analyses.study_run import _batch
+    base = _base()
+    items = [(i, e, f"v{i}") for i, e in enumerate(NON_SHAPE + [
+        {"wall.layers[1].thickness": "80 mm"}, {"wall.inner_face.film_coefficient": "30 W/m2/K"}])]
+    outs = ("outer_T_K", "loss_W", "peak_skin_T_K", "stored_energy_J")
+    got = _batch(base, items, outs, None)
+    for (i, e, name), (j, row) in zip(items, got):
+        ref = evaluate_variant(base, e, name, outs)
+        assert i == j and row["status"] == ref["status"] == "done"
+        for k in outs:
+            assert row[k] == ref[k], (e, k)

@@ -92,7 +92,7 @@ def _set(data: dict, path: str, value, file: str) -> None:
 
 
 __all__ = ["OUTPUT_INFO", "DEFAULT_OUTPUTS", "TOUCH_OUTPUTS", "header_of", "check_outputs",
-           "evaluate_variant"]
+           "evaluate_variant", "variant_row"]
 
 #: key -> (kind, description); kind "steady" or "transient".
 OUTPUT_INFO = {
@@ -173,21 +173,35 @@ def _first_reach(t, y, level):
 
 
 def evaluate_variant(base: dict, edits: dict, name: str, outputs=DEFAULT_OUTPUTS,
-                     skin_limit=None) -> dict:
+                     skin_limit=None, like=None) -> dict:
     """One variant: edit the parsed base case, load it, compute ``outputs``; never raises.
 
     Returns a row dict: the output keys (NaN on failure; text outputs ''), ``status``
     (``done``/``failed``), ``error`` (the message, '' when done), ``run_time_s`` [s],
-    ``host``, ``worker``.  ``skin_limit`` [K] is needed by ``time_to_limit_s``.
+    ``host``, ``worker``.  ``skin_limit`` [K] is needed by ``time_to_limit_s``.  ``like``
+    is the system of an earlier variant: walls of the same shape reuse its mesh
+    (:func:`fdwall.system.build_system`).
+    """
+    return variant_row(base, edits, name, outputs, skin_limit, like)[0]
+
+
+def variant_row(base: dict, edits: dict, name: str, outputs=DEFAULT_OUTPUTS,
+                skin_limit=None, like=None):
+    """(row, system) of one variant as :func:`evaluate_variant`; system None on failure.
+
+    A batch passes each variant's system as ``like`` of the next one, so variants that
+    differ only in non-shape inputs (face conditions, ambient, emissivity, heater,
+    conductivity factor ...) mesh their wall once per batch.
     """
     t0 = time.perf_counter()
     row = {k: ("" if k in TEXT_OUTPUTS else float("nan")) for k in outputs}
+    system = None
     try:
         data = copy.deepcopy(base)
         for p, v in edits.items():
             _set(data, p, v, name)
-        case = case_from_dict(data, name)
-        system = build_system(case)          # built once, shared by the steady and the run
+        case = case_from_dict(data, name, like=like)
+        system = build_system(case)          # the loader's, shared by the steady and the run
         outer = _outer_faces(case, system)
         if any(OUTPUT_INFO[k][0] == "steady" for k in outputs):
             ss = solve_steady(case, system=system)
@@ -219,7 +233,8 @@ def evaluate_variant(base: dict, edits: dict, name: str, outputs=DEFAULT_OUTPUTS
         row.update(status="done", error="")
     except (FdwallError, ValueError, ArithmeticError) as e:
         row.update(status="failed", error=" ".join(str(e).split()))
+        system = None
     row.update(run_time_s=time.perf_counter() - t0, host=socket.gethostname(),
                worker=str(os.getpid()))
-    return row
+    return row, system
 

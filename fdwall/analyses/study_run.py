@@ -23,7 +23,7 @@ from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 
 from ..atomic import atomic_path
 from ..errors import InputError
-from .study_outputs import TEXT_OUTPUTS, evaluate_variant, header_of
+from .study_outputs import TEXT_OUTPUTS, header_of, variant_row
 
 __all__ = ["batch_size", "table_header", "write_table", "read_partial", "execute",
            "SCHEDULER_TIMEOUT"]
@@ -127,8 +127,18 @@ def read_partial(path, st: dict) -> dict:
 
 
 def _batch(base, items, outputs, skin_limit):
-    """Run a batch of (variant index, edits, name); returns [(index, row)] (a task)."""
-    return [(i, evaluate_variant(base, e, name, outputs, skin_limit)) for i, e, name in items]
+    """Run a batch of (variant index, edits, name); returns [(index, row)] (a task).
+
+    Each variant's system is the ``like`` of the next: walls of unchanged shape are meshed
+    once per batch (:func:`fdwall.system.build_system`); the numbers are those of separate
+    builds.
+    """
+    out, like = [], None
+    for i, e, name in items:
+        row, sysm = variant_row(base, e, name, outputs, skin_limit, like)
+        like = sysm if sysm is not None else like
+        out.append((i, row))
+    return out
 
 
 def _warm():

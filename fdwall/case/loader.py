@@ -121,7 +121,7 @@ def load_case(path) -> Case:
 
 
 def case_from_dict(data: Mapping, source_name: str = "<case>", *, text: str = "",
-                   stem: str = "") -> Case:
+                   stem: str = "", like=None) -> Case:
     """Build a Case from an already parsed case file (a dict as read from TOML).
 
     Parameters
@@ -134,6 +134,10 @@ def case_from_dict(data: Mapping, source_name: str = "<case>", *, text: str = ""
         Text of the case file, kept verbatim in ``Case.source``.
     stem : str, optional
         Default title when the file has none.
+    like : fdwall.system.System, optional
+        A system of a case of the same wall shape (e.g. the previous variant of a study):
+        the check of this case reuses its meshes where the shape is unchanged
+        (``fdwall.system.build_system(case, like=...)``).
 
     Returns
     -------
@@ -144,7 +148,9 @@ def case_from_dict(data: Mapping, source_name: str = "<case>", *, text: str = ""
     CaseError
         For any missing, unknown or invalid key.
     """
-    return _Loader(data, source_name, text, stem).case()
+    loader = _Loader(data, source_name, text, stem)
+    loader.like = like
+    return loader.case()
 
 
 # ============================================================================ helpers
@@ -349,7 +355,7 @@ class _Loader:
         """
         from ..system import build_system, event_rows, hand_over
         with _model(self.file, "(case)", "the case"):
-            sysm = build_system(case)
+            sysm = build_system(case, like=getattr(self, "like", None))
         with _model(self.file, "run.watch", "a [[run.watch]] entry"):
             event_rows(sysm, case)
         hand_over(case, sysm)
