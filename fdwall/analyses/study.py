@@ -49,8 +49,6 @@ import re
 
 import numpy as np
 import tomllib
-from scipy import stats
-from scipy.stats import qmc
 
 from ..case.loader import case_from_dict
 from ..errors import FdwallError, InputError
@@ -100,6 +98,7 @@ def _number(v, where: str, file: str):
 
 def _distribution(entry: dict, i: int, file: str):
     """(frozen scipy distribution, low cdf, high cdf, unit) of uncertain[i]; checks params."""
+    from scipy import stats  # lazily: about 0.8 s to import, not needed by grid studies
     key = f"uncertain[{i}]"
     name = entry.get("distribution")
     if name not in _PARAMS:
@@ -167,6 +166,7 @@ def sample_inputs(dists: list, method: str, n: int, seed: int, correlation=None)
     matrix (Spearman, d x d) reorders the uniforms by Iman & Conover (1982) before they map
     through the inverse CDF, restricted to [F(low), F(high)] for a truncated entry.
     """
+    from scipy.stats import qmc  # lazily (see _distribution)
     rng = np.random.default_rng(seed)
     d = len(dists)
     if method == "sobol":
@@ -361,7 +361,7 @@ def table_path(st: dict, out_dir) -> str:
 
 
 def run_study(path, out_dir=".", workers=None, seed=None, *, scheduler=None, restart=False,
-              batch=None, progress=False, on_batch=None,
+              batch=None, progress=False, on_batch=None, on_start=None,
               timeout=SCHEDULER_TIMEOUT) -> tuple[str, list]:
     """Run every variant of study file ``path``; write DIR/<stem>-study.csv atomically.
 
@@ -376,7 +376,9 @@ def run_study(path, out_dir=".", workers=None, seed=None, *, scheduler=None, res
     taken from the table (and a study dict passed in is updated to that sample).  A table
     of another study is refused (InputError) unless
     ``restart``, which starts the table over.  ``on_batch(indices, rows)`` is called after
-    each batch is written (see :func:`fdwall.analyses.study_run.execute`).
+    each batch is written (see :func:`fdwall.analyses.study_run.execute`).  ``on_start()``
+    is called once the table is accepted (the checks above passed), before any variant runs
+    (the command uses it to remove a final HDF5 file that the new run would make stale).
     """
     st = path if isinstance(path, dict) else read_study(path, seed=seed)
     csv_path = table_path(st, out_dir)
@@ -399,6 +401,8 @@ def run_study(path, out_dir=".", workers=None, seed=None, *, scheduler=None, res
             st.update(read_study(st["file"], seed=int(stamp["seed"])))
         rows = read_partial(csv_path, st)
     todo = [i for i in range(len(st["variants"])) if i not in rows]
+    if on_start is not None:
+        on_start()
     execute(st, todo, rows, csv_path, workers=workers, scheduler=scheduler, batch=batch,
             progress=progress, on_batch=on_batch, timeout=timeout)
     st["resumed"] = len(st["variants"]) - len(todo)
@@ -441,6 +445,7 @@ def quantile_interval(n: int, p: float, confidence: float = 0.95):
     CDF (order statistics; e.g. David & Nagaraja, Order Statistics, sec. 7.1).  ``r`` = 0
     or ``s`` = n + 1 means that side is unbounded for this sample size.
     """
+    from scipy import stats  # lazily: about 0.8 s to import, not needed by grid studies
     a = 1.0 - confidence
     b = stats.binom(n, p)
     r = int(b.ppf(a / 2))                 # F(r - 1) < a/2
@@ -451,6 +456,7 @@ def quantile_interval(n: int, p: float, confidence: float = 0.95):
 
 def wilson_interval(k: int, n: int, confidence: float = 0.95):
     """Wilson score interval (low, high) of a binomial proportion k/n (Wilson 1927)."""
+    from scipy import stats  # lazily: about 0.8 s to import, not needed by grid studies
     if n == 0:
         return float("nan"), float("nan")
     z = float(stats.norm.ppf(0.5 + confidence / 2))
@@ -561,6 +567,7 @@ def uncertainty_summary(st: dict, rows: list, confidence: float = 0.95) -> dict:
     limit with its Wilson interval, and a Spearman rank-correlation ranking of the inputs
     (scipy.stats.spearmanr).  Failed variants are counted and left out.
     """
+    from scipy import stats  # lazily: about 0.8 s to import, not needed by grid studies
     done = [i for i, r in enumerate(rows) if r["status"] == "done"]
     n, nf = len(done), len(rows) - len(done)
     x = np.asarray(st["samples"])[done] if n else np.empty((0, len(st["uncertain"])))

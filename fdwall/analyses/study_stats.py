@@ -24,7 +24,6 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy import stats
 
 __all__ = ["check_correlation", "iman_conover", "prcc", "delta_indices", "sobol_unit_sample",
            "sobol_indices", "spearman"]
@@ -80,6 +79,7 @@ def iman_conover(u: np.ndarray, rank_c: np.ndarray, rng) -> np.ndarray:
     target by the factor of the target; each column of ``u`` then takes the ranks of its
     score column.  The values of each column are unchanged (only their order).
     """
+    from scipy import stats  # lazily (about 0.8 s to import)
     n, d = u.shape
     if d < 2 or np.allclose(rank_c, np.eye(d)):
         return u
@@ -98,6 +98,7 @@ def iman_conover(u: np.ndarray, rank_c: np.ndarray, rng) -> np.ndarray:
 
 def spearman(x: np.ndarray, y: np.ndarray):
     """Spearman rank correlation of each column of ``x`` with ``y``: (rho, p) arrays."""
+    from scipy import stats  # lazily (about 0.8 s to import)
     d = x.shape[1]
     rho, pv = np.full(d, np.nan), np.full(d, np.nan)
     if len(y) >= 3 and len(np.unique(y)) > 1:
@@ -115,6 +116,7 @@ def prcc(x: np.ndarray, y: np.ndarray):
     with intercept) on the ranks of the other inputs, and the residuals correlated.  The
     p-value is the t-test of a partial correlation with n - 2 - (d - 1) degrees of freedom.
     """
+    from scipy import stats  # lazily (about 0.8 s to import)
     n, d = x.shape
     r_out, p_out = np.full(d, np.nan), np.full(d, np.nan)
     dof = n - 2 - (d - 1)

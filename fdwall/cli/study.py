@@ -50,9 +50,20 @@ def cmd_study(args) -> int:
     old = None
     if threading.current_thread() is threading.main_thread():
         old = signal.signal(signal.SIGTERM, _on_term)
+    h5 = outdir / f"{stem}-study.h5"
+
+    def stale_h5():
+        # the CSV is the incremental, resumable record; the HDF5 file is written once, when
+        # every variant is in the table: an older one would disagree with the new table
+        try:
+            h5.unlink(missing_ok=True)
+        except OSError as exc:
+            raise WriteError(f"cannot remove the previous '{h5}': {exc.strerror or exc}.") \
+                from None
+
     try:
         csv_path, rows = run_study(st, outdir, workers=args.workers, scheduler=args.scheduler,
-                                   restart=args.restart, progress=show)
+                                   restart=args.restart, progress=show, on_start=stale_h5)
     except LibInputError as exc:
         raise InputError(str(exc)) from None
     except (KeyboardInterrupt, _Terminated) as exc:
@@ -88,7 +99,6 @@ def cmd_study(args) -> int:
         tables.update(unc["tables"])
         notes = unc["notes"]
         refs += unc["references"]
-    h5 = outdir / f"{stem}-study.h5"
     groups = {"inputs": {"study_file": str(args.study), "method": st["method"],
                          "seed": -1 if st["seed"] is None else st["seed"],
                          "workers": args.workers or os.cpu_count() or 1},
