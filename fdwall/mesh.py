@@ -75,6 +75,9 @@ def default_cells(wall) -> list:
     Based on each layer's thermal resistance share and diffusion time: the layers that
     carry the temperature drop and store heat get 8 to 24 cells; a thin conductive skin gets 2.
     """
+    got = wall.__dict__.get("_default_cells")
+    if got is not None:
+        return list(got)
     res, tau = [], []
     for l in wall.layers:
         k5, c5 = _props_500(l.material)
@@ -84,7 +87,9 @@ def default_cells(wall) -> list:
     share = np.sqrt(np.maximum(res / res.max(), tau / tau.max()))
     cells = np.clip(np.round(4 + 16 * share), 2, 24).astype(int)
     cells[(res / res.max() < 1e-3) & (tau / tau.max() < 1e-3)] = 2
-    return [int(np.ceil(c * wall.refine)) for c in cells]
+    out = [int(np.ceil(c * wall.refine)) for c in cells]
+    object.__setattr__(wall, "_default_cells", tuple(out))   # walls and materials are immutable
+    return out
 
 
 def _geometry(geometry, r1, r2, area, length):

@@ -17,6 +17,7 @@ Layer 8 (analyses).
 from __future__ import annotations
 
 import csv
+import io
 import math
 import os
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
@@ -56,16 +57,28 @@ def _stamp(st: dict) -> str:
     return f"# study_sha256={st['sha']} method={st['method']} seed={st['seed']}"
 
 
-def write_table(path, st: dict, rows: dict) -> None:
-    """Write the rows (dict variant -> row) to ``path`` atomically, in variant order."""
+def write_table(path, st: dict, rows: dict, lines: dict | None = None) -> None:
+    """Write the rows (dict variant -> row) to ``path`` atomically, in variant order.
+
+    ``lines`` (variant -> CSV text of its row), if given, caches the formatted rows between
+    writes: a study rewrites its table after every batch, and formats each row only once.
+    """
     keys, head = table_header(st)
-    with atomic_path(path) as tmp, open(tmp, "w", newline="") as f:
-        w = csv.writer(f)
-        w.writerow([_stamp(st)])
-        w.writerow(head)
-        for i in sorted(rows):
+    lines = {} if lines is None else lines
+    buf = io.StringIO()
+    w = csv.writer(buf)
+    for i in rows:
+        if i not in lines:
             r = rows[i]
             w.writerow([_cell(r.get(k, "")) for k in keys])
+            lines[i] = buf.getvalue()
+            buf.seek(0)
+            buf.truncate()
+    w.writerow([_stamp(st)])
+    w.writerow(head)
+    with atomic_path(path) as tmp, open(tmp, "w", newline="") as f:
+        f.write(buf.getvalue())
+        f.writelines(lines[i] for i in sorted(rows))
 
 
 def _cell(v):
@@ -228,12 +241,15 @@ def execute(st: dict, todo: list, rows: dict, csv_path, *, workers=None, schedul
     bar = _Progress(progress, len(st["variants"]), len(rows),
                     sum(1 for r in rows.values() if r["status"] == "failed"))
 
+    lines = {}                      # formatted rows, shared by the table's rewrites
+
     def finished(res):
         new = []
         for i, r in res:
             rows[i] = {"variant": i, **st["variants"][i], **r}
+            lines.pop(i, None)
             new.append(rows[i])
-        write_table(csv_path, st, rows)
+        write_table(csv_path, st, rows, lines)
         bar.update(new)
         if on_batch is not None:
             on_batch([i for i, _ in res], rows)
