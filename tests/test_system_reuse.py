@@ -170,3 +170,29 @@ def test_a_batch_gives_the_numbers_of_separate_variants():
         assert i == j and row["status"] == ref["status"] == "done"
         for k in outs:
             assert row[k] == ref[k], (e, k)
+
+
+# ---------------------------------------------------------------- copy on write of variants
+@pytest.mark.parametrize("name", sorted(p.name for p in CASES.glob("*.toml")))
+def test_the_loader_only_reads_its_input(name):
+    # copy on write of variants (study_outputs.edited) relies on this
+    data = tomllib.loads((CASES / name).read_text())
+    pristine = copy.deepcopy(data)
+    case_from_dict(data, name)
+    assert data == pristine
+
+
+def test_edited_copies_only_the_edited_paths():
+    from fdwall.analyses.study_outputs import _set, edited
+    base = _base()
+    pristine = copy.deepcopy(base)
+    edits = {"wall.layers[1].thickness": "90 mm", "wall.layers[2].thickness": "2 mm",
+             "wall.inner_face.film_coefficient": "18 W/m2/K"}
+    got = edited(base, edits, "v")
+    ref = copy.deepcopy(base)
+    for p, v in edits.items():
+        _set(ref, p, v, "v")
+    assert got == ref and base == pristine
+    assert got["run"] is base["run"]                       # untouched tables are shared
+    assert got["wall"]["layers"][0] is base["wall"]["layers"][0]
+

@@ -30,7 +30,6 @@ Layer 8 (analyses): imports enclosure and safety (earlier analyses), the solver 
 """
 from __future__ import annotations
 
-import copy
 import difflib
 import math
 import os
@@ -63,8 +62,13 @@ def _steps(path: str, file: str):
     return out
 
 
-def _set(data: dict, path: str, value, file: str) -> None:
-    """Set ``value`` at case-file ``path`` in the parsed case ``data`` (in place)."""
+def _set(data: dict, path: str, value, file: str, copied=None) -> None:
+    """Set ``value`` at case-file ``path`` in the parsed case ``data`` (in place).
+
+    With ``copied`` (a set of ids of containers already copied), every table or list on the
+    path is replaced by a shallow copy first, so ``data`` may share everything else with the
+    base case it was copied from (copy on write; see :func:`edited`).
+    """
     steps = _steps(path, file)
     node = data
     for i, s in enumerate(steps):
@@ -88,11 +92,29 @@ def _set(data: dict, path: str, value, file: str) -> None:
         if last:
             node[s] = value
         else:
-            node = node[s]
+            child = node[s]
+            if copied is not None and id(child) not in copied and isinstance(child, (dict, list)):
+                child = dict(child) if isinstance(child, dict) else list(child)
+                node[s] = child
+                copied.add(id(child))
+            node = child
+
+
+def edited(base: dict, edits: dict, file: str) -> dict:
+    """The parsed base case with ``edits`` (path -> value) applied; ``base`` is not changed.
+
+    Only the tables and lists on the edited paths are copied (the case loader only reads its
+    input), which is cheaper per variant than a deep copy of the whole case.
+    """
+    data = dict(base)
+    copied = {id(data)}
+    for p, v in edits.items():
+        _set(data, p, v, file, copied)
+    return data
 
 
 __all__ = ["OUTPUT_INFO", "DEFAULT_OUTPUTS", "TOUCH_OUTPUTS", "header_of", "check_outputs",
-           "evaluate_variant", "variant_row"]
+           "evaluate_variant", "variant_row", "edited"]
 
 #: key -> (kind, description); kind "steady" or "transient".
 OUTPUT_INFO = {
@@ -197,9 +219,7 @@ def variant_row(base: dict, edits: dict, name: str, outputs=DEFAULT_OUTPUTS,
     row = {k: ("" if k in TEXT_OUTPUTS else float("nan")) for k in outputs}
     system = None
     try:
-        data = copy.deepcopy(base)
-        for p, v in edits.items():
-            _set(data, p, v, name)
+        data = edited(base, edits, name)
         case = case_from_dict(data, name, like=like)
         system = build_system(case)          # the loader's, shared by the steady and the run
         outer = _outer_faces(case, system)

@@ -272,19 +272,35 @@ def execute(st: dict, todo: list, rows: dict, csv_path, *, workers=None, schedul
             for c in chunks:
                 finished(_batch(st["base"], c, *args[1:]))
         else:
-            ex = ProcessPoolExecutor(min(nw, len(chunks)), initializer=_warm)
-            pending = set()
+            n_proc = min(nw, len(chunks))
+            ex = ProcessPoolExecutor(n_proc, initializer=_warm)
+            # at most two batches per process are handed to the pool at a time: enough to
+            # keep every process busy, and a stop leaves little work running on
+            todo_chunks = iter(chunks)
+            pending, unread = set(), set()
+
+            def top_up():
+                while len(pending) < 2 * n_proc:
+                    c = next(todo_chunks, None)
+                    if c is None:
+                        return
+                    pending.add(ex.submit(_batch, st["base"], c, *args[1:]))
+
             try:
-                pending = {ex.submit(_batch, st["base"], c, *args[1:]) for c in chunks}
+                top_up()
                 while pending:
-                    done, pending = wait(pending, return_when=FIRST_COMPLETED)
+                    done, _ = wait(pending, return_when=FIRST_COMPLETED)
+                    pending -= done
+                    unread = set(done)
                     for fut in done:
+                        unread.discard(fut)
                         finished(fut.result())
+                    top_up()
             except BaseException:
                 # stopped: batches already running finish and are kept in the table, so a
                 # resume does not run them again; batches not started are dropped
                 ex.shutdown(wait=True, cancel_futures=True)
-                _keep_finished(pending, rows, st, csv_path)
+                _keep_finished(pending | unread, rows, st, csv_path)
                 raise
             finally:
                 ex.shutdown(wait=True, cancel_futures=True)
