@@ -355,7 +355,8 @@ class _Loader:
         """
         from ..system import build_system, event_rows, hand_over
         with _model(self.file, "(case)", "the case"):
-            sysm = build_system(case, like=getattr(self, "like", None))
+            like = getattr(self, "like", None)
+            sysm = build_system(case) if like is None else build_system(case, like=like)
         with _model(self.file, "run.watch", "a [[run.watch]] entry"):
             event_rows(sysm, case)
         hand_over(case, sysm)
