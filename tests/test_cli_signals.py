@@ -174,3 +174,42 @@ def test_signal_inside_the_compiler_is_served_when_it_has_finished():
                 pass
             pytest.fail("the deferred SIGTERM was never served")
     assert got == ["compiled"] and ei.value.signum == signal.SIGTERM
+
+
+@pytest.mark.skipif(threading.current_thread() is not threading.main_thread(),
+                    reason="signal handlers need the main thread")
+def test_summary_of_an_interrupted_run_says_interrupted_by_the_signal(tmp_path, capsys):
+    # `fdwall run` in-process, SIGINT sent to this process 1.5 s into a run of a minute or more
+    import fdwall.cli as cli
+    f = tmp_path / "slow.toml"
+    f.write_text(LONG_TOML)
+    timer = threading.Timer(1.5, os.kill, args=(os.getpid(), signal.SIGINT))
+    timer.start()
+    try:
+        t0 = time.perf_counter()
+        rc = cli.main(["run", str(f), "--out", str(tmp_path / "o"), "--no-plots"])
+        took = time.perf_counter() - t0
+    finally:
+        timer.cancel()
+    out, err = capsys.readouterr()
+    assert rc == 130, err
+    assert took < 30.0           # the run alone would take a minute or more
+    status = [ln for ln in out.splitlines() if ln.strip().startswith("status")]
+    assert status and "interrupted (SIGINT)" in status[0], out
+    assert "stopped early" not in out
+
+
+def test_status_line_of_runs_stopped_otherwise():
+    # an observer's stop is no signal; a run that failed to converge "stopped early"
+    from types import SimpleNamespace
+
+    from fdwall.report.text import run_status_text
+    assert run_status_text(SimpleNamespace(complete=True)) == "complete"
+    stopped = SimpleNamespace(complete=False, status="interrupted",
+                              message="the run was stopped at t = 5 s: a node passed 500 K.")
+    assert run_status_text(stopped) == "INCOMPLETE: interrupted (stop requested)"
+    term = SimpleNamespace(complete=False, status="interrupted",
+                           message="the run was stopped at t = 5 s: SIGTERM received.")
+    assert run_status_text(term) == "INCOMPLETE: interrupted (SIGTERM)"
+    failed = SimpleNamespace(complete=False, status="stopped early", message="no convergence")
+    assert run_status_text(failed) == "INCOMPLETE (stopped early)"

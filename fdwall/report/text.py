@@ -165,6 +165,19 @@ def _speaks_of_skin(text: str) -> bool:
 
 # --------------------------------------------------------------------------- run summary
 
+def run_status_text(result) -> str:
+    """One line for the state of a run: "complete", "INCOMPLETE: interrupted (SIGINT)" (or
+    SIGTERM; "(stop requested)" when an observer, not a signal, stopped it), or
+    "INCOMPLETE (stopped early)" for a run that failed to converge or was implausible."""
+    if result.complete:
+        return "complete"
+    if getattr(result, "status", "") == "interrupted":
+        msg = result.message or ""
+        names = [n for n in ("SIGINT", "SIGTERM") if n in msg]
+        return f"INCOMPLETE: interrupted ({names[0] if names else 'stop requested'})"
+    return "INCOMPLETE (stopped early)"
+
+
 def format_summary(result) -> str:
     """Plain-text summary of a transient run (and of its steady state, if attached).
 
@@ -184,8 +197,7 @@ def format_summary(result) -> str:
     L = []
     title = f"fdwall run summary: case '{case.name}'"
     L += [title, "=" * len(title)]
-    status = "complete" if result.complete else "INCOMPLETE (stopped early)"
-    L.append(f"  status            {status}")
+    L.append(f"  status            {run_status_text(result)}")
     L.append(f"  simulated time    {fmt_time(float(result.times[-1]))}  "
              f"({float(result.times[-1]):.0f} s of {case.run.duration:.0f} s asked)")
     L.append(f"  walls             {len(case.wall_list)}"
