@@ -130,10 +130,10 @@ def mesh_wall(wall) -> WallMesh:
         cells = [int(np.ceil(l.cells * wall.refine)) if l.cells is not None else c
                  for l, c in zip(wall.layers, cells)]
     edges = wall.radii()
-    geo, A, L = wall.geometry, wall.area, wall.length
+    geo, A, L = wall.shape, wall.area, wall.length
     nl = len(cells)
     n_c = np.asarray(cells, dtype=np.int64)
-    contact = np.asarray((0.0,) + tuple(wall.contact))          # contact before layer j
+    contact = np.asarray((0.0,) + tuple(wall.interface_resistance))          # contact before layer j
     doubled = (contact > 0.0).astype(np.int64)
     # first node of each layer: layers share their interface node unless a contact resistance
     # doubles it (two nodes at the same radius joined by the contact conductance)

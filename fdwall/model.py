@@ -9,6 +9,8 @@ film coefficient [W/m2/K], contact resistance [m2.K/W].
 """
 from __future__ import annotations
 
+import functools
+import warnings
 from dataclasses import dataclass, field
 from typing import Optional, Union
 
@@ -31,6 +33,46 @@ SURFACE_CLASSES = ("bare-metal", "coated-metal", "ceramic-glass-stone", "plastic
 
 class ModelError(InputError):
     """An inconsistent or physically impossible model input."""
+
+
+#: Old Python names of the model kept for one release as deprecated aliases of the names that
+#: follow the case-file keys (docs/python-api.md): class -> {old name: new name}.
+RENAMED: dict = {}
+
+
+def _warn_renamed(cls_name: str, old: str, new: str, stacklevel: int) -> None:
+    warnings.warn(f"{cls_name}.{old} is deprecated and will be removed in the next release; "
+                  f"use {cls_name}.{new} (the case-file key)", DeprecationWarning,
+                  stacklevel=stacklevel)
+
+
+def _renamed(**old_to_new):
+    """Class decorator: the old names ``old_to_new`` keep working, with a DeprecationWarning,
+    as constructor keywords and as read-only properties returning the new fields.
+
+    Given both (as :func:`dataclasses.replace` does when called with an old name), the old
+    keyword wins: it is the change asked for.
+    """
+    def deco(cls):
+        init = cls.__init__
+
+        @functools.wraps(init)
+        def __init__(self, *args, **kw):
+            for old, new in old_to_new.items():
+                if old in kw:
+                    _warn_renamed(cls.__name__, old, new, 3)
+                    kw[new] = kw.pop(old)
+            init(self, *args, **kw)
+
+        cls.__init__ = __init__
+        for old, new in old_to_new.items():
+            def get(self, old=old, new=new):
+                _warn_renamed(type(self).__name__, old, new, 3)
+                return getattr(self, new)
+            setattr(cls, old, property(get, doc=f"Deprecated alias of :attr:`{new}`."))
+        RENAMED[cls.__name__] = dict(old_to_new)
+        return cls
+    return deco
 
 
 def _pos(name, x, allow_zero=False):
@@ -85,6 +127,7 @@ class Layer:
         return self.name or getattr(self.material, "name", "layer")
 
 
+@_renamed(geometry="shape", contact="interface_resistance")
 @dataclass(frozen=True)
 class Wall:
     """A multilayer wall, listed from the inner (hot) face to the outer face.
@@ -93,7 +136,7 @@ class Wall:
     ----------
     layers : tuple of Layer
         Layers from inner to outer face.
-    geometry : {'slab', 'cylinder', 'sphere'}
+    shape : {'slab', 'cylinder', 'sphere'}
         Flat slab, hollow cylinder or hollow sphere.
     area : float
         Slab area [m2] (default 1 m2: results per unit area).
@@ -101,7 +144,7 @@ class Wall:
         Inner radius [m] for a cylinder or sphere.
     length : float
         Cylinder length [m] (default 1 m: results per metre of pipe).
-    contact : tuple of float
+    interface_resistance : tuple of float
         Contact (interface) resistance between consecutive layers [m2.K/W], one per interface;
         0 means perfect contact.
     refine : float
@@ -111,11 +154,11 @@ class Wall:
     """
 
     layers: tuple
-    geometry: str = "slab"
+    shape: str = "slab"
     area: float = 1.0
     inner_radius: Optional[float] = None
     length: float = 1.0
-    contact: tuple = ()
+    interface_resistance: tuple = ()
     refine: float = 1.0
     name: str = "wall"
 
@@ -123,24 +166,24 @@ class Wall:
         object.__setattr__(self, "layers", tuple(self.layers))
         if not self.layers:
             raise ModelError(f"wall '{self.name}' has no layers")
-        if self.geometry not in ("slab", "cylinder", "sphere"):
+        if self.shape not in ("slab", "cylinder", "sphere"):
             raise ModelError(f"wall '{self.name}': geometry must be slab, cylinder or sphere, "
-                             f"got {self.geometry!r}")
-        if self.geometry == "slab":
+                             f"got {self.shape!r}")
+        if self.shape == "slab":
             _pos(f"area of wall '{self.name}'", self.area)
         else:
             if self.inner_radius is None:
-                raise ModelError(f"wall '{self.name}': a {self.geometry} needs an inner radius")
+                raise ModelError(f"wall '{self.name}': a {self.shape} needs an inner radius")
             _pos(f"inner radius of wall '{self.name}'", self.inner_radius)
-            if self.geometry == "cylinder":
+            if self.shape == "cylinder":
                 _pos(f"length of wall '{self.name}'", self.length)
-        c = tuple(float(x) for x in self.contact) if self.contact else (0.0,) * (len(self.layers) - 1)
+        c = tuple(float(x) for x in self.interface_resistance) if self.interface_resistance else (0.0,) * (len(self.layers) - 1)
         if len(c) != len(self.layers) - 1:
             raise ModelError(f"wall '{self.name}': {len(self.layers) - 1} interface(s) need that many "
                              f"contact resistances, got {len(c)}")
         for x in c:
             _pos(f"contact resistance in wall '{self.name}'", x, allow_zero=True)
-        object.__setattr__(self, "contact", c)
+        object.__setattr__(self, "interface_resistance", c)
         _pos(f"refine of wall '{self.name}'", self.refine)
 
     @property
@@ -152,7 +195,7 @@ class Wall:
         """Radius (or depth for a slab) of each face and interface, inner first [m]."""
         r = self.__dict__.get("_radii")
         if r is None:
-            x0 = 0.0 if self.geometry == "slab" else float(self.inner_radius)
+            x0 = 0.0 if self.shape == "slab" else float(self.inner_radius)
             r = x0 + np.concatenate([[0.0], np.cumsum([l.thickness for l in self.layers])])
             r.setflags(write=False)
             object.__setattr__(self, "_radii", r)   # the wall is immutable
@@ -160,9 +203,9 @@ class Wall:
 
     def area_at(self, x) -> float:
         """Heat-flow area at radius/depth ``x`` [m2]."""
-        if self.geometry == "slab":
+        if self.shape == "slab":
             return float(self.area)
-        if self.geometry == "cylinder":
+        if self.shape == "cylinder":
             return float(2 * np.pi * x * self.length)
         return float(4 * np.pi * x * x)
 
@@ -478,7 +521,7 @@ class EnclosureWall:
     bridge: Optional[Bridge] = None
 
     def __post_init__(self):
-        if self.wall.geometry != "slab" and self.bridge is not None:
+        if self.wall.shape != "slab" and self.bridge is not None:
             raise ModelError(f"wall '{self.wall.name}': bridges are supported on slab walls only")
         if self.bridge is not None:
             for i in self.bridge.layers:
@@ -513,6 +556,8 @@ class Event:
     name: str = ""
 
 
+@_renamed(initial="start_temperature", output_interval="output_every",
+          profile_times="snapshots", events="watch")
 @dataclass(frozen=True)
 class RunSettings:
     """Settings of a transient run.
@@ -521,18 +566,18 @@ class RunSettings:
     ----------
     duration : float
         Simulated time [s].
-    initial : float or array
+    start_temperature : float or array
         Initial temperature [K]: a number for a uniform start, or an array over the nodes of
         the system (e.g. a profile from an earlier result).
-    output_interval : float, optional
+    output_every : float, optional
         Spacing of stored outputs [s] (default duration/200).
-    profile_times : tuple of float
+    snapshots : tuple of float
         Times at which temperature profiles are plotted [s].
     tolerance : float
         Local error tolerance per step [K].
     max_step : float, optional
         Upper limit on the time step [s].
-    events : tuple of Event
+    watch : tuple of Event
         Crossings to locate.
     exact_outputs : bool
         Land a time step on every output time (outputs exact to the solver, at the cost of
@@ -545,23 +590,23 @@ class RunSettings:
     """
 
     duration: float
-    initial: object = 293.15
-    output_interval: Optional[float] = None
-    profile_times: tuple = ()
+    start_temperature: object = 293.15
+    output_every: Optional[float] = None
+    snapshots: tuple = ()
     tolerance: float = 0.01
     max_step: Optional[float] = None
-    events: tuple = ()
+    watch: tuple = ()
     exact_outputs: bool = False
     steady_at: Optional[float] = None
 
     def __post_init__(self):
         _pos("duration", self.duration)
-        if self.output_interval is not None:
-            _pos("output interval", self.output_interval)
+        if self.output_every is not None:
+            _pos("output interval", self.output_every)
         _pos("tolerance", self.tolerance)
         if self.max_step is not None:
             _pos("max step", self.max_step)
-        init = np.asarray(self.initial, dtype=float)
+        init = np.asarray(self.start_temperature, dtype=float)
         if np.any(~np.isfinite(init)) or np.any(init <= 0):
             raise ModelError("initial temperature must be above absolute zero [K]")
 

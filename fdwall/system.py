@@ -360,7 +360,7 @@ def box_area_factor(case: Case) -> float:
     ch = case.chamber
     if ch is None or ch.box is None or not case.walls:
         return 1.0
-    slabs = [ew.wall for ew in case.walls if ew.wall.geometry == "slab"]
+    slabs = [ew.wall for ew in case.walls if ew.wall.shape == "slab"]
     if not slabs:
         return 1.0
     s_walls = sum(w.area / w.thickness for w in slabs)
@@ -379,7 +379,7 @@ def _chains_of(case: Case):
     out = []
     for j, ew in enumerate(case.walls):
         w = ew.wall
-        if m != 1.0 and w.geometry == "slab":
+        if m != 1.0 and w.shape == "slab":
             w = replace(w, area=w.area * m)
         if ew.bridge is None:
             out.append((w, j, ew, False))

@@ -134,24 +134,24 @@ def input_rows(case, system) -> list:
     (SI unit text, '' for numbers without unit) and ``text``."""
     r = case.run
     rows = [_row("run", "duration", r.duration, "s")]
-    if np.ndim(r.initial) == 0:
-        rows.append(_row("run", "start temperature", float(r.initial), "K"))
+    if np.ndim(r.start_temperature) == 0:
+        rows.append(_row("run", "start temperature", float(r.start_temperature), "K"))
     else:
         rows.append(_row("run", "start temperature", text="node profile given"))
-    rows.append(_row("run", "output interval", r.output_interval
-                     if r.output_interval is not None else r.duration / 200.0, "s"))
+    rows.append(_row("run", "output interval", r.output_every
+                     if r.output_every is not None else r.duration / 200.0, "s"))
     rows.append(_row("run", "local error tolerance per step", r.tolerance, "K"))
     if r.max_step is not None:
         rows.append(_row("run", "largest step", r.max_step, "s"))
     mesh_of = {w.name: m for w, m in zip(system.walls, system.meshes)}
     for j, w in enumerate(case.wall_list):
         sec = f"wall {w.name}"
-        rows.append(_row(sec, "geometry", text=w.geometry))
-        if w.geometry == "slab":
+        rows.append(_row(sec, "geometry", text=w.shape))
+        if w.shape == "slab":
             rows.append(_row(sec, "area", w.area, "m2"))
         else:
             rows.append(_row(sec, "inner radius", w.inner_radius, "m"))
-            if w.geometry == "cylinder":
+            if w.shape == "cylinder":
                 rows.append(_row(sec, "length", w.length, "m"))
         rows.append(_row(sec, "total thickness", w.thickness, "m"))
         m = mesh_of.get(w.name)
@@ -162,7 +162,7 @@ def input_rows(case, system) -> list:
             if m is not None:
                 a, b = m.layer_nodes[i]
                 rows.append(_row(sec, f"{lab} cells", int(b) - int(a), ""))
-        for i, rc in enumerate(w.contact):
+        for i, rc in enumerate(w.interface_resistance):
             if rc:
                 rows.append(_row(sec, f"contact resistance after layer {i + 1}", rc, "m2*K/W"))
         if w.refine != 1.0:
@@ -279,9 +279,9 @@ def _layer_R(wall, i, k) -> float:
     (slab L/(k A); cylinder ln(r2/r1)/(2 pi k L); sphere (1/r1 - 1/r2)/(4 pi k))."""
     r = wall.radii()
     r1, r2 = float(r[i]), float(r[i + 1])
-    if wall.geometry == "slab":
+    if wall.shape == "slab":
         return (r2 - r1) / (k * wall.area)
-    if wall.geometry == "cylinder":
+    if wall.shape == "cylinder":
         return math.log(r2 / r1) / (2 * math.pi * k * wall.length)
     return (1.0 / r1 - 1.0 / r2) / (4 * math.pi * k)
 
@@ -305,7 +305,7 @@ def biot_rows(result) -> list:
             k, _ = _k_cp(layer.material, float(np.mean(Tw[a:b + 1])))
             Rs.append(_layer_R(w, i, k))
         A_out = w.outer_area
-        R_contact = sum(rc / w.area_at(w.radii()[i + 1]) for i, rc in enumerate(w.contact))
+        R_contact = sum(rc / w.area_at(w.radii()[i + 1]) for i, rc in enumerate(w.interface_resistance))
         R = float(sum(Rs) + R_contact)
         f = 2 * j + 1
         fixed = _outer_fixed(result.case, sysm, j)

@@ -634,15 +634,15 @@ def periodic_state(case: Case, period: float, tol_K: float = 0.5, max_cycles: in
                 f"periodic_state: the {label} schedule of case '{case.name}' has knots up to "
                 f"{max(s.times):g} s, beyond the period {period:g} s. Every schedule must be "
                 "given over one cycle [0, period]; it then repeats each cycle.")
-    oi = case.run.output_interval
+    oi = case.run.output_every
     if oi is None or oi > period:
         oi = period / 200.0
-    cyc_case = replace(case, run=replace(case.run, duration=period, output_interval=oi,
-                                         profile_times=(), events=()))
+    cyc_case = replace(case, run=replace(case.run, duration=period, output_every=oi,
+                                         snapshots=(), watch=()))
     sysm = build_system(cyc_case)
     free = np.ones(sysm.n_unknowns, bool)
     free[np.asarray(sysm.dirich_node, dtype=int)] = False
-    T0 = sysm.initial_vector(case.run.initial if start is None else start)
+    T0 = sysm.initial_vector(case.run.start_temperature if start is None else start)
     if setpoint is None and case.control.setpoint is not None:
         setpoint = float(max(case.control.setpoint.values))
     cycles, changes = [], []
@@ -796,10 +796,10 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
     ctl = case.control if control == "case" else Control(mode="fixed", duty=1.0,
                                                            enable=case.control.enable)
     base = replace(case, control=ctl,
-                   run=replace(case.run, duration=lim, output_interval=lim / 400.0,
-                               profile_times=(), events=()))
+                   run=replace(case.run, duration=lim, output_every=lim / 400.0,
+                               snapshots=(), watch=()))
     sysm = build_system(base)
-    T_init = sysm.initial_vector(case.run.initial)
+    T_init = sysm.initial_vector(case.run.start_temperature)
     p_min = _steady_power_to_hold(base, target, lim)
     loss_sp = _steady_power_to_hold(base, sp, lim) if band > 0 else p_min
     if T_init[-1] >= target:

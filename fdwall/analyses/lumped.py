@@ -739,8 +739,8 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
     for i in range(tp.size):
         kt += [tp[i], tp[i + 1] if i + 1 < tp.size else max(duration, tp[i])]
         kv += [pp[i], pp[i]]
-    run = replace(case.run, duration=float(duration), initial=float(initial),
-                  output_interval=float(duration) / n_points, profile_times=(), events=(),
+    run = replace(case.run, duration=float(duration), start_temperature=float(initial),
+                  output_every=float(duration) / n_points, snapshots=(), watch=(),
                   steady_at=None)
     try:
         if case.is_enclosure or case.heater is not None:
@@ -781,7 +781,7 @@ def _implied_for_compare(case, power, duration):
                              "case has no heat flowing at its steady state, so there is no R "
                              "or C to compare with; give a power.") from None
         r = rc_analysis(_driven_case(case, np.array([0.0]), np.array([pp.max()]), duration,
-                                     case.run.initial if np.ndim(case.run.initial) == 0
+                                     case.run.start_temperature if np.ndim(case.run.start_temperature) == 0
                                      else 293.15, 10))
     return {k: r.get(k) for k in ("R_K_per_W", "C_stored_J_per_K", "C_total_J_per_K",
                                   "C_effective_J_per_K", "tau_s", "first_moment_tau_s",

@@ -402,8 +402,8 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
         t_c = MAX_SIMULATED_CONTACT
     nw = len(wall.layers)
     layers = _resolved(tuple(wall.layers), skin, t_c, T_wall[-1], Ts)
-    contact = tuple(wall.contact) + (float(contact_resistance),) + (0.0,) * (len(skin) - 1)
-    slab = Wall(layers=layers, geometry="slab", area=1.0, contact=contact,
+    contact = tuple(wall.interface_resistance) + (float(contact_resistance),) + (0.0,) * (len(skin) - 1)
+    slab = Wall(layers=layers, shape="slab", area=1.0, interface_resistance=contact,
                 name=f"{wall.name} + skin")
     x = np.asarray(x, float)
     T_wall = np.asarray(T_wall, float)
@@ -431,8 +431,8 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
         else:   # the shared node of the contact plane: the instant contact temperature
             T0[i] = contact_temperature(T_wall[-1], b_w, Ts, b_s)
     n_out = 400
-    case = replace(probe, run=RunSettings(duration=t_c, output_interval=t_c / n_out,
-                                          tolerance=0.002, initial=T0))
+    case = replace(probe, run=RunSettings(duration=t_c, output_every=t_c / n_out,
+                                          tolerance=0.002, start_temperature=T0))
     res = run(case, initial=T0, system=sysm, strict=False, progress=False)
     iface = m.interface_nodes
     j_surf = iface[nw - 1]

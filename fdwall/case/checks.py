@@ -124,7 +124,7 @@ def _service_warnings(case):
             _layer_service(out, w, i, sp, "the setpoint of the wall sensor "
                                           f"{ctl.sensor_depth * 1000:g} mm deep")
     # --- start temperatures
-    init = np.asarray(case.run.initial, dtype=float)
+    init = np.asarray(case.run.start_temperature, dtype=float)
     if init.ndim == 0:
         for w in walls:
             for i, layer in enumerate(w.layers):

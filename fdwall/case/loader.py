@@ -294,9 +294,9 @@ class _Loader:
                        enumerate(run.tables("watch", S.WATCH, "a [[run.watch]] entry", [])))
 
         with _model(self.file, "run", "the [run] table"):
-            settings = RunSettings(duration=duration, initial=start, output_interval=out_every,
-                                   profile_times=tuple(snaps), tolerance=tol, max_step=max_step,
-                                   events=events, steady_at=steady_at)
+            settings = RunSettings(duration=duration, start_temperature=start, output_every=out_every,
+                                   snapshots=tuple(snaps), tolerance=tol, max_step=max_step,
+                                   watch=events, steady_at=steady_at)
         with _model(self.file, "(case)", "the case"):
             if kind == "wall":
                 case = Case(run=settings, wall=walls[0], inner=inner, outer=outer,
@@ -513,8 +513,8 @@ class _Loader:
                                 'from the inner face outward, e.g. "0.002 m2K/W" ("0 m2K/W" for '
                                 "perfect contact)")
         with _model(self.file, sec.path, f"wall '{name}'"):
-            wall = Wall(layers=tuple(layers), geometry=shape, area=area, inner_radius=r_in,
-                        length=length, contact=contact, refine=refine, name=name)
+            wall = Wall(layers=tuple(layers), shape=shape, area=area, inner_radius=r_in,
+                        length=length, interface_resistance=contact, refine=refine, name=name)
         nodes = self._check_mesh(sec, wall, lsecs)
         geo = dict(wall=wall, orientation=orientation)
         if not enclosure:
@@ -570,7 +570,7 @@ class _Loader:
         return nodes
 
     def _bridge(self, sec, wall):
-        if wall.geometry != "slab":
+        if wall.shape != "slab":
             raise sec.error(None, "thermal bridges are supported on slab walls only")
         f = sec.quantity("area_fraction", "dimensionless")
         if not 0.0 < f < 1.0:
@@ -739,12 +739,12 @@ class _Loader:
                                 f"for '{model}': " + ", ".join(sorted(used)))
         wall, orient = geo["wall"], geo["orientation"]
         if model == "natural":
-            need = ("diameter" if wall.geometry != "slab" else
+            need = ("diameter" if wall.shape != "slab" else
                     "height" if orient == "side" else "char_length")
             for k in ("height", "char_length", "diameter"):
                 if k != need and sec.has(k):
                     raise sec.error(k, f"'{k}' does not apply to the convection model 'natural' "
-                                       f"on a {wall.geometry} wall with orientation '{orient}'",
+                                       f"on a {wall.shape} wall with orientation '{orient}'",
                                     f"'{need}' (natural convection of "
                                     + ("a horizontal cylinder" if need == "diameter" else
                                        "a vertical plate" if need == "height" else
@@ -759,7 +759,7 @@ class _Loader:
             kw["pressure"] = sec.quantity("pressure", "pressure", positive=True)
         loc = {"where": "chamber" if chamber else "outside"}
         r = wall.radii()[0] if side == "inner" else wall.radii()[-1]
-        face_d = 2.0 * r if wall.geometry == "cylinder" else None
+        face_d = 2.0 * r if wall.shape == "cylinder" else None
 
         def diameter():
             if sec.has("diameter"):
@@ -772,9 +772,9 @@ class _Loader:
 
         with _model(self.file, sec.path, "the convection model"):
             if model == "natural":
-                if wall.geometry == "cylinder":
+                if wall.shape == "cylinder":
                     return Convection.horizontal_cylinder(diameter(), **kw, **loc)
-                if wall.geometry == "sphere":
+                if wall.shape == "sphere":
                     raise sec.error("model", "there is no natural-convection model for a sphere",
                                     "film_coefficient, or a model that fits the face best, e.g. "
                                     "horizontal_cylinder with a diameter")

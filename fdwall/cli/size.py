@@ -261,7 +261,7 @@ def _size(args, guard) -> int:
                          "case's run; give --skin-limit TEMPERATURE or --contact-time TIME "
                          "--surface CLASS.")
     if args.loss_limit:
-        v, u = _loss(args.loss_limit, wall.geometry)
+        v, u = _loss(args.loss_limit, wall.shape)
         targets.append(LossTarget(v, unit=u, conditions=loss_c))
     if (args.contact_time is None) != (args.surface is None):
         raise InputError("--contact-time TIME and --surface CLASS go together (the touch "
@@ -359,7 +359,7 @@ def _size(args, guard) -> int:
     stem = Path(args.case).stem
     outdir = common.output_dir(args, stem)
     h5 = outdir / f"{stem}-size.h5"
-    lunit = {"slab": "W/m2", "cylinder": "W/m"}.get(wall.geometry, "W")
+    lunit = {"slab": "W/m2", "cylinder": "W/m"}.get(wall.shape, "W")
     inputs = {"layer": layer, "t_min_m": tmin, "t_max_m": tmax, "conductivity_factor": kf,
               "wall": r.wall or "", "material": r.material, "loss_unit": lunit,
               "stored_unit": {"W/m2": "J/m2", "W/m": "J/m"}.get(lunit, "J")}

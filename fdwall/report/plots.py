@@ -293,7 +293,7 @@ def plot_temperatures(result, path) -> str:
                 label="chamber", zorder=3, gid="chamber")
     _setpoint(ax, result, th)
     # event crossings as small markers on the panel of the watched spot
-    for (name, (up, down)), ev in zip(result.events.items(), case.run.events):
+    for (name, (up, down)), ev in zip(result.events.items(), case.run.watch):
         a = ax_out if ev.where == "outer" else ax
         for t, mk in ((up, "^"), (down, "v")):
             if np.isfinite(t):
@@ -328,7 +328,7 @@ def plot_temperatures(result, path) -> str:
 
 def _profile_times(result, times):
     if times is None:
-        times = list(result.case.run.profile_times)
+        times = list(result.case.run.snapshots)
     times = [float(t) for t in times]
     if not times:
         t_end = float(result.times[-1])
@@ -349,7 +349,7 @@ def _per_length(result):
     """(divisor [m], label suffix) for heat flows: per metre of pipe when every wall is a
     cylinder (results of a pipe are per its length), else (1, '')."""
     walls = _walls(result)
-    if walls and all(w.geometry == "cylinder" for w in walls):
+    if walls and all(w.shape == "cylinder" for w in walls):
         lengths = {float(getattr(w, "length", 1.0)) for w in walls}
         if len(lengths) == 1:
             return lengths.pop(), "/m"
@@ -366,7 +366,7 @@ def plot_profiles(result, path, times=None) -> str:
     path : str or Path
         PNG file to write.
     times : sequence of float, optional
-        Times of the profiles [s]; default ``case.run.profile_times`` or 5 evenly spaced.
+        Times of the profiles [s]; default ``case.run.snapshots`` or 5 evenly spaced.
 
     Returns
     -------
@@ -414,7 +414,7 @@ def plot_profiles(result, path, times=None) -> str:
                     ha="center", va="top", fontsize=8 if wide else 7, color="#333333",
                     rotation=0 if wide else 90, zorder=6, clip_on=True, gid=f"layer-{i}",
                     bbox=None if wide else dict(fc="white", ec="none", alpha=0.75, pad=1.0))
-        geo = "" if w.geometry == "slab" else f" ({w.geometry})"
+        geo = "" if w.shape == "slab" else f" ({w.shape})"
         ttl = f"wall '{w.name}'{geo}"
         import textwrap
         ax.set_title("\n".join(textwrap.wrap(ttl, 70 if ncol == 2 else 100)), fontsize=9)

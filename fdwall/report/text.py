@@ -294,10 +294,10 @@ def format_summary(result) -> str:
              f"{result.relative_residual:.2e} [-]")
 
     # events
-    if case.run.events:
+    if case.run.watch:
         L += _heading("Events (first crossings)")
         rows = []
-        for e, (ev, (name, (up, down))) in enumerate(zip(case.run.events, result.events.items())):
+        for e, (ev, (name, (up, down))) in enumerate(zip(case.run.watch, result.events.items())):
             wname = _case_wall_name(case, ev.wall)
             rows.append([name, f"{wname}, {_event_where(ev, _case_wall(case, ev.wall))}", f"{degc(ev.threshold):.1f}",
                          fmt_time(up) if math.isfinite(up) else "not reached",
@@ -522,9 +522,9 @@ def _layer_resistance(wall, i, k) -> float:
     """Conduction resistance of layer ``i`` of ``wall`` with conductivity ``k`` [K/W]."""
     r = wall.radii()
     r1, r2 = float(r[i]), float(r[i + 1])
-    if wall.geometry == "slab":
+    if wall.shape == "slab":
         return (r2 - r1) / (k * wall.area)
-    if wall.geometry == "cylinder":
+    if wall.shape == "cylinder":
         return math.log(r2 / r1) / (2 * math.pi * k * wall.length)
     return (1.0 / r1 - 1.0 / r2) / (4 * math.pi * k)
 
@@ -539,8 +539,8 @@ def format_case(case, system=None, warnings=()) -> str:
     L.append(f"  kind              {kind}, {len(case.wall_list)} wall(s)")
     r = case.run
     L.append(f"  run               {fmt_time(r.duration)} simulated, tolerance {r.tolerance:g} K, "
-             f"outputs every {fmt_time(r.output_interval or r.duration / 200.0)}")
-    init = np.asarray(r.initial, dtype=float)
+             f"outputs every {fmt_time(r.output_every or r.duration / 200.0)}")
+    init = np.asarray(r.start_temperature, dtype=float)
     L.append("  initial           " + (fmt_temp(float(init)) if init.ndim == 0 else
                                       f"profile of {init.size} values, {fmt_temp(float(init.min()))}"
                                       f" .. {fmt_temp(float(init.max()))}"))
@@ -548,9 +548,9 @@ def format_case(case, system=None, warnings=()) -> str:
         L.append(f"  unknowns          {system.n_unknowns} (mesh nodes"
                  + (" + chamber)" if system.has_chamber else ")"))
     for j, w in enumerate(case.wall_list):
-        if w.geometry == "slab":
+        if w.shape == "slab":
             geo = f"slab, area {w.area:g} m2"
-        elif w.geometry == "cylinder":
+        elif w.shape == "cylinder":
             geo = f"cylinder, inner radius {w.inner_radius * 1e3:.1f} mm, length {w.length:g} m"
         else:
             geo = f"sphere, inner radius {w.inner_radius * 1e3:.1f} mm"
@@ -561,7 +561,7 @@ def format_case(case, system=None, warnings=()) -> str:
             mesh = system.meshes[jj]
         rows = []
         R_tot = 0.0
-        slab = w.geometry == "slab"
+        slab = w.shape == "slab"
         for i, layer in enumerate(w.layers):
             k = float(layer.material.k(T20))
             R = _layer_resistance(w, i, k)
@@ -579,12 +579,12 @@ def format_case(case, system=None, warnings=()) -> str:
                 row.append(f"{R * w.area:.4g}")
             row.append("-" if tmax is None else f"{tmax - KELVIN_OFFSET:.0f}")
             rows.append(row)
-            if i < len(w.layers) - 1 and w.contact[i] > 0:
-                Rc = w.contact[i] / w.area_at(float(w.radii()[i + 1]))
+            if i < len(w.layers) - 1 and w.interface_resistance[i] > 0:
+                Rc = w.interface_resistance[i] / w.area_at(float(w.radii()[i + 1]))
                 R_tot += Rc
                 row = ["", "contact resistance", "-", "", "", f"{Rc:.4g}"]
                 if slab:
-                    row.append(f"{w.contact[i]:.4g}")
+                    row.append(f"{w.interface_resistance[i]:.4g}")
                 row.append("")
                 rows.append(row)
         tot = ["", "total", f"{w.thickness * 1e3:.1f}",
@@ -648,14 +648,14 @@ def format_case(case, system=None, warnings=()) -> str:
         if c.mode in ("fixed", "duty"):
             ctl += f", duty {_sched_text(c.duty, '[-]')}"
         L.append(_wrap(ctl.strip()))
-    if r.events:
+    if r.watch:
         L += _heading("Events watched")
-        for e, ev in enumerate(r.events):
+        for e, ev in enumerate(r.watch):
             wname = _case_wall_name(case, ev.wall)
             L.append(f"  {ev.name or f'event{e + 1}'}: {wname}, "
                      f"{_event_where(ev, _case_wall(case, ev.wall))} crossing "
                      f"{fmt_temp(ev.threshold)}")
-        if any(_speaks_of_skin(f"{ev.name} {ev.where}") for ev in r.events):
+        if any(_speaks_of_skin(f"{ev.name} {ev.where}") for ev in r.watch):
             L.append(_wrap(TOUCH_CAUTION, "  "))
     L += _heading("Warnings")
     if warnings:

@@ -1,0 +1,90 @@
+"""One vocabulary: the model's Python names follow the case-file keys; the old names stay for a
+release as deprecated aliases (constructor keywords and read-only properties).
+
+Physics reference for the runs compared here: the steady heat flow through a plane wall with
+a film on each side, q = A dT / (1/h1 + L/k + 1/h2) (series resistances; Incropera, DeWitt,
+Bergman & Lavine, Fundamentals of Heat and Mass Transfer, 6th ed., ch. 3), reached after many
+time constants; with a contact resistance R'' the series gains R''.  Demo data (invented).
+"""
+from __future__ import annotations
+
+import dataclasses
+import warnings
+
+import numpy as np
+import pytest
+
+from fdwall.materials import material_from_dict
+from fdwall.model import RENAMED, Case, Event, Face, Layer, RunSettings, Wall
+from fdwall.solver import run
+
+K_B, RHO, CP = 0.1, 500.0, 1000.0                 # demo board [W/m/K], [kg/m3], [J/kg/K]
+L1, L2, RC = 0.02, 0.03, 0.05                     # [m], [m], contact [m2.K/W]
+H1, H2, T1, T2, AREA = 10.0, 5.0, 473.15, 293.15, 2.0
+
+#: case-file key (docs/case-file.md) -> (class, old Python name)
+PAIRS = {"start_temperature": (RunSettings, "initial"),
+         "output_every": (RunSettings, "output_interval"),
+         "snapshots": (RunSettings, "profile_times"),
+         "watch": (RunSettings, "events"),
+         "shape": (Wall, "geometry"),
+         "interface_resistance": (Wall, "contact")}
+
+
+def _case(new: bool) -> Case:
+    m = material_from_dict("demo-board", {"k": K_B, "cp": CP, "rho": RHO})
+    layers = (Layer(m, L1), Layer(m, L2))
+    watch = (Event(threshold=330.0, where="outer", name="outer at 330 K"),)
+    if new:
+        wall = Wall(layers, shape="slab", area=AREA, interface_resistance=(RC,), name="w")
+        rs = RunSettings(duration=40 * 3600.0, start_temperature=T2, output_every=1800.0,
+                         snapshots=(3600.0,), watch=watch)
+    else:
+        wall = Wall(layers, geometry="slab", area=AREA, contact=(RC,), name="w")
+        rs = RunSettings(duration=40 * 3600.0, initial=T2, output_interval=1800.0,
+                         profile_times=(3600.0,), events=watch)
+    return Case(run=rs, wall=wall, inner=Face.exchange(T1, H1), outer=Face.exchange(T2, H2),
+                name="demo two boards")
+
+
+def test_the_table_of_renamed_names_is_the_one_documented():
+    got = {new: (cls, old) for cls in (RunSettings, Wall)
+           for old, new in RENAMED[cls.__name__].items()}
+    assert got == PAIRS
+    fields = {c: {f.name for f in dataclasses.fields(c)} for c in (RunSettings, Wall)}
+    for new, (cls, old) in PAIRS.items():
+        assert new in fields[cls] and old not in fields[cls]
+
+
+def test_old_names_warn_and_give_the_same_model_and_results():
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")            # the new names never warn
+        new = _case(True)
+        res_new = run(new, progress=False)
+    with pytest.warns(DeprecationWarning) as rec:
+        old = _case(False)
+    msgs = " ".join(str(w.message) for w in rec)
+    for new_name, (cls, old_name) in PAIRS.items():
+        assert f"{cls.__name__}.{old_name} is deprecated" in msgs and new_name in msgs
+    assert old == new                            # the same frozen model
+    # the old names still read, with a warning, the new fields
+    for new_name, (cls, old_name) in PAIRS.items():
+        obj = new.run if cls is RunSettings else new.wall
+        with pytest.warns(DeprecationWarning, match=f"{old_name} is deprecated"):
+            assert getattr(obj, old_name) == getattr(obj, new_name)
+    # dataclasses.replace with an old name changes the new field
+    with pytest.warns(DeprecationWarning):
+        r2 = dataclasses.replace(new.run, output_interval=900.0)
+    assert r2.output_every == 900.0 and r2.start_temperature == T2
+    # results identical to the last digit
+    res_old = run(old, progress=False)
+    for name in ("times", "T", "face_flow", "face_energy"):
+        assert np.array_equal(getattr(res_old, name), getattr(res_new, name)), name
+    assert res_old.events.keys() == res_new.events.keys()
+    for k in res_new.events:
+        assert np.array_equal(res_old.events[k], res_new.events[k], equal_nan=True)
+    # and right: steady flow through the series resistances (Incropera ch. 3), 40 h >> tau
+    q = AREA * (T1 - T2) / (1 / H1 + (L1 + L2) / K_B + RC + 1 / H2)
+    assert res_new.face_flow[-1, 0] == pytest.approx(q, rel=2e-3)
+    assert res_new.face_flow[-1, 1] == pytest.approx(-q, rel=2e-3)
+    assert np.isfinite(res_new.events["outer at 330 K"][0])
