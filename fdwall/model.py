@@ -90,6 +90,7 @@ def _sched(name, x, kelvin=False):
     return s
 
 
+@_renamed(initial="start_temperature")
 @dataclass(frozen=True)
 class Layer:
     """One homogeneous layer of a wall.
@@ -104,7 +105,7 @@ class Layer:
         Number of finite-volume cells across the layer; default chosen by :mod:`fdwall.mesh`.
     name : str
         Label used in reports (defaults to the material name).
-    initial : float, optional
+    start_temperature : float, optional
         Start temperature of this layer [K], overriding a uniform run start temperature.
     """
 
@@ -112,14 +113,14 @@ class Layer:
     thickness: float
     cells: Optional[int] = None
     name: str = ""
-    initial: Optional[float] = None
+    start_temperature: Optional[float] = None
 
     def __post_init__(self):
         _pos(f"thickness of layer '{self.label}'", self.thickness)
         if self.cells is not None and (int(self.cells) != self.cells or self.cells < 1):
             raise ModelError(f"cells of layer '{self.label}' must be a whole number >= 1")
-        if self.initial is not None:
-            _pos(f"start temperature of layer '{self.label}'", self.initial)
+        if self.start_temperature is not None:
+            _pos(f"start temperature of layer '{self.label}'", self.start_temperature)
 
     @property
     def label(self) -> str:
@@ -302,6 +303,7 @@ class Face:
                    flux=flux)
 
 
+@_renamed(initial="start_temperature", ambient="room_temperature")
 @dataclass(frozen=True)
 class Chamber:
     """A lumped chamber node (air, load, racks) coupled to the inner faces of walls.
@@ -311,7 +313,7 @@ class Chamber:
     capacity : float or Schedule
         Heat capacity of the chamber contents [J/K]; a Schedule is read as a table of
         capacity against temperature [K].
-    ambient : Schedule or float
+    room_temperature : Schedule or float
         Temperature of the room air that leakage and extra losses go to [K].
     leakage : float
         Air flow through the chamber [m3/s], at room conditions (ventilation, leaks): room air
@@ -320,7 +322,7 @@ class Chamber:
         and 1 atm.
     extra_ua : float
         Further fixed losses as a conductance to ambient [W/K].
-    initial : float, optional
+    start_temperature : float, optional
         Start temperature of the chamber contents [K], overriding the run start temperature.
     box : tuple of float, optional
         Inner width, depth and height of a box-shaped enclosure [m].  When given, the
@@ -331,22 +333,23 @@ class Chamber:
     """
 
     capacity: Union[float, Schedule]
-    ambient: Schedule = 293.15
+    room_temperature: Schedule = 293.15
     leakage: float = 0.0
     extra_ua: float = 0.0
     box: Optional[tuple] = None
-    initial: Optional[float] = None
+    start_temperature: Optional[float] = None
 
     def __post_init__(self):
         cap = self.capacity
         vals = cap.values if isinstance(cap, Schedule) else (float(cap),)
         if min(vals) <= 0:
             raise ModelError("chamber capacity must be positive [J/K]")
-        object.__setattr__(self, "ambient", _sched("chamber ambient", self.ambient, True))
+        object.__setattr__(self, "room_temperature",
+                           _sched("chamber room temperature", self.room_temperature, True))
         _pos("chamber leakage flow", self.leakage, allow_zero=True)
         _pos("chamber extra UA", self.extra_ua, allow_zero=True)
-        if self.initial is not None:
-            _pos("chamber start temperature", self.initial)
+        if self.start_temperature is not None:
+            _pos("chamber start temperature", self.start_temperature)
         if self.box is not None:
             if len(self.box) != 3:
                 raise ModelError("chamber box needs three inner dimensions (width, depth, height) [m]")

@@ -234,22 +234,22 @@ class System:
         """Initial temperatures of all unknowns [K] from a number or a full vector.
 
         With a number, layers and a chamber that carry their own start temperature
-        (``Layer.initial``, ``Chamber.initial``) keep it; a node on an interface takes the
+        (``Layer.start_temperature``, ``Chamber.start_temperature``) keep it; a node on an interface takes the
         mean of its two layers.
         """
         a = np.asarray(initial, dtype=float)
         if a.ndim == 0:
             T = np.full(self.n_unknowns, float(a))
-            lay = [l.initial if l.initial is not None else float(a)
+            lay = [l.start_temperature if l.start_temperature is not None else float(a)
                    for w in self.walls for l in w.layers]
-            if any(l.initial is not None for w in self.walls for l in w.layers):
+            if any(l.start_temperature is not None for w in self.walls for l in w.layers):
                 for n in range(self.n_nodes):
                     ids = [g for g in self.layer_of_half[n] if g >= 0]
                     if ids:
                         T[n] = float(np.mean([lay[g] for g in ids]))
             ch = self.case.chamber
-            if self.has_chamber and ch is not None and ch.initial is not None:
-                T[-1] = ch.initial
+            if self.has_chamber and ch is not None and ch.start_temperature is not None:
+                T[-1] = ch.start_temperature
             return T
         if a.shape != (self.n_unknowns,):
             raise ModelError(f"an initial profile must have one temperature per unknown "
@@ -466,7 +466,7 @@ def build_system(case: Case) -> System:
         ch = case.chamber
         ch_i[CHI_PRESENT] = 1
         ch_i[CHI_CAPACITY] = tb.capacity(ch.capacity)
-        ch_i[CHI_AMBIENT] = tb.schedule(ch.ambient)
+        ch_i[CHI_AMBIENT] = tb.schedule(ch.room_temperature)
         ch_f[CHF_UA] = ch.extra_ua
         ch_f[CHF_LEAK] = ch.leakage
     # heater and control
@@ -572,7 +572,7 @@ def _time_schedules(case):
     if case.is_enclosure:
         faces = [ew.outer for ew in case.walls]
         if case.chamber is not None:
-            yield case.chamber.ambient
+            yield case.chamber.room_temperature
     else:
         faces = [case.inner, case.outer]
     for f in faces:

@@ -15,20 +15,35 @@ import numpy as np
 import pytest
 
 from fdwall.materials import material_from_dict
-from fdwall.model import RENAMED, Case, Event, Face, Layer, RunSettings, Wall
+from fdwall.model import (
+    RENAMED,
+    Case,
+    Chamber,
+    EnclosureWall,
+    Event,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Wall,
+)
 from fdwall.solver import run
 
 K_B, RHO, CP = 0.1, 500.0, 1000.0                 # demo board [W/m/K], [kg/m3], [J/kg/K]
 L1, L2, RC = 0.02, 0.03, 0.05                     # [m], [m], contact [m2.K/W]
 H1, H2, T1, T2, AREA = 10.0, 5.0, 473.15, 293.15, 2.0
 
-#: case-file key (docs/case-file.md) -> (class, old Python name)
-PAIRS = {"start_temperature": (RunSettings, "initial"),
-         "output_every": (RunSettings, "output_interval"),
-         "snapshots": (RunSettings, "profile_times"),
-         "watch": (RunSettings, "events"),
-         "shape": (Wall, "geometry"),
-         "interface_resistance": (Wall, "contact")}
+#: (class, old Python name, case-file key of docs/case-file.md = new Python name)
+PAIRS = [(RunSettings, "initial", "start_temperature"),
+         (RunSettings, "output_interval", "output_every"),
+         (RunSettings, "profile_times", "snapshots"),
+         (RunSettings, "events", "watch"),
+         (Wall, "geometry", "shape"),
+         (Wall, "contact", "interface_resistance"),
+         (Layer, "initial", "start_temperature"),
+         (Chamber, "initial", "start_temperature"),
+         (Chamber, "ambient", "room_temperature")]
+CLASSES = (RunSettings, Wall, Layer, Chamber)
 
 
 def _case(new: bool) -> Case:
@@ -48,11 +63,12 @@ def _case(new: bool) -> Case:
 
 
 def test_the_table_of_renamed_names_is_the_one_documented():
-    got = {new: (cls, old) for cls in (RunSettings, Wall)
-           for old, new in RENAMED[cls.__name__].items()}
-    assert got == PAIRS
-    fields = {c: {f.name for f in dataclasses.fields(c)} for c in (RunSettings, Wall)}
-    for new, (cls, old) in PAIRS.items():
+    got = sorted((cls.__name__, old, new) for cls in CLASSES
+                 for old, new in RENAMED[cls.__name__].items())
+    assert got == sorted((c.__name__, o, n) for c, o, n in PAIRS)
+    assert set(RENAMED) == {c.__name__ for c in CLASSES}
+    fields = {c: {f.name for f in dataclasses.fields(c)} for c in CLASSES}
+    for cls, old, new in PAIRS:
         assert new in fields[cls] and old not in fields[cls]
 
 
@@ -64,11 +80,11 @@ def test_old_names_warn_and_give_the_same_model_and_results():
     with pytest.warns(DeprecationWarning) as rec:
         old = _case(False)
     msgs = " ".join(str(w.message) for w in rec)
-    for new_name, (cls, old_name) in PAIRS.items():
+    for cls, old_name, new_name in PAIRS[:6]:
         assert f"{cls.__name__}.{old_name} is deprecated" in msgs and new_name in msgs
     assert old == new                            # the same frozen model
     # the old names still read, with a warning, the new fields
-    for new_name, (cls, old_name) in PAIRS.items():
+    for cls, old_name, new_name in PAIRS[:6]:
         obj = new.run if cls is RunSettings else new.wall
         with pytest.warns(DeprecationWarning, match=f"{old_name} is deprecated"):
             assert getattr(obj, old_name) == getattr(obj, new_name)
@@ -88,3 +104,40 @@ def test_old_names_warn_and_give_the_same_model_and_results():
     assert res_new.face_flow[-1, 0] == pytest.approx(q, rel=2e-3)
     assert res_new.face_flow[-1, 1] == pytest.approx(-q, rel=2e-3)
     assert np.isfinite(res_new.events["outer at 330 K"][0])
+
+
+def _box(new: bool) -> Case:
+    """An insulated box heated at 300 W, one layer starting warmer (demo data, invented)."""
+    m = material_from_dict("demo-board", {"k": K_B, "cp": CP, "rho": RHO})
+    kw = dict(start_temperature=330.0) if new else dict(initial=330.0)
+    wall = Wall((Layer(m, L1), Layer(m, L2, **kw)), area=AREA, name="box wall")
+    ch_kw = (dict(room_temperature=T2, start_temperature=300.0) if new
+             else dict(ambient=T2, initial=300.0))
+    return Case(run=RunSettings(duration=60 * 3600.0, start_temperature=T2),
+                walls=(EnclosureWall(wall, Face.exchange(T2, H2), inner_h=H1),),
+                chamber=Chamber(capacity=2e4, leakage=0.0, **ch_kw), heater=Heater(300.0),
+                name="demo box")
+
+
+def test_layer_and_chamber_names_and_results():
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        new = _box(True)
+        res_new = run(new, progress=False)
+    with pytest.warns(DeprecationWarning) as rec:
+        old = _box(False)
+    msgs = " ".join(str(w.message) for w in rec)
+    for cls, old_name, new_name in PAIRS[6:]:
+        assert f"{cls.__name__}.{old_name} is deprecated" in msgs
+    assert old == new
+    with pytest.warns(DeprecationWarning):
+        assert new.chamber.ambient == new.chamber.room_temperature
+    res_old = run(old, progress=False)
+    assert np.array_equal(res_old.T, res_new.T)
+    # the start temperatures are used: chamber node and outer layer start as given [K]
+    assert res_new.chamber_T[0] == pytest.approx(300.0)
+    assert res_new.wall_T(0)[0, -1] == pytest.approx(330.0)
+    # steady chamber temperature of a heated box: 300 W through the series resistances
+    # (Incropera ch. 3) above the room; 60 h is many time constants of this box
+    R = 1 / (H1 * AREA) + (L1 + L2) / (K_B * AREA) + 1 / (H2 * AREA)
+    assert res_new.chamber_T[-1] == pytest.approx(T2 + 300.0 * R, abs=0.5)

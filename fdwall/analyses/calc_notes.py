@@ -188,7 +188,7 @@ def input_rows(case, system) -> list:
             rows.append(_row("chamber", "heat capacity of the contents", cap, "J/K"))
         else:
             rows += _sched_rows("chamber", "heat capacity of the contents", cap, "J/K")
-        rows += _sched_rows("chamber", "room temperature", ch.ambient, "K")
+        rows += _sched_rows("chamber", "room temperature", ch.room_temperature, "K")
         rows.append(_row("chamber", "leakage air flow", ch.leakage, "m3/s"))
         rows.append(_row("chamber", "further losses (conductance)", ch.extra_ua, "W/K"))
     hz = case.heater

@@ -196,7 +196,7 @@ def log_driven_case(case, t, P, T_start, tolerance=None):
                              "with a heater (its power is replaced by the logged power)")
         heater = dataclasses.replace(case.heater, power=sched, voltage_ratio=1.0, alpha=0.0)
         new = dataclasses.replace(case, heater=heater, control=Control(mode="fixed"),
-                                  chamber=dataclasses.replace(case.chamber, initial=None))
+                                  chamber=dataclasses.replace(case.chamber, start_temperature=None))
     else:
         w = case.wall
         if w.shape == "slab":
@@ -214,13 +214,13 @@ def log_driven_case(case, t, P, T_start, tolerance=None):
     walls = []
     for ew in (new.walls or ()):
         walls.append(dataclasses.replace(ew, wall=dataclasses.replace(
-            ew.wall, layers=tuple(dataclasses.replace(ly, initial=None)
+            ew.wall, layers=tuple(dataclasses.replace(ly, start_temperature=None)
                                   for ly in ew.wall.layers))))
     if walls:
         new = dataclasses.replace(new, walls=tuple(walls))
     if new.wall is not None:
         new = dataclasses.replace(new, wall=dataclasses.replace(new.wall, layers=tuple(
-            dataclasses.replace(ly, initial=None) for ly in new.wall.layers)))
+            dataclasses.replace(ly, start_temperature=None) for ly in new.wall.layers)))
     run = RunSettings(duration=span, start_temperature=float(T_start), output_every=dt,
                       tolerance=tolerance or new.run.tolerance, max_step=new.run.max_step)
     return dataclasses.replace(new, run=run)

@@ -199,7 +199,7 @@ def _time_schedules(case: Case):
     """(label, Schedule) of every time schedule of an enclosure case."""
     out = []
     if case.chamber is not None:
-        out.append(("chamber ambient", case.chamber.ambient))
+        out.append(("chamber ambient", case.chamber.room_temperature))
     for ew in case.walls:
         f = ew.outer
         for key in ("temperature", "flux", "fluid", "surroundings"):
@@ -549,7 +549,7 @@ def cooldown(result, t_off=None, temperatures=(), series=None) -> dict:
     m = t > t_off
     tt = np.concatenate([[t_off], t[m]])
     yy = np.concatenate([[T_off], y[m]])
-    amb = float(case.chamber.ambient(t_off))
+    amb = float(case.chamber.room_temperature(t_off))
     times_to = {}
     for lev in temperatures:
         x = _first_crossing(t, y, float(lev), t_off, up=False)

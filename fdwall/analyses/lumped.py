@@ -170,7 +170,7 @@ def _ambient(case, sysm, t) -> float:
     enclosure, else the outer face's fixed or fluid temperature (InputError if it has none)."""
     from ..solver.native import sched_eval
     if case.is_enclosure:
-        return float(case.chamber.ambient(t))
+        return float(case.chamber.room_temperature(t))
     outer = sysm.face_i[1]     # face 1: the outer face of the single wall
     s = outer[FI_FIXED_T] if outer[FI_FIXED_T] >= 0 else outer[FI_FLUID]
     if s < 0:
@@ -210,7 +210,7 @@ def implied_rc(case, t=None) -> dict:
     tt = st.time
     if case.is_enclosure:
         T_hot = float(st.T[-1])
-        T_amb = float(case.chamber.ambient(tt))
+        T_amb = float(case.chamber.room_temperature(tt))
         Q = float(st.heater_power)
     else:
         T_hot = float(st.face_T[0])

@@ -128,8 +128,8 @@ def _service_warnings(case):
     if init.ndim == 0:
         for w in walls:
             for i, layer in enumerate(w.layers):
-                T0 = float(init) if layer.initial is None else layer.initial
-                _layer_service(out, w, i, T0, "the start temperature" if layer.initial is None
+                T0 = float(init) if layer.start_temperature is None else layer.start_temperature
+                _layer_service(out, w, i, T0, "the start temperature" if layer.start_temperature is None
                                else "its start temperature")
     else:
         try:

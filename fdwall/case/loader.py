@@ -499,7 +499,7 @@ class _Loader:
             starts.append(start_l)
             with _model(self.file, ls.path, "the layer"):
                 layers.append(Layer(material=mat, thickness=th, cells=cells, name=lname,
-                                    initial=start_l))
+                                    start_temperature=start_l))
         n_if = len(layers) - 1
         contact = ()
         if sec.has("interface_resistance"):
@@ -844,8 +844,8 @@ class _Loader:
         box = sec.quantity_list("inner_dimensions", "length", None, positive=True, length=3)
         start = sec.quantity("start_temperature", "temperature", None)
         with _model(self.file, sec.path, "the chamber"):
-            ch = Chamber(capacity=cap, ambient=room, leakage=leak, extra_ua=extra,
-                         box=tuple(box) if box else None, initial=start)
+            ch = Chamber(capacity=cap, room_temperature=room, leakage=leak, extra_ua=extra,
+                         box=tuple(box) if box else None, start_temperature=start)
         return ch, start
 
     def _wall_ref(self, sec, key, default=0):

@@ -625,7 +625,7 @@ def format_case(case, system=None, warnings=()) -> str:
         cap_t = (f"{float(cap) / 1e3:.3g} kJ/K" if not hasattr(cap, "values") else
                  f"{min(cap.values) / 1e3:.3g}..{max(cap.values) / 1e3:.3g} kJ/K (table vs T)")
         L += _heading("Chamber")
-        L.append(_wrap(f"capacity {cap_t}; ambient {_sched_text(ch.ambient)}; leakage "
+        L.append(_wrap(f"capacity {cap_t}; ambient {_sched_text(ch.room_temperature)}; leakage "
                        f"{ch.leakage:.3g} m3/s ({_leak_ua(ch):.3g} W/K with room air at the start); extra UA "
                        f"{ch.extra_ua:.3g} W/K"))
         if getattr(ch, "box", None):
@@ -752,4 +752,4 @@ def format_material(m) -> str:
 def _leak_ua(ch):
     """Leakage of a chamber as a conductance [W/K], room air at t = 0 (as the solver uses)."""
     from ..solver import native
-    return float(ch.leakage) * native.rho_cp(float(ch.ambient(0.0)), 101325.0)
+    return float(ch.leakage) * native.rho_cp(float(ch.room_temperature(0.0)), 101325.0)
