@@ -228,6 +228,7 @@ class Wall:
         return replace(self, layers=tuple(layers))
 
 
+@_renamed(fluid="fluid_temperature", surroundings="surroundings_temperature")
 @dataclass(frozen=True)
 class Face:
     """What happens at one face of a wall.
@@ -241,15 +242,15 @@ class Face:
         Imposed face temperature [K].
     flux : Schedule or float, optional
         Imposed heat flux into the wall [W/m2] (heater element, absorbed solar).
-    fluid : Schedule or float, optional
+    fluid_temperature : Schedule or float, optional
         Temperature of the fluid (air) at the face [K]; needed with ``convection``.
     convection : float or fdwall.physics.convection.Convection, optional
         Film coefficient [W/m2/K], or a correlation evaluated as the run goes.
     emissivity : float or Schedule, optional
         Grey emissivity [-], constant or a table against surface temperature [K]; None: no
         radiation.
-    surroundings : Schedule or float, optional
-        Temperature of the radiant surroundings [K]; defaults to ``fluid``.
+    surroundings_temperature : Schedule or float, optional
+        Temperature of the radiant surroundings [K]; defaults to ``fluid_temperature``.
     touch : {'touchable', 'guarded', 'out-of-reach'}
         Whether people can touch this face (touch-safety verdicts skip guarded and
         out-of-reach faces); default touchable.
@@ -260,10 +261,10 @@ class Face:
 
     temperature: Optional[Schedule] = None
     flux: Optional[Schedule] = None
-    fluid: Optional[Schedule] = None
+    fluid_temperature: Optional[Schedule] = None
     convection: Union[None, float, object] = None
     emissivity: Union[None, float, Schedule] = None
-    surroundings: Optional[Schedule] = None
+    surroundings_temperature: Optional[Schedule] = None
     touch: str = "touchable"
     surface_class: Optional[str] = None
 
@@ -275,8 +276,11 @@ class Face:
                              f"got {self.surface_class!r}")
         object.__setattr__(self, "temperature", _sched("face temperature", self.temperature, True))
         object.__setattr__(self, "flux", _sched("face flux", self.flux))
-        object.__setattr__(self, "fluid", _sched("fluid temperature", self.fluid, True))
-        object.__setattr__(self, "surroundings", _sched("surroundings temperature", self.surroundings, True))
+        object.__setattr__(self, "fluid_temperature",
+                           _sched("fluid temperature", self.fluid_temperature, True))
+        object.__setattr__(self, "surroundings_temperature",
+                           _sched("surroundings temperature", self.surroundings_temperature,
+                                  True))
         if isinstance(self.convection, (int, float)):
             _pos("film coefficient", float(self.convection), allow_zero=True)
         e = self.emissivity
@@ -299,7 +303,8 @@ class Face:
     def exchange(cls, fluid, h, emissivity=None, surroundings=None, flux=None) -> "Face":
         """Convection with film coefficient ``h`` [W/m2/K] to fluid at ``fluid`` [K], plus grey
         radiation (``emissivity`` [-]) to ``surroundings`` [K] and an imposed ``flux`` [W/m2]."""
-        return cls(fluid=fluid, convection=h, emissivity=emissivity, surroundings=surroundings,
+        return cls(fluid_temperature=fluid, convection=h, emissivity=emissivity,
+                   surroundings_temperature=surroundings,
                    flux=flux)
 
 

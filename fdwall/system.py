@@ -331,22 +331,22 @@ def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_
     fi[FI_FLUX] = tb.schedule(face.flux)
     conv = conv_obj if to_chamber else face.convection
     if conv is not None:
-        if not to_chamber and face.fluid is None:
+        if not to_chamber and face.fluid_temperature is None:
             raise ModelError(f"{label}: convection needs a fluid temperature")
         if isinstance(conv, (int, float)):
             ff[FF_H] = float(conv)
         else:
             fi[FI_H_MODE] = H_CORRELATION
             par[:] = conv.to_par()
-    fi[FI_FLUID] = -1 if to_chamber else tb.schedule(face.fluid)
+    fi[FI_FLUID] = -1 if to_chamber else tb.schedule(face.fluid_temperature)
     eps = face.emissivity
     if eps is not None:
         fi[FI_EMISSIVITY] = tb.schedule(eps)
         if not to_chamber:
-            if face.surroundings is None and face.fluid is None:
+            if face.surroundings_temperature is None and face.fluid_temperature is None:
                 raise ModelError(f"{label}: radiation needs a surroundings (or fluid) temperature")
-            fi[FI_RADIANT] = (tb.schedule(face.surroundings) if face.surroundings is not None
-                              else fi[FI_FLUID])
+            fi[FI_RADIANT] = (tb.schedule(face.surroundings_temperature)
+                              if face.surroundings_temperature is not None else fi[FI_FLUID])
     return fi, ff, par
 
 
@@ -576,7 +576,7 @@ def _time_schedules(case):
     else:
         faces = [case.inner, case.outer]
     for f in faces:
-        for s in (f.temperature, f.flux, f.fluid, f.surroundings):
+        for s in (f.temperature, f.flux, f.fluid_temperature, f.surroundings_temperature):
             if s is not None:
                 yield s
     if case.heater is not None:

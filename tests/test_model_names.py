@@ -42,8 +42,10 @@ PAIRS = [(RunSettings, "initial", "start_temperature"),
          (Wall, "contact", "interface_resistance"),
          (Layer, "initial", "start_temperature"),
          (Chamber, "initial", "start_temperature"),
-         (Chamber, "ambient", "room_temperature")]
-CLASSES = (RunSettings, Wall, Layer, Chamber)
+         (Chamber, "ambient", "room_temperature"),
+         (Face, "fluid", "fluid_temperature"),
+         (Face, "surroundings", "surroundings_temperature")]
+CLASSES = (RunSettings, Wall, Layer, Chamber, Face)
 
 
 def _case(new: bool) -> Case:
@@ -127,7 +129,7 @@ def test_layer_and_chamber_names_and_results():
     with pytest.warns(DeprecationWarning) as rec:
         old = _box(False)
     msgs = " ".join(str(w.message) for w in rec)
-    for cls, old_name, new_name in PAIRS[6:]:
+    for cls, old_name, new_name in PAIRS[6:9]:
         assert f"{cls.__name__}.{old_name} is deprecated" in msgs
     assert old == new
     with pytest.warns(DeprecationWarning):
@@ -141,3 +143,17 @@ def test_layer_and_chamber_names_and_results():
     # (Incropera ch. 3) above the room; 60 h is many time constants of this box
     R = 1 / (H1 * AREA) + (L1 + L2) / (K_B * AREA) + 1 / (H2 * AREA)
     assert res_new.chamber_T[-1] == pytest.approx(T2 + 300.0 * R, abs=0.5)
+
+
+def test_face_names():
+    with pytest.warns(DeprecationWarning) as rec:
+        old = Face(fluid=T2, convection=H2, emissivity=0.9, surroundings=280.0)
+    assert {str(w.message).split(" is ")[0] for w in rec} == {"Face.fluid", "Face.surroundings"}
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        new = Face(fluid_temperature=T2, convection=H2, emissivity=0.9,
+                   surroundings_temperature=280.0)
+        assert new == Face.exchange(T2, H2, emissivity=0.9, surroundings=280.0)
+    assert old == new and new.surroundings_temperature(0.0) == 280.0
+    with pytest.warns(DeprecationWarning):
+        assert old.fluid(0.0) == T2

@@ -101,11 +101,11 @@ def _face_rows(section, face):
         return _sched_rows(section, "fixed surface temperature", face.temperature, "K")
     c = face.convection
     if c is not None:
-        rows += _sched_rows(section, "fluid (air) temperature", face.fluid, "K")
+        rows += _sched_rows(section, "fluid (air) temperature", face.fluid_temperature, "K")
         rows += _conv_rows(section, c)
     if face.emissivity is not None:
         rows += _sched_rows(section, "emissivity", face.emissivity, "")
-        sur = face.surroundings if face.surroundings is not None else face.fluid
+        sur = face.surroundings_temperature if face.surroundings_temperature is not None else face.fluid_temperature
         rows += _sched_rows(section, "radiant surroundings temperature", sur, "K")
     if face.flux is not None:
         rows += _sched_rows(section, "imposed heat flux into the wall", face.flux, "W/m2")

@@ -202,8 +202,10 @@ def _time_schedules(case: Case):
         out.append(("chamber ambient", case.chamber.room_temperature))
     for ew in case.walls:
         f = ew.outer
-        for key in ("temperature", "flux", "fluid", "surroundings"):
-            s = getattr(f, key)
+        for key, attr in (("temperature", "temperature"), ("flux", "flux"),
+                          ("fluid", "fluid_temperature"),
+                          ("surroundings", "surroundings_temperature")):
+            s = getattr(f, attr)
             if s is not None:
                 out.append((f"wall '{ew.wall.name}' outer {key}", s))
     if case.heater is not None:

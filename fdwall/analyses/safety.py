@@ -672,9 +672,12 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
         def worst(f: Face):
             if f.temperature is not None:
                 return f
-            return replace(f, fluid=amb if f.fluid is not None else None,
-                           surroundings=amb if (f.surroundings is not None or
-                                                f.emissivity is not None) else None)
+            return replace(f, fluid_temperature=(amb if f.fluid_temperature is not None
+                                                 else None),
+                           surroundings_temperature=(amb if (f.surroundings_temperature
+                                                             is not None or
+                                                             f.emissivity is not None)
+                                                     else None))
         run_case = _with_outer(case, worst)
         result = steady = None
         conditions["ambient"] = (f"outer air and radiant surroundings set to "
@@ -704,7 +707,7 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
             f = _outer_face(run_case, j)
             if f.flux is not None:
                 has_sun = True
-            s = f.fluid if f.fluid is not None else f.surroundings
+            s = f.fluid_temperature if f.fluid_temperature is not None else f.surroundings_temperature
             if s is not None:
                 vals.append(max(s.values))
         amb = float(max(vals)) if vals else 293.15

@@ -118,8 +118,8 @@ def _apply_conditions(case, wi, cond: Conditions):
     wall, face = _wall(case, wi), _outer(case, wi)
     ch = {}
     if cond.ambient is not None:
-        ch["fluid"] = float(cond.ambient)
-        ch["surroundings"] = float(cond.ambient)
+        ch["fluid_temperature"] = float(cond.ambient)
+        ch["surroundings_temperature"] = float(cond.ambient)
     if cond.wind is not None:
         conv = face.convection
         if wall.shape == "sphere":
@@ -620,7 +620,7 @@ def _check_limits(case, wi, targets):
         amb = cond.ambient if cond is not None and cond.ambient is not None else None
         if amb is None:
             try:
-                amb = float(_outer(case, wi).fluid(0.0))
+                amb = float(_outer(case, wi).fluid_temperature(0.0))
             except (TypeError, ValueError, AttributeError):
                 amb = None
         if amb is not None and tg.limit <= amb:

@@ -703,7 +703,7 @@ class _Loader:
             fluxes.append(_combine(lambda g: a * g, G))
         flux = _combine(lambda *q: float(sum(q)), *fluxes) if fluxes else None
         with _model(self.file, sec.path, f"the {side} face"):
-            return Face(flux=flux, fluid=air, convection=conv, emissivity=eps, surroundings=surr)
+            return Face(flux=flux, fluid_temperature=air, convection=conv, emissivity=eps, surroundings_temperature=surr)
 
     def _emissivity(self, sec, key):
         v = sec.raw(key)

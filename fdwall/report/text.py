@@ -509,9 +509,9 @@ def _face_text(face) -> str:
         return f"held at {_sched_text(face.temperature)}"
     parts = []
     if face.convection is not None:
-        parts.append(f"convection {_conv_text(face.convection)} to air at {_sched_text(face.fluid)}")
+        parts.append(f"convection {_conv_text(face.convection)} to air at {_sched_text(face.fluid_temperature)}")
     if face.emissivity is not None:
-        sur = face.surroundings if face.surroundings is not None else face.fluid
+        sur = face.surroundings_temperature if face.surroundings_temperature is not None else face.fluid_temperature
         parts.append(f"radiation, {_eps_text(face.emissivity)}, to surroundings at {_sched_text(sur)}")
     if face.flux is not None:
         parts.append(f"imposed flux {_sched_text(face.flux, 'W/m2')} into the wall")
