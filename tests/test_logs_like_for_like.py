@@ -59,3 +59,25 @@ def test_fitted_C_against_log_length_matches_the_analytic_slab():
     assert all(b >= a * 0.999 for a, b in zip(fl["C_J_per_K"], fl["C_J_per_K"][1:]))
     assert fl["C_J_per_K"][0] < 0.7 * RHO * CP * A * L / 3
     assert fl["C_J_per_K"][-1] == pytest.approx(RHO * CP * A * L / 3, rel=0.25)
+
+
+def test_logged_power_replaces_the_inner_face_conditions():
+    # lumped capacitance (Incropera, Fundamentals of Heat and Mass Transfer, sec. 5.1): a thin
+    # copper-like plate (Biot ~ 1e-4) heated by P through its inner face and cooled by a film h
+    # outside is a one-node system with R = 1/(h A) and C = rho c V.  The inner face of the
+    # case also has a hot fluid and a film; the logged power replaces them (the logged chamber
+    # is the plate's own surroundings, not a reservoir at the case's fluid temperature)
+    import numpy as np
+
+    from fdwall import Case, Face, Layer, RunSettings, Wall
+    from fdwall.analyses.calibrate import like_for_like
+    from fdwall.materials import material_from_dict
+    plate = material_from_dict("t-plate", {"k": 400.0, "cp": 400.0, "rho": 8900.0})
+    h, A, L, P, Ta = 10.0, 1.0, 0.01, 200.0, 293.15
+    case = Case(run=RunSettings(duration=3600.0, initial=Ta),
+                wall=Wall(layers=(Layer(plate, L),), area=A),
+                inner=Face.exchange(450.0, 25.0), outer=Face.exchange(Ta, h))
+    t = np.arange(0.0, 4 * 3600.0 + 1.0, 60.0)
+    out = like_for_like(case, t, np.full(t.size, P), Ta, T_amb=Ta)
+    assert out["R_K_per_W"] == pytest.approx(1.0 / (h * A), rel=0.01)
+    assert out["C_J_per_K"] == pytest.approx(8900.0 * 400.0 * A * L, rel=0.01)

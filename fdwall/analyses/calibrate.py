@@ -186,7 +186,7 @@ def _steps(t, v):
 def log_driven_case(case, t, P, T_start, tolerance=None):
     """``case`` driven by the logged power ``P`` [W] at times ``t`` [s], started uniformly
     at ``T_start`` [K], run for the log's length with outputs at its median step."""
-    from fdwall.model import Control, Heater, RunSettings
+    from fdwall.model import Control, Face, Heater, RunSettings
     span = float(t[-1] - t[0])
     dt = float(np.median(np.diff(t)))
     sched = _steps(np.asarray(t) - t[0], np.asarray(P, float))
@@ -207,8 +207,10 @@ def log_driven_case(case, t, P, T_start, tolerance=None):
             area = 4 * math.pi * w.inner_radius ** 2
         from fdwall.schedule import Schedule
         flux = Schedule(sched.times, [v / area for v in sched.values])
-        new = dataclasses.replace(case, inner=dataclasses.replace(case.inner, flux=flux,
-                                                                  temperature=None),
+        # the logged power enters through the inner face, which replaces that face's own
+        # conditions (a fluid held at the case's temperature would be a second, fixed heat
+        # source or sink that the logged chamber does not have), as lumped.simulated_fit
+        new = dataclasses.replace(case, inner=Face(flux=flux),
                                   heater=None, control=Control(mode="fixed"))
         del Heater
     walls = []
@@ -385,6 +387,20 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0, sensor
             "model_K": model(x), "warnings": warnings}
 
 
+def _resolved(f) -> bool:
+    """True when a network fit gave usable R and C: identifiable (see
+    :func:`fdwall.analyses.twonode.fit_log`) and finite and positive."""
+    R, C = f.get("R_K_per_W"), f.get("C_J_per_K")
+    if not (bool(f.get("identifiable", True)) and R is not None and C is not None
+            and np.isfinite(R) and np.isfinite(C) and R > 0 and C > 0):
+        return False
+    # a standard error as large as the value (or none at all) is no determination
+    for v, e in ((R, f.get("R_stderr_K_per_W")), (C, f.get("C_stderr_J_per_K"))):
+        if e is None or not np.isfinite(e) or e >= v:
+            return False
+    return True
+
+
 def like_for_like(case, t, P, T_start, fit=None, *, model="one-node", T_amb=None,
                   tau_hint=None, rc=None):
     """The fit fdwall's own simulated curve gives, for the log's power history and length.
@@ -426,10 +442,18 @@ def like_for_like(case, t, P, T_start, fit=None, *, model="one-node", T_amb=None
     Ta = np.full(t.size, float(T_amb))
     sim = simulate_log(log_driven_case(case, t, P, T_start), t)
     f = fit_log(t, sim, P, Ta, model=model, n_boot=0)
+    ok = _resolved(f)
     out = {"R_K_per_W": f["R_K_per_W"], "C_J_per_K": f["C_J_per_K"], "tau_s": f["tau_s"],
-           "rms_K": f["rms_K"], "model_K": sim}
+           "rms_K": f["rms_K"], "model_K": sim, "identifiable": ok}
     reading = []
-    if fit is not None and fit.get("R_K_per_W") is not None and f["R_K_per_W"] is not None:
+    if not ok:
+        reading.append(
+            f"Fitted to fdwall's own curve for this power history and log length, the {model} "
+            "model's parameters are not separately identifiable (strongly correlated, or at "
+            "the edge of their range), so no like-for-like ratio is given"
+            + ("; the one-node model is the one to compare here." if model != "one-node"
+               else "."))
+    elif fit is not None and fit.get("R_K_per_W") is not None and f["R_K_per_W"] is not None:
         rR = fit["R_K_per_W"] / f["R_K_per_W"]
         rC = fit["C_J_per_K"] / f["C_J_per_K"]
         out["ratios"] = {"R": rR, "C": rC}
@@ -440,7 +464,9 @@ def like_for_like(case, t, P, T_start, fit=None, *, model="one-node", T_amb=None
             "takes the log length and the wall's distributed capacity out of the difference: "
             "what is left is the equipment's (contents, leakage, edges, k data, sensor).")
     Pmax = float(np.max(P))
-    if Pmax > 0:
+    # how C depends on the log length: one-node only (a two-node network fitted to a single
+    # wall's own curve is rarely identifiable, and each fit costs seconds)
+    if Pmax > 0 and model == "one-node":
         span = float(t[-1] - t[0])
         long = max(16.0 * span, 5.0 * float(tau_hint or 0.0))
         dt = max(float(np.median(np.diff(t))), long / 4000.0)
@@ -455,29 +481,43 @@ def like_for_like(case, t, P, T_start, fit=None, *, model="one-node", T_amb=None
             g = fit_log(tl[:k], Tl[:k], Pl[:k], np.full(k, float(T_amb)), model=model,
                         n_boot=0)
             L.append(float(tl[k - 1]))
-            Rs.append(g["R_K_per_W"])
-            Cs.append(g["C_J_per_K"])
+            good = _resolved(g)       # an unresolved fit is reported as such, not as a number
+            Rs.append(g["R_K_per_W"] if good else None)
+            Cs.append(g["C_J_per_K"] if good else None)
         out["fit_vs_length"] = {"length_s": L, "R_K_per_W": Rs, "C_J_per_K": Cs, "step_s": dt,
                                 "power_W": Pmax}
-        if len(Cs) >= 2:
+        valid = [(a, c) for a, c in zip(L, Cs) if c is not None]
+        if len(valid) < len(Cs):
+            reading.append(
+                f"{len(Cs) - len(valid)} of the {len(Cs)} log lengths give no resolved fit "
+                "(R and C not separately identifiable, typically a log that has long reached "
+                "equilibrium or one far too short for it): they are left blank.")
+        if len(valid) >= 2:
+            (l0, c0), (l1, c1) = valid[0], valid[-1]
+            trend = ("grows with the log length: a short log sees only the inner part of the "
+                     "wall, so its fitted C is smaller" if c1 > c0 * 1.02 else
+                     "falls with the log length: the early response is that of the heated "
+                     "node's surroundings, and the long-time fit weights the equilibrium"
+                     if c1 < c0 / 1.02 else "hardly depends on the log length")
             reading.append(
                 f"A constant-power warm-up of this case at {Pmax:.4g} W fitted over "
-                f"{L[0] / 3600:.3g} h to {L[-1] / 3600:.3g} h gives C from {Cs[0]:.4g} to "
-                f"{Cs[-1]:.4g} J/K: a short log sees only the inner part of the wall, so its "
-                "fitted C is smaller.")
+                f"{l0 / 3600:.3g} h to {l1 / 3600:.3g} h gives C from {c0:.4g} to "
+                f"{c1:.4g} J/K: it {trend}.")
+            Cs_valid = [c for _, c in valid]
             if rc and rc.get("C_effective_J_per_K"):
                 ce, cs = rc["C_effective_J_per_K"], rc["C_stored_J_per_K"]
                 if abs(ce / cs - 1) < 0.05:
                     tail = ("C_effective and C_stored lie within 5 % of each other here, so "
                             "the fits cannot tell which one they tend to")
                 else:
-                    near = ("C_effective" if abs(Cs[-1] / ce - 1) <= abs(Cs[-1] / cs - 1)
+                    cl = Cs_valid[-1]
+                    near = ("C_effective" if abs(cl / ce - 1) <= abs(cl / cs - 1)
                             else "C_stored")
                     tail = f"it lies nearer {near}"
                 reading.append(
-                    f"The longest fit's C is {Cs[-1] / ce:.2f} x C_effective ({ce:.4g} J/K, "
-                    f"the first-moment C) and {Cs[-1] / cs:.2f} x C_stored ({cs:.4g} J/K); "
-                    + tail + ".")
+                    f"The longest resolved fit's C is {Cs_valid[-1] / ce:.2f} x C_effective "
+                    f"({ce:.4g} J/K, the first-moment C) and {Cs_valid[-1] / cs:.2f} x "
+                    f"C_stored ({cs:.4g} J/K); " + tail + ".")
         out["C_effective_J_per_K"] = (rc or {}).get("C_effective_J_per_K")
         out["first_moment_tau_s"] = (rc or {}).get("first_moment_tau_s")
     out["reading"] = reading

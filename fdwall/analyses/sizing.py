@@ -26,7 +26,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..cautions import SAFETY_CAUTION
-from ..errors import InputError
+from ..errors import ConvergenceError, InputError
 from ..materials import check_service_temperature
 from ..physics.convection import Convection
 from ..solver import run as run_case
@@ -543,6 +543,7 @@ class _Evaluator:
             if tg.kind == "steady" and tg.conditions not in self.conds:
                 self.conds.append(tg.conditions)
         self.steady_cache, self.run_cache = {}, {}
+        self.failed = {}          # thickness [m] -> why its transient run stopped early
         self.runs = 0
         self.bar = progress
 
@@ -561,11 +562,22 @@ class _Evaluator:
         key = round(float(x), 12)
         if key not in self.run_cache:
             c = self.case_at(x)
-            r = run_case(c, progress=False)
+            # a run that stops early (not converged, or driven to implausible temperatures)
+            # is a failed variant, not a fatal error: that thickness fails every transient
+            # target, and the answer's warnings name it
+            try:
+                r, why = run_case(c, progress=False), None
+            except ConvergenceError as exc:      # an interrupt (Interrupted) still stops
+                r, why = None, str(exc)
             self.runs += 1
             if self.bar is not None:
                 self.bar.update(1)
-            self.run_cache[key] = _measure_run(r, c, self.wi)
+            if why is None:
+                self.run_cache[key] = _measure_run(r, c, self.wi)
+            else:
+                self.failed[key] = why
+                self.run_cache[key] = {"skin_peak_K": math.inf, "warm_up_s": math.inf,
+                                       "warm_up_margin_s": math.inf}
         return self.run_cache[key]
 
     def margins(self, x, kinds=("steady", "transient")):
@@ -768,6 +780,9 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
             ev.bar.close()
     s_ans, _ = ev.steady(ans, conds[0])
     warns = service_warnings(s_ans, w, wi)
+    for x, why in sorted(ev.failed.items()):
+        warns.append(f"the run at {x * 1000:.4g} mm stopped early and counts as failing every "
+                     f"transient target: {why}")
     econ = None
     if economics is not None and tab:
         tc = tab["total_cost"]

@@ -323,7 +323,8 @@ def _text(args, fit, pred, check, full, at_power, files, cal=None, lfl=None) -> 
                 L.append("  fitted C against log length (constant-power warm-up of the case "
                          f"at {fl['power_W']:.4g} W):")
                 for a, b in zip(fl["length_s"], fl["C_J_per_K"]):
-                    L.append(f"    {a / 3600:8.3g} h   C {b:.5g} J/K")
+                    L.append(f"    {a / 3600:8.3g} h   " + (f"C {b:.5g} J/K" if b is not None
+                                                            else "not resolved"))
         for line in check["reading"]:
             L.append(f"  - {line}")
     if cal:
