@@ -308,7 +308,7 @@ class Face:
                    flux=flux)
 
 
-@_renamed(initial="start_temperature", ambient="room_temperature")
+@_renamed(initial="start_temperature", ambient="room_temperature", extra_ua="extra_loss")
 @dataclass(frozen=True)
 class Chamber:
     """A lumped chamber node (air, load, racks) coupled to the inner faces of walls.
@@ -325,7 +325,7 @@ class Chamber:
         enters at the ambient temperature and leaves at the chamber temperature, a loss of
         rho cp leakage (T - T_ambient) with rho and cp of dry air at the ambient temperature
         and 1 atm.
-    extra_ua : float
+    extra_loss : float
         Further fixed losses as a conductance to ambient [W/K].
     start_temperature : float, optional
         Start temperature of the chamber contents [K], overriding the run start temperature.
@@ -340,7 +340,7 @@ class Chamber:
     capacity: Union[float, Schedule]
     room_temperature: Schedule = 293.15
     leakage: float = 0.0
-    extra_ua: float = 0.0
+    extra_loss: float = 0.0
     box: Optional[tuple] = None
     start_temperature: Optional[float] = None
 
@@ -352,7 +352,7 @@ class Chamber:
         object.__setattr__(self, "room_temperature",
                            _sched("chamber room temperature", self.room_temperature, True))
         _pos("chamber leakage flow", self.leakage, allow_zero=True)
-        _pos("chamber extra UA", self.extra_ua, allow_zero=True)
+        _pos("chamber extra UA", self.extra_loss, allow_zero=True)
         if self.start_temperature is not None:
             _pos("chamber start temperature", self.start_temperature)
         if self.box is not None:
@@ -363,6 +363,7 @@ class Chamber:
             object.__setattr__(self, "box", tuple(float(x) for x in self.box))
 
 
+@_renamed(alpha="resistance_coefficient", t_ref="rated_at")
 @dataclass(frozen=True)
 class Heater:
     """An electric heater.
@@ -380,9 +381,9 @@ class Heater:
         Index of the layer the element lies behind, for 'interface' [-].
     voltage_ratio : float
         Supply voltage / rated voltage [-]; power scales with its square.
-    alpha : float
+    resistance_coefficient : float
         Temperature coefficient of the element's resistance [1/K] (power falls as it heats).
-    t_ref : float
+    rated_at : float
         Temperature at which ``power`` is rated [K].
     """
 
@@ -391,8 +392,8 @@ class Heater:
     wall: int = 0
     interface: int = 0
     voltage_ratio: float = 1.0
-    alpha: float = 0.0
-    t_ref: float = 293.15
+    resistance_coefficient: float = 0.0
+    rated_at: float = 293.15
 
     def __post_init__(self):
         object.__setattr__(self, "power", _sched("heater power", self.power))
@@ -401,9 +402,10 @@ class Heater:
         if self.location not in ("chamber", "inner", "interface"):
             raise ModelError(f"heater location must be chamber, inner or interface, got {self.location!r}")
         _pos("heater voltage ratio", self.voltage_ratio)
-        _pos("heater alpha", self.alpha, allow_zero=True)
+        _pos("heater alpha", self.resistance_coefficient, allow_zero=True)
 
 
+@_renamed(kp="proportional_gain", ki="integral_gain", kd="derivative_gain", enable="power_on")
 @dataclass(frozen=True)
 class Control:
     """How the heater is switched.
@@ -431,9 +433,9 @@ class Control:
         Wall index of a wall sensor [-].
     sensor_depth : float
         Depth of a wall sensor below the inner face [m].
-    kp, ki, kd : float
+    proportional_gain, integral_gain, derivative_gain : float
         PID gains: proportional [1/K], integral [1/K/s], derivative [s/K].
-    enable : Schedule or float
+    power_on : Schedule or float
         Master switch 0/1 (power off for the cool-down) [-].
     """
 
@@ -446,16 +448,16 @@ class Control:
     sensor: str = "chamber"
     sensor_wall: int = 0
     sensor_depth: float = 0.0
-    kp: float = 0.05
-    ki: float = 0.0
-    kd: float = 0.0
-    enable: Schedule = 1.0
+    proportional_gain: float = 0.05
+    integral_gain: float = 0.0
+    derivative_gain: float = 0.0
+    power_on: Schedule = 1.0
 
     def __post_init__(self):
         if self.mode not in ("fixed", "duty", "thermostat", "pid"):
             raise ModelError(f"control mode must be fixed, duty, thermostat or pid, got {self.mode!r}")
         object.__setattr__(self, "duty", _sched("duty", self.duty))
-        object.__setattr__(self, "enable", _sched("enable", self.enable))
+        object.__setattr__(self, "power_on", _sched("enable", self.power_on))
         object.__setattr__(self, "setpoint", _sched("setpoint", self.setpoint, True))
         if min(self.duty.values) < 0 or max(self.duty.values) > 1:
             raise ModelError("duty must lie between 0 and 1")
@@ -465,8 +467,9 @@ class Control:
             raise ModelError(f"control mode {self.mode!r} needs a setpoint")
         if self.sensor not in ("chamber", "wall"):
             raise ModelError("sensor must be 'chamber' or 'wall'")
-        for n in ("kp", "ki", "kd"):
-            _pos(n, getattr(self, n), allow_zero=True)
+        for label, n in (("kp", "proportional_gain"), ("ki", "integral_gain"),
+                         ("kd", "derivative_gain")):
+            _pos(label, getattr(self, n), allow_zero=True)
 
 
 @dataclass(frozen=True)
@@ -538,13 +541,14 @@ class EnclosureWall:
                                      f"exist (0..{len(self.wall.layers) - 1})")
 
 
+@_renamed(threshold="temperature")
 @dataclass(frozen=True)
 class Event:
     """Watch a face, interface or depth for crossing a temperature.
 
     Parameters
     ----------
-    threshold : float
+    temperature : float
         Temperature [K].
     wall : int
         Wall index [-].
@@ -557,7 +561,7 @@ class Event:
         Label.
     """
 
-    threshold: float
+    temperature: float
     wall: int = 0
     depth: float = 0.0
     where: str = "outer"

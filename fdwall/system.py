@@ -467,7 +467,7 @@ def build_system(case: Case) -> System:
         ch_i[CHI_PRESENT] = 1
         ch_i[CHI_CAPACITY] = tb.capacity(ch.capacity)
         ch_i[CHI_AMBIENT] = tb.schedule(ch.room_temperature)
-        ch_f[CHF_UA] = ch.extra_ua
+        ch_f[CHF_UA] = ch.extra_loss
         ch_f[CHF_LEAK] = ch.leakage
     # heater and control
     ctl_i = np.full(N_CI, -1, dtype=np.int64)
@@ -490,12 +490,12 @@ def build_system(case: Case) -> System:
                                      f"'{walls[hw].name}' (0..{len(m.interface_nodes) - 1})")
                 ctl_i[CI_HEATER_NODE] = offsets[hw] + m.interface_nodes[hz.interface]
         ctl_i[CI_POWER] = tb.schedule(hz.power)
-        ctl_f[CF_ALPHA] = hz.alpha
-        ctl_f[CF_T_REF] = hz.t_ref
+        ctl_f[CF_ALPHA] = hz.resistance_coefficient
+        ctl_f[CF_T_REF] = hz.rated_at
         ctl_f[CF_POWER_FACTOR] = hz.voltage_ratio ** 2
     ctl_i[CI_DUTY] = tb.schedule(ctl.duty)
     ctl_i[CI_SETPOINT] = tb.schedule(ctl.setpoint) if ctl.setpoint is not None else tb.schedule(0.0)
-    ctl_i[CI_ENABLE] = tb.schedule(ctl.enable)
+    ctl_i[CI_ENABLE] = tb.schedule(ctl.power_on)
     if ctl.sensor == "chamber" and case.chamber is not None:
         ctl_i[CI_SENSOR_A] = ctl_i[CI_SENSOR_B] = N
         ctl_f[CF_SENSOR_W] = 1.0
@@ -508,7 +508,7 @@ def build_system(case: Case) -> System:
         ctl_i[CI_SENSOR_A], ctl_i[CI_SENSOR_B], ctl_f[CF_SENSOR_W] = offsets[j] + a, offsets[j] + b, wgt
     ctl_f[CF_PERIOD] = ctl.period
     ctl_f[CF_BAND] = ctl.band
-    ctl_f[CF_KP], ctl_f[CF_KI], ctl_f[CF_KD] = ctl.kp, ctl.ki, ctl.kd
+    ctl_f[CF_KP], ctl_f[CF_KI], ctl_f[CF_KD] = ctl.proportional_gain, ctl.integral_gain, ctl.derivative_gain
     ctl_f[CF_EVENT_TOL] = min(0.02, max(1e-3, 0.02 * ctl.band))
     # breakpoints: every knot of every time schedule
     bps, jumps = set(), set()
@@ -582,6 +582,6 @@ def _time_schedules(case):
     if case.heater is not None:
         yield case.heater.power
     c = case.control
-    for s in (c.duty, c.enable, c.setpoint):
+    for s in (c.duty, c.power_on, c.setpoint):
         if s is not None:
             yield s

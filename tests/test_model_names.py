@@ -19,6 +19,7 @@ from fdwall.model import (
     RENAMED,
     Case,
     Chamber,
+    Control,
     EnclosureWall,
     Event,
     Face,
@@ -27,6 +28,7 @@ from fdwall.model import (
     RunSettings,
     Wall,
 )
+from fdwall.schedule import Schedule
 from fdwall.solver import run
 
 K_B, RHO, CP = 0.1, 500.0, 1000.0                 # demo board [W/m/K], [kg/m3], [J/kg/K]
@@ -44,19 +46,28 @@ PAIRS = [(RunSettings, "initial", "start_temperature"),
          (Chamber, "initial", "start_temperature"),
          (Chamber, "ambient", "room_temperature"),
          (Face, "fluid", "fluid_temperature"),
-         (Face, "surroundings", "surroundings_temperature")]
-CLASSES = (RunSettings, Wall, Layer, Chamber, Face)
+         (Face, "surroundings", "surroundings_temperature"),
+         (Chamber, "extra_ua", "extra_loss"),
+         (Heater, "alpha", "resistance_coefficient"),
+         (Heater, "t_ref", "rated_at"),
+         (Control, "kp", "proportional_gain"),
+         (Control, "ki", "integral_gain"),
+         (Control, "kd", "derivative_gain"),
+         (Control, "enable", "power_on"),
+         (Event, "threshold", "temperature")]
+CLASSES = (RunSettings, Wall, Layer, Chamber, Face, Heater, Control, Event)
 
 
 def _case(new: bool) -> Case:
     m = material_from_dict("demo-board", {"k": K_B, "cp": CP, "rho": RHO})
     layers = (Layer(m, L1), Layer(m, L2))
-    watch = (Event(threshold=330.0, where="outer", name="outer at 330 K"),)
     if new:
+        watch = (Event(temperature=330.0, where="outer", name="outer at 330 K"),)
         wall = Wall(layers, shape="slab", area=AREA, interface_resistance=(RC,), name="w")
         rs = RunSettings(duration=40 * 3600.0, start_temperature=T2, output_every=1800.0,
                          snapshots=(3600.0,), watch=watch)
     else:
+        watch = (Event(threshold=330.0, where="outer", name="outer at 330 K"),)
         wall = Wall(layers, geometry="slab", area=AREA, contact=(RC,), name="w")
         rs = RunSettings(duration=40 * 3600.0, initial=T2, output_interval=1800.0,
                          profile_times=(3600.0,), events=watch)
@@ -82,7 +93,7 @@ def test_old_names_warn_and_give_the_same_model_and_results():
     with pytest.warns(DeprecationWarning) as rec:
         old = _case(False)
     msgs = " ".join(str(w.message) for w in rec)
-    for cls, old_name, new_name in PAIRS[:6]:
+    for cls, old_name, new_name in PAIRS[:6] + PAIRS[-1:]:
         assert f"{cls.__name__}.{old_name} is deprecated" in msgs and new_name in msgs
     assert old == new                            # the same frozen model
     # the old names still read, with a warning, the new fields
@@ -157,3 +168,44 @@ def test_face_names():
     assert old == new and new.surroundings_temperature(0.0) == 280.0
     with pytest.warns(DeprecationWarning):
         assert old.fluid(0.0) == T2
+
+
+def _pid_box(new: bool) -> Case:
+    """The box of _box under PID control with a temperature-dependent element (demo data)."""
+    c = _box(True)
+    off = [[0.0, 1.0], [30 * 3600.0, 1.0], [30 * 3600.0, 0.0]]
+    sw = Schedule([t for t, _ in off], [v for _, v in off])
+    if new:
+        ctl = Control(mode="pid", setpoint=380.0, proportional_gain=0.1, integral_gain=1e-4,
+                      derivative_gain=0.0, power_on=sw, period=30.0)
+        hz = Heater(600.0, resistance_coefficient=1e-3, rated_at=T2)
+        ch = dataclasses.replace(c.chamber, extra_loss=0.5)
+    else:
+        ctl = Control(mode="pid", setpoint=380.0, kp=0.1, ki=1e-4, kd=0.0, enable=sw,
+                      period=30.0)
+        hz = Heater(600.0, alpha=1e-3, t_ref=T2)
+        ch = dataclasses.replace(c.chamber, extra_ua=0.5)
+    return dataclasses.replace(c, control=ctl, heater=hz, chamber=ch)
+
+
+def test_heater_control_and_chamber_loss_names_and_results():
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        new = _pid_box(True)
+        res_new = run(new, progress=False)
+    with pytest.warns(DeprecationWarning) as rec:
+        old = _pid_box(False)
+    msgs = " ".join(str(w.message) for w in rec)
+    for cls, old_name, new_name in PAIRS[11:-1]:
+        assert f"{cls.__name__}.{old_name} is deprecated" in msgs, old_name
+    assert old == new
+    res_old = run(old, progress=False)
+    for name in ("T", "heater_power", "heater_energy", "face_flow"):
+        assert np.array_equal(getattr(res_old, name), getattr(res_new, name)), name
+    # first law: heater energy = stored + losses (energy conservation); the ledger closes
+    assert abs(res_new.residual[-1]) / res_new.heater_energy[-1] < 1e-6
+    # the PID holds the setpoint before the power goes off at 30 h (within 1 K)
+    mid = (res_new.times > 20 * 3600.0) & (res_new.times < 30 * 3600.0)
+    assert np.all(np.abs(res_new.chamber_T[mid] - 380.0) < 1.0)
+    # after power-off: no heater power
+    assert np.all(res_new.heater_power[res_new.times > 30.5 * 3600.0] == 0.0)

@@ -190,7 +190,7 @@ def input_rows(case, system) -> list:
             rows += _sched_rows("chamber", "heat capacity of the contents", cap, "J/K")
         rows += _sched_rows("chamber", "room temperature", ch.room_temperature, "K")
         rows.append(_row("chamber", "leakage air flow", ch.leakage, "m3/s"))
-        rows.append(_row("chamber", "further losses (conductance)", ch.extra_ua, "W/K"))
+        rows.append(_row("chamber", "further losses (conductance)", ch.extra_loss, "W/K"))
     hz = case.heater
     if hz is not None:
         rows += _sched_rows("heater", "rated power", hz.power, "W")

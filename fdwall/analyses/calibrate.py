@@ -194,7 +194,7 @@ def log_driven_case(case, t, P, T_start, tolerance=None):
         if case.heater is None:
             raise InputError("calibration: the case has no [heater]; allowed: an enclosure "
                              "with a heater (its power is replaced by the logged power)")
-        heater = dataclasses.replace(case.heater, power=sched, voltage_ratio=1.0, alpha=0.0)
+        heater = dataclasses.replace(case.heater, power=sched, voltage_ratio=1.0, resistance_coefficient=0.0)
         new = dataclasses.replace(case, heater=heater, control=Control(mode="fixed"),
                                   chamber=dataclasses.replace(case.chamber, start_temperature=None))
     else:

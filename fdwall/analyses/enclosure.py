@@ -143,7 +143,7 @@ def _infer_t_off(case: Case):
     """When the heater goes off for the final cool-down [s], from the enable schedule or the
     power schedule; None if neither switches off."""
     D = float(case.run.duration)
-    for s in (case.control.enable, case.heater.power if case.heater is not None else None):
+    for s in (case.control.power_on, case.heater.power if case.heater is not None else None):
         if s is None or s.is_constant:
             continue
         t = _off_instant(s, D)
@@ -156,7 +156,7 @@ def _hold_time(case: Case) -> float:
     """Last instant of the run with the heater enabled [s] (used to read schedules for a
     steady hold)."""
     D = float(case.run.duration)
-    en = case.control.enable
+    en = case.control.power_on
     if en.is_constant:
         return D
     pts = sorted({0.0, D} | {t for t in en.times if 0.0 <= t <= D})
@@ -211,8 +211,8 @@ def _time_schedules(case: Case):
     if case.heater is not None:
         out.append(("heater power", case.heater.power))
     c = case.control
-    for key in ("duty", "enable", "setpoint"):
-        s = getattr(c, key)
+    for key, attr in (("duty", "duty"), ("enable", "power_on"), ("setpoint", "setpoint")):
+        s = getattr(c, attr)
         if s is not None:
             out.append((f"control {key}", s))
     return out
@@ -796,7 +796,7 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
                 "limit. Use control='full' (heater fully on) or a longer warm_up_limit.")
     # a trial run ends at the deadline; outputs fine enough to time the crossing
     ctl = case.control if control == "case" else Control(mode="fixed", duty=1.0,
-                                                           enable=case.control.enable)
+                                                           power_on=case.control.power_on)
     base = replace(case, control=ctl,
                    run=replace(case.run, duration=lim, output_every=lim / 400.0,
                                snapshots=(), watch=()))

@@ -748,7 +748,7 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
             if case.heater is None:
                 heater = Heater(power=sched, location="chamber")
             else:
-                heater = replace(case.heater, power=sched, voltage_ratio=1.0, alpha=0.0)
+                heater = replace(case.heater, power=sched, voltage_ratio=1.0, resistance_coefficient=0.0)
             return replace(case, run=run, heater=heater, control=Control())
         A = case.wall.inner_area
         return replace(_flux_inner(case, Schedule(kt, [v / A for v in kv])), run=run)

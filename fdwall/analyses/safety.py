@@ -576,7 +576,7 @@ def _last_switch_off(case: Case):
     scheds = []
     if case.heater is not None:
         scheds.append(("heater power", case.heater.power))
-        scheds.append(("control enable", case.control.enable))
+        scheds.append(("control enable", case.control.power_on))
     if case.wall is not None and case.inner.flux is not None:
         scheds.append(("inner-face heat flux", case.inner.flux))
     for what, s in scheds:

@@ -844,7 +844,7 @@ class _Loader:
         box = sec.quantity_list("inner_dimensions", "length", None, positive=True, length=3)
         start = sec.quantity("start_temperature", "temperature", None)
         with _model(self.file, sec.path, "the chamber"):
-            ch = Chamber(capacity=cap, room_temperature=room, leakage=leak, extra_ua=extra,
+            ch = Chamber(capacity=cap, room_temperature=room, leakage=leak, extra_loss=extra,
                          box=tuple(box) if box else None, start_temperature=start)
         return ch, start
 
@@ -902,9 +902,10 @@ class _Loader:
                                                  "an element on ten times its rated voltage "
                                                  "takes a hundred times its rated power and "
                                                  "burns out"),
-                          alpha=sec.quantity("resistance_coefficient", "inverse_temperature",
-                                             0.0, nonnegative=True),
-                          t_ref=sec.quantity("rated_at", "temperature", ROOM))
+                          resistance_coefficient=sec.quantity(
+                              "resistance_coefficient", "inverse_temperature", 0.0,
+                              nonnegative=True),
+                          rated_at=sec.quantity("rated_at", "temperature", ROOM))
 
     def _control(self, sec, chamber):
         mode = sec.text("mode", "fixed", choices=("fixed", "duty", "thermostat", "pid"))
@@ -939,10 +940,10 @@ class _Loader:
             for k in ("sensor_wall", "sensor_depth"):
                 if sec.has(k):
                     raise sec.error(k, f"'{k}' applies to sensor = \"wall\" only")
-        kw["kp"] = sec.quantity("proportional_gain", "proportional_gain", 0.05, nonnegative=True)
-        kw["ki"] = sec.quantity("integral_gain", "integral_gain", 0.0, nonnegative=True)
-        kw["kd"] = sec.quantity("derivative_gain", "derivative_gain", 0.0, nonnegative=True)
-        kw["enable"] = sec.schedule("power_on", "dimensionless", 1.0, lo=0.0, hi=1.0)
+        for k, default in (("proportional_gain", 0.05), ("integral_gain", 0.0),
+                           ("derivative_gain", 0.0)):
+            kw[k] = sec.quantity(k, k, default, nonnegative=True)
+        kw["power_on"] = sec.schedule("power_on", "dimensionless", 1.0, lo=0.0, hi=1.0)
         with _model(self.file, sec.path, "the control"):
             return Control(**kw)
 
@@ -975,4 +976,4 @@ class _Loader:
             where, spot = "", f"{depth * 1000:g} mm deep"
         name = sec.text("name", f"{self.wall_names[j]} {spot} at {thr - 273.15:g} degC")
         with _model(self.file, sec.path, "the watch entry"):
-            return Event(threshold=thr, wall=j, depth=depth, where=where, name=name)
+            return Event(temperature=thr, wall=j, depth=depth, where=where, name=name)

@@ -225,8 +225,8 @@ def _setpoint(ax, result, th):
         return False
     t = np.asarray(result.times, dtype=float)
     sp = np.asarray(ctl.setpoint(t), dtype=float) - KELVIN_OFFSET
-    if ctl.enable is not None:   # no setpoint while the master switch is off
-        sp = np.where(np.asarray(ctl.enable(t), dtype=float) > 0.5, sp, np.nan)
+    if ctl.power_on is not None:   # no setpoint while the master switch is off
+        sp = np.where(np.asarray(ctl.power_on(t), dtype=float) > 0.5, sp, np.nan)
     where = "chamber" if ctl.sensor == "chamber" else f"wall sensor at {ctl.sensor_depth * 1e3:g} mm"
     ax.plot(th, sp, color="#555555", lw=1.3, dashes=(4.0, 1.5, 1.0, 1.5), zorder=6,
             label=f"setpoint ({where})", gid="setpoint")
@@ -297,9 +297,9 @@ def plot_temperatures(result, path) -> str:
         a = ax_out if ev.where == "outer" else ax
         for t, mk in ((up, "^"), (down, "v")):
             if np.isfinite(t):
-                a.plot([t / 3600.0], [ev.threshold - KELVIN_OFFSET], mk, color="#444444", ms=7,
+                a.plot([t / 3600.0], [ev.temperature - KELVIN_OFFSET], mk, color="#444444", ms=7,
                        mfc="white", mew=1.3, zorder=7, label="_event")
-                a.annotate(name, (t / 3600.0, ev.threshold - KELVIN_OFFSET),
+                a.annotate(name, (t / 3600.0, ev.temperature - KELVIN_OFFSET),
                            textcoords="offset points", xytext=(5, 5), fontsize=7,
                            color="#444444")
     axes = [ax, ax_out] if split else [ax]

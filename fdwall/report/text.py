@@ -299,7 +299,7 @@ def format_summary(result) -> str:
         rows = []
         for e, (ev, (name, (up, down))) in enumerate(zip(case.run.watch, result.events.items())):
             wname = _case_wall_name(case, ev.wall)
-            rows.append([name, f"{wname}, {_event_where(ev, _case_wall(case, ev.wall))}", f"{degc(ev.threshold):.1f}",
+            rows.append([name, f"{wname}, {_event_where(ev, _case_wall(case, ev.wall))}", f"{degc(ev.temperature):.1f}",
                          fmt_time(up) if math.isfinite(up) else "not reached",
                          fmt_time(down) if math.isfinite(down) else "not reached"])
         L += _table(["event", "where", "threshold", "rising at", "falling at"],
@@ -427,7 +427,7 @@ def _steady_lines(st, case, title):
     if case.heater is not None:
         enabled = True
         try:
-            enabled = float(case.control.enable(st.time)) > 0.5
+            enabled = float(case.control.power_on(st.time)) > 0.5
         except Exception:  # pragma: no cover - enable always a Schedule in valid cases
             pass
         if not enabled:
@@ -627,7 +627,7 @@ def format_case(case, system=None, warnings=()) -> str:
         L += _heading("Chamber")
         L.append(_wrap(f"capacity {cap_t}; ambient {_sched_text(ch.room_temperature)}; leakage "
                        f"{ch.leakage:.3g} m3/s ({_leak_ua(ch):.3g} W/K with room air at the start); extra UA "
-                       f"{ch.extra_ua:.3g} W/K"))
+                       f"{ch.extra_loss:.3g} W/K"))
         if getattr(ch, "box", None):
             fac = getattr(system, "area_factor", None) if system is not None else None
             L.append(_wrap(f"box {' x '.join(f'{x:g}' for x in ch.box)} m (inner width x depth "
@@ -654,7 +654,7 @@ def format_case(case, system=None, warnings=()) -> str:
             wname = _case_wall_name(case, ev.wall)
             L.append(f"  {ev.name or f'event{e + 1}'}: {wname}, "
                      f"{_event_where(ev, _case_wall(case, ev.wall))} crossing "
-                     f"{fmt_temp(ev.threshold)}")
+                     f"{fmt_temp(ev.temperature)}")
         if any(_speaks_of_skin(f"{ev.name} {ev.where}") for ev in r.watch):
             L.append(_wrap(TOUCH_CAUTION, "  "))
     L += _heading("Warnings")

@@ -71,7 +71,7 @@ def event_rows(system: System, case: Case):
             if not system.has_chamber:
                 raise ModelError(f"event '{ev.name}' watches the chamber, but the case has none")
             ev_i[e, EV_NODE_A] = ev_i[e, EV_NODE_B] = system.n_nodes
-            ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = 1.0, ev.threshold
+            ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = 1.0, ev.temperature
             continue
         j = system.chain_of(ev.wall)
         m, o = system.meshes[j], system.offsets[j]
@@ -93,7 +93,7 @@ def event_rows(system: System, case: Case):
             a, b, w = locate_depth(wall, m, ev.depth)
             a, b = a + o, b + o
         ev_i[e, EV_NODE_A], ev_i[e, EV_NODE_B] = a, b
-        ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = w, ev.threshold
+        ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = w, ev.temperature
     return ev_i, ev_f
 
 
