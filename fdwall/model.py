@@ -228,17 +228,18 @@ class Wall:
         return replace(self, layers=tuple(layers))
 
 
-@_renamed(fluid="fluid_temperature", surroundings="surroundings_temperature")
+@_renamed(temperature="fixed_temperature", fluid="fluid_temperature",
+          surroundings="surroundings_temperature")
 @dataclass(frozen=True)
 class Face:
     """What happens at one face of a wall.
 
-    Any combination of the terms below acts together, except ``temperature``, which fixes
+    Any combination of the terms below acts together, except ``fixed_temperature``, which fixes
     the face temperature and overrides the rest.  A face with nothing set is adiabatic.
 
     Parameters
     ----------
-    temperature : Schedule or float, optional
+    fixed_temperature : Schedule or float, optional
         Imposed face temperature [K].
     flux : Schedule or float, optional
         Imposed heat flux into the wall [W/m2] (heater element, absorbed solar).
@@ -259,7 +260,7 @@ class Face:
         from the outer layer's material and finish.
     """
 
-    temperature: Optional[Schedule] = None
+    fixed_temperature: Optional[Schedule] = None
     flux: Optional[Schedule] = None
     fluid_temperature: Optional[Schedule] = None
     convection: Union[None, float, object] = None
@@ -274,7 +275,8 @@ class Face:
         if self.surface_class is not None and self.surface_class not in SURFACE_CLASSES:
             raise ModelError(f"surface class must be one of {', '.join(SURFACE_CLASSES)}, "
                              f"got {self.surface_class!r}")
-        object.__setattr__(self, "temperature", _sched("face temperature", self.temperature, True))
+        object.__setattr__(self, "fixed_temperature",
+                           _sched("face temperature", self.fixed_temperature, True))
         object.__setattr__(self, "flux", _sched("face flux", self.flux))
         object.__setattr__(self, "fluid_temperature",
                            _sched("fluid temperature", self.fluid_temperature, True))
@@ -297,7 +299,7 @@ class Face:
     @classmethod
     def fixed(cls, temperature) -> "Face":
         """A face held at ``temperature`` [K] (a Schedule or a number)."""
-        return cls(temperature=temperature)
+        return cls(fixed_temperature=temperature)
 
     @classmethod
     def exchange(cls, fluid, h, emissivity=None, surroundings=None, flux=None) -> "Face":

@@ -325,8 +325,8 @@ def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_
     ff[FF_AREA] = area
     fi[FI_TO_CHAMBER] = 1 if to_chamber else 0
     fi[FI_H_MODE] = H_FIXED
-    if face.temperature is not None:
-        fi[FI_FIXED_T] = tb.schedule(face.temperature)
+    if face.fixed_temperature is not None:
+        fi[FI_FIXED_T] = tb.schedule(face.fixed_temperature)
         return fi, ff, par
     fi[FI_FLUX] = tb.schedule(face.flux)
     conv = conv_obj if to_chamber else face.convection
@@ -576,7 +576,7 @@ def _time_schedules(case):
     else:
         faces = [case.inner, case.outer]
     for f in faces:
-        for s in (f.temperature, f.flux, f.fluid_temperature, f.surroundings_temperature):
+        for s in (f.fixed_temperature, f.flux, f.fluid_temperature, f.surroundings_temperature):
             if s is not None:
                 yield s
     if case.heater is not None:

@@ -54,6 +54,7 @@ PAIRS = [(RunSettings, "initial", "start_temperature"),
          (Control, "ki", "integral_gain"),
          (Control, "kd", "derivative_gain"),
          (Control, "enable", "power_on"),
+         (Face, "temperature", "fixed_temperature"),
          (Event, "threshold", "temperature")]
 CLASSES = (RunSettings, Wall, Layer, Chamber, Face, Heater, Control, Event)
 
@@ -168,6 +169,11 @@ def test_face_names():
     assert old == new and new.surroundings_temperature(0.0) == 280.0
     with pytest.warns(DeprecationWarning):
         assert old.fluid(0.0) == T2
+    with pytest.warns(DeprecationWarning, match="Face.temperature is deprecated"):
+        held = Face(temperature=400.0)
+    assert held == Face.fixed(400.0) and held.fixed_temperature(0.0) == 400.0
+    with pytest.warns(DeprecationWarning):
+        assert held.temperature(0.0) == 400.0
 
 
 def _pid_box(new: bool) -> Case:
@@ -196,7 +202,7 @@ def test_heater_control_and_chamber_loss_names_and_results():
     with pytest.warns(DeprecationWarning) as rec:
         old = _pid_box(False)
     msgs = " ".join(str(w.message) for w in rec)
-    for cls, old_name, new_name in PAIRS[11:-1]:
+    for cls, old_name, new_name in PAIRS[11:-2]:
         assert f"{cls.__name__}.{old_name} is deprecated" in msgs, old_name
     assert old == new
     res_old = run(old, progress=False)

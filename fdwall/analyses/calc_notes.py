@@ -97,8 +97,8 @@ def _conv_rows(section, c, fixed_label="film coefficient"):
 
 def _face_rows(section, face):
     rows = []
-    if face.temperature is not None:
-        return _sched_rows(section, "fixed surface temperature", face.temperature, "K")
+    if face.fixed_temperature is not None:
+        return _sched_rows(section, "fixed surface temperature", face.fixed_temperature, "K")
     c = face.convection
     if c is not None:
         rows += _sched_rows(section, "fluid (air) temperature", face.fluid_temperature, "K")
@@ -249,7 +249,7 @@ def correlation_rows(case) -> list:
         if face is None:
             c, eps, fixed, flux = ew.inner_h, ew.inner_emissivity, None, None
         else:
-            c, eps, fixed, flux = face.convection, face.emissivity, face.temperature, face.flux
+            c, eps, fixed, flux = face.convection, face.emissivity, face.fixed_temperature, face.flux
         if fixed is not None:
             out.append({"face": name, "model": "fixed surface temperature",
                         "reference": "boundary condition as given"})
@@ -326,7 +326,7 @@ def biot_rows(result) -> list:
 def _outer_fixed(case, sysm, j) -> bool:
     o = sysm.wall_origin[j] if hasattr(sysm, "wall_origin") else j
     face = case.outer if case.wall is not None else case.walls[o].outer
-    return face.temperature is not None
+    return face.fixed_temperature is not None
 
 
 def model_notes(result) -> list:

@@ -202,7 +202,7 @@ def _time_schedules(case: Case):
         out.append(("chamber ambient", case.chamber.room_temperature))
     for ew in case.walls:
         f = ew.outer
-        for key, attr in (("temperature", "temperature"), ("flux", "flux"),
+        for key, attr in (("temperature", "fixed_temperature"), ("flux", "flux"),
                           ("fluid", "fluid_temperature"),
                           ("surroundings", "surroundings_temperature")):
             s = getattr(f, attr)

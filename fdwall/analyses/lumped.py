@@ -396,7 +396,7 @@ def _rc_notes(rc, modes, case) -> list:
 
 def _pure_flux(face) -> bool:
     """True when a face has nothing but (at most) an imposed flux."""
-    return (face.temperature is None and face.fluid_temperature is None and face.convection is None
+    return (face.fixed_temperature is None and face.fluid_temperature is None and face.convection is None
             and face.emissivity is None)
 
 

@@ -407,8 +407,8 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
                 name=f"{wall.name} + skin")
     x = np.asarray(x, float)
     T_wall = np.asarray(T_wall, float)
-    inner = Face(temperature=float(T_wall[0])) if hold_inner else Face()
-    probe = Case(run=RunSettings(duration=t_c), wall=slab, inner=inner, outer=Face(temperature=Tc),
+    inner = Face(fixed_temperature=float(T_wall[0])) if hold_inner else Face()
+    probe = Case(run=RunSettings(duration=t_c), wall=slab, inner=inner, outer=Face(fixed_temperature=Tc),
                  name="contact")
     sysm = build_system(probe)
     m = sysm.meshes[0]
@@ -670,7 +670,7 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
         amb = float(ambient)
 
         def worst(f: Face):
-            if f.temperature is not None:
+            if f.fixed_temperature is not None:
                 return f
             return replace(f, fluid_temperature=(amb if f.fluid_temperature is not None
                                                  else None),
@@ -878,7 +878,7 @@ def _sensitivity(case, rows, warnings):
                  lambda f: replace(f, emissivity=0.9) if f.emissivity is not None else f)]
     out = []
     for label, fn in variants:
-        c = _with_outer(case, lambda f, fn=fn: f if f.temperature is not None else fn(f))
+        c = _with_outer(case, lambda f, fn=fn: f if f.fixed_temperature is not None else fn(f))
         try:
             st = solve_steady(c)
         except Exception as exc:

@@ -42,7 +42,7 @@ def _face_sources(face):
     out = []
     if face is None:
         return out
-    for attr, what in (("temperature", "fixed surface temperature"),
+    for attr, what in (("fixed_temperature", "fixed surface temperature"),
                        ("fluid_temperature", "fluid temperature"),
                        ("surroundings_temperature", "radiant surroundings temperature")):
         v = _max(getattr(face, attr, None))

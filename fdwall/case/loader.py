@@ -628,7 +628,7 @@ class _Loader:
                                 "either fixed_temperature alone, or the exchange keys (air, "
                                 "convection, radiation, fluxes) without it")
             T = sec.schedule("fixed_temperature", "temperature")
-            return Face(temperature=T)
+            return Face(fixed_temperature=T)
         air = sec.schedule("fluid_temperature", "temperature", None)
         conv = None
         which = sec.exclusive("film_coefficient", "convection")

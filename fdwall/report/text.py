@@ -505,8 +505,8 @@ def _eps_text(e) -> str:
 
 
 def _face_text(face) -> str:
-    if face.temperature is not None:
-        return f"held at {_sched_text(face.temperature)}"
+    if face.fixed_temperature is not None:
+        return f"held at {_sched_text(face.fixed_temperature)}"
     parts = []
     if face.convection is not None:
         parts.append(f"convection {_conv_text(face.convection)} to air at {_sched_text(face.fluid_temperature)}")
