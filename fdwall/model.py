@@ -310,7 +310,8 @@ class Face:
                    flux=flux)
 
 
-@_renamed(initial="start_temperature", ambient="room_temperature", extra_ua="extra_loss")
+@_renamed(initial="start_temperature", ambient="room_temperature", extra_ua="extra_loss",
+          box="inner_dimensions")
 @dataclass(frozen=True)
 class Chamber:
     """A lumped chamber node (air, load, racks) coupled to the inner faces of walls.
@@ -331,7 +332,7 @@ class Chamber:
         Further fixed losses as a conductance to ambient [W/K].
     start_temperature : float, optional
         Start temperature of the chamber contents [K], overriding the run start temperature.
-    box : tuple of float, optional
+    inner_dimensions : tuple of float, optional
         Inner width, depth and height of a box-shaped enclosure [m].  When given, the
         conduction through the 12 edges and 8 corners is added by the conduction shape
         factors S_edge = 0.54 D and S_corner = 0.15 L (Incropera, Fundamentals of Heat and
@@ -343,7 +344,7 @@ class Chamber:
     room_temperature: Schedule = 293.15
     leakage: float = 0.0
     extra_loss: float = 0.0
-    box: Optional[tuple] = None
+    inner_dimensions: Optional[tuple] = None
     start_temperature: Optional[float] = None
 
     def __post_init__(self):
@@ -357,12 +358,13 @@ class Chamber:
         _pos("chamber extra UA", self.extra_loss, allow_zero=True)
         if self.start_temperature is not None:
             _pos("chamber start temperature", self.start_temperature)
-        if self.box is not None:
-            if len(self.box) != 3:
+        if self.inner_dimensions is not None:
+            if len(self.inner_dimensions) != 3:
                 raise ModelError("chamber box needs three inner dimensions (width, depth, height) [m]")
-            for x in self.box:
+            for x in self.inner_dimensions:
                 _pos("chamber box dimension", float(x))
-            object.__setattr__(self, "box", tuple(float(x) for x in self.box))
+            object.__setattr__(self, "inner_dimensions",
+                               tuple(float(x) for x in self.inner_dimensions))
 
 
 @_renamed(alpha="resistance_coefficient", t_ref="rated_at")
@@ -474,6 +476,7 @@ class Control:
             _pos(label, getattr(self, n), allow_zero=True)
 
 
+@_renamed(fraction="area_fraction", layers="replaces_layers")
 @dataclass(frozen=True)
 class Bridge:
     """A thermal bridge through a wall, by the parallel-path method.
@@ -490,22 +493,23 @@ class Bridge:
 
     Parameters
     ----------
-    fraction : float
-        Area fraction of the bridged path [-], 0 < fraction < 1.
+    area_fraction : float
+        Area fraction of the bridged path [-], 0 < area_fraction < 1.
     material : fdwall.materials.Material
         Bridging material.
-    layers : tuple of int
+    replaces_layers : tuple of int
         0-based indices of the layers the bridge replaces.
     """
 
-    fraction: float
+    area_fraction: float
     material: object
-    layers: tuple = (1,)
+    replaces_layers: tuple = (1,)
 
     def __post_init__(self):
-        if not 0.0 < self.fraction < 1.0:
-            raise ModelError(f"bridge area fraction must lie strictly between 0 and 1, got {self.fraction}")
-        object.__setattr__(self, "layers", tuple(int(i) for i in self.layers))
+        if not 0.0 < self.area_fraction < 1.0:
+            raise ModelError("bridge area fraction must lie strictly between 0 and 1, got "
+                             f"{self.area_fraction}")
+        object.__setattr__(self, "replaces_layers", tuple(int(i) for i in self.replaces_layers))
 
 
 @dataclass(frozen=True)
@@ -537,7 +541,7 @@ class EnclosureWall:
         if self.wall.shape != "slab" and self.bridge is not None:
             raise ModelError(f"wall '{self.wall.name}': bridges are supported on slab walls only")
         if self.bridge is not None:
-            for i in self.bridge.layers:
+            for i in self.bridge.replaces_layers:
                 if not 0 <= i < len(self.wall.layers):
                     raise ModelError(f"wall '{self.wall.name}': bridge layer index {i} does not "
                                      f"exist (0..{len(self.wall.layers) - 1})")

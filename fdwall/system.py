@@ -358,14 +358,14 @@ def box_area_factor(case: Case) -> float:
     against S_walls = sum(A_i / L_i) of the slab walls; L is the area-weighted mean thickness.
     """
     ch = case.chamber
-    if ch is None or ch.box is None or not case.walls:
+    if ch is None or ch.inner_dimensions is None or not case.walls:
         return 1.0
     slabs = [ew.wall for ew in case.walls if ew.wall.shape == "slab"]
     if not slabs:
         return 1.0
     s_walls = sum(w.area / w.thickness for w in slabs)
     L = sum(w.area * w.thickness for w in slabs) / sum(w.area for w in slabs)
-    W, D, H = ch.box
+    W, D, H = ch.inner_dimensions
     s_extra = 0.54 * 4.0 * (W + D + H) + 8 * 0.15 * L
     return 1.0 + s_extra / s_walls
 
@@ -384,9 +384,9 @@ def _chains_of(case: Case):
         if ew.bridge is None:
             out.append((w, j, ew, False))
             continue
-        f = ew.bridge.fraction
+        f = ew.bridge.area_fraction
         layers = list(w.layers)
-        for i in ew.bridge.layers:
+        for i in ew.bridge.replaces_layers:
             layers[i] = replace(layers[i], material=ew.bridge.material,
                                 name=f"{ew.bridge.material.name} (bridge)")
         out.append((replace(w, area=w.area * (1 - f)), j, ew, False))

@@ -17,6 +17,7 @@ import pytest
 from fdwall.materials import material_from_dict
 from fdwall.model import (
     RENAMED,
+    Bridge,
     Case,
     Chamber,
     Control,
@@ -55,8 +56,18 @@ PAIRS = [(RunSettings, "initial", "start_temperature"),
          (Control, "kd", "derivative_gain"),
          (Control, "enable", "power_on"),
          (Face, "temperature", "fixed_temperature"),
+         (Chamber, "box", "inner_dimensions"),
+         (Bridge, "fraction", "area_fraction"),
+         (Bridge, "layers", "replaces_layers"),
          (Event, "threshold", "temperature")]
-CLASSES = (RunSettings, Wall, Layer, Chamber, Face, Heater, Control, Event)
+
+
+def _pairs(*which):
+    """The PAIRS of the classes (or (class, old name)) given."""
+    return [p for p in PAIRS if p[0] in which or (p[0], p[1]) in which]
+
+
+CLASSES = (RunSettings, Wall, Layer, Chamber, Face, Heater, Control, Event, Bridge)
 
 
 def _case(new: bool) -> Case:
@@ -94,11 +105,11 @@ def test_old_names_warn_and_give_the_same_model_and_results():
     with pytest.warns(DeprecationWarning) as rec:
         old = _case(False)
     msgs = " ".join(str(w.message) for w in rec)
-    for cls, old_name, new_name in PAIRS[:6] + PAIRS[-1:]:
+    for cls, old_name, new_name in _pairs(RunSettings, Wall, Event):
         assert f"{cls.__name__}.{old_name} is deprecated" in msgs and new_name in msgs
     assert old == new                            # the same frozen model
     # the old names still read, with a warning, the new fields
-    for cls, old_name, new_name in PAIRS[:6]:
+    for cls, old_name, new_name in _pairs(RunSettings, Wall):
         obj = new.run if cls is RunSettings else new.wall
         with pytest.warns(DeprecationWarning, match=f"{old_name} is deprecated"):
             assert getattr(obj, old_name) == getattr(obj, new_name)
@@ -141,7 +152,7 @@ def test_layer_and_chamber_names_and_results():
     with pytest.warns(DeprecationWarning) as rec:
         old = _box(False)
     msgs = " ".join(str(w.message) for w in rec)
-    for cls, old_name, new_name in PAIRS[6:9]:
+    for cls, old_name, new_name in _pairs(Layer, (Chamber, "initial"), (Chamber, "ambient")):
         assert f"{cls.__name__}.{old_name} is deprecated" in msgs
     assert old == new
     with pytest.warns(DeprecationWarning):
@@ -202,7 +213,7 @@ def test_heater_control_and_chamber_loss_names_and_results():
     with pytest.warns(DeprecationWarning) as rec:
         old = _pid_box(False)
     msgs = " ".join(str(w.message) for w in rec)
-    for cls, old_name, new_name in PAIRS[11:-2]:
+    for cls, old_name, new_name in _pairs(Heater, Control, (Chamber, "extra_ua")):
         assert f"{cls.__name__}.{old_name} is deprecated" in msgs, old_name
     assert old == new
     res_old = run(old, progress=False)
@@ -215,3 +226,40 @@ def test_heater_control_and_chamber_loss_names_and_results():
     assert np.all(np.abs(res_new.chamber_T[mid] - 380.0) < 1.0)
     # after power-off: no heater power
     assert np.all(res_new.heater_power[res_new.times > 30.5 * 3600.0] == 0.0)
+
+
+def _bridged_box(new: bool) -> Case:
+    """A box with a bridged wall and edge/corner correction (demo data, invented)."""
+    c = _box(True)
+    steel = material_from_dict("demo-stud", {"k": 45.0, "cp": 480.0, "rho": 7850.0})
+    if new:
+        br = Bridge(area_fraction=0.05, material=steel, replaces_layers=(1,))
+        ch = dataclasses.replace(c.chamber, inner_dimensions=(0.6, 0.5, 0.7))
+    else:
+        br = Bridge(fraction=0.05, material=steel, layers=(1,))
+        ch = dataclasses.replace(c.chamber, box=(0.6, 0.5, 0.7))
+    return dataclasses.replace(c, walls=(dataclasses.replace(c.walls[0], bridge=br),),
+                               chamber=ch)
+
+
+def test_bridge_and_box_names_and_results():
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        new = _bridged_box(True)
+        res_new = run(new, progress=False)
+    with pytest.warns(DeprecationWarning) as rec:
+        old = _bridged_box(False)
+    msgs = " ".join(str(w.message) for w in rec)
+    for cls, old_name, new_name in _pairs(Bridge, (Chamber, "box")):
+        assert f"{cls.__name__}.{old_name} is deprecated" in msgs, old_name
+    assert old == new
+    res_old = run(old, progress=False)
+    assert np.array_equal(res_old.T, res_new.T)
+    # the 5 % steel stud path carries more heat than the clear wall around it (parallel
+    # paths: each path's flow ~ its area / its series resistance, Incropera ch. 3); the end
+    # state is near steady after 60 h
+    sysm = res_new.system
+    clear, stud = sysm.path_of(0, bridge=False), sysm.path_of(0, bridge=True)
+    q_clear = -res_new.face_flow[-1, 2 * clear + 1]     # heat leaving at the outer face [W]
+    q_stud = -res_new.face_flow[-1, 2 * stud + 1]
+    assert q_clear > 0 and q_stud / 0.05 > 1.2 * q_clear / 0.95

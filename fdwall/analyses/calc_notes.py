@@ -169,10 +169,10 @@ def input_rows(case, system) -> list:
             rows.append(_row(sec, "mesh refinement factor", w.refine, ""))
         br = case.walls[j].bridge if case.is_enclosure else None
         if br is not None:
-            rows.append(_row(sec, "bridge: share of the wall area", br.fraction, ""))
+            rows.append(_row(sec, "bridge: share of the wall area", br.area_fraction, ""))
             rows.append(_row(sec, "bridge: material", text=getattr(br.material, "name", "")))
             rows.append(_row(sec, "bridge: replaces layers", text=", ".join(
-                str(i + 1) for i in br.layers)))
+                str(i + 1) for i in br.replaces_layers)))
     for j, w, name, face, ew in _faces(case):
         sec = f"face {name}"
         if face is not None:

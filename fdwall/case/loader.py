@@ -590,7 +590,7 @@ class _Loader:
                                                    f"{len(wall.layers)} layer(s)",
                                 f"0-based layer indices 0..{len(wall.layers) - 1}")
         with _model(self.file, sec.path, "the bridge"):
-            return Bridge(fraction=f, material=mat, layers=tuple(idx))
+            return Bridge(area_fraction=f, material=mat, replaces_layers=tuple(idx))
 
     # ------------------------------------------------------------------ faces
     def _face(self, sec, side, geo):
@@ -845,7 +845,7 @@ class _Loader:
         start = sec.quantity("start_temperature", "temperature", None)
         with _model(self.file, sec.path, "the chamber"):
             ch = Chamber(capacity=cap, room_temperature=room, leakage=leak, extra_loss=extra,
-                         box=tuple(box) if box else None, start_temperature=start)
+                         inner_dimensions=tuple(box) if box else None, start_temperature=start)
         return ch, start
 
     def _wall_ref(self, sec, key, default=0):

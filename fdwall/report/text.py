@@ -613,9 +613,9 @@ def format_case(case, system=None, warnings=()) -> str:
             L.append(_wrap(f"outer face: {_face_text(case.outer)}", "  "))
         if case.is_enclosure and getattr(case.walls[j], "bridge", None) is not None:
             b = case.walls[j].bridge
-            L.append(_wrap(f"thermal bridge: {b.fraction * 100:.1f} % of the area has "
+            L.append(_wrap(f"thermal bridge: {b.area_fraction * 100:.1f} % of the area has "
                            f"{b.material.name} in place of layer(s) "
-                           f"{', '.join(str(i) for i in b.layers)} (parallel paths)"))
+                           f"{', '.join(str(i) for i in b.replaces_layers)} (parallel paths)"))
         L.append(_wrap("(#: layer index as in the case file, from 0; nodes: mesh nodes in the "
                        "layer, shared with its neighbours at interfaces; k and R at 20 degC, "
                        "conduction only, without surface films)"))
@@ -628,9 +628,9 @@ def format_case(case, system=None, warnings=()) -> str:
         L.append(_wrap(f"capacity {cap_t}; ambient {_sched_text(ch.room_temperature)}; leakage "
                        f"{ch.leakage:.3g} m3/s ({_leak_ua(ch):.3g} W/K with room air at the start); extra UA "
                        f"{ch.extra_loss:.3g} W/K"))
-        if getattr(ch, "box", None):
+        if getattr(ch, "inner_dimensions", None):
             fac = getattr(system, "area_factor", None) if system is not None else None
-            L.append(_wrap(f"box {' x '.join(f'{x:g}' for x in ch.box)} m (inner width x depth "
+            L.append(_wrap(f"box {' x '.join(f'{x:g}' for x in ch.inner_dimensions)} m (inner width x depth "
                            "x height): edges and corners add conduction"
                            + (f", slab areas x {fac:.3f} [-]" if fac else "")))
     if case.heater is not None:
