@@ -21,7 +21,7 @@ L, A, h, T_hot, T_amb = 0.060, 1.0, 8.0, K0 + 90.0, K0 + 20.0
 
 def build_case() -> Case:
     """The example wall as an fdwall Case (SI units)."""
-    return Case(run=RunSettings(duration=24 * 3600.0, initial=T_amb),
+    return Case(run=RunSettings(duration=24 * 3600.0, start_temperature=T_amb),
                 wall=Wall(layers=(Layer(board, L),), area=A),
                 inner=Face.fixed(T_hot), outer=Face.exchange(T_amb, h))
 

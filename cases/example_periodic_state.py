@@ -39,10 +39,10 @@ def build_case() -> Case:
     """The example cabinet as an fdwall Case (SI units)."""
     wall = Wall(layers=(Layer(panel, L),), area=A, name="panel")
     firing = Schedule((0.0, ON, ON, DAY), (1.0, 1.0, 0.0, 0.0))   # on 8 h, off 16 h
-    return Case(run=RunSettings(duration=DAY, initial=T_amb, output_interval=600.0),
+    return Case(run=RunSettings(duration=DAY, start_temperature=T_amb, output_every=600.0),
                 walls=(EnclosureWall(wall=wall, outer=Face.exchange(T_amb, h_out),
                                      inner_h=h_in),),
-                chamber=Chamber(capacity=C, ambient=T_amb), heater=Heater(power=P),
+                chamber=Chamber(capacity=C, room_temperature=T_amb), heater=Heater(power=P),
                 control=Control(mode="fixed", duty=firing), name="example-cabinet")
 
 

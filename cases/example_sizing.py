@@ -26,7 +26,7 @@ T_in, T_amb, h, T_limit = K0 + 120.0, K0 + 25.0, 9.0, K0 + 45.0
 
 def build_case(board_thickness: float = 0.05) -> Case:
     """The door as an fdwall Case (SI units); the board is layer 1."""
-    return Case(run=RunSettings(duration=3600.0, initial=T_amb),
+    return Case(run=RunSettings(duration=3600.0, start_temperature=T_amb),
                 wall=Wall(layers=(Layer(steel, 0.0015), Layer(board, board_thickness),
                                   Layer(steel, 0.001)), area=1.0),
                 inner=Face.fixed(T_in), outer=Face.exchange(T_amb, h))

@@ -147,8 +147,8 @@ def shape_key(wall, cells=None) -> tuple:
     on the layers' materials through :func:`default_cells`).
     """
     cells = cell_counts(wall) if cells is None else cells
-    return (wall.geometry, float(wall.area), float(wall.length),
-            tuple(float(r) for r in wall.radii()), tuple(float(c) for c in wall.contact),
+    return (wall.shape, float(wall.area), float(wall.length),
+            tuple(float(r) for r in wall.radii()), tuple(float(c) for c in wall.interface_resistance),
             tuple(int(c) for c in cells))
 
 
@@ -159,10 +159,10 @@ def mesh_wall(wall, cells=None) -> WallMesh:
     """
     cells = cell_counts(wall) if cells is None else cells
     edges = wall.radii()
-    geo, A, L = wall.geometry, wall.area, wall.length
+    geo, A, L = wall.shape, wall.area, wall.length
     nl = len(cells)
     n_c = np.asarray(cells, dtype=np.int64)
-    contact = np.asarray((0.0,) + tuple(wall.contact))          # contact before layer j
+    contact = np.asarray((0.0,) + tuple(wall.interface_resistance))          # contact before layer j
     doubled = (contact > 0.0).astype(np.int64)
     # first node of each layer: layers share their interface node unless a contact resistance
     # doubles it (two nodes at the same radius joined by the contact conductance)

@@ -9,6 +9,8 @@ film coefficient [W/m2/K], contact resistance [m2.K/W].
 """
 from __future__ import annotations
 
+import functools
+import warnings
 from dataclasses import dataclass, field
 from typing import Optional, Union
 
@@ -33,6 +35,46 @@ class ModelError(InputError):
     """An inconsistent or physically impossible model input."""
 
 
+#: Old Python names of the model kept for one release as deprecated aliases of the names that
+#: follow the case-file keys (docs/python-api.md): class -> {old name: new name}.
+RENAMED: dict = {}
+
+
+def _warn_renamed(cls_name: str, old: str, new: str, stacklevel: int) -> None:
+    warnings.warn(f"{cls_name}.{old} is deprecated and will be removed in the next release; "
+                  f"use {cls_name}.{new} (the case-file key)", DeprecationWarning,
+                  stacklevel=stacklevel)
+
+
+def _renamed(**old_to_new):
+    """Class decorator: the old names ``old_to_new`` keep working, with a DeprecationWarning,
+    as constructor keywords and as read-only properties returning the new fields.
+
+    Given both (as :func:`dataclasses.replace` does when called with an old name), the old
+    keyword wins: it is the change asked for.
+    """
+    def deco(cls):
+        init = cls.__init__
+
+        @functools.wraps(init)
+        def __init__(self, *args, **kw):
+            for old, new in old_to_new.items():
+                if old in kw:
+                    _warn_renamed(cls.__name__, old, new, 3)
+                    kw[new] = kw.pop(old)
+            init(self, *args, **kw)
+
+        cls.__init__ = __init__
+        for old, new in old_to_new.items():
+            def get(self, old=old, new=new):
+                _warn_renamed(type(self).__name__, old, new, 3)
+                return getattr(self, new)
+            setattr(cls, old, property(get, doc=f"Deprecated alias of :attr:`{new}`."))
+        RENAMED[cls.__name__] = dict(old_to_new)
+        return cls
+    return deco
+
+
 def _pos(name, x, allow_zero=False):
     if x is None or not np.isfinite(x) or (x < 0 if allow_zero else x <= 0):
         need = "zero or positive" if allow_zero else "positive"
@@ -48,6 +90,7 @@ def _sched(name, x, kelvin=False):
     return s
 
 
+@_renamed(initial="start_temperature")
 @dataclass(frozen=True)
 class Layer:
     """One homogeneous layer of a wall.
@@ -62,7 +105,7 @@ class Layer:
         Number of finite-volume cells across the layer; default chosen by :mod:`fdwall.mesh`.
     name : str
         Label used in reports (defaults to the material name).
-    initial : float, optional
+    start_temperature : float, optional
         Start temperature of this layer [K], overriding a uniform run start temperature.
     """
 
@@ -70,14 +113,14 @@ class Layer:
     thickness: float
     cells: Optional[int] = None
     name: str = ""
-    initial: Optional[float] = None
+    start_temperature: Optional[float] = None
 
     def __post_init__(self):
         _pos(f"thickness of layer '{self.label}'", self.thickness)
         if self.cells is not None and (int(self.cells) != self.cells or self.cells < 1):
             raise ModelError(f"cells of layer '{self.label}' must be a whole number >= 1")
-        if self.initial is not None:
-            _pos(f"start temperature of layer '{self.label}'", self.initial)
+        if self.start_temperature is not None:
+            _pos(f"start temperature of layer '{self.label}'", self.start_temperature)
 
     @property
     def label(self) -> str:
@@ -85,6 +128,7 @@ class Layer:
         return self.name or getattr(self.material, "name", "layer")
 
 
+@_renamed(geometry="shape", contact="interface_resistance")
 @dataclass(frozen=True)
 class Wall:
     """A multilayer wall, listed from the inner (hot) face to the outer face.
@@ -93,7 +137,7 @@ class Wall:
     ----------
     layers : tuple of Layer
         Layers from inner to outer face.
-    geometry : {'slab', 'cylinder', 'sphere'}
+    shape : {'slab', 'cylinder', 'sphere'}
         Flat slab, hollow cylinder or hollow sphere.
     area : float
         Slab area [m2] (default 1 m2: results per unit area).
@@ -101,7 +145,7 @@ class Wall:
         Inner radius [m] for a cylinder or sphere.
     length : float
         Cylinder length [m] (default 1 m: results per metre of pipe).
-    contact : tuple of float
+    interface_resistance : tuple of float
         Contact (interface) resistance between consecutive layers [m2.K/W], one per interface;
         0 means perfect contact.
     refine : float
@@ -111,11 +155,11 @@ class Wall:
     """
 
     layers: tuple
-    geometry: str = "slab"
+    shape: str = "slab"
     area: float = 1.0
     inner_radius: Optional[float] = None
     length: float = 1.0
-    contact: tuple = ()
+    interface_resistance: tuple = ()
     refine: float = 1.0
     name: str = "wall"
 
@@ -123,24 +167,24 @@ class Wall:
         object.__setattr__(self, "layers", tuple(self.layers))
         if not self.layers:
             raise ModelError(f"wall '{self.name}' has no layers")
-        if self.geometry not in ("slab", "cylinder", "sphere"):
+        if self.shape not in ("slab", "cylinder", "sphere"):
             raise ModelError(f"wall '{self.name}': geometry must be slab, cylinder or sphere, "
-                             f"got {self.geometry!r}")
-        if self.geometry == "slab":
+                             f"got {self.shape!r}")
+        if self.shape == "slab":
             _pos(f"area of wall '{self.name}'", self.area)
         else:
             if self.inner_radius is None:
-                raise ModelError(f"wall '{self.name}': a {self.geometry} needs an inner radius")
+                raise ModelError(f"wall '{self.name}': a {self.shape} needs an inner radius")
             _pos(f"inner radius of wall '{self.name}'", self.inner_radius)
-            if self.geometry == "cylinder":
+            if self.shape == "cylinder":
                 _pos(f"length of wall '{self.name}'", self.length)
-        c = tuple(float(x) for x in self.contact) if self.contact else (0.0,) * (len(self.layers) - 1)
+        c = tuple(float(x) for x in self.interface_resistance) if self.interface_resistance else (0.0,) * (len(self.layers) - 1)
         if len(c) != len(self.layers) - 1:
             raise ModelError(f"wall '{self.name}': {len(self.layers) - 1} interface(s) need that many "
                              f"contact resistances, got {len(c)}")
         for x in c:
             _pos(f"contact resistance in wall '{self.name}'", x, allow_zero=True)
-        object.__setattr__(self, "contact", c)
+        object.__setattr__(self, "interface_resistance", c)
         _pos(f"refine of wall '{self.name}'", self.refine)
 
     @property
@@ -152,7 +196,7 @@ class Wall:
         """Radius (or depth for a slab) of each face and interface, inner first [m]."""
         r = self.__dict__.get("_radii")
         if r is None:
-            x0 = 0.0 if self.geometry == "slab" else float(self.inner_radius)
+            x0 = 0.0 if self.shape == "slab" else float(self.inner_radius)
             r = x0 + np.concatenate([[0.0], np.cumsum([l.thickness for l in self.layers])])
             r.setflags(write=False)
             object.__setattr__(self, "_radii", r)   # the wall is immutable
@@ -160,9 +204,9 @@ class Wall:
 
     def area_at(self, x) -> float:
         """Heat-flow area at radius/depth ``x`` [m2]."""
-        if self.geometry == "slab":
+        if self.shape == "slab":
             return float(self.area)
-        if self.geometry == "cylinder":
+        if self.shape == "cylinder":
             return float(2 * np.pi * x * self.length)
         return float(4 * np.pi * x * x)
 
@@ -184,28 +228,30 @@ class Wall:
         return replace(self, layers=tuple(layers))
 
 
+@_renamed(temperature="fixed_temperature", fluid="fluid_temperature",
+          surroundings="surroundings_temperature")
 @dataclass(frozen=True)
 class Face:
     """What happens at one face of a wall.
 
-    Any combination of the terms below acts together, except ``temperature``, which fixes
+    Any combination of the terms below acts together, except ``fixed_temperature``, which fixes
     the face temperature and overrides the rest.  A face with nothing set is adiabatic.
 
     Parameters
     ----------
-    temperature : Schedule or float, optional
+    fixed_temperature : Schedule or float, optional
         Imposed face temperature [K].
     flux : Schedule or float, optional
         Imposed heat flux into the wall [W/m2] (heater element, absorbed solar).
-    fluid : Schedule or float, optional
+    fluid_temperature : Schedule or float, optional
         Temperature of the fluid (air) at the face [K]; needed with ``convection``.
     convection : float or fdwall.physics.convection.Convection, optional
         Film coefficient [W/m2/K], or a correlation evaluated as the run goes.
     emissivity : float or Schedule, optional
         Grey emissivity [-], constant or a table against surface temperature [K]; None: no
         radiation.
-    surroundings : Schedule or float, optional
-        Temperature of the radiant surroundings [K]; defaults to ``fluid``.
+    surroundings_temperature : Schedule or float, optional
+        Temperature of the radiant surroundings [K]; defaults to ``fluid_temperature``.
     touch : {'touchable', 'guarded', 'out-of-reach'}
         Whether people can touch this face (touch-safety verdicts skip guarded and
         out-of-reach faces); default touchable.
@@ -214,12 +260,12 @@ class Face:
         from the outer layer's material and finish.
     """
 
-    temperature: Optional[Schedule] = None
+    fixed_temperature: Optional[Schedule] = None
     flux: Optional[Schedule] = None
-    fluid: Optional[Schedule] = None
+    fluid_temperature: Optional[Schedule] = None
     convection: Union[None, float, object] = None
     emissivity: Union[None, float, Schedule] = None
-    surroundings: Optional[Schedule] = None
+    surroundings_temperature: Optional[Schedule] = None
     touch: str = "touchable"
     surface_class: Optional[str] = None
 
@@ -229,10 +275,14 @@ class Face:
         if self.surface_class is not None and self.surface_class not in SURFACE_CLASSES:
             raise ModelError(f"surface class must be one of {', '.join(SURFACE_CLASSES)}, "
                              f"got {self.surface_class!r}")
-        object.__setattr__(self, "temperature", _sched("face temperature", self.temperature, True))
+        object.__setattr__(self, "fixed_temperature",
+                           _sched("face temperature", self.fixed_temperature, True))
         object.__setattr__(self, "flux", _sched("face flux", self.flux))
-        object.__setattr__(self, "fluid", _sched("fluid temperature", self.fluid, True))
-        object.__setattr__(self, "surroundings", _sched("surroundings temperature", self.surroundings, True))
+        object.__setattr__(self, "fluid_temperature",
+                           _sched("fluid temperature", self.fluid_temperature, True))
+        object.__setattr__(self, "surroundings_temperature",
+                           _sched("surroundings temperature", self.surroundings_temperature,
+                                  True))
         if isinstance(self.convection, (int, float)):
             _pos("film coefficient", float(self.convection), allow_zero=True)
         e = self.emissivity
@@ -249,16 +299,19 @@ class Face:
     @classmethod
     def fixed(cls, temperature) -> "Face":
         """A face held at ``temperature`` [K] (a Schedule or a number)."""
-        return cls(temperature=temperature)
+        return cls(fixed_temperature=temperature)
 
     @classmethod
     def exchange(cls, fluid, h, emissivity=None, surroundings=None, flux=None) -> "Face":
         """Convection with film coefficient ``h`` [W/m2/K] to fluid at ``fluid`` [K], plus grey
         radiation (``emissivity`` [-]) to ``surroundings`` [K] and an imposed ``flux`` [W/m2]."""
-        return cls(fluid=fluid, convection=h, emissivity=emissivity, surroundings=surroundings,
+        return cls(fluid_temperature=fluid, convection=h, emissivity=emissivity,
+                   surroundings_temperature=surroundings,
                    flux=flux)
 
 
+@_renamed(initial="start_temperature", ambient="room_temperature", extra_ua="extra_loss",
+          box="inner_dimensions")
 @dataclass(frozen=True)
 class Chamber:
     """A lumped chamber node (air, load, racks) coupled to the inner faces of walls.
@@ -268,18 +321,18 @@ class Chamber:
     capacity : float or Schedule
         Heat capacity of the chamber contents [J/K]; a Schedule is read as a table of
         capacity against temperature [K].
-    ambient : Schedule or float
+    room_temperature : Schedule or float
         Temperature of the room air that leakage and extra losses go to [K].
     leakage : float
         Air flow through the chamber [m3/s], at room conditions (ventilation, leaks): room air
         enters at the ambient temperature and leaves at the chamber temperature, a loss of
         rho cp leakage (T - T_ambient) with rho and cp of dry air at the ambient temperature
         and 1 atm.
-    extra_ua : float
+    extra_loss : float
         Further fixed losses as a conductance to ambient [W/K].
-    initial : float, optional
+    start_temperature : float, optional
         Start temperature of the chamber contents [K], overriding the run start temperature.
-    box : tuple of float, optional
+    inner_dimensions : tuple of float, optional
         Inner width, depth and height of a box-shaped enclosure [m].  When given, the
         conduction through the 12 edges and 8 corners is added by the conduction shape
         factors S_edge = 0.54 D and S_corner = 0.15 L (Incropera, Fundamentals of Heat and
@@ -288,30 +341,33 @@ class Chamber:
     """
 
     capacity: Union[float, Schedule]
-    ambient: Schedule = 293.15
+    room_temperature: Schedule = 293.15
     leakage: float = 0.0
-    extra_ua: float = 0.0
-    box: Optional[tuple] = None
-    initial: Optional[float] = None
+    extra_loss: float = 0.0
+    inner_dimensions: Optional[tuple] = None
+    start_temperature: Optional[float] = None
 
     def __post_init__(self):
         cap = self.capacity
         vals = cap.values if isinstance(cap, Schedule) else (float(cap),)
         if min(vals) <= 0:
             raise ModelError("chamber capacity must be positive [J/K]")
-        object.__setattr__(self, "ambient", _sched("chamber ambient", self.ambient, True))
+        object.__setattr__(self, "room_temperature",
+                           _sched("chamber room temperature", self.room_temperature, True))
         _pos("chamber leakage flow", self.leakage, allow_zero=True)
-        _pos("chamber extra UA", self.extra_ua, allow_zero=True)
-        if self.initial is not None:
-            _pos("chamber start temperature", self.initial)
-        if self.box is not None:
-            if len(self.box) != 3:
+        _pos("chamber extra UA", self.extra_loss, allow_zero=True)
+        if self.start_temperature is not None:
+            _pos("chamber start temperature", self.start_temperature)
+        if self.inner_dimensions is not None:
+            if len(self.inner_dimensions) != 3:
                 raise ModelError("chamber box needs three inner dimensions (width, depth, height) [m]")
-            for x in self.box:
+            for x in self.inner_dimensions:
                 _pos("chamber box dimension", float(x))
-            object.__setattr__(self, "box", tuple(float(x) for x in self.box))
+            object.__setattr__(self, "inner_dimensions",
+                               tuple(float(x) for x in self.inner_dimensions))
 
 
+@_renamed(alpha="resistance_coefficient", t_ref="rated_at")
 @dataclass(frozen=True)
 class Heater:
     """An electric heater.
@@ -329,9 +385,9 @@ class Heater:
         Index of the layer the element lies behind, for 'interface' [-].
     voltage_ratio : float
         Supply voltage / rated voltage [-]; power scales with its square.
-    alpha : float
+    resistance_coefficient : float
         Temperature coefficient of the element's resistance [1/K] (power falls as it heats).
-    t_ref : float
+    rated_at : float
         Temperature at which ``power`` is rated [K].
     """
 
@@ -340,8 +396,8 @@ class Heater:
     wall: int = 0
     interface: int = 0
     voltage_ratio: float = 1.0
-    alpha: float = 0.0
-    t_ref: float = 293.15
+    resistance_coefficient: float = 0.0
+    rated_at: float = 293.15
 
     def __post_init__(self):
         object.__setattr__(self, "power", _sched("heater power", self.power))
@@ -350,9 +406,10 @@ class Heater:
         if self.location not in ("chamber", "inner", "interface"):
             raise ModelError(f"heater location must be chamber, inner or interface, got {self.location!r}")
         _pos("heater voltage ratio", self.voltage_ratio)
-        _pos("heater alpha", self.alpha, allow_zero=True)
+        _pos("heater alpha", self.resistance_coefficient, allow_zero=True)
 
 
+@_renamed(kp="proportional_gain", ki="integral_gain", kd="derivative_gain", enable="power_on")
 @dataclass(frozen=True)
 class Control:
     """How the heater is switched.
@@ -380,9 +437,9 @@ class Control:
         Wall index of a wall sensor [-].
     sensor_depth : float
         Depth of a wall sensor below the inner face [m].
-    kp, ki, kd : float
+    proportional_gain, integral_gain, derivative_gain : float
         PID gains: proportional [1/K], integral [1/K/s], derivative [s/K].
-    enable : Schedule or float
+    power_on : Schedule or float
         Master switch 0/1 (power off for the cool-down) [-].
     """
 
@@ -395,16 +452,16 @@ class Control:
     sensor: str = "chamber"
     sensor_wall: int = 0
     sensor_depth: float = 0.0
-    kp: float = 0.05
-    ki: float = 0.0
-    kd: float = 0.0
-    enable: Schedule = 1.0
+    proportional_gain: float = 0.05
+    integral_gain: float = 0.0
+    derivative_gain: float = 0.0
+    power_on: Schedule = 1.0
 
     def __post_init__(self):
         if self.mode not in ("fixed", "duty", "thermostat", "pid"):
             raise ModelError(f"control mode must be fixed, duty, thermostat or pid, got {self.mode!r}")
         object.__setattr__(self, "duty", _sched("duty", self.duty))
-        object.__setattr__(self, "enable", _sched("enable", self.enable))
+        object.__setattr__(self, "power_on", _sched("enable", self.power_on))
         object.__setattr__(self, "setpoint", _sched("setpoint", self.setpoint, True))
         if min(self.duty.values) < 0 or max(self.duty.values) > 1:
             raise ModelError("duty must lie between 0 and 1")
@@ -414,10 +471,12 @@ class Control:
             raise ModelError(f"control mode {self.mode!r} needs a setpoint")
         if self.sensor not in ("chamber", "wall"):
             raise ModelError("sensor must be 'chamber' or 'wall'")
-        for n in ("kp", "ki", "kd"):
-            _pos(n, getattr(self, n), allow_zero=True)
+        for label, n in (("kp", "proportional_gain"), ("ki", "integral_gain"),
+                         ("kd", "derivative_gain")):
+            _pos(label, getattr(self, n), allow_zero=True)
 
 
+@_renamed(fraction="area_fraction", layers="replaces_layers")
 @dataclass(frozen=True)
 class Bridge:
     """A thermal bridge through a wall, by the parallel-path method.
@@ -434,22 +493,23 @@ class Bridge:
 
     Parameters
     ----------
-    fraction : float
-        Area fraction of the bridged path [-], 0 < fraction < 1.
+    area_fraction : float
+        Area fraction of the bridged path [-], 0 < area_fraction < 1.
     material : fdwall.materials.Material
         Bridging material.
-    layers : tuple of int
+    replaces_layers : tuple of int
         0-based indices of the layers the bridge replaces.
     """
 
-    fraction: float
+    area_fraction: float
     material: object
-    layers: tuple = (1,)
+    replaces_layers: tuple = (1,)
 
     def __post_init__(self):
-        if not 0.0 < self.fraction < 1.0:
-            raise ModelError(f"bridge area fraction must lie strictly between 0 and 1, got {self.fraction}")
-        object.__setattr__(self, "layers", tuple(int(i) for i in self.layers))
+        if not 0.0 < self.area_fraction < 1.0:
+            raise ModelError("bridge area fraction must lie strictly between 0 and 1, got "
+                             f"{self.area_fraction}")
+        object.__setattr__(self, "replaces_layers", tuple(int(i) for i in self.replaces_layers))
 
 
 @dataclass(frozen=True)
@@ -478,22 +538,23 @@ class EnclosureWall:
     bridge: Optional[Bridge] = None
 
     def __post_init__(self):
-        if self.wall.geometry != "slab" and self.bridge is not None:
+        if self.wall.shape != "slab" and self.bridge is not None:
             raise ModelError(f"wall '{self.wall.name}': bridges are supported on slab walls only")
         if self.bridge is not None:
-            for i in self.bridge.layers:
+            for i in self.bridge.replaces_layers:
                 if not 0 <= i < len(self.wall.layers):
                     raise ModelError(f"wall '{self.wall.name}': bridge layer index {i} does not "
                                      f"exist (0..{len(self.wall.layers) - 1})")
 
 
+@_renamed(threshold="temperature")
 @dataclass(frozen=True)
 class Event:
     """Watch a face, interface or depth for crossing a temperature.
 
     Parameters
     ----------
-    threshold : float
+    temperature : float
         Temperature [K].
     wall : int
         Wall index [-].
@@ -506,13 +567,15 @@ class Event:
         Label.
     """
 
-    threshold: float
+    temperature: float
     wall: int = 0
     depth: float = 0.0
     where: str = "outer"
     name: str = ""
 
 
+@_renamed(initial="start_temperature", output_interval="output_every",
+          profile_times="snapshots", events="watch")
 @dataclass(frozen=True)
 class RunSettings:
     """Settings of a transient run.
@@ -521,18 +584,18 @@ class RunSettings:
     ----------
     duration : float
         Simulated time [s].
-    initial : float or array
+    start_temperature : float or array
         Initial temperature [K]: a number for a uniform start, or an array over the nodes of
         the system (e.g. a profile from an earlier result).
-    output_interval : float, optional
+    output_every : float, optional
         Spacing of stored outputs [s] (default duration/200).
-    profile_times : tuple of float
+    snapshots : tuple of float
         Times at which temperature profiles are plotted [s].
     tolerance : float
         Local error tolerance per step [K].
     max_step : float, optional
         Upper limit on the time step [s].
-    events : tuple of Event
+    watch : tuple of Event
         Crossings to locate.
     exact_outputs : bool
         Land a time step on every output time (outputs exact to the solver, at the cost of
@@ -545,23 +608,23 @@ class RunSettings:
     """
 
     duration: float
-    initial: object = 293.15
-    output_interval: Optional[float] = None
-    profile_times: tuple = ()
+    start_temperature: object = 293.15
+    output_every: Optional[float] = None
+    snapshots: tuple = ()
     tolerance: float = 0.01
     max_step: Optional[float] = None
-    events: tuple = ()
+    watch: tuple = ()
     exact_outputs: bool = False
     steady_at: Optional[float] = None
 
     def __post_init__(self):
         _pos("duration", self.duration)
-        if self.output_interval is not None:
-            _pos("output interval", self.output_interval)
+        if self.output_every is not None:
+            _pos("output interval", self.output_every)
         _pos("tolerance", self.tolerance)
         if self.max_step is not None:
             _pos("max step", self.max_step)
-        init = np.asarray(self.initial, dtype=float)
+        init = np.asarray(self.start_temperature, dtype=float)
         if np.any(~np.isfinite(init)) or np.any(init <= 0):
             raise ModelError("initial temperature must be above absolute zero [K]")
 

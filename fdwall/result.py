@@ -108,7 +108,7 @@ class Result:
             "heat_capacity_J_per_K": _heat_capacity(sysm, T_out[0]),
         }
         evs = {}
-        for e, ev in enumerate(case.run.events):
+        for e, ev in enumerate(case.run.watch):
             evs[ev.name or f"event{e + 1}"] = (float(ev_out[e, EV_UP]), float(ev_out[e, EV_DOWN]))
         return cls(case=case, system=sysm, times=t_out[:n].copy(), T=T_out[:n].copy(),
                    face_flow=qf_out[:n].copy(), face_energy=E_out[:n, :nf].copy(),
@@ -371,7 +371,7 @@ class Result:
         """
         import pandas as pd
         if times is None:
-            times = list(self.case.run.profile_times) or list(self.times)
+            times = list(self.case.run.snapshots) or list(self.times)
         idx = []
         for t in times:
             k = int(np.argmin(np.abs(self.times - float(t))))
@@ -400,7 +400,7 @@ class Result:
             coords={"time": ("time", self.times, {"units": "s"}),
                     "x": ("x", self.x(wall), {"units": "m",
                                               "long_name": "depth from the inner face"})},
-            attrs={"case": self.case.name, "wall": w.name, "geometry": w.geometry})
+            attrs={"case": self.case.name, "wall": w.name, "geometry": w.shape})
 
     def _repr_html_(self) -> str:
         """Short summary table for notebooks (final and peak face temperatures in degC)."""
@@ -461,7 +461,7 @@ class Result:
         for j, (w, m) in enumerate(zip(sysm.walls, sysm.meshes)):
             wg = mg.create_group(f"wall_{j}")
             wg.attrs["name"] = w.name
-            wg.attrs["geometry"] = w.geometry
+            wg.attrs["geometry"] = w.shape
             ds(wg, "x", m.x, "m")
             ds(wg, "layer_first", [a for a, b in m.layer_nodes], "1")
             ds(wg, "layer_last", [b for a, b in m.layer_nodes], "1")

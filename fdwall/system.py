@@ -241,22 +241,22 @@ class System:
         """Initial temperatures of all unknowns [K] from a number or a full vector.
 
         With a number, layers and a chamber that carry their own start temperature
-        (``Layer.initial``, ``Chamber.initial``) keep it; a node on an interface takes the
+        (``Layer.start_temperature``, ``Chamber.start_temperature``) keep it; a node on an interface takes the
         mean of its two layers.
         """
         a = np.asarray(initial, dtype=float)
         if a.ndim == 0:
             T = np.full(self.n_unknowns, float(a))
-            lay = [l.initial if l.initial is not None else float(a)
+            lay = [l.start_temperature if l.start_temperature is not None else float(a)
                    for w in self.walls for l in w.layers]
-            if any(l.initial is not None for w in self.walls for l in w.layers):
+            if any(l.start_temperature is not None for w in self.walls for l in w.layers):
                 for n in range(self.n_nodes):
                     ids = [g for g in self.layer_of_half[n] if g >= 0]
                     if ids:
                         T[n] = float(np.mean([lay[g] for g in ids]))
             ch = self.case.chamber
-            if self.has_chamber and ch is not None and ch.initial is not None:
-                T[-1] = ch.initial
+            if self.has_chamber and ch is not None and ch.start_temperature is not None:
+                T[-1] = ch.start_temperature
             return T
         if a.shape != (self.n_unknowns,):
             raise ModelError(f"an initial profile must have one temperature per unknown "
@@ -332,28 +332,28 @@ def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_
     ff[FF_AREA] = area
     fi[FI_TO_CHAMBER] = 1 if to_chamber else 0
     fi[FI_H_MODE] = H_FIXED
-    if face.temperature is not None:
-        fi[FI_FIXED_T] = tb.schedule(face.temperature)
+    if face.fixed_temperature is not None:
+        fi[FI_FIXED_T] = tb.schedule(face.fixed_temperature)
         return fi, ff, par
     fi[FI_FLUX] = tb.schedule(face.flux)
     conv = conv_obj if to_chamber else face.convection
     if conv is not None:
-        if not to_chamber and face.fluid is None:
+        if not to_chamber and face.fluid_temperature is None:
             raise ModelError(f"{label}: convection needs a fluid temperature")
         if isinstance(conv, (int, float)):
             ff[FF_H] = float(conv)
         else:
             fi[FI_H_MODE] = H_CORRELATION
             par[:] = conv.to_par()
-    fi[FI_FLUID] = -1 if to_chamber else tb.schedule(face.fluid)
+    fi[FI_FLUID] = -1 if to_chamber else tb.schedule(face.fluid_temperature)
     eps = face.emissivity
     if eps is not None:
         fi[FI_EMISSIVITY] = tb.schedule(eps)
         if not to_chamber:
-            if face.surroundings is None and face.fluid is None:
+            if face.surroundings_temperature is None and face.fluid_temperature is None:
                 raise ModelError(f"{label}: radiation needs a surroundings (or fluid) temperature")
-            fi[FI_RADIANT] = (tb.schedule(face.surroundings) if face.surroundings is not None
-                              else fi[FI_FLUID])
+            fi[FI_RADIANT] = (tb.schedule(face.surroundings_temperature)
+                              if face.surroundings_temperature is not None else fi[FI_FLUID])
     return fi, ff, par
 
 
@@ -365,14 +365,14 @@ def box_area_factor(case: Case) -> float:
     against S_walls = sum(A_i / L_i) of the slab walls; L is the area-weighted mean thickness.
     """
     ch = case.chamber
-    if ch is None or ch.box is None or not case.walls:
+    if ch is None or ch.inner_dimensions is None or not case.walls:
         return 1.0
-    slabs = [ew.wall for ew in case.walls if ew.wall.geometry == "slab"]
+    slabs = [ew.wall for ew in case.walls if ew.wall.shape == "slab"]
     if not slabs:
         return 1.0
     s_walls = sum(w.area / w.thickness for w in slabs)
     L = sum(w.area * w.thickness for w in slabs) / sum(w.area for w in slabs)
-    W, D, H = ch.box
+    W, D, H = ch.inner_dimensions
     s_extra = 0.54 * 4.0 * (W + D + H) + 8 * 0.15 * L
     return 1.0 + s_extra / s_walls
 
@@ -386,14 +386,14 @@ def _chains_of(case: Case):
     out = []
     for j, ew in enumerate(case.walls):
         w = ew.wall
-        if m != 1.0 and w.geometry == "slab":
+        if m != 1.0 and w.shape == "slab":
             w = replace(w, area=w.area * m)
         if ew.bridge is None:
             out.append((w, j, ew, False))
             continue
-        f = ew.bridge.fraction
+        f = ew.bridge.area_fraction
         layers = list(w.layers)
-        for i in ew.bridge.layers:
+        for i in ew.bridge.replaces_layers:
             layers[i] = replace(layers[i], material=ew.bridge.material,
                                 name=f"{ew.bridge.material.name} (bridge)")
         out.append((replace(w, area=w.area * (1 - f)), j, ew, False))
@@ -544,8 +544,8 @@ def build_system(case: Case, like: System | None = None) -> System:
         ch = case.chamber
         ch_i[CHI_PRESENT] = 1
         ch_i[CHI_CAPACITY] = tb.capacity(ch.capacity)
-        ch_i[CHI_AMBIENT] = tb.schedule(ch.ambient)
-        ch_f[CHF_UA] = ch.extra_ua
+        ch_i[CHI_AMBIENT] = tb.schedule(ch.room_temperature)
+        ch_f[CHF_UA] = ch.extra_loss
         ch_f[CHF_LEAK] = ch.leakage
     # heater and control
     ctl_i = np.full(N_CI, -1, dtype=np.int64)
@@ -568,12 +568,12 @@ def build_system(case: Case, like: System | None = None) -> System:
                                      f"'{walls[hw].name}' (0..{len(m.interface_nodes) - 1})")
                 ctl_i[CI_HEATER_NODE] = offsets[hw] + m.interface_nodes[hz.interface]
         ctl_i[CI_POWER] = tb.schedule(hz.power)
-        ctl_f[CF_ALPHA] = hz.alpha
-        ctl_f[CF_T_REF] = hz.t_ref
+        ctl_f[CF_ALPHA] = hz.resistance_coefficient
+        ctl_f[CF_T_REF] = hz.rated_at
         ctl_f[CF_POWER_FACTOR] = hz.voltage_ratio ** 2
     ctl_i[CI_DUTY] = tb.schedule(ctl.duty)
     ctl_i[CI_SETPOINT] = tb.schedule(ctl.setpoint) if ctl.setpoint is not None else tb.schedule(0.0)
-    ctl_i[CI_ENABLE] = tb.schedule(ctl.enable)
+    ctl_i[CI_ENABLE] = tb.schedule(ctl.power_on)
     if ctl.sensor == "chamber" and case.chamber is not None:
         ctl_i[CI_SENSOR_A] = ctl_i[CI_SENSOR_B] = N
         ctl_f[CF_SENSOR_W] = 1.0
@@ -586,7 +586,7 @@ def build_system(case: Case, like: System | None = None) -> System:
         ctl_i[CI_SENSOR_A], ctl_i[CI_SENSOR_B], ctl_f[CF_SENSOR_W] = offsets[j] + a, offsets[j] + b, wgt
     ctl_f[CF_PERIOD] = ctl.period
     ctl_f[CF_BAND] = ctl.band
-    ctl_f[CF_KP], ctl_f[CF_KI], ctl_f[CF_KD] = ctl.kp, ctl.ki, ctl.kd
+    ctl_f[CF_KP], ctl_f[CF_KI], ctl_f[CF_KD] = ctl.proportional_gain, ctl.integral_gain, ctl.derivative_gain
     ctl_f[CF_EVENT_TOL] = min(0.02, max(1e-3, 0.02 * ctl.band))
     # breakpoints: every knot of every time schedule
     bps, jumps = set(), set()
@@ -651,7 +651,7 @@ def event_rows(system: System, case: Case):
     Raises ModelError for an event at a wall, interface or depth that does not exist, so it
     also serves to validate a case's events before a run.
     """
-    evs = case.run.events
+    evs = case.run.watch
     ev_i = np.zeros((len(evs), 2), dtype=np.int64)
     ev_f = np.zeros((len(evs), 2))
     for e, ev in enumerate(evs):
@@ -659,7 +659,7 @@ def event_rows(system: System, case: Case):
             if not system.has_chamber:
                 raise ModelError(f"event '{ev.name}' watches the chamber, but the case has none")
             ev_i[e, EV_NODE_A] = ev_i[e, EV_NODE_B] = system.n_nodes
-            ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = 1.0, ev.threshold
+            ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = 1.0, ev.temperature
             continue
         j = system.chain_of(ev.wall)
         m, o = system.meshes[j], system.offsets[j]
@@ -681,7 +681,7 @@ def event_rows(system: System, case: Case):
             a, b, w = locate_depth(wall, m, ev.depth)
             a, b = a + o, b + o
         ev_i[e, EV_NODE_A], ev_i[e, EV_NODE_B] = a, b
-        ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = w, ev.threshold
+        ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = w, ev.temperature
     return ev_i, ev_f
 
 
@@ -690,16 +690,16 @@ def _time_schedules(case):
     if case.is_enclosure:
         faces = [ew.outer for ew in case.walls]
         if case.chamber is not None:
-            yield case.chamber.ambient
+            yield case.chamber.room_temperature
     else:
         faces = [case.inner, case.outer]
     for f in faces:
-        for s in (f.temperature, f.flux, f.fluid, f.surroundings):
+        for s in (f.fixed_temperature, f.flux, f.fluid_temperature, f.surroundings_temperature):
             if s is not None:
                 yield s
     if case.heater is not None:
         yield case.heater.power
     c = case.control
-    for s in (c.duty, c.enable, c.setpoint):
+    for s in (c.duty, c.power_on, c.setpoint):
         if s is not None:
             yield s

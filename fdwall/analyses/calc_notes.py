@@ -97,15 +97,15 @@ def _conv_rows(section, c, fixed_label="film coefficient"):
 
 def _face_rows(section, face):
     rows = []
-    if face.temperature is not None:
-        return _sched_rows(section, "fixed surface temperature", face.temperature, "K")
+    if face.fixed_temperature is not None:
+        return _sched_rows(section, "fixed surface temperature", face.fixed_temperature, "K")
     c = face.convection
     if c is not None:
-        rows += _sched_rows(section, "fluid (air) temperature", face.fluid, "K")
+        rows += _sched_rows(section, "fluid (air) temperature", face.fluid_temperature, "K")
         rows += _conv_rows(section, c)
     if face.emissivity is not None:
         rows += _sched_rows(section, "emissivity", face.emissivity, "")
-        sur = face.surroundings if face.surroundings is not None else face.fluid
+        sur = face.surroundings_temperature if face.surroundings_temperature is not None else face.fluid_temperature
         rows += _sched_rows(section, "radiant surroundings temperature", sur, "K")
     if face.flux is not None:
         rows += _sched_rows(section, "imposed heat flux into the wall", face.flux, "W/m2")
@@ -134,24 +134,24 @@ def input_rows(case, system) -> list:
     (SI unit text, '' for numbers without unit) and ``text``."""
     r = case.run
     rows = [_row("run", "duration", r.duration, "s")]
-    if np.ndim(r.initial) == 0:
-        rows.append(_row("run", "start temperature", float(r.initial), "K"))
+    if np.ndim(r.start_temperature) == 0:
+        rows.append(_row("run", "start temperature", float(r.start_temperature), "K"))
     else:
         rows.append(_row("run", "start temperature", text="node profile given"))
-    rows.append(_row("run", "output interval", r.output_interval
-                     if r.output_interval is not None else r.duration / 200.0, "s"))
+    rows.append(_row("run", "output interval", r.output_every
+                     if r.output_every is not None else r.duration / 200.0, "s"))
     rows.append(_row("run", "local error tolerance per step", r.tolerance, "K"))
     if r.max_step is not None:
         rows.append(_row("run", "largest step", r.max_step, "s"))
     mesh_of = {w.name: m for w, m in zip(system.walls, system.meshes)}
     for j, w in enumerate(case.wall_list):
         sec = f"wall {w.name}"
-        rows.append(_row(sec, "geometry", text=w.geometry))
-        if w.geometry == "slab":
+        rows.append(_row(sec, "geometry", text=w.shape))
+        if w.shape == "slab":
             rows.append(_row(sec, "area", w.area, "m2"))
         else:
             rows.append(_row(sec, "inner radius", w.inner_radius, "m"))
-            if w.geometry == "cylinder":
+            if w.shape == "cylinder":
                 rows.append(_row(sec, "length", w.length, "m"))
         rows.append(_row(sec, "total thickness", w.thickness, "m"))
         m = mesh_of.get(w.name)
@@ -162,17 +162,17 @@ def input_rows(case, system) -> list:
             if m is not None:
                 a, b = m.layer_nodes[i]
                 rows.append(_row(sec, f"{lab} cells", int(b) - int(a), ""))
-        for i, rc in enumerate(w.contact):
+        for i, rc in enumerate(w.interface_resistance):
             if rc:
                 rows.append(_row(sec, f"contact resistance after layer {i + 1}", rc, "m2*K/W"))
         if w.refine != 1.0:
             rows.append(_row(sec, "mesh refinement factor", w.refine, ""))
         br = case.walls[j].bridge if case.is_enclosure else None
         if br is not None:
-            rows.append(_row(sec, "bridge: share of the wall area", br.fraction, ""))
+            rows.append(_row(sec, "bridge: share of the wall area", br.area_fraction, ""))
             rows.append(_row(sec, "bridge: material", text=getattr(br.material, "name", "")))
             rows.append(_row(sec, "bridge: replaces layers", text=", ".join(
-                str(i + 1) for i in br.layers)))
+                str(i + 1) for i in br.replaces_layers)))
     for j, w, name, face, ew in _faces(case):
         sec = f"face {name}"
         if face is not None:
@@ -188,9 +188,9 @@ def input_rows(case, system) -> list:
             rows.append(_row("chamber", "heat capacity of the contents", cap, "J/K"))
         else:
             rows += _sched_rows("chamber", "heat capacity of the contents", cap, "J/K")
-        rows += _sched_rows("chamber", "room temperature", ch.ambient, "K")
+        rows += _sched_rows("chamber", "room temperature", ch.room_temperature, "K")
         rows.append(_row("chamber", "leakage air flow", ch.leakage, "m3/s"))
-        rows.append(_row("chamber", "further losses (conductance)", ch.extra_ua, "W/K"))
+        rows.append(_row("chamber", "further losses (conductance)", ch.extra_loss, "W/K"))
     hz = case.heater
     if hz is not None:
         rows += _sched_rows("heater", "rated power", hz.power, "W")
@@ -249,7 +249,7 @@ def correlation_rows(case) -> list:
         if face is None:
             c, eps, fixed, flux = ew.inner_h, ew.inner_emissivity, None, None
         else:
-            c, eps, fixed, flux = face.convection, face.emissivity, face.temperature, face.flux
+            c, eps, fixed, flux = face.convection, face.emissivity, face.fixed_temperature, face.flux
         if fixed is not None:
             out.append({"face": name, "model": "fixed surface temperature",
                         "reference": "boundary condition as given"})
@@ -279,9 +279,9 @@ def _layer_R(wall, i, k) -> float:
     (slab L/(k A); cylinder ln(r2/r1)/(2 pi k L); sphere (1/r1 - 1/r2)/(4 pi k))."""
     r = wall.radii()
     r1, r2 = float(r[i]), float(r[i + 1])
-    if wall.geometry == "slab":
+    if wall.shape == "slab":
         return (r2 - r1) / (k * wall.area)
-    if wall.geometry == "cylinder":
+    if wall.shape == "cylinder":
         return math.log(r2 / r1) / (2 * math.pi * k * wall.length)
     return (1.0 / r1 - 1.0 / r2) / (4 * math.pi * k)
 
@@ -305,7 +305,7 @@ def biot_rows(result) -> list:
             k, _ = _k_cp(layer.material, float(np.mean(Tw[a:b + 1])))
             Rs.append(_layer_R(w, i, k))
         A_out = w.outer_area
-        R_contact = sum(rc / w.area_at(w.radii()[i + 1]) for i, rc in enumerate(w.contact))
+        R_contact = sum(rc / w.area_at(w.radii()[i + 1]) for i, rc in enumerate(w.interface_resistance))
         R = float(sum(Rs) + R_contact)
         f = 2 * j + 1
         fixed = _outer_fixed(result.case, sysm, j)
@@ -326,7 +326,7 @@ def biot_rows(result) -> list:
 def _outer_fixed(case, sysm, j) -> bool:
     o = sysm.wall_origin[j] if hasattr(sysm, "wall_origin") else j
     face = case.outer if case.wall is not None else case.walls[o].outer
-    return face.temperature is not None
+    return face.fixed_temperature is not None
 
 
 def model_notes(result) -> list:

@@ -119,7 +119,7 @@ def current_value(case, parsed):
     if kind == "leakage":
         return float(case.chamber.leakage)
     if kind == "contact_resistance":
-        c = _wall_of(case, w).contact
+        c = _wall_of(case, w).interface_resistance
         return float(c[item]) if item < len(c) else 0.0
     if w is None:
         e = (case.outer if item == "outer" else case.inner).emissivity
@@ -153,9 +153,9 @@ def apply_value(case, parsed, value, base=None):
         return _with_wall(case, w, dataclasses.replace(wall, layers=tuple(layers)))
     if kind == "contact_resistance":
         wall = _wall_of(case, w)
-        c = list(wall.contact) + [0.0] * (len(wall.layers) - 1 - len(wall.contact))
+        c = list(wall.interface_resistance) + [0.0] * (len(wall.layers) - 1 - len(wall.interface_resistance))
         c[item] = float(value)
-        return _with_wall(case, w, dataclasses.replace(wall, contact=tuple(c)))
+        return _with_wall(case, w, dataclasses.replace(wall, interface_resistance=tuple(c)))
     if w is None:
         face = case.outer if item == "outer" else case.inner
         face = dataclasses.replace(face, emissivity=float(value))
@@ -194,14 +194,14 @@ def log_driven_case(case, t, P, T_start, tolerance=None):
         if case.heater is None:
             raise InputError("calibration: the case has no [heater]; allowed: an enclosure "
                              "with a heater (its power is replaced by the logged power)")
-        heater = dataclasses.replace(case.heater, power=sched, voltage_ratio=1.0, alpha=0.0)
+        heater = dataclasses.replace(case.heater, power=sched, voltage_ratio=1.0, resistance_coefficient=0.0)
         new = dataclasses.replace(case, heater=heater, control=Control(mode="fixed"),
-                                  chamber=dataclasses.replace(case.chamber, initial=None))
+                                  chamber=dataclasses.replace(case.chamber, start_temperature=None))
     else:
         w = case.wall
-        if w.geometry == "slab":
+        if w.shape == "slab":
             area = w.area
-        elif w.geometry == "cylinder":
+        elif w.shape == "cylinder":
             area = 2 * math.pi * w.inner_radius * w.length
         else:
             area = 4 * math.pi * w.inner_radius ** 2
@@ -216,14 +216,14 @@ def log_driven_case(case, t, P, T_start, tolerance=None):
     walls = []
     for ew in (new.walls or ()):
         walls.append(dataclasses.replace(ew, wall=dataclasses.replace(
-            ew.wall, layers=tuple(dataclasses.replace(ly, initial=None)
+            ew.wall, layers=tuple(dataclasses.replace(ly, start_temperature=None)
                                   for ly in ew.wall.layers))))
     if walls:
         new = dataclasses.replace(new, walls=tuple(walls))
     if new.wall is not None:
         new = dataclasses.replace(new, wall=dataclasses.replace(new.wall, layers=tuple(
-            dataclasses.replace(ly, initial=None) for ly in new.wall.layers)))
-    run = RunSettings(duration=span, initial=float(T_start), output_interval=dt,
+            dataclasses.replace(ly, start_temperature=None) for ly in new.wall.layers)))
+    run = RunSettings(duration=span, start_temperature=float(T_start), output_every=dt,
                       tolerance=tolerance or new.run.tolerance, max_step=new.run.max_step)
     return dataclasses.replace(new, run=run)
 
@@ -324,7 +324,7 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0, sensor
     def model(x):
         # the last entry is the uniform start temperature [K], fitted too (one noisy first
         # reading would otherwise bias everything after it)
-        c = dataclasses.replace(base, run=dataclasses.replace(base.run, initial=float(x[-1])))
+        c = dataclasses.replace(base, run=dataclasses.replace(base.run, start_temperature=float(x[-1])))
         for xi, pk in zip(x[:-1], parsed):
             c = apply_value(c, pk, from_x(xi, pk), base=base)
         runs[0] += 1

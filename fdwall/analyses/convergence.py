@@ -131,7 +131,7 @@ def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
            "nodes": int(result.system.n_unknowns), "note": _note(case)}
     if not result.complete:
         return {**out, "status": "not computed: the run itself did not complete"}
-    if np.ndim(case.run.initial) > 0:
+    if np.ndim(case.run.start_temperature) > 0:
         return {**out, "status": "not computed: the start temperature is a node profile, "
                                  "which a refined mesh cannot take over"}
     t0 = time.perf_counter()

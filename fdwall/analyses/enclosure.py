@@ -143,7 +143,7 @@ def _infer_t_off(case: Case):
     """When the heater goes off for the final cool-down [s], from the enable schedule or the
     power schedule; None if neither switches off."""
     D = float(case.run.duration)
-    for s in (case.control.enable, case.heater.power if case.heater is not None else None):
+    for s in (case.control.power_on, case.heater.power if case.heater is not None else None):
         if s is None or s.is_constant:
             continue
         t = _off_instant(s, D)
@@ -156,7 +156,7 @@ def _hold_time(case: Case) -> float:
     """Last instant of the run with the heater enabled [s] (used to read schedules for a
     steady hold)."""
     D = float(case.run.duration)
-    en = case.control.enable
+    en = case.control.power_on
     if en.is_constant:
         return D
     pts = sorted({0.0, D} | {t for t in en.times if 0.0 <= t <= D})
@@ -199,18 +199,20 @@ def _time_schedules(case: Case):
     """(label, Schedule) of every time schedule of an enclosure case."""
     out = []
     if case.chamber is not None:
-        out.append(("chamber ambient", case.chamber.ambient))
+        out.append(("chamber ambient", case.chamber.room_temperature))
     for ew in case.walls:
         f = ew.outer
-        for key in ("temperature", "flux", "fluid", "surroundings"):
-            s = getattr(f, key)
+        for key, attr in (("temperature", "fixed_temperature"), ("flux", "flux"),
+                          ("fluid", "fluid_temperature"),
+                          ("surroundings", "surroundings_temperature")):
+            s = getattr(f, attr)
             if s is not None:
                 out.append((f"wall '{ew.wall.name}' outer {key}", s))
     if case.heater is not None:
         out.append(("heater power", case.heater.power))
     c = case.control
-    for key in ("duty", "enable", "setpoint"):
-        s = getattr(c, key)
+    for key, attr in (("duty", "duty"), ("enable", "power_on"), ("setpoint", "setpoint")):
+        s = getattr(c, attr)
         if s is not None:
             out.append((f"control {key}", s))
     return out
@@ -549,7 +551,7 @@ def cooldown(result, t_off=None, temperatures=(), series=None) -> dict:
     m = t > t_off
     tt = np.concatenate([[t_off], t[m]])
     yy = np.concatenate([[T_off], y[m]])
-    amb = float(case.chamber.ambient(t_off))
+    amb = float(case.chamber.room_temperature(t_off))
     times_to = {}
     for lev in temperatures:
         x = _first_crossing(t, y, float(lev), t_off, up=False)
@@ -634,15 +636,15 @@ def periodic_state(case: Case, period: float, tol_K: float = 0.5, max_cycles: in
                 f"periodic_state: the {label} schedule of case '{case.name}' has knots up to "
                 f"{max(s.times):g} s, beyond the period {period:g} s. Every schedule must be "
                 "given over one cycle [0, period]; it then repeats each cycle.")
-    oi = case.run.output_interval
+    oi = case.run.output_every
     if oi is None or oi > period:
         oi = period / 200.0
-    cyc_case = replace(case, run=replace(case.run, duration=period, output_interval=oi,
-                                         profile_times=(), events=()))
+    cyc_case = replace(case, run=replace(case.run, duration=period, output_every=oi,
+                                         snapshots=(), watch=()))
     sysm = build_system(cyc_case)
     free = np.ones(sysm.n_unknowns, bool)
     free[np.asarray(sysm.dirich_node, dtype=int)] = False
-    T0 = sysm.initial_vector(case.run.initial if start is None else start)
+    T0 = sysm.initial_vector(case.run.start_temperature if start is None else start)
     if setpoint is None and case.control.setpoint is not None:
         setpoint = float(max(case.control.setpoint.values))
     cycles, changes = [], []
@@ -794,12 +796,12 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
                 "limit. Use control='full' (heater fully on) or a longer warm_up_limit.")
     # a trial run ends at the deadline; outputs fine enough to time the crossing
     ctl = case.control if control == "case" else Control(mode="fixed", duty=1.0,
-                                                           enable=case.control.enable)
+                                                           power_on=case.control.power_on)
     base = replace(case, control=ctl,
-                   run=replace(case.run, duration=lim, output_interval=lim / 400.0,
-                               profile_times=(), events=()))
+                   run=replace(case.run, duration=lim, output_every=lim / 400.0,
+                               snapshots=(), watch=()))
     sysm = build_system(base)
-    T_init = sysm.initial_vector(case.run.initial)
+    T_init = sysm.initial_vector(case.run.start_temperature)
     p_min = _steady_power_to_hold(base, target, lim)
     loss_sp = _steady_power_to_hold(base, sp, lim) if band > 0 else p_min
     if T_init[-1] >= target:

@@ -170,7 +170,7 @@ def _ambient(case, sysm, t) -> float:
     enclosure, else the outer face's fixed or fluid temperature (InputError if it has none)."""
     from ..solver.native import sched_eval
     if case.is_enclosure:
-        return float(case.chamber.ambient(t))
+        return float(case.chamber.room_temperature(t))
     outer = sysm.face_i[1]     # face 1: the outer face of the single wall
     s = outer[FI_FIXED_T] if outer[FI_FIXED_T] >= 0 else outer[FI_FLUID]
     if s < 0:
@@ -210,7 +210,7 @@ def implied_rc(case, t=None) -> dict:
     tt = st.time
     if case.is_enclosure:
         T_hot = float(st.T[-1])
-        T_amb = float(case.chamber.ambient(tt))
+        T_amb = float(case.chamber.room_temperature(tt))
         Q = float(st.heater_power)
     else:
         T_hot = float(st.face_T[0])
@@ -396,7 +396,7 @@ def _rc_notes(rc, modes, case) -> list:
 
 def _pure_flux(face) -> bool:
     """True when a face has nothing but (at most) an imposed flux."""
-    return (face.temperature is None and face.fluid is None and face.convection is None
+    return (face.fixed_temperature is None and face.fluid_temperature is None and face.convection is None
             and face.emissivity is None)
 
 
@@ -739,8 +739,8 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
     for i in range(tp.size):
         kt += [tp[i], tp[i + 1] if i + 1 < tp.size else max(duration, tp[i])]
         kv += [pp[i], pp[i]]
-    run = replace(case.run, duration=float(duration), initial=float(initial),
-                  output_interval=float(duration) / n_points, profile_times=(), events=(),
+    run = replace(case.run, duration=float(duration), start_temperature=float(initial),
+                  output_every=float(duration) / n_points, snapshots=(), watch=(),
                   steady_at=None)
     try:
         if case.is_enclosure or case.heater is not None:
@@ -748,7 +748,7 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
             if case.heater is None:
                 heater = Heater(power=sched, location="chamber")
             else:
-                heater = replace(case.heater, power=sched, voltage_ratio=1.0, alpha=0.0)
+                heater = replace(case.heater, power=sched, voltage_ratio=1.0, resistance_coefficient=0.0)
             return replace(case, run=run, heater=heater, control=Control())
         A = case.wall.inner_area
         return replace(_flux_inner(case, Schedule(kt, [v / A for v in kv])), run=run)
@@ -781,7 +781,7 @@ def _implied_for_compare(case, power, duration):
                              "case has no heat flowing at its steady state, so there is no R "
                              "or C to compare with; give a power.") from None
         r = rc_analysis(_driven_case(case, np.array([0.0]), np.array([pp.max()]), duration,
-                                     case.run.initial if np.ndim(case.run.initial) == 0
+                                     case.run.start_temperature if np.ndim(case.run.start_temperature) == 0
                                      else 293.15, 10))
     return {k: r.get(k) for k in ("R_K_per_W", "C_stored_J_per_K", "C_total_J_per_K",
                                   "C_effective_J_per_K", "tau_s", "first_moment_tau_s",

@@ -402,13 +402,13 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
         t_c = MAX_SIMULATED_CONTACT
     nw = len(wall.layers)
     layers = _resolved(tuple(wall.layers), skin, t_c, T_wall[-1], Ts)
-    contact = tuple(wall.contact) + (float(contact_resistance),) + (0.0,) * (len(skin) - 1)
-    slab = Wall(layers=layers, geometry="slab", area=1.0, contact=contact,
+    contact = tuple(wall.interface_resistance) + (float(contact_resistance),) + (0.0,) * (len(skin) - 1)
+    slab = Wall(layers=layers, shape="slab", area=1.0, interface_resistance=contact,
                 name=f"{wall.name} + skin")
     x = np.asarray(x, float)
     T_wall = np.asarray(T_wall, float)
-    inner = Face(temperature=float(T_wall[0])) if hold_inner else Face()
-    probe = Case(run=RunSettings(duration=t_c), wall=slab, inner=inner, outer=Face(temperature=Tc),
+    inner = Face(fixed_temperature=float(T_wall[0])) if hold_inner else Face()
+    probe = Case(run=RunSettings(duration=t_c), wall=slab, inner=inner, outer=Face(fixed_temperature=Tc),
                  name="contact")
     sysm = build_system(probe)
     m = sysm.meshes[0]
@@ -431,8 +431,8 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
         else:   # the shared node of the contact plane: the instant contact temperature
             T0[i] = contact_temperature(T_wall[-1], b_w, Ts, b_s)
     n_out = 400
-    case = replace(probe, run=RunSettings(duration=t_c, output_interval=t_c / n_out,
-                                          tolerance=0.002, initial=T0))
+    case = replace(probe, run=RunSettings(duration=t_c, output_every=t_c / n_out,
+                                          tolerance=0.002, start_temperature=T0))
     res = run(case, initial=T0, system=sysm, strict=False, progress=False)
     iface = m.interface_nodes
     j_surf = iface[nw - 1]
@@ -576,7 +576,7 @@ def _last_switch_off(case: Case):
     scheds = []
     if case.heater is not None:
         scheds.append(("heater power", case.heater.power))
-        scheds.append(("control enable", case.control.enable))
+        scheds.append(("control enable", case.control.power_on))
     if case.wall is not None and case.inner.flux is not None:
         scheds.append(("inner-face heat flux", case.inner.flux))
     for what, s in scheds:
@@ -670,11 +670,14 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
         amb = float(ambient)
 
         def worst(f: Face):
-            if f.temperature is not None:
+            if f.fixed_temperature is not None:
                 return f
-            return replace(f, fluid=amb if f.fluid is not None else None,
-                           surroundings=amb if (f.surroundings is not None or
-                                                f.emissivity is not None) else None)
+            return replace(f, fluid_temperature=(amb if f.fluid_temperature is not None
+                                                 else None),
+                           surroundings_temperature=(amb if (f.surroundings_temperature
+                                                             is not None or
+                                                             f.emissivity is not None)
+                                                     else None))
         run_case = _with_outer(case, worst)
         result = steady = None
         conditions["ambient"] = (f"outer air and radiant surroundings set to "
@@ -704,7 +707,7 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
             f = _outer_face(run_case, j)
             if f.flux is not None:
                 has_sun = True
-            s = f.fluid if f.fluid is not None else f.surroundings
+            s = f.fluid_temperature if f.fluid_temperature is not None else f.surroundings_temperature
             if s is not None:
                 vals.append(max(s.values))
         amb = float(max(vals)) if vals else 293.15
@@ -875,7 +878,7 @@ def _sensitivity(case, rows, warnings):
                  lambda f: replace(f, emissivity=0.9) if f.emissivity is not None else f)]
     out = []
     for label, fn in variants:
-        c = _with_outer(case, lambda f, fn=fn: f if f.temperature is not None else fn(f))
+        c = _with_outer(case, lambda f, fn=fn: f if f.fixed_temperature is not None else fn(f))
         try:
             st = solve_steady(c)
         except Exception as exc:

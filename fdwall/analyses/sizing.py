@@ -105,7 +105,7 @@ def _natural_of(conv, wall):
                 return conv.natural
         elif conv.kind != "fixed":
             return conv
-    if wall.geometry == "cylinder":
+    if wall.shape == "cylinder":
         return Convection.horizontal_cylinder(2.0 * float(wall.radii()[-1]))
     raise InputError("a wind design condition on a flat wall needs a convection correlation "
                      "on its outer face (the case gives a fixed film coefficient, so the "
@@ -118,16 +118,16 @@ def _apply_conditions(case, wi, cond: Conditions):
     wall, face = _wall(case, wi), _outer(case, wi)
     ch = {}
     if cond.ambient is not None:
-        ch["fluid"] = float(cond.ambient)
-        ch["surroundings"] = float(cond.ambient)
+        ch["fluid_temperature"] = float(cond.ambient)
+        ch["surroundings_temperature"] = float(cond.ambient)
     if cond.wind is not None:
         conv = face.convection
-        if wall.geometry == "sphere":
+        if wall.shape == "sphere":
             raise InputError("wind design conditions are not available for a sphere")
         nat = _natural_of(conv, wall)
         if cond.wind == 0:
             ch["convection"] = nat
-        elif wall.geometry == "cylinder":
+        elif wall.shape == "cylinder":
             ch["convection"] = Convection.wind_cylinder(2.0 * float(wall.radii()[-1]),
                                                         float(cond.wind), with_natural=nat)
         else:
@@ -295,9 +295,9 @@ class Economics:
             return float(np.interp(thickness, xs, cs))
         r1 = float(wall.radii()[layer])
         r2 = r1 + float(thickness)
-        if wall.geometry == "slab":
+        if wall.shape == "slab":
             vol = thickness
-        elif wall.geometry == "cylinder":
+        elif wall.shape == "cylinder":
             vol = math.pi * (r2 ** 2 - r1 ** 2)
         else:
             vol = 4.0 / 3.0 * math.pi * (r2 ** 3 - r1 ** 3)
@@ -378,7 +378,7 @@ def with_thickness(case, layer: int, thickness: float, cells: int | None = None,
                           cells=cells if cells is not None else lays[layer].cells)
     nw = replace(w, layers=tuple(lays))
     out = _replace_wall(case, wall, nw)
-    if w.geometry == "cylinder":
+    if w.shape == "cylinder":
         f = _outer(case, wall)
         conv = _regrow_diameter(f.convection, 2.0 * float(w.radii()[-1]),
                                 2.0 * float(nw.radii()[-1]))
@@ -412,9 +412,9 @@ def stock_round_up(x: float, step: float | None = None, stock=None) -> float:
 
 # ============================================================================ measurements
 def _per_unit(wall, q: float) -> float:
-    if wall.geometry == "slab":
+    if wall.shape == "slab":
         return q / wall.area
-    if wall.geometry == "cylinder":
+    if wall.shape == "cylinder":
         return q / wall.length
     return q
 
@@ -448,7 +448,7 @@ def _measure_steady(s, case, wi) -> dict:
     paths = sysm.paths_of(0 if wi is None else wi)
     j0 = paths[0]
     skin = max(float(s.face_T[2 * j + 1]) for j in paths)
-    T0 = sysm.initial_vector(case.run.initial)
+    T0 = sysm.initial_vector(case.run.start_temperature)
     Hs, _ = sysm.enthalpy(s.T)
     H0, _ = sysm.enthalpy(T0)
     stored = 0.0
@@ -632,7 +632,7 @@ def _check_limits(case, wi, targets):
         amb = cond.ambient if cond is not None and cond.ambient is not None else None
         if amb is None:
             try:
-                amb = float(_outer(case, wi).fluid(0.0))
+                amb = float(_outer(case, wi).fluid_temperature(0.0))
             except (TypeError, ValueError, AttributeError):
                 amb = None
         if amb is not None and tg.limit <= amb:
@@ -796,7 +796,7 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
                     "discount_rate": economics.rate, "meets_targets": tab["all_pass"][i]}
     notes = []
     crit = None
-    if w.geometry in ("cylinder", "sphere"):
+    if w.shape in ("cylinder", "sphere"):
         mat = w.layers[layer].material
         r_in = float(w.radii()[layer])
         j0 = s_ans.system.paths_of(0 if wi is None else wi)[0]
@@ -805,7 +805,7 @@ def size_layer(case, layer: int, targets, t_min: float = 0.005, t_max: float = 0
         Tm = float(np.mean(np.asarray(s_ans.wall_T(j0))[a:b + 1]))
         k = float(mat.k(Tm))
         if hs > 0:
-            crit = (critical_radius_cylinder(k, hs) if w.geometry == "cylinder"
+            crit = (critical_radius_cylinder(k, hs) if w.shape == "cylinder"
                     else critical_radius_sphere(k, hs))
             if crit > r_in:
                 notes.append(f"critical radius {crit * 1000:.1f} mm (k {k:.3g} W/m/K, outer "
@@ -869,7 +869,7 @@ def _table(ev, case, wi, layer, rows, targets, energy, economics, conds) -> dict
         tab["skin_peak_K"] = []
         if timed:
             tab["warm_up_s"] = []
-    ekey = {"slab": "energy_J_per_m2", "cylinder": "energy_J_per_m"}.get(w.geometry, "energy_J")
+    ekey = {"slab": "energy_J_per_m2", "cylinder": "energy_J_per_m"}.get(w.shape, "energy_J")
     if energy is not None:
         tab[ekey] = []
         if energy.price is not None:

@@ -42,9 +42,9 @@ def _face_sources(face):
     out = []
     if face is None:
         return out
-    for attr, what in (("temperature", "fixed surface temperature"),
-                       ("fluid", "fluid temperature"),
-                       ("surroundings", "radiant surroundings temperature")):
+    for attr, what in (("fixed_temperature", "fixed surface temperature"),
+                       ("fluid_temperature", "fluid temperature"),
+                       ("surroundings_temperature", "radiant surroundings temperature")):
         v = _max(getattr(face, attr, None))
         if v is not None:
             out.append((v, what))
@@ -124,12 +124,12 @@ def _service_warnings(case):
             _layer_service(out, w, i, sp, "the setpoint of the wall sensor "
                                           f"{ctl.sensor_depth * 1000:g} mm deep")
     # --- start temperatures
-    init = np.asarray(case.run.initial, dtype=float)
+    init = np.asarray(case.run.start_temperature, dtype=float)
     if init.ndim == 0:
         for w in walls:
             for i, layer in enumerate(w.layers):
-                T0 = float(init) if layer.initial is None else layer.initial
-                _layer_service(out, w, i, T0, "the start temperature" if layer.initial is None
+                T0 = float(init) if layer.start_temperature is None else layer.start_temperature
+                _layer_service(out, w, i, T0, "the start temperature" if layer.start_temperature is None
                                else "its start temperature")
     else:
         try:
@@ -179,7 +179,7 @@ def _convection_warnings(case):
     if case.is_enclosure:
         sp = _max(case.control.setpoint)
         for ew in case.walls:
-            check(ew.outer.convection, _max(ew.outer.fluid), True,
+            check(ew.outer.convection, _max(ew.outer.fluid_temperature), True,
                   f"Wall '{ew.wall.name}' outer face")
             check(ew.inner_h, sp, False, f"Wall '{ew.wall.name}' inner face")
     else:
@@ -188,9 +188,9 @@ def _convection_warnings(case):
         hot_out = max([T for T, _ in _face_sources(case.outer)] or [0.0])
         if case.heater is not None or case.inner.flux is not None:
             hot_in = max(hot_in, hot_out + 1.0)
-        check(case.inner.convection, _max(case.inner.fluid), hot_in < hot_out,
+        check(case.inner.convection, _max(case.inner.fluid_temperature), hot_in < hot_out,
               f"Wall '{w.name}' inner face")
-        check(case.outer.convection, _max(case.outer.fluid), hot_out <= hot_in,
+        check(case.outer.convection, _max(case.outer.fluid_temperature), hot_out <= hot_in,
               f"Wall '{w.name}' outer face")
     return out
 

@@ -300,9 +300,9 @@ class _Loader:
                        enumerate(run.tables("watch", S.WATCH, "a [[run.watch]] entry", [])))
 
         with _model(self.file, "run", "the [run] table"):
-            settings = RunSettings(duration=duration, initial=start, output_interval=out_every,
-                                   profile_times=tuple(snaps), tolerance=tol, max_step=max_step,
-                                   events=events, steady_at=steady_at)
+            settings = RunSettings(duration=duration, start_temperature=start, output_every=out_every,
+                                   snapshots=tuple(snaps), tolerance=tol, max_step=max_step,
+                                   watch=events, steady_at=steady_at)
         with _model(self.file, "(case)", "the case"):
             if kind == "wall":
                 case = Case(run=settings, wall=walls[0], inner=inner, outer=outer,
@@ -511,7 +511,7 @@ class _Loader:
             starts.append(start_l)
             with _model(self.file, ls.path, "the layer"):
                 layers.append(Layer(material=mat, thickness=th, cells=cells, name=lname,
-                                    initial=start_l))
+                                    start_temperature=start_l))
         n_if = len(layers) - 1
         contact = ()
         if sec.has("interface_resistance"):
@@ -525,8 +525,8 @@ class _Loader:
                                 'from the inner face outward, e.g. "0.002 m2K/W" ("0 m2K/W" for '
                                 "perfect contact)")
         with _model(self.file, sec.path, f"wall '{name}'"):
-            wall = Wall(layers=tuple(layers), geometry=shape, area=area, inner_radius=r_in,
-                        length=length, contact=contact, refine=refine, name=name)
+            wall = Wall(layers=tuple(layers), shape=shape, area=area, inner_radius=r_in,
+                        length=length, interface_resistance=contact, refine=refine, name=name)
         nodes = self._check_mesh(sec, wall, lsecs)
         geo = dict(wall=wall, orientation=orientation)
         if not enclosure:
@@ -582,7 +582,7 @@ class _Loader:
         return nodes
 
     def _bridge(self, sec, wall):
-        if wall.geometry != "slab":
+        if wall.shape != "slab":
             raise sec.error(None, "thermal bridges are supported on slab walls only")
         f = sec.quantity("area_fraction", "dimensionless")
         if not 0.0 < f < 1.0:
@@ -602,7 +602,7 @@ class _Loader:
                                                    f"{len(wall.layers)} layer(s)",
                                 f"0-based layer indices 0..{len(wall.layers) - 1}")
         with _model(self.file, sec.path, "the bridge"):
-            return Bridge(fraction=f, material=mat, layers=tuple(idx))
+            return Bridge(area_fraction=f, material=mat, replaces_layers=tuple(idx))
 
     # ------------------------------------------------------------------ faces
     def _face(self, sec, side, geo):
@@ -640,7 +640,7 @@ class _Loader:
                                 "either fixed_temperature alone, or the exchange keys (air, "
                                 "convection, radiation, fluxes) without it")
             T = sec.schedule("fixed_temperature", "temperature")
-            return Face(temperature=T)
+            return Face(fixed_temperature=T)
         air = sec.schedule("fluid_temperature", "temperature", None)
         conv = None
         which = sec.exclusive("film_coefficient", "convection")
@@ -715,7 +715,7 @@ class _Loader:
             fluxes.append(_combine(lambda g: a * g, G))
         flux = _combine(lambda *q: float(sum(q)), *fluxes) if fluxes else None
         with _model(self.file, sec.path, f"the {side} face"):
-            return Face(flux=flux, fluid=air, convection=conv, emissivity=eps, surroundings=surr)
+            return Face(flux=flux, fluid_temperature=air, convection=conv, emissivity=eps, surroundings_temperature=surr)
 
     def _emissivity(self, sec, key):
         v = sec.raw(key)
@@ -751,12 +751,12 @@ class _Loader:
                                 f"for '{model}': " + ", ".join(sorted(used)))
         wall, orient = geo["wall"], geo["orientation"]
         if model == "natural":
-            need = ("diameter" if wall.geometry != "slab" else
+            need = ("diameter" if wall.shape != "slab" else
                     "height" if orient == "side" else "char_length")
             for k in ("height", "char_length", "diameter"):
                 if k != need and sec.has(k):
                     raise sec.error(k, f"'{k}' does not apply to the convection model 'natural' "
-                                       f"on a {wall.geometry} wall with orientation '{orient}'",
+                                       f"on a {wall.shape} wall with orientation '{orient}'",
                                     f"'{need}' (natural convection of "
                                     + ("a horizontal cylinder" if need == "diameter" else
                                        "a vertical plate" if need == "height" else
@@ -771,7 +771,7 @@ class _Loader:
             kw["pressure"] = sec.quantity("pressure", "pressure", positive=True)
         loc = {"where": "chamber" if chamber else "outside"}
         r = wall.radii()[0] if side == "inner" else wall.radii()[-1]
-        face_d = 2.0 * r if wall.geometry == "cylinder" else None
+        face_d = 2.0 * r if wall.shape == "cylinder" else None
 
         def diameter():
             if sec.has("diameter"):
@@ -784,9 +784,9 @@ class _Loader:
 
         with _model(self.file, sec.path, "the convection model"):
             if model == "natural":
-                if wall.geometry == "cylinder":
+                if wall.shape == "cylinder":
                     return Convection.horizontal_cylinder(diameter(), **kw, **loc)
-                if wall.geometry == "sphere":
+                if wall.shape == "sphere":
                     raise sec.error("model", "there is no natural-convection model for a sphere",
                                     "film_coefficient, or a model that fits the face best, e.g. "
                                     "horizontal_cylinder with a diameter")
@@ -856,8 +856,8 @@ class _Loader:
         box = sec.quantity_list("inner_dimensions", "length", None, positive=True, length=3)
         start = sec.quantity("start_temperature", "temperature", None)
         with _model(self.file, sec.path, "the chamber"):
-            ch = Chamber(capacity=cap, ambient=room, leakage=leak, extra_ua=extra,
-                         box=tuple(box) if box else None, initial=start)
+            ch = Chamber(capacity=cap, room_temperature=room, leakage=leak, extra_loss=extra,
+                         inner_dimensions=tuple(box) if box else None, start_temperature=start)
         return ch, start
 
     def _wall_ref(self, sec, key, default=0):
@@ -914,9 +914,10 @@ class _Loader:
                                                  "an element on ten times its rated voltage "
                                                  "takes a hundred times its rated power and "
                                                  "burns out"),
-                          alpha=sec.quantity("resistance_coefficient", "inverse_temperature",
-                                             0.0, nonnegative=True),
-                          t_ref=sec.quantity("rated_at", "temperature", ROOM))
+                          resistance_coefficient=sec.quantity(
+                              "resistance_coefficient", "inverse_temperature", 0.0,
+                              nonnegative=True),
+                          rated_at=sec.quantity("rated_at", "temperature", ROOM))
 
     def _control(self, sec, chamber):
         mode = sec.text("mode", "fixed", choices=("fixed", "duty", "thermostat", "pid"))
@@ -951,10 +952,10 @@ class _Loader:
             for k in ("sensor_wall", "sensor_depth"):
                 if sec.has(k):
                     raise sec.error(k, f"'{k}' applies to sensor = \"wall\" only")
-        kw["kp"] = sec.quantity("proportional_gain", "proportional_gain", 0.05, nonnegative=True)
-        kw["ki"] = sec.quantity("integral_gain", "integral_gain", 0.0, nonnegative=True)
-        kw["kd"] = sec.quantity("derivative_gain", "derivative_gain", 0.0, nonnegative=True)
-        kw["enable"] = sec.schedule("power_on", "dimensionless", 1.0, lo=0.0, hi=1.0)
+        for k, default in (("proportional_gain", 0.05), ("integral_gain", 0.0),
+                           ("derivative_gain", 0.0)):
+            kw[k] = sec.quantity(k, k, default, nonnegative=True)
+        kw["power_on"] = sec.schedule("power_on", "dimensionless", 1.0, lo=0.0, hi=1.0)
         with _model(self.file, sec.path, "the control"):
             return Control(**kw)
 
@@ -987,4 +988,4 @@ class _Loader:
             where, spot = "", f"{depth * 1000:g} mm deep"
         name = sec.text("name", f"{self.wall_names[j]} {spot} at {thr - 273.15:g} degC")
         with _model(self.file, sec.path, "the watch entry"):
-            return Event(threshold=thr, wall=j, depth=depth, where=where, name=name)
+            return Event(temperature=thr, wall=j, depth=depth, where=where, name=name)

@@ -168,7 +168,7 @@ def _build(case, path_arg):
     from ..system import build_system
     try:
         system = build_system(case)
-        system.initial_vector(case.run.initial)
+        system.initial_vector(case.run.start_temperature)
         try:  # validate the watched events (wall/interface indices) before running
             from ..solver.transient import event_rows
             event_rows(system, case)

@@ -7,6 +7,7 @@ from pathlib import Path
 
 from . import common
 from .common import EXIT_OK, InputError
+from .interrupts import run_guarded
 
 
 def _loss(text, geometry):
@@ -210,6 +211,13 @@ def _layer(args, wall):
 
 
 def cmd_size(args) -> int:
+    """``fdwall size``: SIGINT / SIGTERM while it searches stop it at once, write nothing (a
+    search cut short has no answer) and exit 130 / 143."""
+    return run_guarded(lambda guard: _size(args, guard), "fdwall size", args.case,
+                       "sizing results")
+
+
+def _size(args, guard) -> int:
     from ..errors import ConvergenceError
     from ..errors import InputError as LibInputError
     from ..sizing import (
@@ -253,7 +261,7 @@ def cmd_size(args) -> int:
                          "case's run; give --skin-limit TEMPERATURE or --contact-time TIME "
                          "--surface CLASS.")
     if args.loss_limit:
-        v, u = _loss(args.loss_limit, wall.geometry)
+        v, u = _loss(args.loss_limit, wall.shape)
         targets.append(LossTarget(v, unit=u, conditions=loss_c))
     if (args.contact_time is None) != (args.surface is None):
         raise InputError("--contact-time TIME and --surface CLASS go together (the touch "
@@ -351,7 +359,7 @@ def cmd_size(args) -> int:
     stem = Path(args.case).stem
     outdir = common.output_dir(args, stem)
     h5 = outdir / f"{stem}-size.h5"
-    lunit = {"slab": "W/m2", "cylinder": "W/m"}.get(wall.geometry, "W")
+    lunit = {"slab": "W/m2", "cylinder": "W/m"}.get(wall.shape, "W")
     inputs = {"layer": layer, "t_min_m": tmin, "t_max_m": tmax, "conductivity_factor": kf,
               "wall": r.wall or "", "material": r.material, "loss_unit": lunit,
               "stored_unit": {"W/m2": "J/m2", "W/m": "J/m"}.get(lunit, "J")}
@@ -379,29 +387,30 @@ def cmd_size(args) -> int:
             "thickness_m": [c["thickness_m"] if c["thickness_m"] is not None else float("nan")
                             for c in cand_rows],
             "loss": [c.get("loss", float("nan")) for c in cand_rows]}
-    files = []
-    if not args.no_plots:
-        from ..report.sizing_plot import plot_tradeoff
-        png = outdir / f"{stem}-size.png"
-        outdir.mkdir(parents=True, exist_ok=True)
-        what = f"layer {layer} ({r.material})" + (f" of wall '{r.wall}'" if r.wall else "")
-        files.append(plot_tradeoff(d, png, f"{stem}: sizing {what}", lunit))
-    files = common.write_analysis(args, h5, {
-            "inputs": inputs, "summary": summary, "tables": tables,
-            "warnings": {"items": r.warnings or ["none"]},
-            "references": {"items": [
-                "grid bracket + scipy.optimize.brentq on the steady solve (and on runs of the "
-                "case for transient targets)",
-                "touch target: fdwall.safety.touch_limit (ISO 13732-1 table, from memory)",
-                "present value factor (1 - (1 + i)^-n) / i (engineering economics)"]},
-            "notes": {"items": r.notes + ["service limits checked at the answer thickness "
-                      "against each material's maximum service temperature"]}},
-        kind="size", case_name=stem, caution=r.caution) + files
-    d["files"] = files
-    if args.json:
-        print(common.dumps(d))
-    elif not args.quiet:
-        _print_text(args, r, d, layer, lunit, cand_rows, heater)
+    with guard.writing():
+        files = []
+        if not args.no_plots:
+            from ..report.sizing_plot import plot_tradeoff
+            png = outdir / f"{stem}-size.png"
+            outdir.mkdir(parents=True, exist_ok=True)
+            what = f"layer {layer} ({r.material})" + (f" of wall '{r.wall}'" if r.wall else "")
+            files.append(plot_tradeoff(d, png, f"{stem}: sizing {what}", lunit))
+        files = common.write_analysis(args, h5, {
+                "inputs": inputs, "summary": summary, "tables": tables,
+                "warnings": {"items": r.warnings or ["none"]},
+                "references": {"items": [
+                    "grid bracket + scipy.optimize.brentq on the steady solve (and on runs of the "
+                    "case for transient targets)",
+                    "touch target: fdwall.safety.touch_limit (ISO 13732-1 table, from memory)",
+                    "present value factor (1 - (1 + i)^-n) / i (engineering economics)"]},
+                "notes": {"items": r.notes + ["service limits checked at the answer thickness "
+                          "against each material's maximum service temperature"]}},
+            kind="size", case_name=stem, caution=r.caution) + files
+        d["files"] = files
+        if args.json:
+            print(common.dumps(d))
+        elif not args.quiet:
+            _print_text(args, r, d, layer, lunit, cand_rows, heater)
     return EXIT_OK
 
 

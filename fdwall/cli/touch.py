@@ -6,6 +6,7 @@ from pathlib import Path
 from ..analyses import convergence
 from . import common
 from .common import EXIT_NOT_CONVERGED, EXIT_OK, InputError, WriteError
+from .interrupts import SIGNAL_NAMES, SignalStop, exit_code_for, run_guarded
 
 
 def _c(T):
@@ -100,10 +101,17 @@ def _opt(args, name, kind, **kw):
 
 
 def cmd_touch(args) -> int:
+    """``fdwall touch``: SIGINT / SIGTERM while it computes stop it at once, write nothing
+    (verdicts of an unfinished run would be 'unknown') and exit 130 / 143."""
+    return run_guarded(lambda guard: _touch(args, guard), "fdwall touch", args.case,
+                       "touch verdicts")
+
+
+def _touch(args, guard) -> int:
     # options first: bad input must write nothing
     from ..analyses.safety import _check_class, _check_criterion
     from ..errors import InputError as LibInputError
-    from ..safety import CRITERIA, DAMAGE_MODELS, SURFACE_CLASSES, evaluate_touch, write_touch_plots
+    from ..safety import CRITERIA, DAMAGE_MODELS, SURFACE_CLASSES, evaluate_touch
     try:
         if args.criterion not in CRITERIA:
             _check_criterion(args.criterion)
@@ -148,8 +156,36 @@ def cmd_touch(args) -> int:
     d.update({"case_file": str(args.case), "fdwall_version": common.version(),
               "input_warnings": warns})
     files = [str(h5), str(js)]
+    with guard.writing():
+        _write_touch(args, a, d, h5, js, outdir, stem, files)
+    if guard.flag.is_set():   # a signal while writing: the files are done, stop here
+        return EXIT_OK
+    if args.report:  # convergence check and report data, stored in the result first
+        try:
+            convergence.store_report_data(a.result, h5, case,
+                                          progress=bool(getattr(args, "progress", False)))
+        except SignalStop as exc:
+            common.error(f"interrupted ({SIGNAL_NAMES.get(exc.signum, exc.signum)}) during the "
+                         f"convergence check of --report: the touch results of '{args.case}' "
+                         f"are written and complete ({', '.join(files)}); no report is made.")
+            return exit_code_for(exc.signum)
+    with guard.writing():
+        report = common.write_report(args, h5)
+        if report:
+            files.append(str(report))
+        _print_touch(args, a, d, files)
+    if not a.complete:
+        common.error(f"the run of '{args.case}' stopped early: {a.result.message} Verdicts are "
+                     "'unknown'.")
+        return EXIT_NOT_CONVERGED
+    return EXIT_OK
+
+
+def _write_touch(args, a, d, h5, js, outdir, stem, files) -> None:
+    """Write the touch result file, its JSON and plots (each atomically)."""
+    from ..h5tree import add_group
+    from ..safety import write_touch_plots
     try:
-        from ..h5tree import add_group
         outdir.mkdir(parents=True, exist_ok=True)
         a.result.steady = a.steady
         a.result.write_hdf5(h5)
@@ -161,24 +197,16 @@ def cmd_touch(args) -> int:
     except OSError as exc:
         raise WriteError(f"cannot write the results to '{outdir}': {exc.strerror or exc}. "
                          "Choose another folder with --out DIR.") from None
-    if args.report:  # convergence check and report data, stored in the result first
-        convergence.store_report_data(a.result, h5, case,
-                                      progress=bool(getattr(args, "progress", False)))
-    report = common.write_report(args, h5)
-    if report:
-        files.append(str(report))
+
+
+def _print_touch(args, a, d, files) -> None:
     if args.json:
         print(common.dumps(d))
-    elif not quiet:
+    elif not args.quiet:
         print(format_touch(a, args.case), end="")
         print("\nFiles written:")
         for f in files:
             print(f"  {f}")
-    if not a.complete:
-        common.error(f"the run of '{args.case}' stopped early: {a.result.message} Verdicts are "
-                     "'unknown'.")
-        return EXIT_NOT_CONVERGED
-    return EXIT_OK
 
 
 def register(sub) -> None:

@@ -337,8 +337,10 @@ def _run_sections(data: dict, system: str) -> dict:
         resolved = {}
     run = resolved.get("run") or {}
     steps = []
+    if "output_every" not in run and "output_interval" in run:   # archives written before the rename
+        run = {**run, "output_every": run["output_interval"]}
     for key, label, unit in (("duration", "duration", "s"),
-                             ("output_interval", "output interval", "s"),
+                             ("output_every", "output interval", "s"),
                              ("tolerance", "local error tolerance per step", "K"),
                              ("max_step", "largest step allowed", "s"),
                              ("exact_outputs", "outputs at exact step ends", "")):

@@ -225,8 +225,8 @@ def _setpoint(ax, result, th):
         return False
     t = np.asarray(result.times, dtype=float)
     sp = np.asarray(ctl.setpoint(t), dtype=float) - KELVIN_OFFSET
-    if ctl.enable is not None:   # no setpoint while the master switch is off
-        sp = np.where(np.asarray(ctl.enable(t), dtype=float) > 0.5, sp, np.nan)
+    if ctl.power_on is not None:   # no setpoint while the master switch is off
+        sp = np.where(np.asarray(ctl.power_on(t), dtype=float) > 0.5, sp, np.nan)
     where = "chamber" if ctl.sensor == "chamber" else f"wall sensor at {ctl.sensor_depth * 1e3:g} mm"
     ax.plot(th, sp, color="#555555", lw=1.3, dashes=(4.0, 1.5, 1.0, 1.5), zorder=6,
             label=f"setpoint ({where})", gid="setpoint")
@@ -293,13 +293,13 @@ def plot_temperatures(result, path) -> str:
                 label="chamber", zorder=3, gid="chamber")
     _setpoint(ax, result, th)
     # event crossings as small markers on the panel of the watched spot
-    for (name, (up, down)), ev in zip(result.events.items(), case.run.events):
+    for (name, (up, down)), ev in zip(result.events.items(), case.run.watch):
         a = ax_out if ev.where == "outer" else ax
         for t, mk in ((up, "^"), (down, "v")):
             if np.isfinite(t):
-                a.plot([t / 3600.0], [ev.threshold - KELVIN_OFFSET], mk, color="#444444", ms=7,
+                a.plot([t / 3600.0], [ev.temperature - KELVIN_OFFSET], mk, color="#444444", ms=7,
                        mfc="white", mew=1.3, zorder=7, label="_event")
-                a.annotate(name, (t / 3600.0, ev.threshold - KELVIN_OFFSET),
+                a.annotate(name, (t / 3600.0, ev.temperature - KELVIN_OFFSET),
                            textcoords="offset points", xytext=(5, 5), fontsize=7,
                            color="#444444")
     axes = [ax, ax_out] if split else [ax]
@@ -328,7 +328,7 @@ def plot_temperatures(result, path) -> str:
 
 def _profile_times(result, times):
     if times is None:
-        times = list(result.case.run.profile_times)
+        times = list(result.case.run.snapshots)
     times = [float(t) for t in times]
     if not times:
         t_end = float(result.times[-1])
@@ -349,7 +349,7 @@ def _per_length(result):
     """(divisor [m], label suffix) for heat flows: per metre of pipe when every wall is a
     cylinder (results of a pipe are per its length), else (1, '')."""
     walls = _walls(result)
-    if walls and all(w.geometry == "cylinder" for w in walls):
+    if walls and all(w.shape == "cylinder" for w in walls):
         lengths = {float(getattr(w, "length", 1.0)) for w in walls}
         if len(lengths) == 1:
             return lengths.pop(), "/m"
@@ -366,7 +366,7 @@ def plot_profiles(result, path, times=None) -> str:
     path : str or Path
         PNG file to write.
     times : sequence of float, optional
-        Times of the profiles [s]; default ``case.run.profile_times`` or 5 evenly spaced.
+        Times of the profiles [s]; default ``case.run.snapshots`` or 5 evenly spaced.
 
     Returns
     -------
@@ -414,7 +414,7 @@ def plot_profiles(result, path, times=None) -> str:
                     ha="center", va="top", fontsize=8 if wide else 7, color="#333333",
                     rotation=0 if wide else 90, zorder=6, clip_on=True, gid=f"layer-{i}",
                     bbox=None if wide else dict(fc="white", ec="none", alpha=0.75, pad=1.0))
-        geo = "" if w.geometry == "slab" else f" ({w.geometry})"
+        geo = "" if w.shape == "slab" else f" ({w.shape})"
         ttl = f"wall '{w.name}'{geo}"
         import textwrap
         ax.set_title("\n".join(textwrap.wrap(ttl, 70 if ncol == 2 else 100)), fontsize=9)

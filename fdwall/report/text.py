@@ -165,6 +165,19 @@ def _speaks_of_skin(text: str) -> bool:
 
 # --------------------------------------------------------------------------- run summary
 
+def run_status_text(result) -> str:
+    """One line for the state of a run: "complete", "INCOMPLETE: interrupted (SIGINT)" (or
+    SIGTERM; "(stop requested)" when an observer, not a signal, stopped it), or
+    "INCOMPLETE (stopped early)" for a run that failed to converge or was implausible."""
+    if result.complete:
+        return "complete"
+    if getattr(result, "status", "") == "interrupted":
+        msg = result.message or ""
+        names = [n for n in ("SIGINT", "SIGTERM") if n in msg]
+        return f"INCOMPLETE: interrupted ({names[0] if names else 'stop requested'})"
+    return "INCOMPLETE (stopped early)"
+
+
 def format_summary(result) -> str:
     """Plain-text summary of a transient run (and of its steady state, if attached).
 
@@ -184,8 +197,7 @@ def format_summary(result) -> str:
     L = []
     title = f"fdwall run summary: case '{case.name}'"
     L += [title, "=" * len(title)]
-    status = "complete" if result.complete else "INCOMPLETE (stopped early)"
-    L.append(f"  status            {status}")
+    L.append(f"  status            {run_status_text(result)}")
     L.append(f"  simulated time    {fmt_time(float(result.times[-1]))}  "
              f"({float(result.times[-1]):.0f} s of {case.run.duration:.0f} s asked)")
     L.append(f"  walls             {len(case.wall_list)}"
@@ -282,12 +294,12 @@ def format_summary(result) -> str:
              f"{result.relative_residual:.2e} [-]")
 
     # events
-    if case.run.events:
+    if case.run.watch:
         L += _heading("Events (first crossings)")
         rows = []
-        for e, (ev, (name, (up, down))) in enumerate(zip(case.run.events, result.events.items())):
+        for e, (ev, (name, (up, down))) in enumerate(zip(case.run.watch, result.events.items())):
             wname = _case_wall_name(case, ev.wall)
-            rows.append([name, f"{wname}, {_event_where(ev, _case_wall(case, ev.wall))}", f"{degc(ev.threshold):.1f}",
+            rows.append([name, f"{wname}, {_event_where(ev, _case_wall(case, ev.wall))}", f"{degc(ev.temperature):.1f}",
                          fmt_time(up) if math.isfinite(up) else "not reached",
                          fmt_time(down) if math.isfinite(down) else "not reached"])
         L += _table(["event", "where", "threshold", "rising at", "falling at"],
@@ -415,7 +427,7 @@ def _steady_lines(st, case, title):
     if case.heater is not None:
         enabled = True
         try:
-            enabled = float(case.control.enable(st.time)) > 0.5
+            enabled = float(case.control.power_on(st.time)) > 0.5
         except Exception:  # pragma: no cover - enable always a Schedule in valid cases
             pass
         if not enabled:
@@ -493,13 +505,13 @@ def _eps_text(e) -> str:
 
 
 def _face_text(face) -> str:
-    if face.temperature is not None:
-        return f"held at {_sched_text(face.temperature)}"
+    if face.fixed_temperature is not None:
+        return f"held at {_sched_text(face.fixed_temperature)}"
     parts = []
     if face.convection is not None:
-        parts.append(f"convection {_conv_text(face.convection)} to air at {_sched_text(face.fluid)}")
+        parts.append(f"convection {_conv_text(face.convection)} to air at {_sched_text(face.fluid_temperature)}")
     if face.emissivity is not None:
-        sur = face.surroundings if face.surroundings is not None else face.fluid
+        sur = face.surroundings_temperature if face.surroundings_temperature is not None else face.fluid_temperature
         parts.append(f"radiation, {_eps_text(face.emissivity)}, to surroundings at {_sched_text(sur)}")
     if face.flux is not None:
         parts.append(f"imposed flux {_sched_text(face.flux, 'W/m2')} into the wall")
@@ -510,9 +522,9 @@ def _layer_resistance(wall, i, k) -> float:
     """Conduction resistance of layer ``i`` of ``wall`` with conductivity ``k`` [K/W]."""
     r = wall.radii()
     r1, r2 = float(r[i]), float(r[i + 1])
-    if wall.geometry == "slab":
+    if wall.shape == "slab":
         return (r2 - r1) / (k * wall.area)
-    if wall.geometry == "cylinder":
+    if wall.shape == "cylinder":
         return math.log(r2 / r1) / (2 * math.pi * k * wall.length)
     return (1.0 / r1 - 1.0 / r2) / (4 * math.pi * k)
 
@@ -527,8 +539,8 @@ def format_case(case, system=None, warnings=()) -> str:
     L.append(f"  kind              {kind}, {len(case.wall_list)} wall(s)")
     r = case.run
     L.append(f"  run               {fmt_time(r.duration)} simulated, tolerance {r.tolerance:g} K, "
-             f"outputs every {fmt_time(r.output_interval or r.duration / 200.0)}")
-    init = np.asarray(r.initial, dtype=float)
+             f"outputs every {fmt_time(r.output_every or r.duration / 200.0)}")
+    init = np.asarray(r.start_temperature, dtype=float)
     L.append("  initial           " + (fmt_temp(float(init)) if init.ndim == 0 else
                                       f"profile of {init.size} values, {fmt_temp(float(init.min()))}"
                                       f" .. {fmt_temp(float(init.max()))}"))
@@ -536,9 +548,9 @@ def format_case(case, system=None, warnings=()) -> str:
         L.append(f"  unknowns          {system.n_unknowns} (mesh nodes"
                  + (" + chamber)" if system.has_chamber else ")"))
     for j, w in enumerate(case.wall_list):
-        if w.geometry == "slab":
+        if w.shape == "slab":
             geo = f"slab, area {w.area:g} m2"
-        elif w.geometry == "cylinder":
+        elif w.shape == "cylinder":
             geo = f"cylinder, inner radius {w.inner_radius * 1e3:.1f} mm, length {w.length:g} m"
         else:
             geo = f"sphere, inner radius {w.inner_radius * 1e3:.1f} mm"
@@ -549,7 +561,7 @@ def format_case(case, system=None, warnings=()) -> str:
             mesh = system.meshes[jj]
         rows = []
         R_tot = 0.0
-        slab = w.geometry == "slab"
+        slab = w.shape == "slab"
         for i, layer in enumerate(w.layers):
             k = float(layer.material.k(T20))
             R = _layer_resistance(w, i, k)
@@ -567,12 +579,12 @@ def format_case(case, system=None, warnings=()) -> str:
                 row.append(f"{R * w.area:.4g}")
             row.append("-" if tmax is None else f"{tmax - KELVIN_OFFSET:.0f}")
             rows.append(row)
-            if i < len(w.layers) - 1 and w.contact[i] > 0:
-                Rc = w.contact[i] / w.area_at(float(w.radii()[i + 1]))
+            if i < len(w.layers) - 1 and w.interface_resistance[i] > 0:
+                Rc = w.interface_resistance[i] / w.area_at(float(w.radii()[i + 1]))
                 R_tot += Rc
                 row = ["", "contact resistance", "-", "", "", f"{Rc:.4g}"]
                 if slab:
-                    row.append(f"{w.contact[i]:.4g}")
+                    row.append(f"{w.interface_resistance[i]:.4g}")
                 row.append("")
                 rows.append(row)
         tot = ["", "total", f"{w.thickness * 1e3:.1f}",
@@ -601,9 +613,9 @@ def format_case(case, system=None, warnings=()) -> str:
             L.append(_wrap(f"outer face: {_face_text(case.outer)}", "  "))
         if case.is_enclosure and getattr(case.walls[j], "bridge", None) is not None:
             b = case.walls[j].bridge
-            L.append(_wrap(f"thermal bridge: {b.fraction * 100:.1f} % of the area has "
+            L.append(_wrap(f"thermal bridge: {b.area_fraction * 100:.1f} % of the area has "
                            f"{b.material.name} in place of layer(s) "
-                           f"{', '.join(str(i) for i in b.layers)} (parallel paths)"))
+                           f"{', '.join(str(i) for i in b.replaces_layers)} (parallel paths)"))
         L.append(_wrap("(#: layer index as in the case file, from 0; nodes: mesh nodes in the "
                        "layer, shared with its neighbours at interfaces; k and R at 20 degC, "
                        "conduction only, without surface films)"))
@@ -613,12 +625,12 @@ def format_case(case, system=None, warnings=()) -> str:
         cap_t = (f"{float(cap) / 1e3:.3g} kJ/K" if not hasattr(cap, "values") else
                  f"{min(cap.values) / 1e3:.3g}..{max(cap.values) / 1e3:.3g} kJ/K (table vs T)")
         L += _heading("Chamber")
-        L.append(_wrap(f"capacity {cap_t}; ambient {_sched_text(ch.ambient)}; leakage "
+        L.append(_wrap(f"capacity {cap_t}; ambient {_sched_text(ch.room_temperature)}; leakage "
                        f"{ch.leakage:.3g} m3/s ({_leak_ua(ch):.3g} W/K with room air at the start); extra UA "
-                       f"{ch.extra_ua:.3g} W/K"))
-        if getattr(ch, "box", None):
+                       f"{ch.extra_loss:.3g} W/K"))
+        if getattr(ch, "inner_dimensions", None):
             fac = getattr(system, "area_factor", None) if system is not None else None
-            L.append(_wrap(f"box {' x '.join(f'{x:g}' for x in ch.box)} m (inner width x depth "
+            L.append(_wrap(f"box {' x '.join(f'{x:g}' for x in ch.inner_dimensions)} m (inner width x depth "
                            "x height): edges and corners add conduction"
                            + (f", slab areas x {fac:.3f} [-]" if fac else "")))
     if case.heater is not None:
@@ -636,14 +648,14 @@ def format_case(case, system=None, warnings=()) -> str:
         if c.mode in ("fixed", "duty"):
             ctl += f", duty {_sched_text(c.duty, '[-]')}"
         L.append(_wrap(ctl.strip()))
-    if r.events:
+    if r.watch:
         L += _heading("Events watched")
-        for e, ev in enumerate(r.events):
+        for e, ev in enumerate(r.watch):
             wname = _case_wall_name(case, ev.wall)
             L.append(f"  {ev.name or f'event{e + 1}'}: {wname}, "
                      f"{_event_where(ev, _case_wall(case, ev.wall))} crossing "
-                     f"{fmt_temp(ev.threshold)}")
-        if any(_speaks_of_skin(f"{ev.name} {ev.where}") for ev in r.events):
+                     f"{fmt_temp(ev.temperature)}")
+        if any(_speaks_of_skin(f"{ev.name} {ev.where}") for ev in r.watch):
             L.append(_wrap(TOUCH_CAUTION, "  "))
     L += _heading("Warnings")
     if warnings:
@@ -740,4 +752,4 @@ def format_material(m) -> str:
 def _leak_ua(ch):
     """Leakage of a chamber as a conductance [W/K], room air at t = 0 (as the solver uses)."""
     from ..solver import native
-    return float(ch.leakage) * native.rho_cp(float(ch.ambient(0.0)), 101325.0)
+    return float(ch.leakage) * native.rho_cp(float(ch.room_temperature(0.0)), 101325.0)

@@ -46,9 +46,9 @@ MAX_CHUNK_STEPS = 1 << 30
 def output_times(case: Case) -> np.ndarray:
     """Output times of a run [s]: 0, every output interval, the profile times, the end."""
     r = case.run
-    dt = r.output_interval or r.duration / 200.0
+    dt = r.output_every or r.duration / 200.0
     n = int(np.floor(r.duration / dt + 1e-9))
-    t = np.concatenate([np.arange(n + 1) * dt, [r.duration], list(r.profile_times)])
+    t = np.concatenate([np.arange(n + 1) * dt, [r.duration], list(r.snapshots)])
     t = np.unique(np.round(t[(t >= 0) & (t <= r.duration)], 9))
     return t
 
@@ -62,7 +62,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     case : Case
         The problem.
     initial : float or ndarray, optional
-        Initial temperature(s) [K]: overrides ``case.run.initial``; a vector gives one value
+        Initial temperature(s) [K]: overrides ``case.run.start_temperature``; a vector gives one value
         per unknown (e.g. ``result.T[-1]`` of an earlier run).
     progress : bool, optional
         Show a progress bar; default: only on a terminal when the run takes longer than
@@ -97,7 +97,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     t_out = output_times(case)
     nun = sysm.n_unknowns
     nf = sysm.face_i.shape[0]
-    T = sysm.initial_vector(r.initial if initial is None else initial)
+    T = sysm.initial_vector(r.start_temperature if initial is None else initial)
     T_start = T.copy()
     for k, i in enumerate(sysm.dirich_node):
         T[i] = K.sched_eval(sysm.s_off, sysm.stab, sysm.dirich_sched[k], 0.0, 0.0)
