@@ -538,7 +538,11 @@ def test_radiative_coefficient_follows_stefan_boltzmann(run):
             else [(rj["outer"], rj["wall"]["name"])])
     checked = 0
     for face, wname in outs:
-        eps, env = face["emissivity"], face["surroundings"] or face["fluid"]
+        # the archive lists the model's fields (case-file names since the one-vocabulary
+        # change; older archives the former Python names)
+        env = (face.get("surroundings_temperature", face.get("surroundings"))
+               or face.get("fluid_temperature", face.get("fluid")))
+        eps = face["emissivity"]
         if not isinstance(eps, float) or env is None:
             continue
         Tr = np.interp(t, env["times"], env["values"])     # piecewise linear, held outside
