@@ -126,3 +126,13 @@ def test_hdf5_table_equals_csv_table(tmp_path):
             assert (a[c].to_numpy() == b[c].to_numpy()).all(), c
         else:
             assert [str(x) for x in a[c]] == [str(x) for x in b[c]], c
+
+
+def test_text_summary_in_degc_without_nan():
+    # common practice, no source: the text summary shows absolute temperatures in degC (the
+    # files keep SI), and an interval end a small sample cannot give is said, not printed "nan"
+    from fdwall.cli.study import _shown
+    assert _shown(323.15, True, "K") == "50 degC"
+    assert _shown(float("nan"), True, "K").startswith("n/a")
+    assert _shown(float("inf"), False, "s") == "never"
+    assert _shown(12.5, False, "K") == "12.5 K"        # a margin is a difference: stays K

@@ -23,6 +23,18 @@ class _Terminated(Exception):
     """SIGTERM arrived while the study ran (the table holds every finished batch)."""
 
 
+
+def _shown(v, absolute_temperature: bool, unit: str) -> str:
+    """A study figure for the text summary: absolute temperatures [K] in degC, an interval end
+    a sample this small cannot give (NaN) as "n/a", a time never reached (inf) as "never"."""
+    if v is None or v != v:
+        return "n/a (sample too small)"
+    if v == float("inf"):
+        return "never"
+    if absolute_temperature:
+        return f"{v - 273.15:.4g} degC"
+    return f"{v:.6g} {unit}"
+
 def _on_term(signum, frame):
     raise _Terminated()
 
@@ -141,14 +153,19 @@ def cmd_study(args) -> int:
               f"{summary['failed']} failed.")
         if unc:
             for q in unc["json"]["quantiles"]:
-                print(f"  {q['output']:>10} p{q['percent']:02d} = {q['value_si']:.6g} "
-                      f"{q['unit']}  ({q['ci_low_si']:.6g} .. {q['ci_high_si']:.6g})")
+                absolute = "_T_" in q["output"] + "_" and q["unit"] == "K"
+                print(f"  {q['output']:>10} p{q['percent']:02d} = "
+                      f"{_shown(q['value_si'], absolute, q['unit'])}  "
+                      f"(confidence interval {_shown(q['ci_low_si'], absolute, q['unit'])} .. "
+                      f"{_shown(q['ci_high_si'], absolute, q['unit'])})")
             for e in unc["json"]["exceedance"]:
                 if e["output"] == "touch_verdict":
                     print(f"  P(peak skin above the touch limit) = {e['probability']:.3f}  "
                           f"({e['ci_low']:.3f} .. {e['ci_high']:.3f})")
                     continue
-                print(f"  P({e['output']} > {e['limit_si']:.6g} {e['unit']}) = "
+                lim = _shown(e["limit_si"], "_T_" in e["output"] + "_" and e["unit"] == "K",
+                             e["unit"])
+                print(f"  P({e['output']} > {lim}) = "
                       f"{e['probability']:.3f}  ({e['ci_low']:.3f} .. {e['ci_high']:.3f})")
             for o in [o for o in st["outputs"] if o not in TEXT_OUTPUTS]:
                 top = summary.get(f"{o.rsplit('_', 1)[0]}_top_input")
