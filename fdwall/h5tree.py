@@ -27,6 +27,7 @@ from contextlib import contextmanager
 import numpy as np
 
 from .atomic import write_bytes
+from .provenance import stamp_h5
 
 __all__ = ["h5_atomic", "write_tree", "read_tree", "add_group", "write_file", "unit_of", "SUFFIX_UNITS"]
 
@@ -202,12 +203,17 @@ def add_group(path, name: str, data: dict, *, attrs: dict | None = None) -> str:
     return path
 
 
-def write_file(path, groups: dict, *, attrs: dict | None = None) -> str:
-    """Write a new HDF5 file atomically: one group per entry of ``groups``, root ``attrs``."""
+def write_file(path, groups: dict, *, attrs: dict | None = None,
+               provenance: dict | None = None) -> str:
+    """Write a new HDF5 file atomically: one group per entry of ``groups``, root ``attrs``,
+    and with ``provenance`` (a dict from :func:`fdwall.provenance.provenance`) its record
+    (root ``input_sha256`` and the ``/provenance`` group, :func:`fdwall.provenance.stamp_h5`)."""
     path = os.fspath(path)
     with h5_atomic(path) as h:
         for k, v in (attrs or {}).items():
             h.attrs[k] = v
         for name, data in groups.items():
             write_tree(h.create_group(name), data)
+        if provenance is not None:
+            stamp_h5(h, provenance)
     return path

@@ -18,7 +18,7 @@ from pathlib import Path
 
 from ..errors import FdwallError, OutputError
 from ..errors import InputError as _LibInputError
-from ..provenance import provenance, stamp_h5
+from ..provenance import provenance
 
 # Exit codes, shared by all commands (documented once, in fdwall/cli/__init__.py and README).
 EXIT_OK = 0
@@ -385,7 +385,7 @@ def write_analysis(args, h5_path, groups: dict, *, kind: str, case_name: str,
     """
     from datetime import datetime, timezone
 
-    from ..h5tree import h5_atomic, write_tree
+    from ..h5tree import write_file
     h5_path = Path(h5_path)
     attrs = {"kind": kind, "fdwall_version": _version(), "case_name": case_name,
              "created": datetime.now(timezone.utc).isoformat()}
@@ -394,12 +394,7 @@ def write_analysis(args, h5_path, groups: dict, *, kind: str, case_name: str,
     prov = provenance(*_analysis_inputs(args))
     try:
         h5_path.parent.mkdir(parents=True, exist_ok=True)
-        with h5_atomic(h5_path) as h:
-            for k, v in attrs.items():
-                h.attrs[k] = v
-            for name, data in groups.items():
-                write_tree(h.create_group(name), data)
-            stamp_h5(h, prov)
+        write_file(h5_path, groups, attrs=attrs, provenance=prov)
     except OSError as exc:
         raise WriteError(f"cannot write the results to '{h5_path.parent}': "
                          f"{exc.strerror or exc}. Choose another folder with --out DIR.") from None

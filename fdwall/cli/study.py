@@ -13,8 +13,8 @@ from ..analyses.study_outputs import TEXT_OUTPUTS
 from ..analyses.study_run import table_header
 from ..cautions import SAFETY_CAUTION
 from ..errors import InputError as LibInputError
-from ..h5tree import h5_atomic, write_tree
-from ..provenance import provenance, stamp_h5
+from ..h5tree import write_file
+from ..provenance import provenance
 from . import common
 from .common import InputError, WriteError
 
@@ -124,12 +124,7 @@ def cmd_study(args) -> int:
     prov = provenance(str(args.study), [st["base_file"]],
                       {"seed": st["seed"], "method": st["method"]})
     try:
-        with h5_atomic(h5) as h:
-            for k, v in attrs.items():
-                h.attrs[k] = v
-            for name, data in groups.items():
-                write_tree(h.create_group(name), data)
-            stamp_h5(h, prov)
+        write_file(h5, groups, attrs=attrs, provenance=prov)
     except OSError as exc:
         raise WriteError(f"cannot write '{h5}': {exc.strerror or exc}.") from None
     files = [str(csv_path), str(h5)]
