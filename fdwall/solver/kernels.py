@@ -123,6 +123,8 @@ from .layout import (  # noqa: F401  re-exported for fdwall.solver.native
     ST_STALL,
     ST_STATUS,
     ST_T,
+    STATUS_STALLED,
+    STATUS_STEP_FLOOR,
 )
 
 SIGMA = 5.670374419e-8          # Stefan-Boltzmann constant [W/m2/K4] (CODATA 2018)
@@ -869,6 +871,310 @@ def thermostat_cut(T0, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol):
     return frac
 
 
+# ------------------------------------------------------------------ the time loop, in parts
+# Each part below is one concern of a TR-BDF2 step; :func:`integrate` only calls them.  The
+# arithmetic and its order are those of the loop before it was split (the results are pinned
+# to the last digit by tests/test_integrator_pinned.py); each part has a plain numpy twin in
+# tests/kernel_twins.py.
+
+
+@njit(cache=True)
+def resume_views(ks, nun, nf):
+    """Views into the resume state ``ks`` (layout in :mod:`fdwall.solver.layout`): Tprev [K],
+    F1 [W], Cap [J/K], H1 [J] (nun each), q1 [W], hcw, hrw [W/m2/K] (nf each), ex1 [W] (2)."""
+    Tprev = ks[KS_ARRAYS:KS_ARRAYS + nun]
+    F1 = ks[KS_ARRAYS + nun:KS_ARRAYS + 2 * nun]
+    Cap = ks[KS_ARRAYS + 2 * nun:KS_ARRAYS + 3 * nun]
+    H1 = ks[KS_ARRAYS + 3 * nun:KS_ARRAYS + 4 * nun]
+    o = KS_ARRAYS + 4 * nun
+    q1 = ks[o:o + nf]
+    hcw = ks[o + nf:o + 2 * nf]
+    hrw = ks[o + 2 * nf:o + 3 * nf]
+    ex1 = ks[o + 3 * nf:o + 3 * nf + 2]
+    return Tprev, F1, Cap, H1, q1, hcw, hrw, ex1
+
+
+@njit(cache=True)
+def resume_load(ks, bp, t):
+    """The scalars of the resume state ``ks`` at the start of a call at time t [s]; the first
+    call of a run sets them (first breakpoint after t).  Returns (breakpoint index, previous
+    step [s], have a previous step, reuse the end values of the last step, the last step
+    landed on a jump, last heater fraction [-])."""
+    nbp = bp.shape[0]
+    if ks[KS_INIT] == 0.0:      # first call of a run
+        ks[KS_INIT] = 1.0
+        ks[KS_HPREV] = 1.0
+        ks[KS_HAVE_PREV] = 0.0
+        ks[KS_REUSE] = 0.0
+        ks[KS_AFTER_JUMP] = 0.0
+        ks[KS_ULAST] = -9.0
+        ibp = 0
+        while ibp < nbp and bp[ibp] <= t:
+            ibp += 1
+        ks[KS_IBP] = ibp
+    return (int(ks[KS_IBP]), ks[KS_HPREV], ks[KS_HAVE_PREV] > 0.5, ks[KS_REUSE] > 0.5,
+            ks[KS_AFTER_JUMP] > 0.5, ks[KS_ULAST])
+
+
+@njit(cache=True)
+def resume_save(ks, ibp, hprev, have_prev, reuse, after_jump, u_last):
+    """Store the scalars of the resume state after an accepted step (see :func:`resume_load`)."""
+    ks[KS_IBP] = ibp
+    ks[KS_HPREV] = hprev
+    ks[KS_HAVE_PREV] = 1.0 if have_prev else 0.0
+    ks[KS_REUSE] = 1.0 if reuse else 0.0
+    ks[KS_AFTER_JUMP] = 1.0 if after_jump else 0.0
+    ks[KS_ULAST] = u_last
+
+
+@njit(cache=True)
+def step_target(t_out, k, k1, land_outputs, bp, ibp):
+    """Where the next step must end at the latest [s]: the next output (or the last one when
+    outputs are interpolated), or the next breakpoint before it.  Returns (target [s],
+    target is a breakpoint, its index or -1)."""
+    t_target = t_out[k] if land_outputs else t_out[k1 - 1]
+    jump_target = False
+    target_bp = -1
+    if ibp < bp.shape[0] and bp[ibp] < t_target:
+        t_target = bp[ibp]
+        jump_target = True
+        target_bp = ibp
+    return t_target, jump_target, target_bp
+
+
+@njit(cache=True)
+def heater_switched(u, cs, mode):
+    """True when a switching controller changed the heater fraction u [-] since the last
+    step (the step then restarts from the one that worked after the last switch)."""
+    switched = u != cs[CS_UPREV] and (mode == CTL_DUTY_SWITCHED or mode == CTL_THERMOSTAT
+                                      or mode == CTL_PID_SWITCHED)
+    cs[CS_UPREV] = u
+    return switched
+
+
+@njit(cache=True)
+def step_size(h, t, t_target, max_step, switched, restart, cs):
+    """Size of the next step attempt [s] from the proposed step h [s] at time t [s]: no longer
+    than the step that worked after the last heater switch (``switched``) or schedule jump
+    (``restart``), nor ``max_step``; it lands on ``t_target`` [s] when it would reach it,
+    and otherwise takes at most half of what remains (so no sliver step is left).  Returns
+    (step [s], lands on the target)."""
+    if switched and h > cs[CS_HSW]:
+        h = cs[CS_HSW]
+    if restart and h > cs[CS_HJ]:
+        h = cs[CS_HJ]
+    hs = h
+    if hs > max_step:
+        hs = max_step
+    rem = t_target - t
+    if hs >= rem * (1.0 - 1e-9):
+        hs = rem
+        land = True
+    else:
+        land = False
+        if hs > 0.5 * rem:
+            hs = 0.5 * rem
+    return hs, land
+
+
+@njit(cache=True)
+def factor_rejected(err):
+    """Step-size factor [-] after a step rejected with scaled error err [-] (> 1): the
+    elementary controller 0.9 err^(-1/3) of a method with a third-order local error, at
+    least 0.2 (0.1 for a non-finite error)."""
+    fac = 0.9 * err ** (-1.0 / 3.0) if err < 1e200 else 0.1
+    if fac < 0.2:
+        fac = 0.2
+    return fac
+
+
+@njit(cache=True)
+def factor_accepted(err):
+    """Step-size factor [-] for the step after one accepted with scaled error err [-]
+    (<= 1): 0.9 err^(-1/3), clipped to 0.2 .. 5."""
+    fac = 0.9 * err ** (-1.0 / 3.0) if err > 1e-12 else 5.0
+    if fac > 5.0:
+        fac = 5.0
+    if fac < 0.2:
+        fac = 0.2
+    return fac
+
+
+@njit(cache=True)
+def start_values(reuse, T, t, u, u_last, node_i, node_f, chains, face_i, face_f, hpar, m_off,
+                 mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, q0, ex0, F1, Cap, H1,
+                 q1, ex1, Jd, Jl, Ju, Jcol, Jrow, hcw, hrw, hc0, hr0, stats):
+    """Values at the start of a step at time t [s] (right limit): net flows F0 [W], capacities
+    C0 [J/K], enthalpies H0 [J], face flows q0 [W], heater power and loss ex0 [W].  They are
+    the end values of the last step (F1 .. ex1) when ``reuse`` and the heater fraction is
+    unchanged, else assembled at T [K] (forcing may jump at a breakpoint or a switch).  The
+    film coefficients [W/m2/K] at the start go to hc0, hr0 (for the outputs in the step)."""
+    nun = T.shape[0]
+    nf = q0.shape[0]
+    if reuse and u == u_last:
+        for i in range(nun):
+            F0[i] = F1[i]
+            C0[i] = Cap[i]
+            H0[i] = H1[i]
+        for f in range(nf):
+            q0[f] = q1[f]
+        ex0[EX_HEATER] = ex1[EX_HEATER]
+        ex0[EX_LOSS] = ex1[EX_LOSS]
+    else:
+        assemble(T, t, 0.0, u, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+                 s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, Jd, Jl, Ju, Jcol, Jrow,
+                 q0, hcw, hrw, ex0)
+        stats[ST_ASSEMBLE] += 1
+    for f in range(nf):
+        hc0[f] = hcw[f]
+        hr0[f] = hrw[f]
+
+
+@njit(cache=True)
+def trapezoid_guess(T, Tprev, hprev, have_prev, hs, dh, H0, F0, Hb, Tp):
+    """First TR-BDF2 stage, the trapezoid rule over gamma*hs [s]: its known part
+    Hb = H0 + dh F0 [J] (dh = gamma hs / 2 [s]) and the Newton start Tp [K], extrapolated
+    from the previous step hprev [s] (not below 1 K)."""
+    for i in range(T.shape[0]):
+        Hb[i] = H0[i] + dh * F0[i]
+        if have_prev:
+            Tp[i] = T[i] + GAMMA * hs * (T[i] - Tprev[i]) / hprev
+            if Tp[i] < 1.0:
+                Tp[i] = T[i]
+        else:
+            Tp[i] = T[i]
+
+
+@njit(cache=True)
+def bdf2_guess(T, Tg, H0, Hg, Hb, Tp):
+    """Second TR-BDF2 stage, BDF2 through t, t + gamma h and t + h: its known part
+    Hb = A2 Hg - B2 H0 [J] and the Newton start Tp [K], extrapolated through the stage."""
+    for i in range(T.shape[0]):
+        Tp[i] = T[i] + (Tg[i] - T[i]) / GAMMA
+        if Tp[i] < 1.0:
+            Tp[i] = T[i]
+        Hb[i] = A2 * Hg[i] - B2 * H0[i]
+
+
+@njit(cache=True)
+def stage_trapezoid(Tg, T, Tprev, hprev, have_prev, t, hs, dh, H0, F0, u, dirich_node,
+                    dirich_sched, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+                    s_off, stab, ch_i, ch_f, ctl_i, ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol,
+                    Jrow, qg, hcw, hrw, exg, R, dx, wc, wy, wz, Hb, Tp, newton_tol, stats):
+    """Solve the first stage for the state Tg [K] at t + gamma hs: H(Tg) - dh F(Tg) =
+    H0 + dh F0.  True on convergence (Fg, Cap, Hg, qg, exg then hold the stage values)."""
+    trapezoid_guess(T, Tprev, hprev, have_prev, hs, dh, H0, F0, Hb, Tp)
+    return _newton_stage(Tg, Tp, t + GAMMA * hs, dh, Hb, u, dirich_node, dirich_sched, node_i,
+                         node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i,
+                         ch_f, ctl_i, ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol, Jrow, qg, hcw, hrw,
+                         exg, R, dx, wc, wy, wz, newton_tol, stats)
+
+
+@njit(cache=True)
+def stage_bdf2(T1, T, Tg, t, hs, dh, H0, Hg, u, dirich_node, dirich_sched, node_i, node_f,
+               chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i,
+               ctl_f, F1, Cap, H1, Jd, Jl, Ju, Jcol, Jrow, q1, hcw, hrw, ex1, R, dx, wc, wy,
+               wz, Hb, Tp, newton_tol, stats):
+    """Solve the second stage for the step-end state T1 [K] at t + hs: H(T1) - dh F(T1) =
+    A2 Hg - B2 H0.  True on convergence (F1, Cap, H1, q1, ex1 and the Jacobian then hold
+    the values at the step end)."""
+    bdf2_guess(T, Tg, H0, Hg, Hb, Tp)
+    return _newton_stage(T1, Tp, t + hs, dh, Hb, u, dirich_node, dirich_sched, node_i, node_f,
+                         chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f,
+                         ctl_i, ctl_f, F1, Cap, H1, Jd, Jl, Ju, Jcol, Jrow, q1, hcw, hrw, ex1, R,
+                         dx, wc, wy, wz, newton_tol, stats)
+
+
+@njit(cache=True)
+def thermostat_retry(mode, T, T1, u, t1, hs, hmin, ctl_i, ctl_f, s_off, stab, ev_tol):
+    """Shortened step [s] when a thermostat's sensor passed its threshold within the step by
+    more than ev_tol [K] (see :func:`thermostat_cut`); 0 when the step stands."""
+    if mode == CTL_THERMOSTAT:
+        frac = thermostat_cut(T, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol)
+        if frac > 0.0 and hs > hmin * 10:
+            return hs * frac
+    return 0.0
+
+
+@njit(cache=True)
+def stop_run(stats, acc, t, status):
+    """End a call early with ``status`` (a STATUS_* code) at time t [s]."""
+    stats[ST_STATUS] = status
+    stats[ST_T] = t
+    acc[acc.shape[0] - 1] = t
+
+
+@njit(cache=True)
+def stall_guard(stats, hs, t_end):
+    """Count steps in a row far below the run's time scale (hs < 1e-9 t_end [s]); True when
+    more than 20,000 such steps make no real progress (the run is stalled)."""
+    if hs < 1e-9 * t_end:
+        stats[ST_STALL] += 1
+        if stats[ST_STALL] > 20000:
+            return True
+    else:
+        stats[ST_STALL] = 0
+    return False
+
+
+@njit(cache=True)
+def step_range(stats, hs):
+    """Keep the smallest and largest accepted step [s] in ``stats``."""
+    if hs < stats[ST_HMIN]:
+        stats[ST_HMIN] = hs
+    if hs > stats[ST_HMAX]:
+        stats[ST_HMAX] = hs
+
+
+@njit(cache=True)
+def accept_state(T, T1, Tprev):
+    """The step is taken: Tprev gets the start state, T the end state T1 [K]."""
+    for i in range(T.shape[0]):
+        Tprev[i] = T[i]
+        T[i] = T1[i]
+
+
+@njit(cache=True)
+def dirichlet_flows(qd_b, qd_state, H1, H0, F1, hs, dirich_node):
+    """Heat flow [W] that holds each fixed-temperature face at the end of a step of hs [s]:
+    the storage rate of its node (H1 - H0)/hs [W] minus the conduction F1 into it; the state
+    at the step start takes it too when unknown (NaN, the first step)."""
+    for kk in range(dirich_node.shape[0]):
+        i = dirich_node[kk]
+        qd_b[kk] = (H1[i] - H0[i]) / hs - F1[i]
+        if qd_state[kk] != qd_state[kk]:
+            qd_state[kk] = qd_b[kk]
+
+
+@njit(cache=True)
+def dense_output(k, k1, t, hs, land, t_target, t_out, Tprev, T, F0, C0, F1, Cap, q0, q1, hc0,
+                 hr0, hcw, hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b, dirich_node,
+                 dirich_sched, dirich_face, s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out,
+                 hr_out):
+    """Write the output rows k.. that fall in the step (t - hs, t] [s] (exact at the step
+    end, cubic Hermite inside: :func:`_write_row`); returns the next row to write."""
+    t0s = t - hs
+    while k < k1 and t_out[k] <= t + 1e-12 * (1.0 + abs(t)):
+        th = (t_out[k] - t0s) / hs
+        if th >= 1.0 - 1e-12 or land and t_out[k] >= t_target:
+            th = 1.0
+        _write_row(k, th, hs, t_out[k], Tprev, T, F0, C0, F1, Cap, q0, q1, hc0, hr0,
+                   hcw, hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b, dirich_node, dirich_sched,
+                   dirich_face, s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out, hr_out)
+        k += 1
+    return k
+
+
+@njit(cache=True)
+def carry_step_end(qd_state, qd_b, acc_prev, acc):
+    """After the outputs of a step: its end values (fixed-face flows [W], cumulative
+    energies [J]) become the start values of the next."""
+    for kk in range(qd_state.shape[0]):
+        qd_state[kk] = qd_b[kk]
+    for j in range(acc.shape[0]):
+        acc_prev[j] = acc[j]
+
+
 @njit(cache=True)
 def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_step, node_i, node_f, chains,
               face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
@@ -889,23 +1195,23 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     after one where ``bpj`` > 0.5 (a jump in a schedule) the step restarts from the one that
     followed the previous jump.  Returns the number of outputs written.
     ``ev_out[e, 0:2]`` gets the first upward / downward crossing time of event e.
+
+    The loop only calls the parts of a step: :func:`step_target`, :func:`controller`,
+    :func:`heater_switched` and :func:`step_size` (where the step may end and how long it
+    is), :func:`start_values`, the two stages :func:`stage_trapezoid` and
+    :func:`stage_bdf2`, :func:`error_norm` with :func:`factor_rejected` /
+    :func:`factor_accepted` (the step-size controller), :func:`thermostat_retry`,
+    :func:`ledger`, :func:`events`, :func:`accept_state`, :func:`stall_guard`,
+    :func:`balance`, :func:`dirichlet_flows`, :func:`dense_output` and the resume state.
     """
-    N = node_i.shape[0]
     nun = T.shape[0]
     nf = face_i.shape[0]
+    N = node_i.shape[0]
     has_ch = ch_i[CHI_PRESENT] == 1
     F0 = np.empty(nun)
     Fg = np.empty(nun)
     # values at the end of the last step and the predictor history live in ks (resumable)
-    Tprev = ks[KS_ARRAYS:KS_ARRAYS + nun]
-    F1 = ks[KS_ARRAYS + nun:KS_ARRAYS + 2 * nun]
-    Cap = ks[KS_ARRAYS + 2 * nun:KS_ARRAYS + 3 * nun]
-    H1 = ks[KS_ARRAYS + 3 * nun:KS_ARRAYS + 4 * nun]
-    o = KS_ARRAYS + 4 * nun
-    q1 = ks[o:o + nf]
-    hcw = ks[o + nf:o + 2 * nf]
-    hrw = ks[o + 2 * nf:o + 3 * nf]
-    ex1 = ks[o + 3 * nf:o + 3 * nf + 2]
+    Tprev, F1, Cap, H1, q1, hcw, hrw, ex1 = resume_views(ks, nun, nf)
     H0 = np.empty(nun)
     Hg = np.empty(nun)
     Jd = np.empty(nun)
@@ -936,26 +1242,11 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     newton_tol = 1e-3 * tol
     t = acc[acc.shape[0] - 1]     # current time is kept in the last accumulator slot
     h = cs[CS_H]
+    t_end = t_out[t_out.shape[0] - 1]
     # [s]: fast start-up layers (a huge film coefficient on a low-capacity face) need tiny steps
-    hmin = 1e-14 * max(1.0, t_out[t_out.shape[0] - 1])
+    hmin = 1e-14 * max(1.0, t_end)
     nbp = bp.shape[0]
-    if ks[KS_INIT] == 0.0:      # first call of a run
-        ks[KS_INIT] = 1.0
-        ks[KS_HPREV] = 1.0
-        ks[KS_HAVE_PREV] = 0.0
-        ks[KS_REUSE] = 0.0
-        ks[KS_AFTER_JUMP] = 0.0
-        ks[KS_ULAST] = -9.0
-        ibp = 0
-        while ibp < nbp and bp[ibp] <= t:
-            ibp += 1
-        ks[KS_IBP] = ibp
-    ibp = int(ks[KS_IBP])
-    hprev = ks[KS_HPREV]
-    have_prev = ks[KS_HAVE_PREV] > 0.5
-    reuse = ks[KS_REUSE] > 0.5
-    after_jump = ks[KS_AFTER_JUMP] > 0.5
-    u_last = ks[KS_ULAST]
+    ibp, hprev, have_prev, reuse, after_jump, u_last = resume_load(ks, bp, t)
     k = k0
     nsteps = 0
     acc_prev = acc.copy()
@@ -964,94 +1255,41 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     for f in range(nf):
         has_ext[f] = not (face_i[f, FI_TO_CHAMBER] == 1 and has_ch)
     while k < k1:
-        t_target = t_out[k] if land_outputs else t_out[k1 - 1]
-        jump_target = False
-        target_bp = -1
-        if ibp < nbp and bp[ibp] < t_target:
-            t_target = bp[ibp]
-            jump_target = True
-            target_bp = ibp
+        t_target, jump_target, target_bp = step_target(t_out, k, k1, land_outputs, bp, ibp)
         # controller: sampling and switching times
         u, t_target, jump_target = controller(T, t, t_target, jump_target, cs, mode, period,
                                               ev_tol, ctl_i, ctl_f, s_off, stab)
         # step size; after the heater switches, restart from the step that worked last time
-        switched = u != cs[CS_UPREV] and (mode == CTL_DUTY_SWITCHED or mode == CTL_THERMOSTAT
-                                          or mode == CTL_PID_SWITCHED)
-        cs[CS_UPREV] = u
-        if switched and h > cs[CS_HSW]:
-            h = cs[CS_HSW]
+        switched = heater_switched(u, cs, mode)
         restart = after_jump
-        if restart and h > cs[CS_HJ]:
-            h = cs[CS_HJ]
-        hs = h
-        if hs > max_step:
-            hs = max_step
-        rem = t_target - t
-        if hs >= rem * (1.0 - 1e-9):
-            hs = rem
-            land = True
-        else:
-            land = False
-            if hs > 0.5 * rem:
-                hs = 0.5 * rem
+        hs, land = step_size(h, t, t_target, max_step, switched, restart, cs)
         # values at the start of the step (right limit); reuse the end of the last step
         # unless forcing may have jumped there (breakpoint, controller switch)
-        if reuse and u == u_last:
-            for i in range(nun):
-                F0[i] = F1[i]
-                C0[i] = Cap[i]
-                H0[i] = H1[i]
-            for f in range(nf):
-                q0[f] = q1[f]
-            ex0[EX_HEATER] = ex1[EX_HEATER]
-            ex0[EX_LOSS] = ex1[EX_LOSS]
-        else:
-            assemble(T, t, 0.0, u, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
-                     s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, Jd, Jl, Ju, Jcol, Jrow,
-                     q0, hcw, hrw, ex0)
-            stats[ST_ASSEMBLE] += 1
-        # film coefficients at the start of the step (hcw/hrw hold the state just assembled,
-        # or the end of the previous step), for the outputs inside the step
-        for f in range(nf):
-            hc0[f] = hcw[f]
-            hr0[f] = hrw[f]
+        start_values(reuse, T, t, u, u_last, node_i, node_f, chains, face_i, face_f, hpar,
+                     m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, q0, ex0,
+                     F1, Cap, H1, q1, ex1, Jd, Jl, Ju, Jcol, Jrow, hcw, hrw, hc0, hr0, stats)
         accepted = False
+        err = 0.0
         while not accepted:
             dh = D_COEF * hs
-            tg = t + GAMMA * hs
             t1 = t + hs
-            # stage 1: trapezoid over gamma*h
-            for i in range(nun):
-                Hb[i] = H0[i] + dh * F0[i]
-                if have_prev:
-                    Tp[i] = T[i] + GAMMA * hs * (T[i] - Tprev[i]) / hprev
-                    if Tp[i] < 1.0:
-                        Tp[i] = T[i]
-                else:
-                    Tp[i] = T[i]
-            ok = _newton_stage(Tg, Tp, tg, dh, Hb, u, dirich_node, dirich_sched, node_i, node_f,
-                               chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i,
-                               ch_f, ctl_i, ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol, Jrow, qg, hcw,
-                               hrw, exg, R, dx, wc, wy, wz, newton_tol, stats)
+            ok = stage_trapezoid(Tg, T, Tprev, hprev, have_prev, t, hs, dh, H0, F0, u,
+                                 dirich_node, dirich_sched, node_i, node_f, chains, face_i,
+                                 face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i,
+                                 ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol, Jrow, qg, hcw, hrw, exg,
+                                 R, dx, wc, wy, wz, Hb, Tp, newton_tol, stats)
             if ok:
-                # stage 2: BDF2 through t, t+gamma*h, t+h
-                for i in range(nun):
-                    Tp[i] = T[i] + (Tg[i] - T[i]) / GAMMA
-                    if Tp[i] < 1.0:
-                        Tp[i] = T[i]
-                    Hb[i] = A2 * Hg[i] - B2 * H0[i]
-                ok = _newton_stage(T1, Tp, t1, dh, Hb, u, dirich_node, dirich_sched, node_i,
-                                   node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off,
-                                   stab, ch_i, ch_f, ctl_i, ctl_f, F1, Cap, H1, Jd, Jl, Ju, Jcol,
-                                   Jrow, q1, hcw, hrw, ex1, R, dx, wc, wy, wz, newton_tol, stats)
+                ok = stage_bdf2(T1, T, Tg, t, hs, dh, H0, Hg, u, dirich_node, dirich_sched,
+                                node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
+                                s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F1, Cap, H1, Jd, Jl, Ju,
+                                Jcol, Jrow, q1, hcw, hrw, ex1, R, dx, wc, wy, wz, Hb, Tp,
+                                newton_tol, stats)
             if not ok:
                 stats[ST_NFAIL] += 1
                 hs *= 0.25
                 land = False
                 if hs < hmin:
-                    stats[ST_STATUS] = 1
-                    stats[ST_T] = t
-                    acc[acc.shape[0] - 1] = t
+                    stop_run(stats, acc, t, STATUS_STEP_FLOOR)
                     return k - k0
                 continue
             # error estimate (Bank et al. 1985), filtered by the stage matrix (Hosea & Shampine 1996)
@@ -1059,25 +1297,20 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                              N, has_ch, R, dx, wc, wy, wz, tol)
             if not (err <= 1.0):
                 stats[ST_REJ] += 1
-                fac = 0.9 * err ** (-1.0 / 3.0) if err < 1e200 else 0.1
-                if fac < 0.2:
-                    fac = 0.2
-                hs *= fac
+                hs *= factor_rejected(err)
                 land = False
                 if hs < hmin:
-                    stats[ST_STATUS] = 1
-                    stats[ST_T] = t
-                    acc[acc.shape[0] - 1] = t
+                    stop_run(stats, acc, t, STATUS_STEP_FLOOR)
                     return k - k0
                 continue
             # thermostat: do not step across a switching threshold by more than ev_tol
-            if mode == CTL_THERMOSTAT:
-                frac = thermostat_cut(T, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol)
-                if frac > 0.0 and hs > hmin * 10:
-                    hs *= frac
-                    land = False
-                    stats[ST_EVRETRY] += 1
-                    continue
+            hcut = thermostat_retry(mode, T, T1, u, t1, hs, hmin, ctl_i, ctl_f, s_off, stab,
+                                    ev_tol)
+            if hcut > 0.0:
+                hs = hcut
+                land = False
+                stats[ST_EVRETRY] += 1
+                continue
             accepted = True
         if switched:
             cs[CS_HSW] = hs
@@ -1088,9 +1321,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
         ledger(acc, hs, q0, qg, q1, F0, Fg, F1, H0, H1, ex0, exg, ex1, dirich_node, dirich_face)
         # events (cubic Hermite location within the step)
         events(ev_i, ev_f, ev_out, t, hs, T, T1, F0, C0, F1, Cap)
-        for i in range(nun):
-            Tprev[i] = T[i]
-            T[i] = T1[i]
+        accept_state(T, T1, Tprev)
         hprev = hs
         have_prev = True
         u_last = u
@@ -1098,58 +1329,27 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
         t = t + hs if not land else t_target
         stats[ST_ACC] += 1
         # stalled: many steps in a row far below the run's time scale make no real progress
-        if hs < 1e-9 * t_out[t_out.shape[0] - 1]:
-            stats[ST_STALL] += 1
-            if stats[ST_STALL] > 20000:
-                stats[ST_STATUS] = 2
-                stats[ST_T] = t
-                acc[acc.shape[0] - 1] = t
-                return k - k0
-        else:
-            stats[ST_STALL] = 0
-        if hs < stats[ST_HMIN]:
-            stats[ST_HMIN] = hs
-        if hs > stats[ST_HMAX]:
-            stats[ST_HMAX] = hs
+        if stall_guard(stats, hs, t_end):
+            stop_run(stats, acc, t, STATUS_STALLED)
+            return k - k0
+        step_range(stats, hs)
         # next step size from the error estimate
-        fac = 0.9 * err ** (-1.0 / 3.0) if err > 1e-12 else 5.0
-        if fac > 5.0:
-            fac = 5.0
-        if fac < 0.2:
-            fac = 0.2
-        h = hs * fac
+        h = hs * factor_accepted(err)
         cs[CS_H] = h
         while ibp < nbp and bp[ibp] <= t * (1 + 1e-14):
             ibp += 1
         # energy balance at every accepted step: heat in - out - change in stored enthalpy
         balance(acc, stats, H1, has_ext)
         # heat flow at fixed-temperature faces at the step end: storage rate minus conduction
-        for kk in range(nd):
-            i = dirich_node[kk]
-            qd_b[kk] = (H1[i] - H0[i]) / hs - F1[i]
-            if qd_state[kk] != qd_state[kk]:
-                qd_state[kk] = qd_b[kk]
+        dirichlet_flows(qd_b, qd_state, H1, H0, F1, hs, dirich_node)
         # output rows inside (t - hs, t]: exact at the step end, cubic Hermite inside
-        t0s = t - hs
-        while k < k1 and t_out[k] <= t + 1e-12 * (1.0 + abs(t)):
-            th = (t_out[k] - t0s) / hs
-            if th >= 1.0 - 1e-12 or land and t_out[k] >= t_target:
-                th = 1.0
-            _write_row(k, th, hs, t_out[k], Tprev, T, F0, C0, F1, Cap, q0, q1, hc0, hr0,
-                       hcw, hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b, dirich_node, dirich_sched,
-                       dirich_face, s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out, hr_out)
-            k += 1
-        for kk in range(nd):
-            qd_state[kk] = qd_b[kk]
-        for j in range(acc.shape[0]):
-            acc_prev[j] = acc[j]
+        k = dense_output(k, k1, t, hs, land, t_target, t_out, Tprev, T, F0, C0, F1, Cap, q0,
+                         q1, hc0, hr0, hcw, hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b,
+                         dirich_node, dirich_sched, dirich_face, s_off, stab, nf, T_out,
+                         qf_out, E_out, P_out, hc_out, hr_out)
+        carry_step_end(qd_state, qd_b, acc_prev, acc)
         # resume state after every accepted step, so that a stop anywhere can be continued
-        ks[KS_IBP] = ibp
-        ks[KS_HPREV] = hprev
-        ks[KS_HAVE_PREV] = 1.0 if have_prev else 0.0
-        ks[KS_REUSE] = 1.0 if reuse else 0.0
-        ks[KS_AFTER_JUMP] = 1.0 if after_jump else 0.0
-        ks[KS_ULAST] = u_last
+        resume_save(ks, ibp, hprev, have_prev, reuse, after_jump, u_last)
         nsteps += 1
         if nsteps >= max_steps:
             break
