@@ -161,3 +161,114 @@ def heater(sysm, T, t, u):
     F[hn] += P
     J[hn, hn] += -P * alpha / den if alpha > 0 else 0.0
     return F, J, P
+
+
+# ---------------------------------------------------------------- parts of the time loop
+# Twins of the compiled parts of ``integrate``, written from their docstrings and the method
+# (TR-BDF2 of Bank et al. 1985 in the form of Hosea & Shampine 1996, gamma = 2 - sqrt(2);
+# the elementary step-size controller of Hairer, Norsett & Wanner, Solving ODEs I, sec. II.4,
+# with exponent 1/(q+1), q = 2; cubic Hermite interpolation).  Plain numpy, no kernel code.
+GAMMA = 2.0 - np.sqrt(2.0)
+D = GAMMA / 2.0
+A2 = 1.0 / (GAMMA * (2.0 - GAMMA))
+B2 = (1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA))
+KERR = (-3.0 * GAMMA ** 2 + 4.0 * GAMMA - 2.0) / (12.0 * (2.0 - GAMMA))
+
+
+def step_target(t_out, k, k1, land_outputs, bp, ibp):
+    """(target [s], is a breakpoint, its index or -1)."""
+    t = t_out[k] if land_outputs else t_out[k1 - 1]
+    if ibp < len(bp) and bp[ibp] < t:
+        return bp[ibp], True, ibp
+    return t, False, -1
+
+
+def heater_switched(u, u_prev, mode):
+    """A switching controller (duty switched, thermostat, PID switched) changed u."""
+    return u != u_prev and mode in (L.CTL_DUTY_SWITCHED, L.CTL_THERMOSTAT, L.CTL_PID_SWITCHED)
+
+
+def step_size(h, t, t_target, max_step, switched, restart, h_switch, h_jump):
+    """(step [s], lands): capped by the restart steps and max_step; lands on the target
+    when within 1e-9 of reaching it, else at most half of what remains."""
+    h = min(h, h_switch) if switched else h
+    h = min(h, h_jump) if restart else h
+    hs = min(h, max_step)
+    rem = t_target - t
+    if hs >= rem * (1.0 - 1e-9):
+        return rem, True
+    return min(hs, 0.5 * rem), False
+
+
+def factor_rejected(err):
+    return max(0.2, 0.9 * err ** (-1.0 / 3.0)) if err < 1e200 else 0.2
+
+
+def factor_accepted(err):
+    return float(np.clip(0.9 * err ** (-1.0 / 3.0), 0.2, 5.0)) if err > 1e-12 else 5.0
+
+
+def trapezoid_guess(T, Tprev, hprev, have_prev, hs, H0, F0):
+    """(Hb, Tp) of the first stage."""
+    Hb = H0 + D * hs * F0
+    if not have_prev:
+        return Hb, T.copy()
+    Tp = T + GAMMA * hs * (T - Tprev) / hprev
+    return Hb, np.where(Tp < 1.0, T, Tp)
+
+
+def bdf2_guess(T, Tg, H0, Hg):
+    """(Hb, Tp) of the second stage."""
+    Tp = T + (Tg - T) / GAMMA
+    return A2 * Hg - B2 * H0, np.where(Tp < 1.0, T, Tp)
+
+
+def thermostat_retry(frac, hs, hmin, is_thermostat):
+    """Shortened step when the cut fraction is positive, else 0."""
+    return hs * frac if is_thermostat and frac > 0.0 and hs > 10 * hmin else 0.0
+
+
+def stall_guard(count, hs, t_end):
+    """(new count, stalled)."""
+    if hs < 1e-9 * t_end:
+        return count + 1, count + 1 > 20000
+    return 0, False
+
+
+def dirichlet_flows(qd_state, H1, H0, F1, hs, dirich_node):
+    """(flows at the step end, start state with NaNs filled)."""
+    qd_b = (H1[dirich_node] - H0[dirich_node]) / hs - F1[dirich_node]
+    return qd_b, np.where(np.isnan(qd_state), qd_b, qd_state)
+
+
+def hermite(th, ya, yb, da, db, hs):
+    """Cubic Hermite interpolant at fraction th of a step hs with end values and slopes."""
+    return ((2 * th ** 3 - 3 * th ** 2 + 1) * ya + (th ** 3 - 2 * th ** 2 + th) * hs * da
+            + (-2 * th ** 3 + 3 * th ** 2) * yb + (th ** 3 - th ** 2) * hs * db)
+
+
+def dense_rows(t_out, k, k1, t, hs, land, t_target, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb):
+    """Rows written in the step (t - hs, t]: (row indices, temperatures, face flows), the
+    end exact, Hermite in T inside (slopes F/C), linear in the flows."""
+    rows, Ts, qs = [], [], []
+    while k < k1 and t_out[k] <= t + 1e-12 * (1.0 + abs(t)):
+        th = (t_out[k] - (t - hs)) / hs
+        if th >= 1.0 - 1e-12 or (land and t_out[k] >= t_target):
+            th = 1.0
+        Ts.append(Tb.copy() if th == 1.0 else hermite(th, Ta, Tb, Fa / Ca, Fb / Cb, hs))
+        qs.append((1 - th) * qa + th * qb)
+        rows.append(k)
+        k += 1
+    return rows, Ts, qs
+
+
+def error_norm(sysm, F0, Fg, F1, hs, Cap, J, tol):
+    """Scaled local error: solve (diag(Cap) - dh J) e = 2 KERR hs (F0/g - Fg/(g(1-g)) +
+    F1/(1-g)) densely (fixed-temperature rows e = 0); max |e| / tol."""
+    r = 2.0 * KERR * hs * (F0 / GAMMA - Fg / (GAMMA * (1.0 - GAMMA)) + F1 / (1.0 - GAMMA))
+    M = np.diag(Cap) - D * hs * J
+    for i in sysm.dirich_node:
+        M[i, :] = 0.0
+        M[i, i] = 1.0
+        r[i] = 0.0
+    return np.max(np.abs(np.linalg.solve(M, r))) / tol

@@ -41,7 +41,7 @@ RUN = RunSettings(duration=600.0)
 
 def _slab(inner, outer, contact=(), heater=None, control=None):
     w = Wall((Layer(STEEL, 0.002), Layer(KT, 0.05), Layer(STEEL, 0.001)), area=1.5,
-             contact=contact, name="demo")
+             interface_resistance=contact, name="demo")
     return Case(run=RUN, wall=w, inner=inner, outer=outer, heater=heater,
                 control=control or Control(), name="demo jacobian")
 
@@ -54,8 +54,8 @@ def _enclosure():
              EnclosureWall(w2, Face.exchange(293.15, 6.0), inner_h=Convection.chamber(
                  "wall", size=0.5)))
     return Case(run=RUN, walls=walls,
-                chamber=Chamber(capacity=8e3, ambient=293.15, leakage=0.001, extra_ua=0.4),
-                heater=Heater(900.0, alpha=2e-3), control=Control(), name="demo box")
+                chamber=Chamber(capacity=8e3, room_temperature=293.15, leakage=0.001, extra_loss=0.4),
+                heater=Heater(900.0, resistance_coefficient=2e-3), control=Control(), name="demo box")
 
 
 CASES = {
@@ -72,7 +72,7 @@ CASES = {
         Face.fixed(523.15), Face(flux=-150.0)),
     "heater with falling power": lambda: _slab(
         Face.exchange(293.15, 5.0), Face.exchange(293.15, 5.0),
-        heater=Heater(800.0, location="inner", alpha=3e-3, t_ref=293.15)),
+        heater=Heater(800.0, location="inner", resistance_coefficient=3e-3, t_ref=293.15)),
     "chamber, leakage, films and radiation to it": _enclosure,
 }
 

@@ -1,0 +1,268 @@
+"""The compiled parts of the time loop (fdwall/solver/kernels.py: integrate's parts) against
+their plain numpy twins (tests/kernel_twins.py) on random inputs, and against the method.
+
+Sources
+-------
+* TR-BDF2: Bank et al. (1985), IEEE Trans. Electron Devices 32(10); Hosea & Shampine
+  (1996), Appl. Numer. Math. 20: gamma = 2 - sqrt(2), both stages with the implicit
+  coefficient gamma/2, stability function R(z) with e^z - R(z) = c z^3 + O(z^4),
+  c = (-3 gamma^2 + 4 gamma - 2) / (12 (2 - gamma)), and R(-inf) = 0 (L-stable)
+  (from memory; the R(z) below is derived from the two stage equations).
+* Step-size controller: Hairer, Norsett & Wanner, Solving ODEs I, sec. II.4,
+  h_new = h min(facmax, max(facmin, fac err^(-1/(q+1)))), q = 2 (from memory).
+* Cubic Hermite interpolation is exact on cubics (elementary; e.g. Burden & Faires,
+  Numerical Analysis, sec. 3.4).
+"""
+from __future__ import annotations
+
+import kernel_twins as tw
+import numpy as np
+import pytest
+from test_jacobian_fd import CASES
+
+import fdwall.solver.layout as L
+from fdwall.solver import kernels as Kr
+from fdwall.solver.layout import N_EX, system_args
+from fdwall.system import build_system
+
+RNG = np.random.default_rng(2026)
+
+
+# ------------------------------------------------------------------ step target and size
+def test_step_target_and_size_match_their_twins():
+    for _ in range(300):
+        t_out = np.sort(RNG.uniform(0, 1000, 6))
+        bp = np.sort(RNG.uniform(0, 1000, 4))
+        k, ibp = int(RNG.integers(0, 6)), int(RNG.integers(0, 5))
+        land_outputs = bool(RNG.integers(0, 2))
+        assert Kr.step_target(t_out, k, 6, land_outputs, bp, ibp) == tw.step_target(
+            t_out, k, 6, land_outputs, bp, ibp)
+        t, target = RNG.uniform(0, 500), RNG.uniform(500, 1000)
+        h = float(np.exp(RNG.uniform(-3, 7)))
+        max_step = float(np.exp(RNG.uniform(0, 7))) if RNG.random() < 0.5 else np.inf
+        switched, restart = bool(RNG.integers(0, 2)), bool(RNG.integers(0, 2))
+        cs = np.zeros(L.N_CS)
+        cs[L.CS_HSW], cs[L.CS_HJ] = np.exp(RNG.uniform(-3, 7, 2))
+        if RNG.random() < 0.2:
+            h = (target - t) * (1 - 1e-10)          # within the landing tolerance
+        got = Kr.step_size(h, t, target, max_step, switched, restart, cs)
+        assert got == tw.step_size(h, t, target, max_step, switched, restart, cs[L.CS_HSW],
+                                   cs[L.CS_HJ])
+        mode, u, up = int(RNG.integers(0, 5)), float(RNG.integers(0, 2)), float(
+            RNG.integers(0, 2))
+        cs[L.CS_UPREV] = up
+        assert Kr.heater_switched(u, cs, mode) == tw.heater_switched(u, up, mode)
+        assert cs[L.CS_UPREV] == u
+
+
+def test_step_size_lands_on_the_target_and_leaves_no_sliver():
+    cs = np.full(L.N_CS, 1e9)
+    assert Kr.step_size(50.0, 0.0, 40.0, np.inf, False, False, cs) == (40.0, True)
+    # 30 of 40 would leave a 10-s sliver: take half of what remains
+    assert Kr.step_size(30.0, 0.0, 40.0, np.inf, False, False, cs) == (20.0, False)
+    assert Kr.step_size(30.0, 0.0, 400.0, 7.0, False, False, cs) == (7.0, False)
+
+
+def test_step_factors_follow_the_elementary_controller():
+    for err in np.exp(RNG.uniform(-40, 40, 500)):
+        if err <= 1.0:
+            assert Kr.factor_accepted(err) == pytest.approx(tw.factor_accepted(err), rel=1e-15)
+        else:
+            assert Kr.factor_rejected(err) == pytest.approx(tw.factor_rejected(err), rel=1e-15)
+    assert Kr.factor_rejected(np.inf) == 0.2 and Kr.factor_accepted(0.0) == 5.0
+    # with a local error ~ h^3, the retried step has err * fac^3 = 0.9^3 < 1: accepted
+    for err in np.exp(RNG.uniform(0.0, np.log(90.0), 200)):
+        assert err * Kr.factor_rejected(err) ** 3 == pytest.approx(0.729, rel=1e-12)
+
+
+# ------------------------------------------------------------------ the two stages
+def test_stage_guesses_match_their_twins():
+    n = 9
+    for have_prev in (False, True):
+        T = RNG.uniform(0.5, 900, n)
+        Tprev = RNG.uniform(0.5, 900, n)
+        H0, F0 = RNG.normal(0, 1e6, n), RNG.normal(0, 1e3, n)
+        hs, hprev = 37.0, 12.5
+        Hb, Tp = np.empty(n), np.empty(n)
+        Kr.trapezoid_guess(T, Tprev, hprev, have_prev, hs, Kr.D_COEF * hs, H0, F0, Hb, Tp)
+        Hb_t, Tp_t = tw.trapezoid_guess(T, Tprev, hprev, have_prev, hs, H0, F0)
+        assert np.allclose(Hb, Hb_t, rtol=1e-14, atol=0) and np.array_equal(Tp, Tp_t)
+        Tg, Hg = RNG.uniform(0.5, 900, n), RNG.normal(0, 1e6, n)
+        Kr.bdf2_guess(T, Tg, H0, Hg, Hb, Tp)
+        Hb_t, Tp_t = tw.bdf2_guess(T, Tg, H0, Hg)
+        assert np.allclose(Hb, Hb_t, rtol=1e-13, atol=1e-6) and np.allclose(Tp, Tp_t,
+                                                                            rtol=1e-14)
+
+
+def _step_of_linear_decay(z):
+    """One TR-BDF2 step of y' = lambda y (H = T, F = lambda T, hs = 1) from y = 1 through
+    the compiled stage guesses, each stage equation solved exactly: R(z), z = lambda."""
+    T = np.array([1.0])
+    H0, F0 = T.copy(), z * T
+    Hb, Tp = np.empty(1), np.empty(1)
+    dh = Kr.D_COEF
+    Kr.trapezoid_guess(T, T, 1.0, False, 1.0, dh, H0, F0, Hb, Tp)
+    Tg = Hb / (1.0 - dh * z)                   # H(Tg) - dh F(Tg) = Hb
+    Kr.bdf2_guess(T, Tg, H0, Tg.copy(), Hb, Tp)
+    return float(Hb[0] / (1.0 - dh * z))
+
+
+def test_stage_coefficients_are_those_of_tr_bdf2():
+    assert Kr.GAMMA == pytest.approx(2.0 - np.sqrt(2.0), rel=1e-15)
+    # the BDF2 stage's own implicit coefficient (1-g)/(2-g) equals g/2 for this gamma
+    assert Kr.C2 == pytest.approx(Kr.D_COEF, rel=1e-14)
+    # local error constant: e^z - R(z) = c z^3 + O(z^4) (Hosea & Shampine 1996)
+    c = (-3.0 * Kr.GAMMA ** 2 + 4.0 * Kr.GAMMA - 2.0) / (12.0 * (2.0 - Kr.GAMMA))
+    assert Kr.KERR == pytest.approx(c, rel=1e-14)
+    for z in (1e-3, -1e-3, 2e-3):
+        got = (np.exp(z) - _step_of_linear_decay(z)) / z ** 3
+        assert got == pytest.approx(c, rel=5 * abs(z) + 1e-6)
+    # second order: halving z divides the error by 8
+    e1 = abs(np.exp(-0.02) - _step_of_linear_decay(-0.02))
+    e2 = abs(np.exp(-0.01) - _step_of_linear_decay(-0.01))
+    assert e1 / e2 == pytest.approx(8.0, rel=0.02)
+    # L-stable: |R| <= 1 on the negative axis and R -> 0 at -infinity
+    for z in -np.exp(np.linspace(-5, 12, 60)):
+        assert abs(_step_of_linear_decay(z)) <= 1.0
+    assert abs(_step_of_linear_decay(-1e12)) < 1e-10
+
+
+# ------------------------------------------------------------------ error estimate
+@pytest.mark.parametrize("name", list(CASES))
+def test_error_norm_matches_a_dense_solve(name):
+    sysm = build_system(CASES[name]())
+    n, nf = sysm.n_unknowns, sysm.face_i.shape[0]
+    T = np.linspace(560.0, 320.0, n) + RNG.uniform(-3, 3, n)
+    F, Cap, H = np.empty(n), np.empty(n), np.empty(n)
+    J = [np.empty(n) for _ in range(5)]
+    Kr.assemble(T, 100.0, 0.0, -1.0, *system_args(sysm), F, Cap, H, *J, np.empty(nf),
+                np.empty(nf), np.empty(nf), np.zeros(N_EX))
+    from test_jacobian_fd import _dense
+    Jdense = _dense(sysm, J)
+    F0, Fg, F1 = (F + RNG.normal(0, 5, n) for _ in range(3))
+    hs, tol = 45.0, 0.01
+    work = [np.empty(n) for _ in range(5)]
+    got = Kr.error_norm(F0, Fg, F1, hs, Kr.D_COEF * hs, Cap, *J, sysm.dirich_node,
+                        sysm.chains, sysm.n_nodes, sysm.has_chamber, *work, tol)
+    assert got == pytest.approx(tw.error_norm(sysm, F0, Fg, F1, hs, Cap, Jdense, tol),
+                                rel=1e-9)
+
+
+# ------------------------------------------------------------------ retry, stall, flows
+def test_retry_stall_and_fixed_face_parts_match_their_twins():
+    ctl_i = np.full(L.N_CI, -1, dtype=np.int64)
+    ctl_f = np.zeros(L.N_CF)
+    ctl_i[L.CI_SENSOR_A] = ctl_i[L.CI_SENSOR_B] = 0
+    ctl_i[L.CI_SETPOINT] = 0
+    ctl_f[L.CF_BAND], ctl_f[L.CF_SENSOR_W] = 4.0, 1.0
+    s_off, stab = np.array([0, 1], dtype=np.int64), np.array([[0.0], [373.15]])
+    for _ in range(200):
+        T0, T1 = RNG.uniform(365, 382, 1), RNG.uniform(365, 382, 1)
+        u, hs = float(RNG.integers(0, 2)), float(RNG.uniform(1e-3, 100))
+        mode = int(RNG.integers(0, 5))
+        frac = Kr.thermostat_cut(T0, T1, u, 10.0, ctl_i, ctl_f, s_off, stab, 0.01)
+        got = Kr.thermostat_retry(mode, T0, T1, u, 10.0, hs, 1e-10, ctl_i, ctl_f, s_off,
+                                  stab, 0.01)
+        assert got == tw.thermostat_retry(frac, hs, 1e-10, mode == L.CTL_THERMOSTAT)
+    stats = np.zeros(L.N_STATS)
+    count = 0
+    for hs in np.exp(RNG.uniform(-30, 0, 500)) * 3600:
+        stalled = Kr.stall_guard(stats, hs, 3600.0)
+        count, expect = tw.stall_guard(count, hs, 3600.0)
+        assert stalled == expect and stats[L.ST_STALL] == count
+    stats[L.ST_STALL] = 20000
+    assert Kr.stall_guard(stats, 1e-7, 3600.0)
+    n = 6
+    dn = np.array([0, 5], dtype=np.int64)
+    H0, H1, F1 = RNG.normal(0, 1e5, n), RNG.normal(0, 1e5, n), RNG.normal(0, 100, n)
+    for start in (np.array([np.nan, 3.0]), np.array([1.0, 2.0])):
+        qd_state, qd_b = start.copy(), np.empty(2)
+        Kr.dirichlet_flows(qd_b, qd_state, H1, H0, F1, 7.0, dn)
+        qb_t, qs_t = tw.dirichlet_flows(start, H1, H0, F1, 7.0, dn)
+        assert np.allclose(qd_b, qb_t, rtol=1e-14) and np.allclose(qd_state, qs_t, rtol=1e-14)
+
+
+# ------------------------------------------------------------------ dense output
+def _dense_call(t_out, k, t, hs, land, t_target, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, acc_a, acc_b):
+    nun, nf, n = Ta.shape[0], qa.shape[0], t_out.shape[0]
+    outs = [np.full((n, nun), np.nan), np.full((n, nf), np.nan), np.full((n, nf + N_EX), np.nan),
+            np.full(n, np.nan), np.full((n, nf), np.nan), np.full((n, nf), np.nan)]
+    hc = np.ones(nf)
+    ex = np.array([10.0, 1.0])
+    e = np.zeros(0, dtype=np.int64)
+    k_new = Kr.dense_output(k, n, t, hs, land, t_target, t_out, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb,
+                            hc, hc, hc, hc, ex, ex, acc_a, acc_b, np.zeros(0), np.zeros(0), e, e,
+                            e, np.zeros(1, dtype=np.int64), np.zeros((2, 1)), nf, *outs)
+    return k_new, outs
+
+
+def test_dense_output_matches_its_twin():
+    for _ in range(50):
+        nun, nf = 4, 2
+        t, hs = 500.0, float(RNG.uniform(1, 80))
+        t_out = np.sort(np.concatenate([RNG.uniform(t - hs - 20, t + 20, 5), [t]]))
+        Ta, Tb = RNG.uniform(300, 900, nun), RNG.uniform(300, 900, nun)
+        Fa, Fb = RNG.normal(0, 50, nun), RNG.normal(0, 50, nun)
+        Ca, Cb = RNG.uniform(10, 1e3, nun), RNG.uniform(10, 1e3, nun)
+        qa, qb = RNG.normal(0, 50, nf), RNG.normal(0, 50, nf)
+        acc = np.zeros(nf + N_EX + 1)
+        k = int(np.searchsorted(t_out, t - hs, side="right"))
+        land = bool(RNG.integers(0, 2))
+        k_new, outs = _dense_call(t_out, k, t, hs, land, t, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb,
+                                  acc, acc)
+        rows, Ts, qs = tw.dense_rows(t_out, k, len(t_out), t, hs, land, t, Ta, Tb, Fa, Ca, Fb,
+                                     Cb, qa, qb)
+        assert k_new == (rows[-1] + 1 if rows else k)
+        for r, Tt, qt in zip(rows, Ts, qs):
+            assert np.allclose(outs[0][r], Tt, rtol=1e-13) and np.allclose(outs[1][r], qt,
+                                                                           rtol=1e-12,
+                                                                           atol=1e-12)
+
+
+def test_dense_output_is_exact_on_a_cubic():
+    # T(t) = 400 + 3 s - 0.02 s^2 + 1e-4 s^3 (s = t - 100) with C = 1 (slope = F), and a
+    # cumulative energy E(t) cubic with its flow q = E' at both ends: the rows inside the
+    # step must be the cubic itself (Hermite interpolation is exact on cubics)
+    def p(t):
+        s = t - 100.0
+        return 400.0 + 3 * s - 0.02 * s ** 2 + 1e-4 * s ** 3
+
+    def dp(t):
+        s = t - 100.0
+        return 3 - 0.04 * s + 3e-4 * s ** 2
+
+    def E(t):
+        return 50.0 * t + 0.3 * t ** 2 - 1e-3 * t ** 3
+
+    def q(t):
+        return 50.0 + 0.6 * t - 3e-3 * t ** 2
+
+    t0, t1 = 100.0, 160.0
+    t_out = np.array([110.0, 125.0, 140.0, 155.0, 160.0])
+    Ta, Tb = np.array([p(t0)]), np.array([p(t1)])
+    acc_a = np.array([E(t0), 0.0, 0.0, 0.0])
+    acc_b = np.array([E(t1), 0.0, 0.0, t1])
+    k_new, outs = _dense_call(t_out, 0, t1, t1 - t0, True, t1, Ta, Tb, np.array([dp(t0)]),
+                              np.ones(1), np.array([dp(t1)]), np.ones(1), np.array([q(t0)]),
+                              np.array([q(t1)]), acc_a, acc_b)
+    assert k_new == 5
+    assert np.allclose(outs[0][:, 0], p(t_out), rtol=0, atol=1e-10)
+    assert np.allclose(outs[2][:, 0], E(t_out), rtol=1e-13)
+    # flows are interpolated linearly: exact for a linear flow only
+    th = (140.0 - t0) / (t1 - t0)
+    assert outs[1][2, 0] == pytest.approx((1 - th) * q(t0) + th * q(t1), rel=1e-13)
+
+
+# ------------------------------------------------------------------ resume state
+def test_resume_state_round_trips():
+    nun, nf = 5, 2
+    ks = np.zeros(L.resume_size(nun, nf))
+    bp = np.array([10.0, 20.0, 30.0])
+    got = Kr.resume_load(ks, bp, 15.0)
+    assert got == (1, 1.0, False, False, False, -9.0)      # first call: breakpoint after 15 s
+    Kr.resume_save(ks, 2, 3.5, True, True, False, 0.25)
+    assert Kr.resume_load(ks, bp, 99.0) == (2, 3.5, True, True, False, 0.25)
+    views = Kr.resume_views(ks, nun, nf)
+    assert [v.shape[0] for v in views] == [nun] * 4 + [nf] * 3 + [2]
+    views[0][:] = 7.0                                       # views, not copies
+    assert np.all(ks[L.KS_ARRAYS:L.KS_ARRAYS + nun] == 7.0)
