@@ -139,7 +139,7 @@ KERR = (-3.0 * GAMMA ** 2 + 4.0 * GAMMA - 2.0) / (12.0 * (2.0 - GAMMA))
 
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def sched_eval(s_off, stab, idx, t, left):
     """Value of schedule ``idx`` at ``t``; ``left`` gives the value just before a step."""
     a = s_off[idx]
@@ -170,7 +170,7 @@ def sched_eval(s_off, stab, idx, t, left):
     return vv[i] + w * (vv[i + 1] - vv[i])
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def sched_eval_slope(s_off, stab, idx, x):
     """Value and slope d(value)/dx of a table (e.g. emissivity against T) at ``x``."""
     a = s_off[idx]
@@ -195,7 +195,7 @@ def sched_eval_slope(s_off, stab, idx, x):
     return vv[i] + s * (x - tt[i]), s
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def mat_eval(m_off, mtab, m, T):
     """Material ``m`` at ``T`` [K]: k [W/m/K], K=int k dT [W/m], c=rho*cp [J/m3/K], H [J/m3].
 
@@ -232,7 +232,7 @@ def mat_eval(m_off, mtab, m, T):
     return k, mtab[MT_KINT, lo] + 0.5 * d * (k0 + k), c, mtab[MT_H, lo] + 0.5 * d * (c0 + c)
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def face_h(face_i, face_f, hpar, f, Ts, Tf):
     """Convective film coefficient [W/m2/K] of face ``f`` and its derivatives d/dTs, d/dTf."""
     if face_i[f, FI_H_MODE] == H_FIXED:
@@ -267,7 +267,7 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
     :func:`faces` (imposed flux, films :func:`film` and radiation :func:`radiation`),
     :func:`chamber` (its capacity and the losses to the room), :func:`heater`.
     """
-    clear(F, Cap, H, Jd, Jl, Ju, Jcol, Jrow)
+    clear(node_i.shape[0], F, Cap, H, Jd, Jl, Ju, Jcol, Jrow)
     conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju)
     has_ch = ch_i[CHI_PRESENT] == 1
     nc_idx = node_i.shape[0]      # the chamber is the unknown after the wall nodes
@@ -277,29 +277,35 @@ def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_
     heater(T, t, left, u_ctl, ctl_i, ctl_f, s_off, stab, F, Jd, extra)
 
 
-@njit(cache=True)
-def clear(F, Cap, H, Jd, Jl, Ju, Jcol, Jrow):
-    """Zero the flows [W], capacities [J/K], enthalpies [J] and the Jacobian [W/K]."""
+@njit(cache=True, inline="always")
+def clear(N, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow):
+    """Zero what :func:`conduction` does not set: the border of the Jacobian (Jcol, Jrow)
+    [W/K] and the entries after the N wall nodes (the chamber) of the flows [W], capacities
+    [J/K], enthalpies [J] and the Jacobian [W/K]."""
     for i in range(F.shape[0]):
+        Jcol[i] = 0.0
+        Jrow[i] = 0.0
+    for i in range(N, F.shape[0]):
         F[i] = 0.0
         Jd[i] = 0.0
         Jl[i] = 0.0
         Ju[i] = 0.0
-        Jcol[i] = 0.0
-        Jrow[i] = 0.0
         Cap[i] = 0.0
         H[i] = 0.0
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju):
     """Capacities Cap [J/K] and enthalpies H [J] of the wall nodes, and the conduction between
     them: Kirchhoff links G (K(T_i) - K(T_j)) [W] (G the geometry factor [m], K = int k dT) or
-    contact conductances [W/K]; adds to F [W] and the tridiagonal Jd, Jl, Ju [W/K].
+    contact conductances [W/K]; sets F [W] and the tridiagonal Jd, Jl, Ju [W/K] of the N wall
+    nodes (the first term of the assembly: the others add to what it sets).
 
     Each node's materials are evaluated once at its own temperature; the link i-1 -> i uses
     the right-half value of node i-1 (same material as the left half of node i), so every
-    link costs no extra table look-up.
+    link costs no extra table look-up.  One pass over the nodes: each entry is written once
+    when its node is reached and corrected once by the link to the next node, in the same
+    order of operations as accumulating into zeroed arrays (0 + a - b).
     """
     N = node_i.shape[0]
     kr_prev = 0.0
@@ -312,25 +318,29 @@ def conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju):
         Kl = 0.0
         c = 0.0
         h = 0.0
+        cap = 0.0
+        hh = 0.0
         if ml >= 0:
             kl, Kl, c, h = mat_eval(m_off, mtab, ml, Ti)
             v = node_f[i, NF_VOL_L]
-            Cap[i] += v * c
-            H[i] += v * h
+            cap = 0.0 + v * c
+            hh = 0.0 + v * h
         kr = 0.0
         Kr = 0.0
         if mr >= 0:
             if mr == ml:
                 kr = kl
                 Kr = Kl
-                v = node_f[i, NF_VOL_R]
-                Cap[i] += v * c
-                H[i] += v * h
             else:
                 kr, Kr, c, h = mat_eval(m_off, mtab, mr, Ti)
-                v = node_f[i, NF_VOL_R]
-                Cap[i] += v * c
-                H[i] += v * h
+            v = node_f[i, NF_VOL_R]
+            cap += v * c
+            hh += v * h
+        Cap[i] = cap
+        H[i] = hh
+        fi = 0.0
+        jd = 0.0
+        jl = 0.0
         if i > 0:
             lm = node_i[i - 1, NI_LINK]
             if lm != LINK_NONE:
@@ -344,16 +354,20 @@ def conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju):
                     di = g * kr_prev
                     dj = -g * kl
                 F[i - 1] -= q
-                F[i] += q
                 Jd[i - 1] -= di
                 Ju[i - 1] -= dj
-                Jl[i] += di
-                Jd[i] += dj
+                fi = 0.0 + q
+                jl = 0.0 + di
+                jd = 0.0 + dj
+        F[i] = fi
+        Jd[i] = jd
+        Jl[i] = jl
+        Ju[i] = 0.0
         kr_prev = kr
         Kr_prev = Kr
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def film(face_i, face_f, hpar, f, A, Ts, Tf):
     """Convective film of face ``f`` (area A [m2], surface Ts and fluid Tf [K]): film
     coefficient [W/m2/K], heat into the wall [W] and its derivatives d/dTs, d/dTf [W/K]."""
@@ -364,7 +378,7 @@ def film(face_i, face_f, hpar, f, A, Ts, Tf):
     return hcv, qc, dqc_s, dqc_f
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def radiation(s_off, stab, face_i, f, A, Ts, Tr):
     """Grey radiation of face ``f`` (area A [m2], emissivity table against Ts) with
     surroundings at Tr [K]: heat into the wall [W], its derivatives d/dTs, d/dTr [W/K] and
@@ -380,7 +394,7 @@ def radiation(s_off, stab, face_i, f, A, Ts, Tr):
     return qr, dqr_s, dqr_o, hr
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def faces(T, t, left, face_i, face_f, hpar, s_off, stab, has_ch, nc_idx, F, Jd, Jcol, Jrow,
           qf, hc, hr):
     """Heat into the wall at every face not held at a fixed temperature: imposed flux,
@@ -436,7 +450,7 @@ def faces(T, t, left, face_i, face_f, hpar, s_off, stab, has_ch, nc_idx, F, Jd, 
             Jd[nc_idx] -= dq_o
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def chamber(T, t, left, ch_i, ch_f, m_off, mtab, s_off, stab, nc_idx, F, Cap, H, Jd, extra):
     """The chamber node ``nc_idx``: capacity [J/K] and enthalpy [J] from its table, and the
     loss to the room, extra UA plus leakage air (rho*cp of room air at 1 atm) times
@@ -460,7 +474,7 @@ def chamber(T, t, left, ch_i, ch_f, m_off, mtab, s_off, stab, nc_idx, F, Cap, H,
         extra[EX_LOSS] = loss
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def heater(T, t, left, u_ctl, ctl_i, ctl_f, s_off, stab, F, Jd, extra):
     """Heater power into its node [W]: rated power x power factor x on-fraction x enable,
     divided by 1 + alpha (T - t_ref) for an element whose resistance rises with temperature;
@@ -531,7 +545,7 @@ def solve_arrow(Md, Ml, Mu, Mcol, Mrow, chains, N, has_ch, rhs, x, wc, wy, wz):
             x[i] = wy[i]
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def _newton_matrix(Cap, cw, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R):
     """Turn the Jacobian dF/dT held in Jd, Jl, Ju, Jcol, Jrow into the Newton matrix
     ``cw*diag(Cap) - dh*J`` in place (cw = 1 for a time stage, 0 with dh = 1 for the steady
@@ -551,7 +565,7 @@ def _newton_matrix(Cap, cw, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R):
         Jcol[i] = 0.0
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def _apply_correction(T, dx, cap):
     """Add the Newton correction ``dx`` [K] to ``T``, scaled down so no node moves more than
     ``cap`` [K] and no temperature falls below 1 K.  Returns the largest |dx| [K], or -1 when
