@@ -144,30 +144,28 @@ def sched_eval(s_off, stab, idx, t, left):
     """Value of schedule ``idx`` at ``t``; ``left`` gives the value just before a step."""
     a = s_off[idx]
     b = s_off[idx + 1]
-    tt = stab[SC_X]
-    vv = stab[SC_VALUE]
     if b - a == 1:
-        return vv[a]
-    # last knot i with tt[i] <= t (right) or tt[i] < t (left)
+        return stab[SC_VALUE, a]
+    # last knot i with time <= t (right) or < t (left)
     lo = a
     hi = b
     while lo < hi:
         mid = (lo + hi) // 2
-        if (tt[mid] < t) if left else (tt[mid] <= t):
+        if (stab[SC_X, mid] < t) if left else (stab[SC_X, mid] <= t):
             lo = mid + 1
         else:
             hi = mid
     i = lo - 1
     if i < a:
-        return vv[a]
+        return stab[SC_VALUE, a]
     if i >= b - 1:
-        return vv[b - 1]
-    t0 = tt[i]
-    t1 = tt[i + 1]
+        return stab[SC_VALUE, b - 1]
+    t0 = stab[SC_X, i]
+    t1 = stab[SC_X, i + 1]
     if t1 <= t0:
-        return vv[i + 1]
+        return stab[SC_VALUE, i + 1]
     w = (t - t0) / (t1 - t0)
-    return vv[i] + w * (vv[i + 1] - vv[i])
+    return stab[SC_VALUE, i] + w * (stab[SC_VALUE, i + 1] - stab[SC_VALUE, i])
 
 
 @njit(cache=True, inline="always")
@@ -175,24 +173,22 @@ def sched_eval_slope(s_off, stab, idx, x):
     """Value and slope d(value)/dx of a table (e.g. emissivity against T) at ``x``."""
     a = s_off[idx]
     b = s_off[idx + 1]
-    tt = stab[SC_X]
-    vv = stab[SC_VALUE]
-    if b - a == 1 or x <= tt[a]:
-        return vv[a], 0.0
-    if x >= tt[b - 1]:
-        return vv[b - 1], 0.0
+    if b - a == 1 or x <= stab[SC_X, a]:
+        return stab[SC_VALUE, a], 0.0
+    if x >= stab[SC_X, b - 1]:
+        return stab[SC_VALUE, b - 1], 0.0
     lo = a
     hi = b
     while lo < hi:
         mid = (lo + hi) // 2
-        if tt[mid] <= x:
+        if stab[SC_X, mid] <= x:
             lo = mid + 1
         else:
             hi = mid
     i = lo - 1
-    dt = tt[i + 1] - tt[i]
-    s = (vv[i + 1] - vv[i]) / dt
-    return vv[i] + s * (x - tt[i]), s
+    dt = stab[SC_X, i + 1] - stab[SC_X, i]
+    s = (stab[SC_VALUE, i + 1] - stab[SC_VALUE, i]) / dt
+    return stab[SC_VALUE, i] + s * (x - stab[SC_X, i]), s
 
 
 @njit(cache=True, inline="always")
@@ -204,27 +200,26 @@ def mat_eval(m_off, mtab, m, T):
     """
     a = m_off[m]
     b = m_off[m + 1]
-    Tt = mtab[MT_T]
-    if T <= Tt[a]:
+    if T <= mtab[MT_T, a]:
         k = mtab[MT_K, a]
         c = mtab[MT_C, a]
-        d = T - Tt[a]
+        d = T - mtab[MT_T, a]
         return k, mtab[MT_KINT, a] + k * d, c, mtab[MT_H, a] + c * d
-    if T >= Tt[b - 1]:
+    if T >= mtab[MT_T, b - 1]:
         k = mtab[MT_K, b - 1]
         c = mtab[MT_C, b - 1]
-        d = T - Tt[b - 1]
+        d = T - mtab[MT_T, b - 1]
         return k, mtab[MT_KINT, b - 1] + k * d, c, mtab[MT_H, b - 1] + c * d
     lo = a
     hi = b - 1
     while hi - lo > 1:
         mid = (lo + hi) // 2
-        if Tt[mid] <= T:
+        if mtab[MT_T, mid] <= T:
             lo = mid
         else:
             hi = mid
-    d = T - Tt[lo]
-    w = d / (Tt[lo + 1] - Tt[lo])
+    d = T - mtab[MT_T, lo]
+    w = d / (mtab[MT_T, lo + 1] - mtab[MT_T, lo])
     k0 = mtab[MT_K, lo]
     c0 = mtab[MT_C, lo]
     k = k0 + w * (mtab[MT_K, lo + 1] - k0)
@@ -566,6 +561,28 @@ def _newton_matrix(Cap, cw, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R):
 
 
 @njit(cache=True, inline="always")
+def _stage_system(H, Hbase, F, Cap, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R):
+    """The Newton system of a time stage in one pass: right-hand side
+    R = -(H - Hbase - dh F) [J] and, in place of the Jacobian dF/dT, the matrix
+    diag(Cap) - dh J [J/K] (as :func:`_newton_matrix` with cw = 1); fixed-temperature rows
+    become identity rows with a zero right-hand side."""
+    for i in range(Jd.shape[0]):
+        R[i] = -(H[i] - Hbase[i] - dh * F[i])
+        Jd[i] = 1.0 * Cap[i] - dh * Jd[i]
+        Jl[i] = -dh * Jl[i]
+        Ju[i] = -dh * Ju[i]
+        Jcol[i] = -dh * Jcol[i]
+        Jrow[i] = -dh * Jrow[i]
+    for k in range(dirich_node.shape[0]):
+        i = dirich_node[k]
+        R[i] = 0.0
+        Jd[i] = 1.0
+        Jl[i] = 0.0
+        Ju[i] = 0.0
+        Jcol[i] = 0.0
+
+
+@njit(cache=True, inline="always")
 def _apply_correction(T, dx, cap):
     """Add the Newton correction ``dx`` [K] to ``T``, scaled down so no node moves more than
     ``cap`` [K] and no temperature falls below 1 K.  Returns the largest |dx| [K], or -1 when
@@ -611,9 +628,7 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
                  s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc,
                  hr, extra)
         stats[ST_ASSEMBLE] += 1
-        for i in range(nun):
-            R[i] = -(H[i] - Hbase[i] - dh * F[i])
-        _newton_matrix(Cap, 1.0, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R)
+        _stage_system(H, Hbase, F, Cap, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R)
         solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
         stats[ST_NEWTON] += 1
         mx = _apply_correction(T, dx, 200.0)
