@@ -266,3 +266,41 @@ def test_resume_state_round_trips():
     assert [v.shape[0] for v in views] == [nun] * 4 + [nf] * 3 + [2]
     views[0][:] = 7.0                                       # views, not copies
     assert np.all(ks[L.KS_ARRAYS:L.KS_ARRAYS + nun] == 7.0)
+
+
+# ------------------------------------------------------------------ Newton system of a stage
+@pytest.mark.parametrize("name", ["fixed temperature and flux",
+                                  "chamber, leakage, films and radiation to it"])
+def test_stage_system_is_capacity_minus_dh_jacobian(name):
+    sysm = build_system(CASES[name]())
+    n, nf = sysm.n_unknowns, sysm.face_i.shape[0]
+    T = np.linspace(560.0, 320.0, n) + RNG.uniform(-3, 3, n)
+    F, Cap, H = np.empty(n), np.empty(n), np.empty(n)
+    J = [np.empty(n) for _ in range(5)]
+    Kr.assemble(T, 100.0, 0.0, -1.0, *system_args(sysm), F, Cap, H, *J, np.empty(nf),
+                np.empty(nf), np.empty(nf), np.zeros(N_EX))
+    from test_jacobian_fd import _dense
+    Jdense = _dense(sysm, J)
+    Hbase, dh = H + RNG.normal(0, 1e3, n), 12.5
+    R = np.empty(n)
+    Kr._stage_system(H, Hbase, F, Cap, dh, *J, sysm.dirich_node, R)
+    M = np.diag(Cap) - dh * Jdense          # the stage matrix H'(T) - dh F'(T)
+    r = -(H - Hbase - dh * F)
+    for i in sysm.dirich_node:              # fixed-temperature rows: dT = 0
+        M[i, :], M[i, i], r[i] = 0.0, 1.0, 0.0
+    got = _dense(sysm, J)
+    assert np.allclose(got, M, rtol=1e-13, atol=0) and np.allclose(R, r, rtol=1e-13)
+
+
+def test_conduction_sets_its_entries_whatever_the_arrays_held():
+    # conduction is the first term of the assembly: it writes F, Cap, H, Jd, Jl, Ju of the
+    # wall nodes instead of adding to them, so stale values must not leak in
+    sysm = build_system(CASES["conduction, k(T), contact, fixed films"]())
+    N = sysm.n_nodes
+    T = np.linspace(560.0, 320.0, N) + RNG.uniform(-3, 3, N)
+    arrs = [np.full(N, np.nan) for _ in range(6)]
+    Kr.conduction(T, sysm.node_i, sysm.node_f, sysm.m_off, sysm.mtab, *arrs)
+    F, J, Cap, H = tw.conduction(sysm, T)
+    assert np.allclose(arrs[0], F, rtol=1e-10, atol=1e-9) and np.allclose(arrs[1], Cap)
+    assert np.allclose(arrs[2], H, rtol=1e-12)
+    assert np.allclose(arrs[3], np.diag(J), rtol=1e-10)
