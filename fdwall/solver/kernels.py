@@ -698,12 +698,15 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hca, hra, hcb, hrb
     h10 = s3 - 2 * s2 + th
     h01 = -2 * s3 + 3 * s2
     h11 = s3 - s2
-    for i in range(nun):
-        if th == 1.0:
-            T_out[k, i] = Tb[i]
-        else:
-            T_out[k, i] = (h00 * Ta[i] + h10 * hs * Fa[i] / Ca[i] + h01 * Tb[i]
-                           + h11 * hs * Fb[i] / Cb[i])
+    row = T_out[k]
+    if th == 1.0:
+        for i in range(nun):
+            row[i] = Tb[i]
+    else:
+        a = h10 * hs        # the products in the order of h10 * hs * Fa / Ca
+        b = h11 * hs
+        for i in range(nun):
+            row[i] = h00 * Ta[i] + a * Fa[i] / Ca[i] + h01 * Tb[i] + b * Fb[i] / Cb[i]
     nd = dirich_node.shape[0]
     for kk in range(nd):
         T_out[k, dirich_node[kk]] = sched_eval(s_off, stab, dirich_sched[kk], tk, 1.0)
