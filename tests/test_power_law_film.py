@@ -379,3 +379,47 @@ def test_cli_bad_input_exit_2(tmp_path, capsys, coef, expo, key):
     err = " ".join(capsys.readouterr().err.split())
     assert f"wall.outer_face.convection.{key}" in err
     assert "Traceback" not in err
+
+
+# ----------------------------------------------------------------- analyses that read the kind
+def test_size_for_skin_limit_against_closed_form(tmp_path, capsys):
+    # Smallest layer for a 40 degC skin: the film carries q = a (Ts - Tf)^(1+n) at the limit,
+    # and a constant-k slab L = k (T1 - Ts) / q (Fourier; Incropera sec. 3.1).
+    import json
+    a, n, k, T1, Ts, Tf = 1.42, 0.25, 0.05, 200.0, 40.0, 20.0
+    p = _write(tmp_path, _slab_case("1.42 W/(m2 K^1.25)", 0.25))
+    rc = cli.main(["size", str(p), "--layer", "0", "--skin-limit", "40 degC", "--json",
+                   "--no-plots", "--out", str(tmp_path / "out")])
+    assert rc == 0
+    data = json.loads(capsys.readouterr().out)
+    L = k * (T1 - Ts) / (a * (Ts - Tf) ** (1 + n))
+    assert data["thickness_exact_m"] == pytest.approx(L, rel=1e-4)
+
+
+def test_wind_design_condition_takes_the_power_law_as_natural_part():
+    from fdwall.analyses.sizing import Conditions, _apply_conditions
+    d = _slab_case("1.31 W/(m2 K^(4/3))", "1/3")
+    flat = case_from_dict(copy.deepcopy(d), "flat.toml")
+    with pytest.raises(InputError, match="power-law"):
+        _apply_conditions(flat, None, Conditions(wind=3.0))
+    d["wall"].update(shape="cylinder", inner_radius="50 mm", length="1 m")
+    d["wall"].pop("area")
+    pipe = case_from_dict(d, "pipe.toml")
+    c = _apply_conditions(pipe, None, Conditions(wind=3.0)).outer.convection
+    assert c.kind == "wind_cylinder" and c.natural.kind == "power_law"
+    assert c.diameter == pytest.approx(2 * 0.1)
+    still = _apply_conditions(pipe, None, Conditions(wind=0.0)).outer.convection
+    assert still.kind == "power_law"
+
+
+def test_calc_notes_state_the_law_and_its_source():
+    from fdwall.analyses.calc_notes import correlation_rows, input_rows
+    from fdwall.system import build_system
+    case = case_from_dict(_slab_case("1.42 W/(m2 K^1.25)", 0.25), "notes.toml")
+    rows = correlation_rows(case)
+    pl = [r for r in rows if r["model"] == "convection: power law"]
+    assert len(pl) == 1 and "McAdams" in pl[0]["reference"]
+    assert "air properties: Lemmon" not in pl[0]["reference"]
+    inp = input_rows(case, build_system(case))
+    a_row = [r for r in inp if r["quantity"].startswith("power-law coefficient")][0]
+    assert a_row["value"] == 1.42 and a_row["unit"] == "W/(m2 K^1.25)"

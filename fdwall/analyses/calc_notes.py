@@ -91,7 +91,7 @@ def _conv_rows(section, c, fixed_label="film coefficient"):
     if pl is not None:
         n = float(pl.exponent)
         rows.append(_row(section, "power-law coefficient a of h = a |dT|^n", pl.coefficient,
-                         f"W/(m2 K^{1.0 + n:g})"))
+                         f"W/(m2 K^{1.0 + n:.4g})"))
         rows.append(_row(section, "power-law exponent n", n, ""))
     for attr, label in (("height", "height"), ("char_length", "length A/P"),
                         ("diameter", "diameter"), ("length", "length along the flow")):
