@@ -423,3 +423,57 @@ def test_calc_notes_state_the_law_and_its_source():
     inp = input_rows(case, build_system(case))
     a_row = [r for r in inp if r["quantity"].startswith("power-law coefficient")][0]
     assert a_row["value"] == 1.42 and a_row["unit"] == "W/(m2 K^1.25)"
+
+
+# ----------------------------------------------------------------- fdwall fit --model power-law
+def _cooling_csv(tmp_path, a=1.42, n=0.25, C=5.0e4, A=1.2, d0=180.0, TA=20.0):
+    # invented cooling log from the closed form of the separable ODE (as above), 0.05 K noise
+    t = np.linspace(0.0, 6 * 3600.0, 150)
+    rng = np.random.default_rng(11)
+    T = TA + (d0 ** -n + n * a * A * t / C) ** (-1.0 / n) + rng.normal(0.0, 0.05, t.size)
+    p = tmp_path / "cooling.csv"
+    p.write_text("time [min],body [degC]\n"
+                 + "".join(f"{ti / 60:.4f},{Ti:.4f}\n" for ti, Ti in zip(t, T)))
+    return p
+
+
+def test_cli_fit_power_law_recovers_a_and_n(tmp_path, capsys):
+    import json
+    p = _cooling_csv(tmp_path)
+    rc = cli.main(["fit", str(p), "--time", "time [min]", "--temperature", "body [degC]",
+                   "--power", "0 W", "--ambient", "20 degC", "--model", "power-law",
+                   "--area", "1.2 m2", "--heat-capacity", "50 kJ/K", "--json", "--no-plots",
+                   "--out", str(tmp_path / "out")])
+    assert rc == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["model"] == "power-law"
+    assert data["coefficient"] == pytest.approx(1.42, rel=0.01)
+    assert data["exponent"] == pytest.approx(0.25, abs=0.003)
+    assert data["coefficient_unit"] == "W/(m2 K^1.25)"
+    assert (tmp_path / "out" / "cooling-fit.h5").exists()
+
+
+@pytest.mark.parametrize("extra, words", [
+    ([], "--area"),
+    (["--area", "1.2"], "--area"),
+    (["--area", "1.2 m2", "--exponent", "-0.2"], "--exponent"),
+    (["--area", "1.2 m2"], "--heat-capacity"),
+    (["--area", "1.2 m2", "--heat-capacity", "50 kJ/K", "--sensor-lag", "30 s"],
+     "--sensor-lag"),
+])
+def test_cli_fit_power_law_bad_options_exit_2(tmp_path, capsys, extra, words):
+    p = _cooling_csv(tmp_path)
+    rc = cli.main(["fit", str(p), "--time", "time [min]", "--temperature", "body [degC]",
+                   "--power", "0 W", "--ambient", "20 degC", "--model", "power-law",
+                   "--out", str(tmp_path / "out"), *extra])
+    err = " ".join(capsys.readouterr().err.split())
+    assert rc == 2 and words in err and "Traceback" not in err
+    assert not (tmp_path / "out").exists()
+
+
+def test_cli_fit_area_only_with_power_law(tmp_path, capsys):
+    p = _cooling_csv(tmp_path)
+    rc = cli.main(["fit", str(p), "--time", "time [min]", "--temperature", "body [degC]",
+                   "--power", "0 W", "--ambient", "20 degC", "--area", "1 m2",
+                   "--out", str(tmp_path / "out")])
+    assert rc == 2 and "--model power-law" in " ".join(capsys.readouterr().err.split())

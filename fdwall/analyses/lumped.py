@@ -380,8 +380,9 @@ def fit_power_law_loss(t, T, T_amb, *, area, power=0.0, heat_capacity=None, expo
         ``coefficient`` [W/(m2 K^(1+n))], ``coefficient_unit`` (text), ``exponent`` [-],
         ``C_J_per_K`` [J/K], ``T0_K`` [K], ``stderr`` (same keys; from the Jacobian with the
         residual variance, no allowance for autocorrelated residuals), ``rms_K`` residual
-        [K], ``n_points``, ``fitted`` (names of the fitted parameters) and ``convection``, the
-        :class:`fdwall.physics.convection.Convection` of kind ``power_law`` to put on a face.
+        [K], ``n_points``, ``fitted`` (names of the fitted parameters), ``convection``, the
+        :class:`fdwall.physics.convection.Convection` of kind ``power_law`` to put on a face,
+        ``model_K`` the fitted curve at ``t`` [K] and ``residual_K`` = log - model [K].
     """
     from scipy.optimize import least_squares
 
@@ -461,7 +462,8 @@ def fit_power_law_loss(t, T, T_amb, *, area, power=0.0, heat_capacity=None, expo
     return {"coefficient": float(a), "coefficient_unit": f"W/(m2 K^{1.0 + n:.4g})",
             "exponent": float(n), "C_J_per_K": float(C), "T0_K": float(T0), "stderr": se,
             "rms_K": float(np.sqrt(np.mean(sol.fun ** 2))), "n_points": int(t.size),
-            "fitted": names, "convection": Convection.power_law(a, n)}
+            "fitted": names, "convection": Convection.power_law(a, n),
+            "model_K": T + sol.fun, "residual_K": -sol.fun}
 
 
 def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
