@@ -521,3 +521,38 @@ def test_lumped_plate_heated_then_cooled_by_the_fluid():
     # energy through the film over stage 1 = stored rise (first law): rho cp L dT, per m2
     i1 = int(np.argmin(np.abs(t - t1)))
     assert float(res.heat_in[i1]) == pytest.approx(Cp * (T_at - 20.0), rel=0.005)
+
+
+@pytest.mark.parametrize("T_fluid", [293.15, 360.0])
+def test_jacobian_of_a_power_law_face_matches_central_differences(T_fluid):
+    # dF/dT of the assembly against central differences of F (error O(d^2); Press et al.,
+    # Numerical Recipes, 3rd ed., sec. 5.7), the outer face some 30 K above (first case) or
+    # below (second) the fluid.  The film's own slope is a one-sided difference (1e-3 K) in
+    # the kernel: its truncation error is allowed, as for the correlations.
+    from test_jacobian_fd import _assemble, _dense, _slab
+
+    from fdwall.model import Face
+    from fdwall.system import build_system
+    case = _slab(Face.exchange(573.15, 20.0),
+                 Face.exchange(T_fluid, Convection.power_law(1.31, 1.0 / 3.0)))
+    sysm = build_system(case)
+    nun = sysm.n_unknowns
+    T = np.linspace(560.0, 325.0, nun)
+    F0, J = _assemble(sysm, T)
+    A = _dense(sysm, J)
+    d = 1e-3
+    fd = np.empty((nun, nun))
+    for j in range(nun):
+        Tp, Tm = T.copy(), T.copy()
+        Tp[j] += d
+        Tm[j] -= d
+        fd[:, j] = (_assemble(sysm, Tp)[0] - _assemble(sysm, Tm)[0]) / (2 * d)
+    scale = np.max(np.abs(fd))
+    err = np.abs(A - fd)
+    assert np.all(err <= 2e-3 * np.abs(fd) + 1e-7 * scale)
+    # the face row carries the film's slope (1 + n) a |dT|^n A (calculus), on top of the
+    # conduction to the next node
+    i = nun - 1
+    film = (1 + 1.0 / 3.0) * 1.31 * abs(T[i] - T_fluid) ** (1.0 / 3.0) * 1.5
+    cond = fd[i, i - 1]
+    assert -fd[i, i] == pytest.approx(cond + film, rel=1e-4)
