@@ -556,3 +556,17 @@ def test_jacobian_of_a_power_law_face_matches_central_differences(T_fluid):
     film = (1 + 1.0 / 3.0) * 1.31 * abs(T[i] - T_fluid) ** (1.0 / 3.0) * 1.5
     cond = fd[i, i - 1]
     assert -fd[i, i] == pytest.approx(cond + film, rel=1e-4)
+
+
+def test_validity_warning_for_an_implausible_power_law():
+    # Free convection in gases: h = 2 .. 25 W/m2/K (Incropera et al., table 1.1); a
+    # coefficient ten times the turbulent air form (a unit slip) gets a plain warning, the
+    # form itself none.
+    from fdwall.case import case_warnings
+    ok = Convection.power_law(1.31, 1.0 / 3.0)
+    assert ok.validity_warnings(330.0, 300.0) == []
+    bad = Convection.power_law(13.1, 1.0 / 3.0)
+    (w,) = bad.validity_warnings(330.0, 300.0)
+    assert "h = 40.7 W/m2/K" in w and "unit" in w
+    case = case_from_dict(_slab_case("13.1 W/(m2 K^(4/3))", "1/3"), "warn.toml")
+    assert any("power_law" in m and "usual range" in m for m in case_warnings(case))

@@ -182,6 +182,9 @@ _COS60 = 0.5
 #: n of 2 to 3, is no face condition of fdwall); below 0 h would grow without bound as the
 #: face approaches the fluid temperature, which is unphysical and singular.
 EXPONENT_RANGE = (0.0, 1.0)
+#: Usual film coefficients of natural (free) convection in gases [W/m2/K] (Incropera et al.,
+#: Fundamentals of Heat and Mass Transfer, table 1.1): a power law outside gets a warning.
+H_FREE_GAS_RANGE = (2.0, 25.0)
 
 
 # --------------------------------------------------------------------------- correlations
@@ -1214,8 +1217,20 @@ class Convection:
             One message per issue (empty if all is within range).
         """
         out = []
-        if self.kind in ("fixed", "power_law"):
+        if self.kind == "fixed":
             return out  # given by the user: no correlation range to leave
+        if self.kind == "power_law":
+            h = float(self.h(Ts, Tf))
+            lo, hi = H_FREE_GAS_RANGE
+            if abs(Ts - Tf) > 0.0 and not (lo <= h <= hi):
+                out.append(
+                    f"the power law gives h = {h:.3g} W/m2/K at |Ts - Tf| = {abs(Ts - Tf):.3g} "
+                    f"K, outside {lo:g} .. {hi:g} W/m2/K, the usual range of natural convection "
+                    "in gases (Incropera et al., Fundamentals of Heat and Mass Transfer, table "
+                    "1.1); check the coefficient and its unit (a liquid or a fitted combined "
+                    "film may lie outside)."
+                )
+            return out
         from ..solver import native
         ra, gr, re, pr, tfilm = native.dimensionless_numbers(np.array(self.par, dtype=float),
                                                              float(Ts), float(Tf))
