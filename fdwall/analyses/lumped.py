@@ -563,12 +563,15 @@ def _rc_notes(rc, modes, case) -> list:
         notes.append(f"The time constants, C_effective and the networks come from the wall "
                      f"linearised at the operating point: their resistance is the differential "
                      f"dT/dQ there, {Rd:.4g} K/W, not the secant R = (T_hot - T_amb)/Q = "
-                     f"{rc['R_K_per_W']:.4g} K/W; the two differ because radiation or k(T) "
-                     f"make the loss grow faster than the temperature rise.")
+                     f"{rc['R_K_per_W']:.4g} K/W; the two differ because radiation, k(T) or "
+                     f"a film that strengthens with the temperature difference (natural "
+                     f"convection, a power-law film) make the loss grow faster than the "
+                     f"temperature rise.")
     notes.append("R and C hold at this operating point only: radiation loss grows roughly as "
-                 "T^3 and k(T) of insulation rises with temperature, so R falls as the wall "
-                 "runs hotter, and cp(T) moves C. Compare a fit with the numbers at the "
-                 "temperatures the log ran at.")
+                 "T^3, a natural-convection film as dT^(1+n) (n about 1/4 to 1/3) and k(T) of "
+                 "insulation rises with temperature, so R falls as the wall runs hotter, and "
+                 "cp(T) moves C. Compare a fit with the numbers at the temperatures the log "
+                 "ran at, or fit the loss law itself (fdwall fit --model power-law).")
     return notes
 
 
