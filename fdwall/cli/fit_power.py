@@ -188,7 +188,8 @@ def _text(args, fit, pred, area, files) -> str:
          f"  film             h = {fit['coefficient']:.4g} |T - T_amb|^{n:.3g} W/m2/K over "
          f"{area:.4g} m2",
          f"  residual RMS {fit['rms_K']:.3g} K over {fit['n_points']} rows",
-         "  as a case-file face: [convection] model = \"power_law\", coefficient = "
+         "  as a case-file film (when all the loss leaves through this area): "
+         "[convection] model = \"power_law\", coefficient = "
          f"\"{fit['coefficient']:.4g} W/(m2 K^{1.0 + n:.4g})\", exponent = {n:.4g}"]
     if "steady_temperature_K" in pred:
         L.append(f"  steady temperature at {pred['power_W']:.4g} W: "
