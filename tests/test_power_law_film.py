@@ -570,3 +570,26 @@ def test_validity_warning_for_an_implausible_power_law():
     assert "h = 40.7 W/m2/K" in w and "unit" in w
     case = case_from_dict(_slab_case("13.1 W/(m2 K^(4/3))", "1/3"), "warn.toml")
     assert any("power_law" in m and "usual range" in m for m in case_warnings(case))
+
+
+def test_fit_intervals_widen_for_autocorrelated_residuals():
+    # AR(1) noise e_i = phi e_(i-1) + w_i (phi = 0.8) on the closed-form cooling curve: the
+    # effective sample size is n (1 - r1)/(1 + r1) (e.g. Bayley & Hammersley 1946; Box &
+    # Jenkins), about n/9, and the standard errors grow by about 3 against white noise of
+    # the same size; the truth then lies within 3 of them (a 99.7 % band), repeated seeds.
+    C, A, a, n, TA, d0 = 5.0e4, 1.2, 1.42, 0.25, 293.15, 180.0
+    t = np.linspace(0.0, 6 * 3600.0, 300)
+    clean = TA + (d0 ** -n + n * a * A * t / C) ** (-1.0 / n)
+    hits = 0
+    for seed in range(6):
+        rng = np.random.default_rng(100 + seed)
+        w = rng.normal(0.0, 0.05 * math.sqrt(1 - 0.8 ** 2), t.size)
+        e = np.empty(t.size)
+        e[0] = rng.normal(0.0, 0.05)
+        for i in range(1, t.size):
+            e[i] = 0.8 * e[i - 1] + w[i]
+        f = fit_power_law_loss(t, clean + e, TA, area=A, heat_capacity=C)
+        assert 0.6 < f["lag1_autocorrelation"] < 0.9
+        assert f["n_eff"] < t.size / 5
+        hits += abs(f["exponent"] - n) <= 3 * f["stderr"]["exponent"]
+    assert hits >= 5

@@ -379,7 +379,8 @@ def fit_power_law_loss(t, T, T_amb, *, area, power=0.0, heat_capacity=None, expo
     dict
         ``coefficient`` [W/(m2 K^(1+n))], ``coefficient_unit`` (text), ``exponent`` [-],
         ``C_J_per_K`` [J/K], ``T0_K`` [K], ``stderr`` (same keys; from the Jacobian with the
-        residual variance, no allowance for autocorrelated residuals), ``rms_K`` residual
+        residual variance on the effective sample size ``n_eff`` = n (1 - r1) / (1 + r1) of
+        residuals with lag-1 autocorrelation ``lag1_autocorrelation`` r1), ``rms_K`` residual
         [K], ``n_points``, ``fitted`` (names of the fitted parameters), ``convection``, the
         :class:`fdwall.physics.convection.Convection` of kind ``power_law`` to put on a face,
         ``model_K`` the fitted curve at ``t`` [K] and ``residual_K`` = log - model [K].
@@ -448,8 +449,13 @@ def fit_power_law_loss(t, T, T_amb, *, area, power=0.0, heat_capacity=None, expo
 
     sol = least_squares(res, x0, bounds=(lb, ub), x_scale="jac")
     a, n, C, T0 = unpack(sol.x)
-    m = t.size - len(x0)
-    s2 = float(sol.fun @ sol.fun) / max(m, 1)
+    # residual variance on the effective sample size n (1 - r1) / (1 + r1) of residuals with
+    # lag-1 autocorrelation r1, as the R/C fits of fdwall.analyses.twonode do
+    from fdwall.analyses.twonode import residual_acf
+    r1 = float(residual_acf(-sol.fun, 1)[0])
+    r1c = min(max(r1, 0.0), 0.99)
+    n_eff = t.size * (1 - r1c) / (1 + r1c)
+    s2 = float(sol.fun @ sol.fun) / max(n_eff - len(x0), 1.0)
     try:
         cov = np.linalg.inv(sol.jac.T @ sol.jac) * s2
         se_x = np.sqrt(np.clip(np.diag(cov), 0.0, None))
@@ -462,6 +468,7 @@ def fit_power_law_loss(t, T, T_amb, *, area, power=0.0, heat_capacity=None, expo
     return {"coefficient": float(a), "coefficient_unit": f"W/(m2 K^{1.0 + n:.4g})",
             "exponent": float(n), "C_J_per_K": float(C), "T0_K": float(T0), "stderr": se,
             "rms_K": float(np.sqrt(np.mean(sol.fun ** 2))), "n_points": int(t.size),
+            "lag1_autocorrelation": r1, "n_eff": float(n_eff),
             "fitted": names, "convection": Convection.power_law(a, n),
             "model_K": T + sol.fun, "residual_K": -sol.fun}
 

@@ -114,7 +114,8 @@ def cmd_fit_power_law(args, power, rated, ambient, temps, repair) -> int:
     summary = {"model": "power-law", "coefficient": fit["coefficient"],
                "coefficient_unit": fit["coefficient_unit"], "exponent": fit["exponent"],
                "C_J_per_K": fit["C_J_per_K"], "T0_K": fit["T0_K"], "rms_K": fit["rms_K"],
-               "n": fit["n_points"], "area_m2": area,
+               "n": fit["n_points"], "n_eff": fit["n_eff"],
+               "lag1_autocorrelation": fit["lag1_autocorrelation"], "area_m2": area,
                "fitted": ",".join(fit["fitted"]),
                **{f"{k}_stderr": v for k, v in fit["stderr"].items()}}
     if log["start"]:
@@ -144,8 +145,8 @@ def cmd_fit_power_law(args, power, rated, ambient, temps, repair) -> int:
         "references": {"items": [
             "scipy.optimize.least_squares over scipy.integrate.solve_ivp (LSODA), power and "
             "ambient held from each log row to the next",
-            "standard errors from the Jacobian with the residual variance (no allowance for "
-            "autocorrelated residuals)"]},
+            "standard errors from the Jacobian with the residual variance on an effective "
+            "sample size n(1-r1)/(1+r1) (lag-1 autocorrelation r1 of the residuals)"]},
         "notes": {"items": notes},
     }
     png = outdir / f"{stem}-fit.png"
@@ -187,7 +188,9 @@ def _text(args, fit, pred, area, files) -> str:
          f"  C                {pm('C_J_per_K')} J/K",
          f"  film             h = {fit['coefficient']:.4g} |T - T_amb|^{n:.3g} W/m2/K over "
          f"{area:.4g} m2",
-         f"  residual RMS {fit['rms_K']:.3g} K over {fit['n_points']} rows",
+         f"  residual RMS {fit['rms_K']:.3g} K over {fit['n_points']} rows (lag-1 "
+         f"autocorrelation {fit['lag1_autocorrelation']:.2f}, effective samples "
+         f"{fit['n_eff']:.0f})",
          "  as a case-file film (when all the loss leaves through this area): "
          "[convection] model = \"power_law\", coefficient = "
          f"\"{fit['coefficient']:.4g} W/(m2 K^{1.0 + n:.4g})\", exponent = {n:.4g}"]
