@@ -651,11 +651,15 @@ def locate_depth(wall, mesh, depth):
         raise ModelError(f"depth {depth:g} m lies outside wall '{wall.name}' "
                          f"(0 to {wall.thickness:g} m)")
     x = mesh.x - mesh.x[0]
+    # a point on a node (to round-off of the node positions) reads that node alone; on an
+    # interface with a contact resistance, the first of its two nodes (the inner side)
+    on = np.flatnonzero(np.abs(x - depth) <= 1e-12 * max(wall.thickness, abs(float(mesh.x[-1]))))
+    if on.size:
+        i = int(on[0])
+        return i, i, 1.0
     b = int(np.searchsorted(x, depth, side="left"))
     b = min(max(b, 1), len(x) - 1)
     a = b - 1
-    if x[b] == x[a]:
-        return a, b, 1.0
     w = (x[b] - depth) / (x[b] - x[a])
     ra = float(mesh.x[a])
     if wall.shape != "slab" and ra > 0.0:
