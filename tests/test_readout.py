@@ -250,7 +250,8 @@ def test_controller_holds_its_setpoint_at_the_sensor_depth_in_a_kT_layer():
     assert abs(Tlin_at_d - Tsp) > 1.0
     # the transient PID settles on the same state (integral action): within 0.1 % of the duty
     r = run(case)
-    y_end = float(temperature_at(r.system, r.T[-1], 0, d))
+    y_end = float(r.T_at_depth(d)[-1])          # the result's depth read-out
+    assert r.T_at_depth(d).shape == r.times.shape
     assert y_end == pytest.approx(Tsp, abs=0.01)
     assert r.T[-1, 0] == pytest.approx(T_of(K_of(T2) + q * Lw), abs=0.02)
     assert r.duty[-1] == pytest.approx(q / P, rel=1e-3)
