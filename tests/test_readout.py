@@ -331,3 +331,32 @@ def test_event_times_near_steady_state_in_a_kT_slab():
         assert err_K <= 0.005 * (ev.temperature - T2), ev.name
         if short <= 1.0:
             assert err_K <= 0.05, ev.name
+
+
+def test_transient_read_out_converges_at_second_order():
+    # the k(T) slab with both faces held (series solution of the previous test, Carslaw &
+    # Jaeger 3.3 with the Kirchhoff variable): mid-transient the profile between two nodes is
+    # curved, so the read-out carries an interpolation error ~ cell^2; the largest error over
+    # 97 depths at t = 1500 s must fall at second order (log-log slope 2 +- 0.15, STYLE.md's
+    # verification ladder; a tight time tolerance keeps the time error out of it)
+    T1, T2, Lw = 900.0, 300.0, 0.05
+    alpha = K0 / (RHO * CP0)
+    U1, U2 = K_of(T1), K_of(T2)
+    n = np.arange(1, 401)
+
+    def U(x, t):
+        return U1 + (U2 - U1) * x / Lw - (U1 - U2) * np.sum(
+            2 / (n * np.pi) * np.sin(n * np.pi * x / Lw) * np.exp(-(n * np.pi / Lw) ** 2 * alpha * t))
+
+    depths = np.linspace(0.001, 0.049, 97)
+    cells, errs = (8, 16, 32), []
+    for c in cells:
+        case = Case(run=RunSettings(duration=1500.0, output_every=500.0, start_temperature=T2,
+                                    tolerance=1e-5),
+                    wall=Wall((Layer(FIBRE_C, Lw, cells=c),), area=1.0),
+                    inner=Face(fixed_temperature=T1), outer=Face(fixed_temperature=T2))
+        r = run(case)
+        assert r.times[-1] == 1500.0
+        errs.append(max(abs(float(r.T_at_depth(d)[-1]) - T_of(U(d, 1500.0))) for d in depths))
+    slope = -np.polyfit(np.log(cells), np.log(errs), 1)[0]
+    assert slope == pytest.approx(2.0, abs=0.15), errs
