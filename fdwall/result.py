@@ -152,7 +152,8 @@ class Result:
 
         Read between the two nodes around that depth in the Kirchhoff integral K = int k dT,
         linear in x (slab), ln r (cylinder) or -1/r (sphere), as sensors and events are read:
-        exact at steady state for any k(T) (see :mod:`fdwall.solver.readout`).
+        exact at steady state for any k(T) (see :mod:`fdwall.solver.readout`).  ``wall``
+        counts the solved paths, as :meth:`wall_T` does.
         """
         return temperature_at(self.system, self.T, wall, depth)
 
