@@ -18,6 +18,7 @@ from __future__ import annotations
 import kernel_twins as tw
 import numpy as np
 import pytest
+from test_integrator_parts import NO_MAT
 from test_jacobian_fd import CASES
 
 import fdwall.solver.layout as L
@@ -160,9 +161,9 @@ def test_retry_stall_and_fixed_face_parts_match_their_twins():
         T0, T1 = RNG.uniform(365, 382, 1), RNG.uniform(365, 382, 1)
         u, hs = float(RNG.integers(0, 2)), float(RNG.uniform(1e-3, 100))
         mode = int(RNG.integers(0, 5))
-        frac = Kr.thermostat_cut(T0, T1, u, 10.0, ctl_i, ctl_f, s_off, stab, 0.01)
+        frac = Kr.thermostat_cut(T0, T1, u, 10.0, ctl_i, ctl_f, s_off, stab, 0.01, *NO_MAT)
         got = Kr.thermostat_retry(mode, T0, T1, u, 10.0, hs, 1e-10, ctl_i, ctl_f, s_off,
-                                  stab, 0.01)
+                                  stab, 0.01, *NO_MAT)
         assert got == tw.thermostat_retry(frac, hs, 1e-10, mode == L.CTL_THERMOSTAT)
     stats = np.zeros(L.N_STATS)
     count = 0
