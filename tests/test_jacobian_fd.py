@@ -72,7 +72,7 @@ CASES = {
         Face.fixed(523.15), Face(flux=-150.0)),
     "heater with falling power": lambda: _slab(
         Face.exchange(293.15, 5.0), Face.exchange(293.15, 5.0),
-        heater=Heater(800.0, location="inner", resistance_coefficient=3e-3, t_ref=293.15)),
+        heater=Heater(800.0, location="inner", resistance_coefficient=3e-3, rated_at=293.15)),
     "chamber, leakage, films and radiation to it": _enclosure,
 }
 
