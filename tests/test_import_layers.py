@@ -43,8 +43,6 @@ KNOWN_UPWARD = {
         "array helpers call the ahead-of-time build of h_conv when there is one",
     ("fdwall.system", "fdwall.solver.native"):
         "System.conductances/capacities/enthalpy evaluate the compiled property tables",
-    ("fdwall.analyses.calibrate", "fdwall"):
-        "imports run from the package facade (fix: from fdwall.solver import run)",
     ("fdwall.solver.transient", "fdwall.result"):
         "the driver wraps its arrays in a Result (the result layer reads solver statistics)",
 }

@@ -12,6 +12,7 @@ import re
 
 import numpy as np
 
+from fdwall.analyses.twonode import fit_log
 from fdwall.errors import CaseError, InputError
 from fdwall.units import parse_header_unit, parse_unit, ureg
 
@@ -432,7 +433,6 @@ def fit_one_node_log(t, T, P, T_amb, **kw) -> dict:
     ``C_J_per_K``, ``C_stderr_J_per_K``, ``tau_s``, ``T0_K``, ``rms_K``,
     ``lag1_autocorrelation``, ``n_eff``, ``correlation_RC``, ``warnings``.
     """
-    from fdwall.analyses.twonode import fit_log
     t, T, P, Ta = (np.asarray(a, float) for a in (t, T, P, T_amb))
     _check_inputs(t, T, P, Ta)
     return fit_log(t, T, P, Ta, model="one-node", **kw)

@@ -34,6 +34,11 @@ from fdwall.model import Control, Face, Heater, ModelError
 from fdwall.schedule import Schedule
 from fdwall.solver.layout import FI_FIXED_T, FI_FLUID, FI_NODE, system_args
 
+from ..solver import native as K
+from ..solver.steady import solve_steady
+from ..solver.transient import run as run_transient
+from ..system import build_system
+
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
            "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
            "rc_analysis", "step_response_from_modes", "foster_fit", "rc_networks",
@@ -168,7 +173,6 @@ def one_node_response(t, P, R, C, T_amb, T0):
 def _ambient(case, sysm, t) -> float:
     """Ambient [K] of the lumped model at time ``t`` [s]: the chamber's room air for an
     enclosure, else the outer face's fixed or fluid temperature (InputError if it has none)."""
-    from ..solver.native import sched_eval
     if case.is_enclosure:
         return float(case.chamber.room_temperature(t))
     outer = sysm.face_i[1]     # face 1: the outer face of the single wall
@@ -177,7 +181,7 @@ def _ambient(case, sysm, t) -> float:
         raise InputError("the lumped R/C needs an ambient: a fixed_temperature or a "
                          "fluid_temperature at the outer face, and this case has neither. "
                          "Give the outer face one of them.")
-    return float(sched_eval(sysm.s_off, sysm.stab, s, float(t), 0.0))
+    return float(K.sched_eval(sysm.s_off, sysm.stab, s, float(t), 0.0))
 
 
 def implied_rc(case, t=None) -> dict:
@@ -203,8 +207,6 @@ def implied_rc(case, t=None) -> dict:
         mean steady temperature), ``tau_s`` = R C_stored [s], ``T_hot_K`` and ``T_amb_K`` [K],
         ``Q_W`` the heat flow [W], ``stored_J`` the energy held above ambient [J].
     """
-    from ..solver.steady import solve_steady
-    from ..system import build_system
     sysm = build_system(case)
     st = solve_steady(case, t=t, system=sysm)
     tt = st.time
@@ -302,9 +304,6 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
     """
     from scipy.linalg import eigh
 
-    from fdwall.solver import kernels
-    from fdwall.solver.steady import solve_steady
-    from fdwall.system import build_system
 
     sys_ = build_system(case)
     nun = sys_.n_unknowns
@@ -319,7 +318,7 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
     nf = sys_.face_i.shape[0]
     qf, hc, hr = np.zeros(nf), np.zeros(nf), np.zeros(nf)
     extra = np.zeros(4)
-    kernels.assemble(T, tt, 0.0, 0.0, *system_args(sys_), F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf,
+    K.assemble(T, tt, 0.0, 0.0, *system_args(sys_), F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf,
                      hc, hr, extra)
     N = sys_.n_nodes
     J = np.diag(Jd.copy())
@@ -431,8 +430,6 @@ def rc_analysis(case, t=None, networks=None) -> dict:
         plain-language strings) and, with ``networks``, ``networks`` (the dict of
         :func:`rc_networks`).
     """
-    from fdwall.solver.steady import solve_steady
-    from fdwall.system import build_system
 
     out = implied_rc(case, t=t)
     st = solve_steady(case, t=t, system=build_system(case))
@@ -757,8 +754,6 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
 
 
 def _simulate(case, power, duration, n_points, initial=None, progress=False):
-    from ..solver.transient import run as run_transient
-    from ..system import build_system
     tp, pp = _power_steps(power, duration)
     sysm0 = build_system(case)
     T_amb = _ambient(case, sysm0, 0.0)

@@ -23,9 +23,14 @@ from typing import Optional
 
 import numpy as np
 
+from ..atomic import atomic_path
 from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
 from ..errors import InputError
+from ..materials import Material
 from ..model import SURFACE_CLASSES, Case, Face, Layer, RunSettings, Wall
+from ..physics.convection import Convection
+from ..solver import run, solve_steady
+from ..system import build_system
 
 __all__ = [
     "CRITERIA", "SURFACE_CLASSES", "DAMAGE_MODELS", "effusivity", "contact_temperature",
@@ -329,7 +334,6 @@ class ContactResult:
 
 
 def _skin_layers():
-    from ..materials import Material
     out = []
     for ly in skin_data()["layer"]:
         m = Material(name=ly["name"], k=ly["k_W_mK"], cp=ly["rho_c_J_m3K"] / 1000.0, rho=1000.0,
@@ -388,8 +392,6 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
     hold_inner : bool
         Hold the wall's inner face at its start temperature (else adiabatic).
     """
-    from ..solver import run
-    from ..system import build_system
     sd = skin_data()
     skin = _skin_layers() if skin is None else tuple(skin)
     Ts = sd["surface_temperature_C"] + 273.15 if T_skin_surface is None else float(T_skin_surface)
@@ -593,7 +595,6 @@ def _last_switch_off(case: Case):
 
 
 def _scale_h(face: Face, factor):
-    from ..physics.convection import Convection
     c = face.convection
     if isinstance(c, (int, float)):
         return replace(face, convection=float(c) * factor)
@@ -642,8 +643,6 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
     sensitivity : bool
         Re-solve the steady state with film coefficients +-25 % and bright/painted emissivity.
     """
-    from ..solver import run, solve_steady
-    from ..system import build_system
     _check_criterion(criterion)
     if surface is not None:
         _check_class(surface)
@@ -869,7 +868,6 @@ def _after_off(case, result, rows, off_at, door_open):
 
 
 def _sensitivity(case, rows, warnings):
-    from ..solver import solve_steady
     variants = [("film coefficient -25 %", lambda f: _scale_h(f, 0.75)),
                 ("film coefficient +25 %", lambda f: _scale_h(f, 1.25)),
                 ("bright metal jacket, emissivity 0.1",
@@ -903,7 +901,6 @@ def write_touch_plots(a: TouchAssessment, outdir, stem) -> list:
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    from ..atomic import atomic_path
     outdir = Path(outdir)
     outdir.mkdir(parents=True, exist_ok=True)
     paths = []

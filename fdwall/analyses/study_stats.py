@@ -25,13 +25,14 @@ import math
 
 import numpy as np
 
+from ..errors import InputError
+
 __all__ = ["check_correlation", "iman_conover", "prcc", "delta_indices", "sobol_unit_sample",
            "sobol_indices", "spearman"]
 
 
 def check_correlation(c, d: int, file: str) -> np.ndarray:
     """Validate a rank-correlation matrix from a study file (InputError naming the key)."""
-    from ..errors import InputError
     try:
         m = np.array(c, dtype=float)
     except (TypeError, ValueError):

@@ -26,6 +26,8 @@ from .. import units as U
 from ..errors import InputError
 from ..materials import MaterialError, get_material, list_materials, material_from_dict
 from ..model import (
+    SURFACE_CLASSES,
+    TOUCH_MARKS,
     Bridge,
     Case,
     Chamber,
@@ -38,6 +40,8 @@ from ..model import (
     RunSettings,
     Wall,
 )
+from ..physics.convection import Convection
+from ..physics.radiation import get_finish
 from ..schedule import Schedule
 from . import schema as S
 from .errors import CaseError
@@ -617,7 +621,6 @@ class _Loader:
 
     def _touch_marks(self, sec, side):
         """``touch`` and ``surface_class`` of an outer face (fdwall touch), as Face fields."""
-        from ..model import SURFACE_CLASSES, TOUCH_MARKS
         out = {}
         for key, field_name, choices in (("touch", "touch", TOUCH_MARKS),
                                          ("surface_class", "surface_class", SURFACE_CLASSES)):
@@ -727,7 +730,6 @@ class _Loader:
                                lo=0.0, hi=1.0, what="table")
             return e[0] if len(T) == 1 else Schedule(T, e)
         if isinstance(v, str) and not _NUMERIC_TEXT.match(v):
-            from ..physics.radiation import get_finish
             try:
                 fin = get_finish(v)
             except InputError as exc:
@@ -742,7 +744,6 @@ class _Loader:
                         allowed=allowed)
 
     def _convection(self, sec, side, geo, chamber):
-        from ..physics.convection import Convection
         model = sec.text("model", choices=S.CONVECTION_MODELS)
         used = set(S.CONVECTION_KEYS[model]) | {"model", "altitude", "pressure", "multiplier"}
         for k in sec.data:

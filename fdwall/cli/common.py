@@ -16,9 +16,17 @@ import sys
 import textwrap
 from pathlib import Path
 
+from ..atomic import atomic_path
+from ..case import CaseError, case_warnings, load_case
 from ..errors import FdwallError, OutputError
 from ..errors import InputError as _LibInputError
+from ..h5tree import write_file
+from ..materials import MaterialError
+from ..model import ModelError
 from ..provenance import provenance
+from ..report import html as _html
+from ..system import build_system, event_rows
+from ..units import parse_quantity
 
 # Exit codes, shared by all commands (documented once, in fdwall/cli/__init__.py and README).
 EXIT_OK = 0
@@ -88,18 +96,11 @@ def _input_errors():
     fdwall's own :class:`fdwall.errors.InputError` (with CaseError, MaterialError and
     ModelError below it), broken TOML and unit-library errors; a bare ``ValueError`` is not
     among them: raised from inside fdwall it is a bug, reported as an internal failure."""
-    from ..materials import MaterialError
-    from ..model import ModelError
     try:
         import tomllib
     except ModuleNotFoundError:  # pragma: no cover - Python 3.10
         import tomli as tomllib
-    types = [_LibInputError, MaterialError, ModelError, tomllib.TOMLDecodeError]
-    try:
-        from ..case import CaseError
-        types.insert(0, CaseError)
-    except ImportError:  # pragma: no cover - loader not installed
-        pass
+    types = [CaseError, _LibInputError, MaterialError, ModelError, tomllib.TOMLDecodeError]
     try:
         from pint.errors import PintError
         types.append(PintError)
@@ -110,13 +111,8 @@ def _input_errors():
 
 def _load_case(path):
     """Read a case file: (Case, list of warning strings).  Raises the loader's errors."""
-    from ..case import load_case
-    try:
-        from ..case import case_warnings
-    except ImportError:  # pragma: no cover - older loader without warnings
-        case_warnings = None
     case = load_case(path)
-    warns = list(case_warnings(case)) if case_warnings is not None else []
+    warns = list(case_warnings(case))
     return case, warns
 
 
@@ -165,15 +161,10 @@ def _out_of_range(exc, path_arg) -> str:
 
 def _build(case, path_arg):
     """Build the kernel system; model errors found only here become InputErrors."""
-    from ..system import build_system
     try:
         system = build_system(case)
         system.initial_vector(case.run.start_temperature)
-        try:  # validate the watched events (wall/interface indices) before running
-            from ..solver.transient import event_rows
-            event_rows(system, case)
-        except ImportError:  # pragma: no cover
-            pass
+        event_rows(system, case)  # validate the watched events before running
         return system
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), path_arg)) from None
@@ -207,7 +198,6 @@ def _dumps(obj) -> str:
 
 
 def _write_text_atomic(path: Path, text: str) -> None:
-    from ..atomic import atomic_path
     with atomic_path(path) as tmp:
         with open(tmp, "w", encoding="utf-8") as fh:
             fh.write(text)
@@ -246,8 +236,6 @@ def quantity(text, kind: str, option: str, *, positive: bool = False,
         A bare number where a unit is needed, a wrong unit, an impossible value: one paragraph
         naming the option.
     """
-    from ..errors import CaseError
-    from ..units import parse_quantity
     try:
         return parse_quantity(text, kind, where=option, positive=positive,
                               nonnegative=nonnegative)
@@ -338,10 +326,6 @@ def write_report(args, h5_path, out=None):
     """
     if not getattr(args, "report", False):
         return None
-    try:
-        from ..report import html as _html
-    except ModuleNotFoundError as exc:  # pragma: no cover - report module not installed
-        raise Failure(f"the HTML report is not available in this installation ({exc}).") from None
     h5_path = Path(h5_path)
     if out is None:
         stem = h5_path.stem
@@ -385,7 +369,6 @@ def write_analysis(args, h5_path, groups: dict, *, kind: str, case_name: str,
     """
     from datetime import datetime, timezone
 
-    from ..h5tree import write_file
     h5_path = Path(h5_path)
     attrs = {"kind": kind, "fdwall_version": _version(), "case_name": case_name,
              "created": datetime.now(timezone.utc).isoformat()}

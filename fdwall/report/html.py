@@ -12,8 +12,9 @@ from pathlib import Path
 import numpy as np
 
 from .. import atomic
+from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
 from ..errors import InputError
-from ..h5tree import read_tree, unit_of
+from ..h5tree import SUFFIX_UNITS, read_tree, unit_of
 from . import units as _units
 
 __all__ = ["write_report", "render_report", "KINDS"]
@@ -36,7 +37,6 @@ def _strip(key: str, unit: str) -> str:
 
 
 def _units_suffixes():
-    from ..h5tree import SUFFIX_UNITS
     return SUFFIX_UNITS.keys()
 
 
@@ -445,7 +445,6 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
                 and f"{name}.{k}" not in long_keys and name not in shown}
         summary += [(f"{name}.{n}", v, u) for n, v, u in _scalar_rows(scal, units)]
     if run.get("touch"):
-        from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
         run["touch"]["caution"] = run["touch"]["caution"] or SAFETY_CAUTION
         run["touch"]["note"] = run["touch"]["note"] or BURN_INDICATOR_NOTE
         attrs.setdefault("caution", run["touch"]["caution"])

@@ -13,6 +13,8 @@ import os
 
 import numpy as np
 
+from ..atomic import atomic_path
+
 __all__ = ["plot_temperatures", "plot_profiles", "layer_label", "plot_energy", "write_plots"]
 
 KELVIN_OFFSET = 273.15
@@ -32,7 +34,6 @@ def _figure(w=9.0, h=5.5, rows=1, cols=1, sharex=False):
 
 def _save(fig, path) -> str:
     """Write ``fig`` as PNG to ``path`` atomically; return the path."""
-    from ..atomic import atomic_path
     path = os.fspath(path)
     with atomic_path(path, ".png.part") as tmp:
         fig.savefig(tmp, format="png")

@@ -11,6 +11,9 @@ import textwrap
 
 import numpy as np
 
+from ..analyses.enclosure import summarise_enclosure
+from ..solver import native
+
 __all__ = [
     "format_summary", "format_steady", "format_case", "format_material_list", "format_material",
     "layer_peaks", "TOUCH_CAUTION", "KELVIN_OFFSET",
@@ -352,7 +355,6 @@ def format_summary(result) -> str:
 
 def _enclosure_lines(result) -> list:
     """Warm-up, hold duty, steady duty and where the heater energy went (enclosures)."""
-    from ..analyses.enclosure import summarise_enclosure
     try:
         s = summarise_enclosure(result, steady=True)
     except Exception as exc:  # an analysis must never hide the run's own summary
@@ -751,5 +753,4 @@ def format_material(m) -> str:
 
 def _leak_ua(ch):
     """Leakage of a chamber as a conductance [W/K], room air at t = 0 (as the solver uses)."""
-    from ..solver import native
     return float(ch.leakage) * native.rho_cp(float(ch.room_temperature(0.0)), 101325.0)
