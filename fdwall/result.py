@@ -12,7 +12,10 @@ from datetime import datetime, timezone
 
 import numpy as np
 
+from .h5tree import h5_atomic
+from .materials import check_service_temperature
 from .provenance import provenance, stamp_h5
+from .solver import layout as K
 from .solver.layout import EV_DOWN, EV_UP, EX_HEATER, EX_LOSS, FI_NODE
 
 __all__ = ["Result", "read_result"]
@@ -90,7 +93,6 @@ class Result:
     @classmethod
     def from_run(cls, case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out, stats,
                  ev_out, complete, wall_time):
-        from .solver import native as K
         n = len(t_out)
         if not complete:
             n = int(np.sum(np.isfinite(T_out[:, 0])))
@@ -257,7 +259,6 @@ class Result:
 
     def warnings(self) -> list:
         """Materials used above their maximum service temperature (text, one per layer)."""
-        from .materials import check_service_temperature
         out = []
         layers = [l for w in self.system.walls for l in w.layers]
         for name, layer, tm in zip(self.system.layer_names, layers, self.layer_max_T()):
@@ -420,7 +421,6 @@ class Result:
 
     def write_hdf5(self, path) -> str:
         """Write the run to ``path`` atomically (a temporary file renamed when complete)."""
-        from .h5tree import h5_atomic
         path = os.fspath(path)
         with h5_atomic(path) as h:
             self._write(h)

@@ -7,12 +7,15 @@ heat capacity of every node, and the wall's lumped resistance and capacity.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from .compiled import entry
 from .mesh import cell_counts, mesh_wall, shape_key
 from .model import Case, Face, ModelError
+from .physics.air import rho_cp
+from .physics.convection import PAR_LEN
 from .schedule import Schedule
 from .solver.layout import (
     CF_ALPHA,
@@ -268,7 +271,7 @@ class System:
 
         Links after the last node of a wall are 0.  Uses the Kirchhoff mean conductivity.
         """
-        from .solver.native import mat_eval
+        mat_eval = entry("mat_eval")
         T = np.full(self.n_nodes, 293.15) if T is None else np.asarray(T, float)
         G = np.zeros(self.n_nodes)
         for i in range(self.n_nodes):
@@ -292,13 +295,14 @@ class System:
         (0 without a chamber)."""
         if not self.has_chamber:
             return 0.0
-        from .solver import native
-        T_room = native.sched_eval(self.s_off, self.stab, int(self.ch_i[CHI_AMBIENT]), float(t), 0.0)
-        return float(self.ch_f[CHF_UA] + self.ch_f[CHF_LEAK] * native.rho_cp(T_room, 101325.0))
+        T_room = entry("sched_eval")(self.s_off, self.stab, int(self.ch_i[CHI_AMBIENT]), float(t),
+                                     0.0)
+        rho_cp_room = entry("rho_cp", rho_cp)(T_room, 101325.0)
+        return float(self.ch_f[CHF_UA] + self.ch_f[CHF_LEAK] * rho_cp_room)
 
     def capacities(self, T=None) -> np.ndarray:
         """Heat capacity of every unknown [J/K] at temperatures ``T`` [K] (default 293.15 K)."""
-        from .solver.native import mat_eval
+        mat_eval = entry("mat_eval")
         n = self.n_unknowns
         T = np.full(n, 293.15) if T is None else np.asarray(T, float)
         C = np.zeros(n)
@@ -316,7 +320,7 @@ class System:
 
         Returns an array (n_out, N, 2) for wall node halves and (n_out,) for the chamber.
         """
-        from .solver.native import half_enthalpy
+        half_enthalpy = entry("half_enthalpy")
         T = np.atleast_2d(np.asarray(T, float))
         Hh, Hc = half_enthalpy(T, self.node_i, self.node_f, self.m_off, self.mtab, self.ch_i)
         return Hh, Hc
@@ -324,7 +328,6 @@ class System:
 
 def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_obj, label):
     """Kernel rows for one face."""
-    from .physics.convection import PAR_LEN
     fi = np.full(N_FI, -1, dtype=np.int64)
     ff = np.zeros(N_FF)
     par = np.zeros(PAR_LEN)
@@ -379,7 +382,6 @@ def box_area_factor(case: Case) -> float:
 
 def _chains_of(case: Case):
     """The 1-D walls actually solved: (Wall, case wall index, EnclosureWall or None, is_bridge)."""
-    from dataclasses import replace
     if not case.is_enclosure:
         return [(case.wall, 0, None, False)]
     m = box_area_factor(case)

@@ -1,13 +1,16 @@
 """Imports run one direction, as the layers of /work/shared/DESIGN.md and the contributor
-guide (DEVELOPERS.md, "Data flow") lay out, and the module-top imports have no cycles.
+guide (DEVELOPERS.md, "Data flow") lay out, the module-top imports have no cycles, and no
+function imports a module of fdwall (package imports sit at module top; only optional or
+heavy outside libraries may be imported where they are used, from the allow-list below).
 
 The import graph is read from the source with ``ast`` (no module is imported).  Layers, from
 the bottom: 1 base, 2 physics, 3 model, 4 case I/O, 5 system and mesh (with the names of the
-kernel arrays, fdwall/solver/layout.py), 6 solver, 7 result, 8 analyses, 9 report, 10 cli and
-the package facade.  A module may import its own layer or a lower one.  Imports inside
-functions are listed too: the ones that still go upwards are the known debts below, each
-with its reason; the test fails on a new one, and on a listed one that is gone (so that the
-list shrinks as they are fixed).  House rules of the project (no outside source).
+kernel arrays, fdwall/solver/layout.py), 6 result (the arrays of a run and what derives from
+them; it knows the layout names, not the drivers, which build Results), 7 solver (kernels,
+their native dispatch and the drivers), 8 analyses, 9 report, 10 cli and the package facade.
+A module may import its own layer or a lower one.  Python code below the solver reaches the
+compiled build of its own kernels through fdwall.compiled (layer 1), which the native
+dispatch fills when it loads.  House rules of the project (no outside source).
 """
 from __future__ import annotations
 
@@ -19,13 +22,13 @@ PKG = pathlib.Path(__file__).resolve().parents[1] / "fdwall"
 LAYERS = [
     # (layer, module prefixes); the longest matching prefix wins
     (1, ("fdwall.errors", "fdwall.units", "fdwall.atomic", "fdwall.cautions", "fdwall.h5tree",
-         "fdwall.provenance")),
+         "fdwall.provenance", "fdwall.compiled")),
     (2, ("fdwall.physics",)),
     (3, ("fdwall.schedule", "fdwall.materials", "fdwall.model")),
     (4, ("fdwall.case",)),
     (5, ("fdwall.system", "fdwall.mesh", "fdwall.solver.layout")),
-    (6, ("fdwall.solver",)),
-    (7, ("fdwall.result",)),
+    (6, ("fdwall.result",)),
+    (7, ("fdwall.solver",)),
     (8, ("fdwall.analyses", "fdwall.safety", "fdwall.sizing", "fdwall.study")),
     (9, ("fdwall.report",)),
     (10, ("fdwall.cli", "fdwall")),
@@ -39,12 +42,6 @@ KNOWN_UPWARD = {
         "the loader builds a system once to check the case (idem)",
     ("fdwall.case.loader", "fdwall.mesh"):
         "the loader reads the mesh's default cell count to bound the stored outputs",
-    ("fdwall.physics.convection", "fdwall.solver.native"):
-        "array helpers call the ahead-of-time build of h_conv when there is one",
-    ("fdwall.system", "fdwall.solver.native"):
-        "System.conductances/capacities/enthalpy evaluate the compiled property tables",
-    ("fdwall.solver.transient", "fdwall.result"):
-        "the driver wraps its arrays in a Result (the result layer reads solver statistics)",
 }
 
 # analyses: a later one may use an earlier one (DESIGN.md, "Layers")

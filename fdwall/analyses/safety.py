@@ -23,13 +23,13 @@ from typing import Optional
 
 import numpy as np
 
+from .. import solver  # drivers as solver.run / solver.solve_steady (patchable in tests)
 from ..atomic import atomic_path
 from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
 from ..errors import InputError
 from ..materials import Material
 from ..model import SURFACE_CLASSES, Case, Face, Layer, RunSettings, Wall
 from ..physics.convection import Convection
-from ..solver import run, solve_steady
 from ..system import build_system
 
 __all__ = [
@@ -435,7 +435,7 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
     n_out = 400
     case = replace(probe, run=RunSettings(duration=t_c, output_every=t_c / n_out,
                                           tolerance=0.002, start_temperature=T0))
-    res = run(case, initial=T0, system=sysm, strict=False, progress=False)
+    res = solver.run(case, initial=T0, system=sysm, strict=False, progress=False)
     iface = m.interface_nodes
     j_surf = iface[nw - 1]
     if contact_resistance > 0:
@@ -688,12 +688,12 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
     has_sun = False
     sysm = build_system(run_case)
     if result is None:
-        result = run(run_case, progress=progress, strict=False, system=sysm)
+        result = solver.run(run_case, progress=progress, strict=False, system=sysm)
     else:
         sysm = result.system
     if steady is None:
         try:
-            steady = solve_steady(run_case, system=sysm)
+            steady = solver.solve_steady(run_case, system=sysm)
         except Exception as exc:  # a missing steady state must not lose the run's verdicts
             steady = None
             warnings.append(f"no steady state found: {exc}")
@@ -878,7 +878,7 @@ def _sensitivity(case, rows, warnings):
     for label, fn in variants:
         c = _with_outer(case, lambda f, fn=fn: f if f.fixed_temperature is not None else fn(f))
         try:
-            st = solve_steady(c)
+            st = solver.solve_steady(c)
         except Exception as exc:
             warnings.append(f"sensitivity '{label}': no steady state ({exc})")
             continue

@@ -16,6 +16,7 @@ import sys
 import textwrap
 from pathlib import Path
 
+from .. import system as fsystem  # fsystem.build_system (patchable in tests)
 from ..atomic import atomic_path
 from ..case import CaseError, case_warnings, load_case
 from ..errors import FdwallError, OutputError
@@ -25,7 +26,7 @@ from ..materials import MaterialError
 from ..model import ModelError
 from ..provenance import provenance
 from ..report import html as _html
-from ..system import build_system, event_rows
+from ..system import event_rows
 from ..units import parse_quantity
 
 # Exit codes, shared by all commands (documented once, in fdwall/cli/__init__.py and README).
@@ -162,7 +163,7 @@ def _out_of_range(exc, path_arg) -> str:
 def _build(case, path_arg):
     """Build the kernel system; model errors found only here become InputErrors."""
     try:
-        system = build_system(case)
+        system = fsystem.build_system(case)
         system.initial_vector(case.run.start_temperature)
         event_rows(system, case)  # validate the watched events before running
         return system

@@ -4,6 +4,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
+from .. import solver  # drivers as solver.run / solver.solve_steady (patchable in tests)
 from ..analyses import convergence
 from ..analyses.enclosure import summarise_enclosure
 from ..errors import InternalError
@@ -21,7 +22,7 @@ from ..report.text import (
     material_k_in_range,
     material_table,
 )
-from ..solver import native, run, solve_steady
+from ..solver import native
 from ..solver.observers import InterruptCheck
 from . import common
 from .common import (
@@ -65,7 +66,7 @@ def _run_and_write(args, flag) -> int:
     outdir = Path(args.out) if args.out else Path("results") / stem
     progress = False if quiet else args.progress
     try:
-        result = run(case, progress=progress, strict=False, system=system,
+        result = solver.run(case, progress=progress, strict=False, system=system,
                      observers=[InterruptCheck(flag)])
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), args.case)) from None
@@ -85,7 +86,7 @@ def _run_and_write(args, flag) -> int:
     result.steady = None
     if not interrupted:
         try:
-            result.steady = solve_steady(case, system=system)
+            result.steady = solver.solve_steady(case, system=system)
         except Exception as exc:  # a failed steady solve must not lose the transient result
             _warn(f"no steady state found for '{args.case}': {exc}")
     # write
@@ -139,7 +140,7 @@ def cmd_steady(args) -> int:
         _warn(w)
     system = _build(case, args.case)
     try:
-        st = solve_steady(case, system=system)
+        st = solver.solve_steady(case, system=system)
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), args.case)) from None
     except InternalError:
