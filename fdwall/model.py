@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import functools
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Optional, Union
 
 import numpy as np
@@ -222,7 +222,6 @@ class Wall:
 
     def with_layer(self, index: int, **changes) -> "Wall":
         """A copy with layer ``index`` changed (e.g. ``thickness=0.1`` [m])."""
-        from dataclasses import replace
         layers = list(self.layers)
         layers[index] = replace(layers[index], **changes)
         return replace(self, layers=tuple(layers))

@@ -9,6 +9,8 @@ import json
 import os
 from dataclasses import dataclass
 from datetime import datetime, timezone
+from html import escape
+from importlib.metadata import version
 
 import numpy as np
 
@@ -23,7 +25,6 @@ __all__ = ["Result", "read_result"]
 
 def _version():
     try:
-        from importlib.metadata import version
         return version("fdwall")
     except Exception:  # pragma: no cover - running from a source tree
         return "0+unknown"
@@ -405,7 +406,6 @@ class Result:
 
     def _repr_html_(self) -> str:
         """Short summary table for notebooks (final and peak face temperatures in degC)."""
-        from html import escape
         state = "complete" if self.complete else f"stopped early: {escape(self.message)}"
         rows = "".join(
             f"<tr><td>{escape(n)}</td><td>{self.face_T[-1, f] - 273.15:.2f}</td>"

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import io
 import re
+from datetime import datetime, timedelta, timezone
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 import numpy as np
 
@@ -54,8 +56,6 @@ def parse_time_zone(text):
 
     Returns a :class:`datetime.tzinfo`; raises InputError naming what is allowed.
     """
-    from datetime import timedelta, timezone
-    from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
     s = str(text).strip()
     m = re.fullmatch(r"(?:UTC)?([+-])(\d{1,2}):?(\d{2})?", s)
     if m:
@@ -80,7 +80,6 @@ def _clock_or_timestamps(cells, key, name, time_zone):
 
     Returns (seconds since the first row, start as ISO text or '', list of repair notes).
     """
-    from datetime import datetime, timezone
     notes = []
     clock = [_CLOCK.match(str(c)) for c in cells]
     if all(clock):

@@ -23,6 +23,11 @@ from typing import Optional
 
 import numpy as np
 
+try:
+    import tomllib
+except ModuleNotFoundError:  # pragma: no cover - Python 3.10
+    import tomli as tomllib
+
 from .. import solver  # drivers as solver.run / solver.solve_steady (patchable in tests)
 from ..atomic import atomic_path
 from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
@@ -53,10 +58,6 @@ DEFAULT_CONTACT_TIME = 10.0
 
 
 def _toml(name):
-    try:
-        import tomllib
-    except ModuleNotFoundError:  # pragma: no cover - Python 3.10
-        import tomli as tomllib
     with open(_HERE / name, "rb") as fh:
         return tomllib.load(fh)
 

@@ -22,6 +22,9 @@ try:  # Python >= 3.11
 except ModuleNotFoundError:  # pragma: no cover - Python 3.10
     import tomli as _toml
 
+import difflib
+from dataclasses import replace
+
 from .. import units as U
 from ..errors import InputError
 from ..materials import MaterialError, get_material, list_materials, material_from_dict
@@ -615,7 +618,6 @@ class _Loader:
         marks = self._touch_marks(sec, side)
         face = self._face_conditions(sec, side, geo)
         if marks:
-            from dataclasses import replace
             face = replace(face, **marks)
         return face
 
@@ -876,7 +878,6 @@ class _Loader:
         if isinstance(v, str):
             if v in names:
                 return names.index(v)
-            import difflib
             near = difflib.get_close_matches(v, names, n=1, cutoff=0.5)
             hint = f" (did you mean '{near[0]}'?)" if near else ""
             raise sec.error(key, f"there is no wall named '{v}'{hint}", allowed)

@@ -9,12 +9,23 @@ an exit code.  Raise :class:`InputError` for bad input (exit 2, nothing written)
 from __future__ import annotations
 
 import argparse
+import datetime as _dt
 import json
 import math
 import os
 import sys
 import textwrap
+from datetime import datetime, timezone
+from importlib.metadata import version as _dist_version
 from pathlib import Path
+
+import numpy as np
+from pint.errors import PintError
+
+try:
+    import tomllib
+except ModuleNotFoundError:  # pragma: no cover - Python 3.10
+    import tomli as tomllib
 
 from .. import system as fsystem  # fsystem.build_system (patchable in tests)
 from ..atomic import atomic_path
@@ -75,8 +86,7 @@ def _info(text: str, quiet: bool = False) -> None:
 
 def _version() -> str:
     try:
-        from importlib.metadata import version
-        return version("fdwall")
+        return _dist_version("fdwall")
     except Exception:  # pragma: no cover - source tree without metadata
         return "0+unknown"
 
@@ -97,16 +107,8 @@ def _input_errors():
     fdwall's own :class:`fdwall.errors.InputError` (with CaseError, MaterialError and
     ModelError below it), broken TOML and unit-library errors; a bare ``ValueError`` is not
     among them: raised from inside fdwall it is a bug, reported as an internal failure."""
-    try:
-        import tomllib
-    except ModuleNotFoundError:  # pragma: no cover - Python 3.10
-        import tomli as tomllib
     types = [CaseError, _LibInputError, MaterialError, ModelError, tomllib.TOMLDecodeError]
-    try:
-        from pint.errors import PintError
-        types.append(PintError)
-    except ImportError:  # pragma: no cover
-        pass
+    types.append(PintError)
     return tuple(types)
 
 
@@ -127,10 +129,6 @@ def _load(path_arg):
     if p.is_dir():
         raise InputError(f"'{path_arg}' is a folder, not a case file; give the path of a TOML "
                          "case file.")
-    try:
-        import tomllib
-    except ModuleNotFoundError:  # pragma: no cover
-        import tomli as tomllib
     try:
         return _load_case(p)
     except ImportError as exc:
@@ -177,7 +175,6 @@ def _build(case, path_arg):
 
 def _clean(o):
     """JSON-safe copy: NaN/inf -> None, numpy scalars/arrays -> Python."""
-    import numpy as np
     if isinstance(o, dict):
         return {str(k): _clean(v) for k, v in o.items()}
     if isinstance(o, (list, tuple)):
@@ -303,7 +300,6 @@ def warn_replacing(paths) -> list:
     list of str
         The paths that exist (and are about to be replaced).
     """
-    import datetime as _dt
     replaced = []
     for p in paths:
         p = Path(p)
@@ -368,7 +364,6 @@ def write_analysis(args, h5_path, groups: dict, *, kind: str, case_name: str,
     material library and the options that change the answer; see :mod:`fdwall.provenance`).
     A failed write is a :class:`WriteError` (exit 1) and leaves no file.
     """
-    from datetime import datetime, timezone
 
     h5_path = Path(h5_path)
     attrs = {"kind": kind, "fdwall_version": _version(), "case_name": case_name,

@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import sys
+import time as _t
 from pathlib import Path
 
 from .. import solver  # drivers as solver.run / solver.solve_steady (patchable in tests)
@@ -204,7 +205,6 @@ def cmd_compile(args) -> int:
         print(f"kernels: {'ahead-of-time' if native.MODE == 'aot' else 'just-in-time'}"
               f" ({native.STATUS})")
         return EXIT_OK
-    import time as _t
     t0 = _t.perf_counter()
     print("fdwall: compiling the kernels ahead of time (tens of seconds) ...", flush=True)
     try:

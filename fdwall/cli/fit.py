@@ -3,6 +3,8 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import numpy as np
+
 from ..analyses.calibrate import calibrate, like_for_like
 from ..analyses.logs import REPAIRS, physics_check, read_log
 from ..analyses.lumped import rc_analysis
@@ -72,8 +74,6 @@ def _scalars(d):
 
 
 def cmd_fit(args) -> int:
-    import numpy as np
-
     power, rated = _heater(args)
     ambient = _value_or_column(args.ambient, "temperature", "--ambient")
     temps = [c.strip() for c in args.temperature.split(",") if c.strip()]

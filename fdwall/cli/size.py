@@ -1,6 +1,7 @@
 """``fdwall size CASE``: insulation thickness of one layer (of a wall) meeting targets."""
 from __future__ import annotations
 
+import difflib
 import math
 import re
 from pathlib import Path
@@ -198,7 +199,6 @@ def _material(name, case, option):
     try:
         return get_material(name)
     except MaterialError:
-        import difflib
         near = difflib.get_close_matches(name, list(own) + list_materials(), n=3, cutoff=0.5)
         raise InputError(f"{option}: unknown material {name!r}; it is neither in the case nor "
                          "in the bundled library" + (f" (did you mean "
@@ -218,7 +218,6 @@ def _layer(args, wall):
     for lst in (names, labels):
         if args.layer in lst:
             return lst.index(args.layer)
-    import difflib
     near = difflib.get_close_matches(args.layer, names + labels)
     raise InputError(f"--layer: no layer of material {args.layer!r} in '{args.case}'"
                      f"{' wall ' + repr(wall.name) if args.wall else ''}; layers are {names}"

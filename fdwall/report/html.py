@@ -7,6 +7,8 @@ base64 data URIs, no external resource). Files keep SI; display units are "si" (
 from __future__ import annotations
 
 import base64
+import json
+from datetime import datetime
 from pathlib import Path
 
 import numpy as np
@@ -120,7 +122,6 @@ def _images(h5_path: Path, created: str = ""):
     """PNG plots written beside the result (<stem>*.png) as base64 data URIs; plots older
     than the result (by more than :data:`STALE_PLOT_S`) belong to an earlier run: skipped,
     and returned by name as the second item."""
-    from datetime import datetime
     try:
         t_created = datetime.fromisoformat(str(created).replace("Z", "+00:00")).timestamp()
     except ValueError:
@@ -243,7 +244,6 @@ def _run_results(data: dict, system: str) -> dict:
         mesh = (data.get("mesh") or {}).get(name) or {}
         wall = mesh.get("name", name)
         try:
-            import json
             labels = json.loads(mesh.get("layers", "[]"))
         except (TypeError, ValueError):
             labels = []
@@ -306,7 +306,6 @@ def _convergence(data: dict, system: str) -> dict:
 
 def _run_sections(data: dict, system: str) -> dict:
     """Sections of a run result (kind transient/steady), read from its stored groups."""
-    import json
     out = {}
     solver = data.get("solver") or {}
     energy = data.get("energy") or {}

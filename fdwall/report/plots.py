@@ -10,6 +10,7 @@ energy in [MJ].
 from __future__ import annotations
 
 import os
+import textwrap
 
 import numpy as np
 
@@ -51,7 +52,6 @@ def _hours(result):
 
 
 def _title(result, what):
-    import textwrap
     t = f"{result.case.name}: {what}"
     if not result.complete:
         t += f"  (INCOMPLETE: stopped at {result.times[-1] / 3600.0:.3g} h)"
@@ -197,7 +197,6 @@ def shared_visible_legend(axes, tol_px: float = HIDDEN_TOLERANCE_PX):
 def _visible_legend(ax, width=60):
     """Handles and labels of the curves :func:`merge_hidden` leaves visible, long labels
     wrapped at ``width`` characters."""
-    import textwrap
     handles, labels = [], []
     for ln, _ in merge_hidden(ax):
         handles.append(ln)
@@ -417,7 +416,6 @@ def plot_profiles(result, path, times=None) -> str:
                     bbox=None if wide else dict(fc="white", ec="none", alpha=0.75, pad=1.0))
         geo = "" if w.shape == "slab" else f" ({w.shape})"
         ttl = f"wall '{w.name}'{geo}"
-        import textwrap
         ax.set_title("\n".join(textwrap.wrap(ttl, 70 if ncol == 2 else 100)), fontsize=9)
     for ax in axes[len(walls):]:
         ax.set_visible(False)
