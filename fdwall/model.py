@@ -546,6 +546,91 @@ class EnclosureWall:
                                      f"exist (0..{len(self.wall.layers) - 1})")
 
 
+# ------------------------------------------------- rules between the parts of a case
+# These rules are owned here: Case.__post_init__ applies them to every case, and the case
+# loader calls the same functions to refuse a file with the key named, so one bad input gives
+# one message whichever way the case was made (tests/test_validation_owner.py).
+
+def interface_problem(wall: "Wall", after_layer: int):
+    """(problem, allowed) when wall ``wall`` has no interface after layer ``after_layer``
+    (0-based layer index) [-]; None when it has one."""
+    n = len(wall.layers)
+    if 0 <= after_layer < n - 1:
+        return None
+    return (f"there is no interface after layer {after_layer} in wall '{wall.name}', which has "
+            f"{n} layer(s)",
+            f"a layer index 0..{n - 2}" if n > 1 else "a wall with two or more layers")
+
+
+def depth_problem(wall: "Wall", depth: float):
+    """(problem, allowed) when ``depth`` [m] below the inner face lies outside wall ``wall``;
+    None when it lies inside (faces included)."""
+    th = wall.thickness
+    if 0.0 <= depth <= th * (1 + 1e-12):
+        return None
+    where = "in front of the inner face" if depth < 0 else "beyond the outer face"
+    return (f"a depth of {depth * 1000:g} mm lies {where} of wall '{wall.name}' "
+            f"({th * 1000:g} mm thick)", f"a depth from 0 to {th * 1000:g} mm below the inner face")
+
+
+def wall_index_problem(case_walls: list, index: int, what: str):
+    """(problem, allowed) when ``index`` is not a wall of the case (``case_walls`` its walls,
+    in order); None otherwise.  ``what`` names the part that refers to it."""
+    n = len(case_walls)
+    if isinstance(index, (int, np.integer)) and 0 <= index < n:
+        return None
+    return (f"{what} refers to wall index {index!r}, which does not exist",
+            f"a wall index 0..{n - 1}" if n > 1 else "wall index 0 (the case has one wall)")
+
+
+def chamber_watch_problem(has_chamber: bool, name: str):
+    """(problem, allowed) for a watch entry on the chamber of a case without one, else None."""
+    if has_chamber:
+        return None
+    return (f"the watch entry '{name}' watches the chamber, but the case has none",
+            "at = \"inner\" or \"outer\", after_layer or depth for a single wall")
+
+
+def _refuse(problem):
+    if problem is not None:
+        text, allowed = problem
+        raise ModelError(f"{text} (allowed: {allowed})")
+
+
+def check_references(case: "Case") -> None:
+    """Apply the rules between the parts of ``case`` (heater, sensor and watch entries
+    against its walls, layers and chamber); ModelError on the first one broken."""
+    walls = case.wall_list
+    hz = case.heater
+    if hz is not None and hz.location != "chamber":
+        _refuse(wall_index_problem(walls, hz.wall, "the heater"))
+        if hz.location == "interface":
+            _refuse(interface_problem(walls[hz.wall], hz.interface))
+    ctl = case.control
+    if ctl.sensor == "wall" and hz is not None and ctl.mode in ("thermostat", "pid"):
+        _refuse(wall_index_problem(walls, ctl.sensor_wall, "the control's sensor"))
+        _refuse(depth_problem(walls[ctl.sensor_wall], ctl.sensor_depth))
+    for ev in case.run.watch:
+        label = f"the watch entry '{ev.name}'"
+        if ev.where == "chamber":
+            _refuse(chamber_watch_problem(case.chamber is not None, ev.name))
+            continue
+        _refuse(wall_index_problem(walls, ev.wall, label))
+        w = walls[ev.wall]
+        if ev.where.startswith("interface:"):
+            try:
+                k = int(ev.where.split(":", 1)[1]) - 1
+            except ValueError:
+                raise ModelError(f"{label}: where {ev.where!r} is not 'interface:N' with N a "
+                                 "whole number (1-based)") from None
+            _refuse(interface_problem(w, k))
+        elif ev.where == "":
+            _refuse(depth_problem(w, ev.depth))
+        elif ev.where not in ("inner", "outer"):
+            raise ModelError(f"{label}: where must be 'inner', 'outer', 'interface:N', "
+                             f"'chamber' or '' (a depth), got {ev.where!r}")
+
+
 @_renamed(threshold="temperature")
 @dataclass(frozen=True)
 class Event:
@@ -670,6 +755,7 @@ class Case:
         if self.control.sensor == "chamber" and self.control.mode in ("thermostat", "pid") \
                 and self.chamber is None:
             raise ModelError("a chamber sensor needs a chamber; use sensor = 'wall' for a single wall")
+        check_references(self)
 
     @property
     def is_enclosure(self) -> bool:

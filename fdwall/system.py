@@ -13,7 +13,7 @@ import numpy as np
 
 from .compiled import entry
 from .mesh import cell_counts, mesh_wall, shape_key
-from .model import Case, Face, ModelError
+from .model import Case, Face, ModelError, interface_problem
 from .physics.air import rho_cp
 from .physics.convection import PAR_LEN
 from .schedule import Schedule
@@ -82,8 +82,7 @@ from .solver.layout import (
     NI_MAT_R,
 )
 
-__all__ = ["System", "build_system", "event_rows", "hand_over",
-           "handed_system"]
+__all__ = ["System", "build_system", "event_rows"]
 
 
 def _integrated(T, k, c):
@@ -404,39 +403,6 @@ def _chains_of(case: Case):
     return out
 
 
-#: Attribute of a Case under which a system built for it waits for its first user.
-_HANDED = "_fdwall_built_system"
-
-
-def hand_over(case: Case, system: System) -> None:
-    """Leave ``system`` (built from ``case``) with the case for the next :func:`build_system`.
-
-    The case loader builds the system once to check a case; it hands it over so that the
-    first ``build_system(case)`` afterwards (a run, a steady state, a study variant) returns
-    that system instead of building it again.  The hand-over is taken once: later calls
-    build a fresh system, so no two callers ever share one (a System holds mutable arrays).
-    A copy of the case, or one made by ``dataclasses.replace``, does not take it.
-    """
-    if system.case is not case:
-        raise ModelError("hand_over: the system was not built from this case")
-    object.__setattr__(case, _HANDED, system)   # cases are frozen; like the material caches
-
-
-def handed_system(case: Case):
-    """The system waiting with ``case`` (see :func:`hand_over`), left in place; or None.
-
-    For read-only checks before a run: nothing may change the arrays of the returned system.
-    """
-    sysm = case.__dict__.get(_HANDED)
-    return sysm if sysm is not None and sysm.case is case else None
-
-
-def _take_handed(case):
-    """The system handed over to ``case`` (removed from it), or None."""
-    sysm = case.__dict__.pop(_HANDED, None)
-    return sysm if sysm is not None and sysm.case is case else None
-
-
 def _meshes(walls, like):
     """(meshes, shape keys, reused flags) of the solved walls; a wall whose shape key equals
     that of the same solved wall of ``like`` takes its mesh."""
@@ -471,12 +437,9 @@ def build_system(case: Case, like: System | None = None) -> System:
         ``build_system(case)`` would give, array for array (``System.mesh_reused`` tells
         which walls were reused).  Meshes are never modified, so sharing them is safe.
 
-    A system the case loader built for this very case (see :func:`hand_over`) is returned
-    the first time instead of being built again; the arrays are the same.
+    The case loader builds no system (it checks the case through the rules of
+    :mod:`fdwall.model`); each call builds one, so no two callers share its arrays.
     """
-    handed = _take_handed(case)
-    if handed is not None:
-        return handed
     tb = _Tables()
     specs = _chains_of(case)
     walls = [s[0] for s in specs]
@@ -565,9 +528,9 @@ def build_system(case: Case, like: System | None = None) -> System:
             if hz.location == "inner":
                 ctl_i[CI_HEATER_NODE] = offsets[hw]
             else:
-                if not 0 <= hz.interface < len(m.interface_nodes):
-                    raise ModelError(f"heater interface {hz.interface} does not exist in wall "
-                                     f"'{walls[hw].name}' (0..{len(m.interface_nodes) - 1})")
+                problem = interface_problem(walls[hw], hz.interface)   # the model's rule
+                if problem is not None:
+                    raise ModelError(f"the heater: {problem[0]} (allowed: {problem[1]})")
                 ctl_i[CI_HEATER_NODE] = offsets[hw] + m.interface_nodes[hz.interface]
         ctl_i[CI_POWER] = tb.schedule(hz.power)
         ctl_f[CF_ALPHA] = hz.resistance_coefficient

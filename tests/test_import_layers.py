@@ -37,12 +37,9 @@ LAYERS = [
 #: Package-internal imports inside functions that remain (all upward), with why (edges:
 #: importer -> imported).
 KNOWN_UPWARD = {
-    ("fdwall.case.checks", "fdwall.system"):
-        "the case checks build a system to check it (validation to move below the system)",
-    ("fdwall.case.loader", "fdwall.system"):
-        "the loader builds a system once to check the case (idem)",
     ("fdwall.case.loader", "fdwall.mesh"):
-        "the loader reads the mesh's default cell count to bound the stored outputs",
+        "the loader reads the mesh's default cell count to refuse meshes too large for memory "
+        "with the key named (cells, mesh_refine); the mesh rules are the mesh's to change",
 }
 
 # analyses: a later one may use an earlier one (DESIGN.md, "Layers")
@@ -213,7 +210,7 @@ def test_the_checker_sees_an_upward_import():
     assert not _upward({("fdwall.analyses.sizing", "fdwall.analyses.safety")})
     assert ("fdwall.solver.kernels", "fdwall.physics.convection") in TOP
     # and the graph sees imports inside functions of both kinds
-    assert ("fdwall.case.loader", "fdwall.system") in INNER
+    assert ("fdwall.case.loader", "fdwall.mesh") in INNER
     assert any(m == "fdwall.report.plots" and name == "matplotlib" for m, _, name in LAZY)
 
 

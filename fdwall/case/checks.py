@@ -84,7 +84,7 @@ def _exposed(wall, side):
     return out
 
 
-def _service_warnings(case):
+def _service_warnings(case, sysm=None):
     out = []
     walls = case.wall_list
     # --- faces
@@ -131,12 +131,8 @@ def _service_warnings(case):
                 T0 = float(init) if layer.start_temperature is None else layer.start_temperature
                 _layer_service(out, w, i, T0, "the start temperature" if layer.start_temperature is None
                                else "its start temperature")
-    else:
+    elif sysm is not None:   # a start temperature per node: needs the system's node map
         try:
-            from ..system import build_system, handed_system
-            sysm = handed_system(case)          # the loader's system, read only
-            if sysm is None:
-                sysm = build_system(case)
             if init.shape == (sysm.n_unknowns,):
                 seen = {}
                 gid = 0
@@ -195,13 +191,17 @@ def _convection_warnings(case):
     return out
 
 
-def case_warnings(case) -> list:
+def case_warnings(case, system=None) -> list:
     """Warnings about a case found before running it.
 
     Parameters
     ----------
     case : fdwall.model.Case
         A case (e.g. from :func:`fdwall.case.load_case`).
+    system : fdwall.system.System, optional
+        The case's system (``fdwall.build_system(case)``), read only.  Needed only for a
+        start temperature given per node (an array): without it those starts are not checked
+        against the layers' service temperatures (the case layer builds no system).
 
     Returns
     -------
@@ -211,4 +211,4 @@ def case_warnings(case) -> list:
         temperature at the face, setpoint, start temperature), then convection correlations
         used outside their data range.  Empty when nothing was found.
     """
-    return _service_warnings(case) + _convection_warnings(case)
+    return _service_warnings(case, system) + _convection_warnings(case)
