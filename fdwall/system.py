@@ -337,7 +337,7 @@ def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_
     if face.fixed_temperature is not None:
         fi[FI_FIXED_T] = tb.schedule(face.fixed_temperature)
         return fi, ff, par
-    fi[FI_FLUX] = tb.schedule(face.flux)
+    fi[FI_FLUX] = tb.schedule(face.heat_flux)
     conv = conv_obj if to_chamber else face.convection
     if conv is not None:
         if not to_chamber and face.fluid_temperature is None:
@@ -477,12 +477,12 @@ def build_system(case: Case, like: System | None = None) -> System:
     if case.is_enclosure:
         for j, (w, jc, ew, is_bridge) in enumerate(specs):
             m, o = meshes[j], offsets[j]
-            inner = Face(emissivity=ew.inner_emissivity)
+            inner = Face(emissivity=ew.inner_face_emissivity)
             for side, face, node, area, to_ch in (
                     ("inner", inner, o, w.inner_area, True),
                     ("outer", ew.outer, o + m.n - 1, w.outer_area, False)):
                 label = f"wall '{w.name}' {side} face"
-                fi, ff, par = _face_arrays(tb, face, node, area, to_ch, ew.inner_h, label)
+                fi, ff, par = _face_arrays(tb, face, node, area, to_ch, ew.inner_face_convection, label)
                 rows_i.append(fi), rows_f.append(ff), rows_p.append(par)
                 names.append(f"{w.name}:{side}")
                 external.append(not to_ch)
@@ -508,7 +508,7 @@ def build_system(case: Case, like: System | None = None) -> System:
     if case.chamber is not None:
         ch = case.chamber
         ch_i[CHI_PRESENT] = 1
-        ch_i[CHI_CAPACITY] = tb.capacity(ch.capacity)
+        ch_i[CHI_CAPACITY] = tb.capacity(ch.heat_capacity)
         ch_i[CHI_AMBIENT] = tb.schedule(ch.room_temperature)
         ch_f[CHF_UA] = ch.extra_loss
         ch_f[CHF_LEAK] = ch.leakage
@@ -520,18 +520,18 @@ def build_system(case: Case, like: System | None = None) -> System:
     ctl_i[CI_HEATER_NODE] = -1
     hz = case.heater
     if hz is not None:
-        if hz.location == "chamber":
+        if hz.placement == "chamber":
             ctl_i[CI_HEATER_NODE] = N
         else:
             hw = _chain_index(specs, hz.wall, "heater")
             m = meshes[hw]
-            if hz.location == "inner":
+            if hz.placement == "inner_face":
                 ctl_i[CI_HEATER_NODE] = offsets[hw]
             else:
-                problem = interface_problem(walls[hw], hz.interface)   # the model's rule
+                problem = interface_problem(walls[hw], hz.after_layer)   # the model's rule
                 if problem is not None:
                     raise ModelError(f"the heater: {problem[0]} (allowed: {problem[1]})")
-                ctl_i[CI_HEATER_NODE] = offsets[hw] + m.interface_nodes[hz.interface]
+                ctl_i[CI_HEATER_NODE] = offsets[hw] + m.interface_nodes[hz.after_layer]
         ctl_i[CI_POWER] = tb.schedule(hz.power)
         ctl_f[CF_ALPHA] = hz.resistance_coefficient
         ctl_f[CF_T_REF] = hz.rated_at
@@ -620,7 +620,7 @@ def event_rows(system: System, case: Case):
     ev_i = np.zeros((len(evs), 2), dtype=np.int64)
     ev_f = np.zeros((len(evs), 2))
     for e, ev in enumerate(evs):
-        if ev.where == "chamber":
+        if ev.at == "chamber":
             if not system.has_chamber:
                 raise ModelError(f"event '{ev.name}' watches the chamber, but the case has none")
             ev_i[e, EV_NODE_A] = ev_i[e, EV_NODE_B] = system.n_nodes
@@ -629,14 +629,14 @@ def event_rows(system: System, case: Case):
         j = system.chain_of(ev.wall)
         m, o = system.meshes[j], system.offsets[j]
         wall = system.walls[j]
-        if ev.where == "inner":
+        if ev.at == "inner":
             a = b = o
             w = 1.0
-        elif ev.where == "outer":
+        elif ev.at == "outer":
             a = b = o + m.n - 1
             w = 1.0
-        elif ev.where.startswith("interface:"):
-            n = int(ev.where.split(":")[1])
+        elif ev.at.startswith("interface:"):
+            n = int(ev.at.split(":")[1])
             if not 1 <= n <= len(m.interface_nodes):
                 raise ModelError(f"event '{ev.name}': interface {n} does not exist "
                                  f"(1..{len(m.interface_nodes)})")
@@ -659,7 +659,7 @@ def _time_schedules(case):
     else:
         faces = [case.inner, case.outer]
     for f in faces:
-        for s in (f.fixed_temperature, f.flux, f.fluid_temperature, f.surroundings_temperature):
+        for s in (f.fixed_temperature, f.heat_flux, f.fluid_temperature, f.surroundings_temperature):
             if s is not None:
                 yield s
     if case.heater is not None:

@@ -99,11 +99,11 @@ def _watch(**kw):
 
 BAD = {
     "heater interface": (HEATER.format(k=3), lambda c: {"heater": fdwall.Heater(
-        power=1000.0, location="interface", interface=3)},
+        power=1000.0, placement="interface", after_layer=3)},
         "there is no interface after layer 3 in wall 'slab', which has 2 layer(s)",
         "a layer index 0..0"),
     "sensor depth": (THERMOSTAT.format(d="120 mm"), lambda c: {
-        "heater": fdwall.Heater(power=1000.0, location="inner"),
+        "heater": fdwall.Heater(power=1000.0, placement="inner_face"),
         "control": fdwall.Control(mode="thermostat", setpoint=373.15, sensor="wall",
                                   sensor_depth=0.12)},
         "a depth of 120 mm lies beyond the outer face of wall 'slab' (80 mm thick)",
@@ -137,9 +137,9 @@ def test_the_same_words_from_the_file_and_from_python(what):
 def test_a_good_case_passes_both_ways():
     # the control: the same parts, in range, are accepted by both paths
     _file(HEATER.format(k=0) + WATCH.format(spot='depth = "80 mm"'))
-    _api(lambda c: {"heater": fdwall.Heater(power=1000.0, location="interface", interface=0),
+    _api(lambda c: {"heater": fdwall.Heater(power=1000.0, placement="interface", after_layer=0),
                     "run": dataclasses.replace(c.run, watch=(fdwall.Event(
-                        temperature=333.15, where="", depth=0.08),))})
+                        temperature=333.15, at="", depth=0.08),))})
 
 
 def test_the_loader_builds_no_system_to_check(monkeypatch):

@@ -130,7 +130,7 @@ def current_value(case, parsed):
         e = (case.outer if item == "outer" else case.inner).emissivity
     else:
         ew = case.walls[w]
-        e = ew.outer.emissivity if item == "outer" else ew.inner_emissivity
+        e = ew.outer.emissivity if item == "outer" else ew.inner_face_emissivity
     if e is not None and not isinstance(e, (int, float)):
         raise InputError(f"calibration of emissivity:{item}: the case gives it as a table "
                          "against temperature; allowed: a face with one emissivity number")
@@ -171,7 +171,7 @@ def apply_value(case, parsed, value, base=None):
         walls[w] = dataclasses.replace(ew, outer=dataclasses.replace(ew.outer,
                                                                      emissivity=float(value)))
     else:
-        walls[w] = dataclasses.replace(ew, inner_emissivity=float(value))
+        walls[w] = dataclasses.replace(ew, inner_face_emissivity=float(value))
     return dataclasses.replace(case, walls=tuple(walls))
 
 
@@ -212,7 +212,7 @@ def log_driven_case(case, t, P, T_start, tolerance=None):
         # the logged power enters through the inner face, which replaces that face's own
         # conditions (a fluid held at the case's temperature would be a second, fixed heat
         # source or sink that the logged chamber does not have), as lumped.simulated_fit
-        new = dataclasses.replace(case, inner=Face(flux=flux),
+        new = dataclasses.replace(case, inner=Face(heat_flux=flux),
                                   heater=None, control=Control(mode="fixed"))
     walls = []
     for ew in (new.walls or ()):

@@ -403,7 +403,7 @@ def _flux_inner(case, flux):
     """``case`` with its inner face replaced by the imposed flux ``flux`` [W/m2] (a number or
     a Schedule), touch marks kept."""
     f = case.inner
-    return replace(case, inner=Face(flux=flux, touch=f.touch, surface_class=f.surface_class))
+    return replace(case, inner=Face(heat_flux=flux, touch=f.touch, surface_class=f.surface_class))
 
 
 def rc_analysis(case, t=None, networks=None) -> dict:
@@ -743,7 +743,7 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
         if case.is_enclosure or case.heater is not None:
             sched = Schedule(kt, kv)
             if case.heater is None:
-                heater = Heater(power=sched, location="chamber")
+                heater = Heater(power=sched, placement="chamber")
             else:
                 heater = replace(case.heater, power=sched, voltage_ratio=1.0, resistance_coefficient=0.0)
             return replace(case, run=run, heater=heater, control=Control())

@@ -580,8 +580,8 @@ def _last_switch_off(case: Case):
     if case.heater is not None:
         scheds.append(("heater power", case.heater.power))
         scheds.append(("control enable", case.control.power_on))
-    if case.wall is not None and case.inner.flux is not None:
-        scheds.append(("inner-face heat flux", case.inner.flux))
+    if case.wall is not None and case.inner.heat_flux is not None:
+        scheds.append(("inner-face heat flux", case.inner.heat_flux))
     for what, s in scheds:
         if s is None:
             continue
@@ -705,7 +705,7 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
         vals = []
         for j in range(len(run_case.wall_list)):
             f = _outer_face(run_case, j)
-            if f.flux is not None:
+            if f.heat_flux is not None:
                 has_sun = True
             s = f.fluid_temperature if f.fluid_temperature is not None else f.surroundings_temperature
             if s is not None:

@@ -116,9 +116,9 @@ def _service_warnings(case, sysm=None):
         k = int(np.clip(np.searchsorted(edges, ctl.sensor_depth, side="right") - 1, 0,
                         len(w.layers) - 1))
         hz = case.heater
-        first = 0 if hz is not None and hz.location in ("chamber", "inner") else k
-        if hz is not None and hz.location == "interface" and hz.wall == ctl.sensor_wall:
-            first = min(k, hz.interface + 1)
+        first = 0 if hz is not None and hz.placement in ("chamber", "inner_face") else k
+        if hz is not None and hz.placement == "interface" and hz.wall == ctl.sensor_wall:
+            first = min(k, hz.after_layer + 1)
         sp = _max(ctl.setpoint)
         for i in range(first, k + 1):
             _layer_service(out, w, i, sp, "the setpoint of the wall sensor "
@@ -177,12 +177,12 @@ def _convection_warnings(case):
         for ew in case.walls:
             check(ew.outer.convection, _max(ew.outer.fluid_temperature), True,
                   f"Wall '{ew.wall.name}' outer face")
-            check(ew.inner_h, sp, False, f"Wall '{ew.wall.name}' inner face")
+            check(ew.inner_face_convection, sp, False, f"Wall '{ew.wall.name}' inner face")
     else:
         w = case.wall
         hot_in = max([T for T, _ in _face_sources(case.inner)] or [0.0])
         hot_out = max([T for T, _ in _face_sources(case.outer)] or [0.0])
-        if case.heater is not None or case.inner.flux is not None:
+        if case.heater is not None or case.inner.heat_flux is not None:
             hot_in = max(hot_in, hot_out + 1.0)
         check(case.inner.convection, _max(case.inner.fluid_temperature), hot_in < hot_out,
               f"Wall '{w.name}' inner face")

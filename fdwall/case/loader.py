@@ -551,7 +551,7 @@ class _Loader:
             bridge = self._bridge(sec.table("bridge", S.BRIDGE, "a thermal bridge"), wall)
             self.n_nodes += nodes  # the bridge is a second path through the wall
         with _model(self.file, sec.path, f"wall '{name}'"):
-            ew = EnclosureWall(wall=wall, outer=outer, inner_h=inner_h, inner_emissivity=inner_eps,
+            ew = EnclosureWall(wall=wall, outer=outer, inner_face_convection=inner_h, inner_face_emissivity=inner_eps,
                                bridge=bridge)
         return ew, starts
 
@@ -709,7 +709,7 @@ class _Loader:
             fluxes.append(_combine(lambda g: a * g, G))
         flux = _combine(lambda *q: float(sum(q)), *fluxes) if fluxes else None
         with _model(self.file, sec.path, f"the {side} face"):
-            return Face(flux=flux, fluid_temperature=air, convection=conv, emissivity=eps, surroundings_temperature=surr)
+            return Face(heat_flux=flux, fluid_temperature=air, convection=conv, emissivity=eps, surroundings_temperature=surr)
 
     def _emissivity(self, sec, key):
         v = sec.raw(key)
@@ -848,7 +848,7 @@ class _Loader:
         box = sec.quantity_list("inner_dimensions", "length", None, positive=True, length=3)
         start = sec.quantity("start_temperature", "temperature", None)
         with _model(self.file, sec.path, "the chamber"):
-            ch = Chamber(capacity=cap, room_temperature=room, leakage=leak, extra_loss=extra,
+            ch = Chamber(heat_capacity=cap, room_temperature=room, leakage=leak, extra_loss=extra,
                          inner_dimensions=tuple(box) if box else None, start_temperature=start)
         return ch, start
 
@@ -893,8 +893,7 @@ class _Loader:
         elif sec.has("after_layer"):
             raise sec.error("after_layer", "'after_layer' applies to placement = \"interface\" only")
         with _model(self.file, sec.path, "the heater"):
-            return Heater(power=P, location={"inner_face": "inner"}.get(placement, placement),
-                          wall=j, interface=iface,
+            return Heater(power=P, placement=placement, wall=j, after_layer=iface,
                           voltage_ratio=_at_most(sec, "voltage_ratio", 1.0, MAX_VOLTAGE_RATIO,
                                                  "an element on ten times its rated voltage "
                                                  "takes a hundred times its rated power and "
@@ -961,4 +960,4 @@ class _Loader:
         if which == "at" and where == "chamber":
             _refuse(sec, "at", chamber_watch_problem(self.has_chamber, name))
         with _model(self.file, sec.path, "the watch entry"):
-            return Event(temperature=thr, wall=j, depth=depth, where=where, name=name)
+            return Event(temperature=thr, wall=j, depth=depth, at=where, name=name)

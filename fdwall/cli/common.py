@@ -37,7 +37,6 @@ from ..materials import MaterialError
 from ..model import ModelError
 from ..provenance import provenance
 from ..report import html as _html
-from ..system import event_rows
 from ..units import parse_quantity
 
 # Exit codes, shared by all commands (documented once, in fdwall/cli/__init__.py and README).
@@ -163,7 +162,6 @@ def _build(case, path_arg):
     try:
         system = fsystem.build_system(case)
         system.initial_vector(case.run.start_temperature)
-        event_rows(system, case)  # validate the watched events before running
         return system
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), path_arg)) from None

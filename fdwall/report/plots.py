@@ -294,7 +294,7 @@ def plot_temperatures(result, path) -> str:
     _setpoint(ax, result, th)
     # event crossings as small markers on the panel of the watched spot
     for (name, (up, down)), ev in zip(result.events.items(), case.run.watch):
-        a = ax_out if ev.where == "outer" else ax
+        a = ax_out if ev.at == "outer" else ax
         for t, mk in ((up, "^"), (down, "v")):
             if np.isfinite(t):
                 a.plot([t / 3600.0], [ev.temperature - KELVIN_OFFSET], mk, color="#444444", ms=7,
