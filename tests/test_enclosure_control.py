@@ -51,10 +51,10 @@ LEAK = 0.0005
 def box(P=P_RATED, duration=3 * 3600.0, oi=None, **ctl):
     w1 = Wall((Layer(SKIN, 0.001), Layer(WOOL, 0.06), Layer(SKIN, 0.001)), area=3.0, name="shell")
     w2 = Wall((Layer(SKIN, 0.002), Layer(WOOL, 0.04)), area=0.6, name="door")
-    walls = (EnclosureWall(w1, Face.exchange(AMB, 8.0), inner_h=15.0),
-             EnclosureWall(w2, Face.exchange(AMB, 8.0), inner_h=15.0))
-    return Case(run=RunSettings(duration=duration, output_interval=oi), walls=walls,
-                chamber=Chamber(capacity=15e3, ambient=AMB, leakage=LEAK),
+    walls = (EnclosureWall(w1, Face.exchange(AMB, 8.0), inner_face_convection=15.0),
+             EnclosureWall(w2, Face.exchange(AMB, 8.0), inner_face_convection=15.0))
+    return Case(run=RunSettings(duration=duration, output_every=oi), walls=walls,
+                chamber=Chamber(heat_capacity=15e3, room_temperature=AMB, leakage=LEAK),
                 heater=Heater(P), control=Control(**ctl), name="demo insulated box")
 
 

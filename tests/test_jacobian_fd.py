@@ -41,7 +41,7 @@ RUN = RunSettings(duration=600.0)
 
 def _slab(inner, outer, contact=(), heater=None, control=None):
     w = Wall((Layer(STEEL, 0.002), Layer(KT, 0.05), Layer(STEEL, 0.001)), area=1.5,
-             contact=contact, name="demo")
+             interface_resistance=contact, name="demo")
     return Case(run=RUN, wall=w, inner=inner, outer=outer, heater=heater,
                 control=control or Control(), name="demo jacobian")
 
@@ -50,12 +50,12 @@ def _enclosure():
     w1 = Wall((Layer(STEEL, 0.001), Layer(KT, 0.06)), area=2.0, name="shell")
     w2 = Wall((Layer(KT, 0.04),), area=0.5, name="door")
     walls = (EnclosureWall(w1, Face.exchange(293.15, 8.0, emissivity=0.8, surroundings=290.0),
-                           inner_h=12.0, inner_emissivity=0.7),
-             EnclosureWall(w2, Face.exchange(293.15, 6.0), inner_h=Convection.chamber(
+                           inner_face_convection=12.0, inner_face_emissivity=0.7),
+             EnclosureWall(w2, Face.exchange(293.15, 6.0), inner_face_convection=Convection.chamber(
                  "wall", size=0.5)))
     return Case(run=RUN, walls=walls,
-                chamber=Chamber(capacity=8e3, ambient=293.15, leakage=0.001, extra_ua=0.4),
-                heater=Heater(900.0, alpha=2e-3), control=Control(), name="demo box")
+                chamber=Chamber(heat_capacity=8e3, room_temperature=293.15, leakage=0.001, extra_loss=0.4),
+                heater=Heater(900.0, resistance_coefficient=2e-3), control=Control(), name="demo box")
 
 
 CASES = {
@@ -69,10 +69,10 @@ CASES = {
                       surroundings=600.0),
         Face.exchange(293.15, 5.0, emissivity=0.9, surroundings=280.0)),
     "fixed temperature and flux": lambda: _slab(
-        Face.fixed(523.15), Face(flux=-150.0)),
+        Face.fixed(523.15), Face(heat_flux=-150.0)),
     "heater with falling power": lambda: _slab(
         Face.exchange(293.15, 5.0), Face.exchange(293.15, 5.0),
-        heater=Heater(800.0, location="inner", alpha=3e-3, t_ref=293.15)),
+        heater=Heater(800.0, placement="inner_face", resistance_coefficient=3e-3, rated_at=293.15)),
     "chamber, leakage, films and radiation to it": _enclosure,
 }
 

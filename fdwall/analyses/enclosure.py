@@ -204,7 +204,7 @@ def _time_schedules(case: Case):
         out.append(("chamber ambient", case.chamber.room_temperature))
     for ew in case.walls:
         f = ew.outer
-        for key, attr in (("temperature", "fixed_temperature"), ("flux", "flux"),
+        for key, attr in (("temperature", "fixed_temperature"), ("flux", "heat_flux"),
                           ("fluid", "fluid_temperature"),
                           ("surroundings", "surroundings_temperature")):
             s = getattr(f, attr)
