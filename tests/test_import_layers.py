@@ -5,7 +5,8 @@ heavy outside libraries may be imported where they are used, from the allow-list
 
 The import graph is read from the source with ``ast`` (no module is imported).  Layers, from
 the bottom: 1 base, 2 physics, 3 model, 4 case I/O, 5 system and mesh (with the names of the
-kernel arrays, fdwall/solver/layout.py), 6 result (the arrays of a run and what derives from
+kernel arrays, fdwall/solver/layout.py, and the numpy read-out between nodes of those arrays,
+fdwall/solver/readout.py), 6 result (the arrays of a run and what derives from
 them; it knows the layout names, not the drivers, which build Results), 7 solver (kernels,
 their native dispatch and the drivers), 8 analyses, 9 report, 10 cli and the package facade.
 A module may import its own layer or a lower one.  Python code below the solver reaches the
@@ -26,7 +27,7 @@ LAYERS = [
     (2, ("fdwall.physics",)),
     (3, ("fdwall.schedule", "fdwall.materials", "fdwall.model")),
     (4, ("fdwall.case",)),
-    (5, ("fdwall.system", "fdwall.mesh", "fdwall.solver.layout")),
+    (5, ("fdwall.system", "fdwall.mesh", "fdwall.solver.layout", "fdwall.solver.readout")),
     (6, ("fdwall.result",)),
     (7, ("fdwall.solver",)),
     (8, ("fdwall.analyses", "fdwall.safety", "fdwall.sizing", "fdwall.study")),
