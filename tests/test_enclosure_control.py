@@ -122,7 +122,7 @@ KP, KI = 0.05, 5.6e-5                        # [1/K], [1/K/s]: integral time 900
 
 @pytest.mark.parametrize("switched", [False, True])
 def test_pid_ramp_hold_with_anti_windup(switched):
-    case = box(duration=6 * 3600.0, oi=30.0, mode="pid", setpoint=RAMP, kp=KP, ki=KI,
+    case = box(duration=6 * 3600.0, oi=30.0, mode="pid", setpoint=RAMP, proportional_gain=KP, integral_gain=KI,
                period=20.0, switched=switched)
     res = run(case)
     check_ledger(res)
@@ -150,7 +150,7 @@ def test_pid_ramp_hold_with_anti_windup(switched):
 def test_proportional_only_offset_matches_hand_formula():
     # P-only: u = kp e and u P = G (T_sp - e - T_amb)  =>  e = G (T_sp - T_amb) / (P kp + G)
     # (standard control theory, from memory; G from Incropera §3.1)
-    case = box(duration=6 * 3600.0, oi=60.0, mode="pid", setpoint=RAMP, kp=KP, ki=0.0)
+    case = box(duration=6 * 3600.0, oi=60.0, mode="pid", setpoint=RAMP, proportional_gain=KP, integral_gain=0.0)
     res = run(case)
     check_ledger(res)
     G = G_hand()

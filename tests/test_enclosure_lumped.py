@@ -116,7 +116,7 @@ def test_cooldown_matches_exponential_decay():
     # to a level is R C ln((T_off - T_amb)/(T - T_amb)) and the e-folding time is R C.
     t_off = 3 * 3600.0
     en = Schedule([0.0, t_off, t_off], [1.0, 1.0, 0.0])
-    case = lumped_case(600.0, duration=12 * 3600.0, enable=en)
+    case = lumped_case(600.0, duration=12 * 3600.0, power_on=en)
     res = run(replace(case, run=replace(case.run, output_every=60.0)))
     R, C = lumped_RC()
     cd = cooldown(res, temperatures=(320.0, 400.0))
@@ -208,7 +208,7 @@ def test_size_heater_matches_lumped_formula_and_2pct_less_fails():
 
 def test_size_heater_full_power_mode_and_bracket_hints():
     sp = 453.15
-    case = lumped_case(300.0, duration=3600.0, mode="pid", setpoint=sp, kp=0.05, ki=1e-4)
+    case = lumped_case(300.0, duration=3600.0, mode="pid", setpoint=sp, proportional_gain=0.05, integral_gain=1e-4)
     a = size_heater(case, 5400.0, setpoint=sp, control="full")
     # full power on from the start is the one-node formula again (Incropera §5.2-5.3)
     R, C = lumped_RC()
@@ -231,7 +231,7 @@ def test_summary_and_clear_errors():
     t_off = 3 * 3600.0
     en = Schedule([0.0, t_off, t_off], [1.0, 1.0, 0.0])
     case = lumped_case(4000.0, duration=8 * 3600.0, mode="thermostat", setpoint=423.15, band=3.0,
-                       enable=en)
+                       power_on=en)
     case = replace(case, run=replace(case.run, output_every=30.0))
     res = run(case)
     s = summarise_enclosure(res)

@@ -108,13 +108,13 @@ BAD = {
                                   sensor_depth=0.12)},
         "a depth of 120 mm lies beyond the outer face of wall 'slab' (80 mm thick)",
         "a depth from 0 to 80 mm below the inner face"),
-    "watch depth": (WATCH.format(spot='depth = "95 mm"'), _watch(where="", depth=0.095),
+    "watch depth": (WATCH.format(spot='depth = "95 mm"'), _watch(at="", depth=0.095),
                     "a depth of 95 mm lies beyond the outer face of wall 'slab' (80 mm thick)",
                     "a depth from 0 to 80 mm below the inner face"),
-    "watch interface": (WATCH.format(spot="after_layer = 1"), _watch(where="interface:2"),
+    "watch interface": (WATCH.format(spot="after_layer = 1"), _watch(at="interface:2"),
                         "there is no interface after layer 1 in wall 'slab', which has 2 "
                         "layer(s)", "a layer index 0..0"),
-    "watch chamber": (WATCH.format(spot='at = "chamber"'), _watch(where="chamber"),
+    "watch chamber": (WATCH.format(spot='at = "chamber"'), _watch(at="chamber"),
                       "the watch entry 'probe' watches the chamber, but the case has none",
                       'at = "inner" or "outer", after_layer or depth for a single wall'),
 }
