@@ -83,12 +83,12 @@ def wall_case(geometry="slab", tolerance=0.01, refine=1.0, cells=None, thickness
     """
     cells = cells or (None, None, None)
     layers = [Layer(m, t, cells=c) for m, t, c in zip(MATERIALS, thickness, cells)]
-    wall = Wall(layers, geometry=geometry,
+    wall = Wall(layers, shape=geometry,
                 inner_radius=INNER_RADIUS if geometry != "slab" else None, refine=refine,
                 name="furnace-wall" if geometry == "slab" else "hot-pipe")
-    inner = Face(flux=flux_schedule(flux, t_off))
+    inner = Face(heat_flux=flux_schedule(flux, t_off))
     outer = Face.exchange(T_AMB, H_OUT, emissivity=EPS_OUT, surroundings=T_AMB)
-    run = RunSettings(duration=duration, initial=T0, output_interval=output_interval,
+    run = RunSettings(duration=duration, start_temperature=T0, output_every=output_interval,
                       tolerance=tolerance, max_step=max_step)
     return Case(run, wall=wall, inner=inner, outer=outer, name=f"bench-{geometry}")
 
@@ -121,11 +121,11 @@ def step_case(tolerance=None, refine=None, cells=None, duration=DURATION, t_off=
     mats, thick = STEP_WALLS[hot_face]
     layers = [Layer(m, t, cells=c) for m, t, c in zip(mats, thick, cells)]
     wkw = {} if refine is None else {"refine": refine}
-    wall = Wall(layers, geometry="slab", name="flux-step-wall", **wkw)
-    inner = Face(flux=flux_schedule(STEP_FLUX, t_off))
+    wall = Wall(layers, shape="slab", name="flux-step-wall", **wkw)
+    inner = Face(heat_flux=flux_schedule(STEP_FLUX, t_off))
     outer = Face.exchange(T_AMB, H_OUT, emissivity=EPS_OUT, surroundings=T_AMB)
     rkw = {} if tolerance is None else {"tolerance": tolerance}
-    run = RunSettings(duration=duration, initial=T0, output_interval=STEP_INTERVAL, **rkw)
+    run = RunSettings(duration=duration, start_temperature=T0, output_every=STEP_INTERVAL, **rkw)
     return Case(run, wall=wall, inner=inner, outer=outer, name="bench-flux-step")
 
 
@@ -152,13 +152,13 @@ def enclosure_case(tolerance=0.01, refine=1.0, duration=DURATION):
         w = Wall([Layer(m, t) for m, t in zip(MATERIALS, THICKNESS)], area=a, refine=refine,
                  name=n)
         walls.append(EnclosureWall(w, Face.exchange(T_AMB, h, emissivity=EPS_OUT,
-                                                    surroundings=T_AMB), inner_h=sp["h_in"]))
-    chamber = Chamber(capacity=sp["capacity"], ambient=T_AMB, leakage=0.0,
-                      extra_ua=sp["extra_ua"])
-    heater = Heater(power=sp["power"], location="chamber")
+                                                    surroundings=T_AMB), inner_face_convection=sp["h_in"]))
+    chamber = Chamber(heat_capacity=sp["capacity"], room_temperature=T_AMB, leakage=0.0,
+                      extra_loss=sp["extra_ua"])
+    heater = Heater(power=sp["power"], placement="chamber")
     control = Control(mode="thermostat", setpoint=sp["setpoint"], band=sp["band"],
-                      enable=Schedule([0.0, HEAT_OFF, HEAT_OFF], [1.0, 1.0, 0.0]))
-    run = RunSettings(duration=duration, initial=T0, output_interval=OUTPUT_INTERVAL,
+                      power_on=Schedule([0.0, HEAT_OFF, HEAT_OFF], [1.0, 1.0, 0.0]))
+    run = RunSettings(duration=duration, start_temperature=T0, output_every=OUTPUT_INTERVAL,
                       tolerance=tolerance)
     return Case(run, walls=tuple(walls), chamber=chamber, heater=heater, control=control,
                 name="bench-enclosure")

@@ -851,7 +851,7 @@ def cycling_case(cycles, tol):
     # consecutive cycles meet as (end, 0), (start, FLUX): a repeated time is a step
     tt, vv = t, v
     case = P.wall_case(tolerance=tol, refine=M.BENCH_REFINE, duration=cycles * P.DURATION)
-    return replace(case, inner=Face(flux=Schedule(tt, vv)))
+    return replace(case, inner=Face(heat_flux=Schedule(tt, vv)))
 
 
 def scaling(quick, tol, repeats):

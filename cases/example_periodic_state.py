@@ -41,8 +41,8 @@ def build_case() -> Case:
     firing = Schedule((0.0, ON, ON, DAY), (1.0, 1.0, 0.0, 0.0))   # on 8 h, off 16 h
     return Case(run=RunSettings(duration=DAY, start_temperature=T_amb, output_every=600.0),
                 walls=(EnclosureWall(wall=wall, outer=Face.exchange(T_amb, h_out),
-                                     inner_h=h_in),),
-                chamber=Chamber(capacity=C, room_temperature=T_amb), heater=Heater(power=P),
+                                     inner_face_convection=h_in),),
+                chamber=Chamber(heat_capacity=C, room_temperature=T_amb), heater=Heater(power=P),
                 control=Control(mode="fixed", duty=firing), name="example-cabinet")
 
 

@@ -28,7 +28,7 @@ def build_case() -> Case:
     """The example wall as an fdwall Case (SI units)."""
     return Case(run=RunSettings(duration=24 * 3600.0, start_temperature=T_amb),
                 wall=Wall(layers=(Layer(brick, L1), Layer(board, L2)), area=A),
-                inner=Face(flux=P / A), outer=Face.exchange(T_amb, h), name="example kiln wall")
+                inner=Face(heat_flux=P / A), outer=Face.exchange(T_amb, h), name="example kiln wall")
 
 
 def closed_form() -> dict:

@@ -13,6 +13,7 @@ The small public API::
 Cases can also be built in Python from :mod:`fdwall.model` objects (Wall, Layer, Face, ...),
 materials from :func:`get_material`, and film coefficients from :class:`Convection`.
 """
+from .case import load_case as _load
 from .materials import Material, get_material, list_materials
 from .model import (
     Bridge,
@@ -47,5 +48,4 @@ __all__ = [
 
 def load_case(path):
     """Read a TOML case file into a :class:`Case` (SI units inside); see docs/case-file.md."""
-    from .case import load_case as _load
     return _load(path)

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import functools
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Optional, Union
 
 import numpy as np
@@ -29,6 +29,9 @@ TOUCH_MARKS = ("touchable", "guarded", "out-of-reach")
 
 #: Surface classes of the touch-safety threshold data (fdwall/analyses/touch_thresholds.toml).
 SURFACE_CLASSES = ("bare-metal", "coated-metal", "ceramic-glass-stone", "plastic", "wood")
+
+#: Where a heater's power goes (the case file's ``[heater] placement`` values).
+HEATER_PLACEMENTS = ("chamber", "inner_face", "interface")
 
 
 class ModelError(InputError):
@@ -222,14 +225,13 @@ class Wall:
 
     def with_layer(self, index: int, **changes) -> "Wall":
         """A copy with layer ``index`` changed (e.g. ``thickness=0.1`` [m])."""
-        from dataclasses import replace
         layers = list(self.layers)
         layers[index] = replace(layers[index], **changes)
         return replace(self, layers=tuple(layers))
 
 
 @_renamed(temperature="fixed_temperature", fluid="fluid_temperature",
-          surroundings="surroundings_temperature")
+          surroundings="surroundings_temperature", flux="heat_flux")
 @dataclass(frozen=True)
 class Face:
     """What happens at one face of a wall.
@@ -241,8 +243,10 @@ class Face:
     ----------
     fixed_temperature : Schedule or float, optional
         Imposed face temperature [K].
-    flux : Schedule or float, optional
-        Imposed heat flux into the wall [W/m2] (heater element, absorbed solar).
+    heat_flux : Schedule or float, optional
+        Imposed heat flux into the wall [W/m2] (negative: out).  The case loader puts the
+        face's ``heat_flux`` here plus its ``heater_power`` / ``heater_area`` and the absorbed
+        solar flux.
     fluid_temperature : Schedule or float, optional
         Temperature of the fluid (air) at the face [K]; needed with ``convection``.
     convection : float or fdwall.physics.convection.Convection, optional
@@ -261,7 +265,7 @@ class Face:
     """
 
     fixed_temperature: Optional[Schedule] = None
-    flux: Optional[Schedule] = None
+    heat_flux: Optional[Schedule] = None
     fluid_temperature: Optional[Schedule] = None
     convection: Union[None, float, object] = None
     emissivity: Union[None, float, Schedule] = None
@@ -277,7 +281,7 @@ class Face:
                              f"got {self.surface_class!r}")
         object.__setattr__(self, "fixed_temperature",
                            _sched("face temperature", self.fixed_temperature, True))
-        object.__setattr__(self, "flux", _sched("face flux", self.flux))
+        object.__setattr__(self, "heat_flux", _sched("face heat flux", self.heat_flux))
         object.__setattr__(self, "fluid_temperature",
                            _sched("fluid temperature", self.fluid_temperature, True))
         object.__setattr__(self, "surroundings_temperature",
@@ -307,10 +311,11 @@ class Face:
         radiation (``emissivity`` [-]) to ``surroundings`` [K] and an imposed ``flux`` [W/m2]."""
         return cls(fluid_temperature=fluid, convection=h, emissivity=emissivity,
                    surroundings_temperature=surroundings,
-                   flux=flux)
+                   heat_flux=flux)
 
 
 @_renamed(initial="start_temperature", ambient="room_temperature", extra_ua="extra_loss",
+          capacity="heat_capacity",
           box="inner_dimensions")
 @dataclass(frozen=True)
 class Chamber:
@@ -318,9 +323,10 @@ class Chamber:
 
     Parameters
     ----------
-    capacity : float or Schedule
+    heat_capacity : float or Schedule
         Heat capacity of the chamber contents [J/K]; a Schedule is read as a table of
-        capacity against temperature [K].
+        capacity against temperature [K].  The case loader puts the chamber's
+        ``heat_capacity`` here plus ``load_mass`` x ``load_specific_heat``.
     room_temperature : Schedule or float
         Temperature of the room air that leakage and extra losses go to [K].
     leakage : float
@@ -340,7 +346,7 @@ class Chamber:
         over the slab walls as an area factor.
     """
 
-    capacity: Union[float, Schedule]
+    heat_capacity: Union[float, Schedule]
     room_temperature: Schedule = 293.15
     leakage: float = 0.0
     extra_loss: float = 0.0
@@ -348,7 +354,7 @@ class Chamber:
     start_temperature: Optional[float] = None
 
     def __post_init__(self):
-        cap = self.capacity
+        cap = self.heat_capacity
         vals = cap.values if isinstance(cap, Schedule) else (float(cap),)
         if min(vals) <= 0:
             raise ModelError("chamber capacity must be positive [J/K]")
@@ -367,7 +373,8 @@ class Chamber:
                                tuple(float(x) for x in self.inner_dimensions))
 
 
-@_renamed(alpha="resistance_coefficient", t_ref="rated_at")
+@_renamed(alpha="resistance_coefficient", t_ref="rated_at", location="placement",
+          interface="after_layer")
 @dataclass(frozen=True)
 class Heater:
     """An electric heater.
@@ -376,13 +383,15 @@ class Heater:
     ----------
     power : Schedule or float
         Rated power at rated voltage [W].
-    location : str
-        'chamber' (heats the chamber node), 'inner' (a flux on the inner face of ``wall``),
-        or 'interface' (embedded between layers ``interface`` and ``interface+1`` of ``wall``).
+    placement : str
+        'chamber' (heats the chamber node), 'inner_face' (a flux on the inner face of
+        ``wall``), or 'interface' (embedded between layers ``after_layer`` and
+        ``after_layer + 1`` of ``wall``).  The old value 'inner' is a deprecated alias of
+        'inner_face'.
     wall : int
-        Index of the wall for 'inner' and 'interface' [-].
-    interface : int
-        Index of the layer the element lies behind, for 'interface' [-].
+        Index of the wall for 'inner_face' and 'interface' [-].
+    after_layer : int
+        Index of the layer the element lies behind, for 'interface' [-] (0-based).
     voltage_ratio : float
         Supply voltage / rated voltage [-]; power scales with its square.
     resistance_coefficient : float
@@ -392,9 +401,9 @@ class Heater:
     """
 
     power: Schedule
-    location: str = "chamber"
+    placement: str = "chamber"
     wall: int = 0
-    interface: int = 0
+    after_layer: int = 0
     voltage_ratio: float = 1.0
     resistance_coefficient: float = 0.0
     rated_at: float = 293.15
@@ -403,10 +412,26 @@ class Heater:
         object.__setattr__(self, "power", _sched("heater power", self.power))
         if min(self.power.values) < 0:
             raise ModelError("heater power must not be negative [W]")
-        if self.location not in ("chamber", "inner", "interface"):
-            raise ModelError(f"heater location must be chamber, inner or interface, got {self.location!r}")
+        if self.placement == "inner":
+            warnings.warn("Heater placement 'inner' is deprecated and will be removed in the next "
+                          "release; use 'inner_face' (the case-file value)", DeprecationWarning,
+                          stacklevel=4)
+            object.__setattr__(self, "placement", "inner_face")
+        if self.placement not in HEATER_PLACEMENTS:
+            raise ModelError(f"heater placement must be one of {', '.join(HEATER_PLACEMENTS)}, "
+                             f"got {self.placement!r}")
         _pos("heater voltage ratio", self.voltage_ratio)
         _pos("heater alpha", self.resistance_coefficient, allow_zero=True)
+
+
+def _old_location(self):
+    _warn_renamed("Heater", "location", "placement", 3)
+    return {"inner_face": "inner"}.get(self.placement, self.placement)
+
+
+# the old name reads in the old vocabulary ('inner' for 'inner_face'), as old code compares it
+Heater.location = property(_old_location, doc="Deprecated alias of :attr:`placement`, "
+                                              "with 'inner' for 'inner_face'.")
 
 
 @_renamed(kp="proportional_gain", ki="integral_gain", kd="derivative_gain", enable="power_on")
@@ -512,6 +537,7 @@ class Bridge:
         object.__setattr__(self, "replaces_layers", tuple(int(i) for i in self.replaces_layers))
 
 
+@_renamed(inner_h="inner_face_convection", inner_emissivity="inner_face_emissivity")
 @dataclass(frozen=True)
 class EnclosureWall:
     """One wall assembly of an enclosure: its construction, its outer face and how many alike.
@@ -522,9 +548,10 @@ class EnclosureWall:
         Construction, inner layer first; a slab's ``area`` is the wall's area [m2].
     outer : Face
         Conditions at the outer face.
-    inner_h : float or Convection
-        Film coefficient to the chamber air [W/m2/K] or a correlation.
-    inner_emissivity : float or Schedule, optional
+    inner_face_convection : float or Convection
+        Film coefficient to the chamber air [W/m2/K] or a correlation (case file:
+        ``inner_face.film_coefficient`` or ``inner_face.convection``).
+    inner_face_emissivity : float or Schedule, optional
         Emissivity of the inner face for radiation exchange with the chamber contents [-];
         a Schedule is read as a table of emissivity against surface temperature [K].
     bridge : Bridge, optional
@@ -533,8 +560,8 @@ class EnclosureWall:
 
     wall: Wall
     outer: Face
-    inner_h: Union[float, object] = 10.0
-    inner_emissivity: Union[None, float, Schedule] = None
+    inner_face_convection: Union[float, object] = 10.0
+    inner_face_emissivity: Union[None, float, Schedule] = None
     bridge: Optional[Bridge] = None
 
     def __post_init__(self):
@@ -547,7 +574,92 @@ class EnclosureWall:
                                      f"exist (0..{len(self.wall.layers) - 1})")
 
 
-@_renamed(threshold="temperature")
+# ------------------------------------------------- rules between the parts of a case
+# These rules are owned here: Case.__post_init__ applies them to every case, and the case
+# loader calls the same functions to refuse a file with the key named, so one bad input gives
+# one message whichever way the case was made (tests/test_validation_owner.py).
+
+def interface_problem(wall: "Wall", after_layer: int):
+    """(problem, allowed) when wall ``wall`` has no interface after layer ``after_layer``
+    (0-based layer index) [-]; None when it has one."""
+    n = len(wall.layers)
+    if 0 <= after_layer < n - 1:
+        return None
+    return (f"there is no interface after layer {after_layer} in wall '{wall.name}', which has "
+            f"{n} layer(s)",
+            f"a layer index 0..{n - 2}" if n > 1 else "a wall with two or more layers")
+
+
+def depth_problem(wall: "Wall", depth: float):
+    """(problem, allowed) when ``depth`` [m] below the inner face lies outside wall ``wall``;
+    None when it lies inside (faces included)."""
+    th = wall.thickness
+    if 0.0 <= depth <= th * (1 + 1e-12):
+        return None
+    where = "in front of the inner face" if depth < 0 else "beyond the outer face"
+    return (f"a depth of {depth * 1000:g} mm lies {where} of wall '{wall.name}' "
+            f"({th * 1000:g} mm thick)", f"a depth from 0 to {th * 1000:g} mm below the inner face")
+
+
+def wall_index_problem(case_walls: list, index: int, what: str):
+    """(problem, allowed) when ``index`` is not a wall of the case (``case_walls`` its walls,
+    in order); None otherwise.  ``what`` names the part that refers to it."""
+    n = len(case_walls)
+    if isinstance(index, (int, np.integer)) and 0 <= index < n:
+        return None
+    return (f"{what} refers to wall index {index!r}, which does not exist",
+            f"a wall index 0..{n - 1}" if n > 1 else "wall index 0 (the case has one wall)")
+
+
+def chamber_watch_problem(has_chamber: bool, name: str):
+    """(problem, allowed) for a watch entry on the chamber of a case without one, else None."""
+    if has_chamber:
+        return None
+    return (f"the watch entry '{name}' watches the chamber, but the case has none",
+            "at = \"inner\" or \"outer\", after_layer or depth for a single wall")
+
+
+def _refuse(problem):
+    if problem is not None:
+        text, allowed = problem
+        raise ModelError(f"{text} (allowed: {allowed})")
+
+
+def check_references(case: "Case") -> None:
+    """Apply the rules between the parts of ``case`` (heater, sensor and watch entries
+    against its walls, layers and chamber); ModelError on the first one broken."""
+    walls = case.wall_list
+    hz = case.heater
+    if hz is not None and hz.placement != "chamber":
+        _refuse(wall_index_problem(walls, hz.wall, "the heater"))
+        if hz.placement == "interface":
+            _refuse(interface_problem(walls[hz.wall], hz.after_layer))
+    ctl = case.control
+    if ctl.sensor == "wall" and hz is not None and ctl.mode in ("thermostat", "pid"):
+        _refuse(wall_index_problem(walls, ctl.sensor_wall, "the control's sensor"))
+        _refuse(depth_problem(walls[ctl.sensor_wall], ctl.sensor_depth))
+    for ev in case.run.watch:
+        label = f"the watch entry '{ev.name}'"
+        if ev.at == "chamber":
+            _refuse(chamber_watch_problem(case.chamber is not None, ev.name))
+            continue
+        _refuse(wall_index_problem(walls, ev.wall, label))
+        w = walls[ev.wall]
+        if ev.at.startswith("interface:"):
+            try:
+                k = int(ev.at.split(":", 1)[1]) - 1
+            except ValueError:
+                raise ModelError(f"{label}: at {ev.at!r} is not 'interface:N' with N a "
+                                 "whole number (1-based)") from None
+            _refuse(interface_problem(w, k))
+        elif ev.at == "":
+            _refuse(depth_problem(w, ev.depth))
+        elif ev.at not in ("inner", "outer"):
+            raise ModelError(f"{label}: at must be 'inner', 'outer', 'interface:N', "
+                             f"'chamber' or '' (a depth), got {ev.at!r}")
+
+
+@_renamed(threshold="temperature", where="at")
 @dataclass(frozen=True)
 class Event:
     """Watch a face, interface or depth for crossing a temperature.
@@ -559,10 +671,11 @@ class Event:
     wall : int
         Wall index [-].
     depth : float
-        Depth below the inner face [m]; use ``where`` instead for named spots.
-    where : str
-        'inner', 'outer', 'interface:N' (after layer N, 1-based), 'chamber' (the chamber
-        node of an enclosure) or '' to use ``depth``.
+        Depth below the inner face [m], used when ``at`` is ''.
+    at : str
+        'inner', 'outer', 'chamber' (the chamber node of an enclosure), as the case file's
+        ``at``; also 'interface:N' for the interface after layer N (1-based; the case file's
+        ``after_layer = N - 1``), or '' to use ``depth`` (the case file's ``depth``).
     name : str
         Label.
     """
@@ -570,7 +683,7 @@ class Event:
     temperature: float
     wall: int = 0
     depth: float = 0.0
-    where: str = "outer"
+    at: str = "outer"
     name: str = ""
 
 
@@ -664,13 +777,14 @@ class Case:
         dup = sorted({n for n in names if names.count(n) > 1})
         if dup:
             raise ModelError(f"enclosure wall names must be unique; repeated: {', '.join(dup)}")
-        if self.heater is not None and self.heater.location == "chamber" and self.chamber is None:
+        if self.heater is not None and self.heater.placement == "chamber" and self.chamber is None:
             raise ModelError("a heater in the chamber needs a chamber")
         if self.control.mode in ("thermostat", "pid") and self.heater is None:
             raise ModelError("thermostat or PID control needs a heater")
         if self.control.sensor == "chamber" and self.control.mode in ("thermostat", "pid") \
                 and self.chamber is None:
             raise ModelError("a chamber sensor needs a chamber; use sensor = 'wall' for a single wall")
+        check_references(self)
 
     @property
     def is_enclosure(self) -> bool:

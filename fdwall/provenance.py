@@ -20,6 +20,7 @@ import json
 import os
 import platform
 import sys
+from importlib.metadata import version
 from pathlib import Path
 
 #: The bundled material library, hashed as an input of every run.
@@ -30,7 +31,6 @@ _PACKAGES = ("numpy", "numba", "h5py", "scipy")
 
 def _version(dist: str) -> str:
     try:
-        from importlib.metadata import version
         return version(dist)
     except Exception:  # not installed, or a source tree without metadata
         return "unknown"

@@ -9,10 +9,15 @@ import json
 import os
 from dataclasses import dataclass
 from datetime import datetime, timezone
+from html import escape
+from importlib.metadata import version
 
 import numpy as np
 
+from .h5tree import h5_atomic
+from .materials import check_service_temperature
 from .provenance import provenance, stamp_h5
+from .solver import layout as K
 from .solver.layout import EV_DOWN, EV_UP, EX_HEATER, EX_LOSS, FI_NODE
 from .solver.readout import temperature_at
 
@@ -21,7 +26,6 @@ __all__ = ["Result", "read_result"]
 
 def _version():
     try:
-        from importlib.metadata import version
         return version("fdwall")
     except Exception:  # pragma: no cover - running from a source tree
         return "0+unknown"
@@ -91,7 +95,6 @@ class Result:
     @classmethod
     def from_run(cls, case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out, stats,
                  ev_out, complete, wall_time):
-        from .solver import native as K
         n = len(t_out)
         if not complete:
             n = int(np.sum(np.isfinite(T_out[:, 0])))
@@ -268,7 +271,6 @@ class Result:
 
     def warnings(self) -> list:
         """Materials used above their maximum service temperature (text, one per layer)."""
-        from .materials import check_service_temperature
         out = []
         layers = [l for w in self.system.walls for l in w.layers]
         for name, layer, tm in zip(self.system.layer_names, layers, self.layer_max_T()):
@@ -415,7 +417,6 @@ class Result:
 
     def _repr_html_(self) -> str:
         """Short summary table for notebooks (final and peak face temperatures in degC)."""
-        from html import escape
         state = "complete" if self.complete else f"stopped early: {escape(self.message)}"
         rows = "".join(
             f"<tr><td>{escape(n)}</td><td>{self.face_T[-1, f] - 273.15:.2f}</td>"
@@ -431,7 +432,6 @@ class Result:
 
     def write_hdf5(self, path) -> str:
         """Write the run to ``path`` atomically (a temporary file renamed when complete)."""
-        from .h5tree import h5_atomic
         path = os.fspath(path)
         with h5_atomic(path) as h:
             self._write(h)

@@ -7,12 +7,15 @@ heat capacity of every node, and the wall's lumped resistance and capacity.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from .compiled import entry
 from .mesh import cell_counts, mesh_wall, shape_key
-from .model import Case, Face, ModelError
+from .model import Case, Face, ModelError, interface_problem
+from .physics.air import rho_cp
+from .physics.convection import PAR_LEN
 from .schedule import Schedule
 from .solver.layout import (
     CF_ALPHA,
@@ -83,8 +86,7 @@ from .solver.layout import (
     NI_MAT_R,
 )
 
-__all__ = ["System", "build_system", "event_rows", "hand_over",
-           "handed_system", "locate_depth", "readout_material"]
+__all__ = ["System", "build_system", "event_rows", "locate_depth", "readout_material"]
 
 
 def _integrated(T, k, c):
@@ -272,7 +274,7 @@ class System:
 
         Links after the last node of a wall are 0.  Uses the Kirchhoff mean conductivity.
         """
-        from .solver.native import mat_eval
+        mat_eval = entry("mat_eval")
         T = np.full(self.n_nodes, 293.15) if T is None else np.asarray(T, float)
         G = np.zeros(self.n_nodes)
         for i in range(self.n_nodes):
@@ -296,13 +298,14 @@ class System:
         (0 without a chamber)."""
         if not self.has_chamber:
             return 0.0
-        from .solver import native
-        T_room = native.sched_eval(self.s_off, self.stab, int(self.ch_i[CHI_AMBIENT]), float(t), 0.0)
-        return float(self.ch_f[CHF_UA] + self.ch_f[CHF_LEAK] * native.rho_cp(T_room, 101325.0))
+        T_room = entry("sched_eval")(self.s_off, self.stab, int(self.ch_i[CHI_AMBIENT]), float(t),
+                                     0.0)
+        rho_cp_room = entry("rho_cp", rho_cp)(T_room, 101325.0)
+        return float(self.ch_f[CHF_UA] + self.ch_f[CHF_LEAK] * rho_cp_room)
 
     def capacities(self, T=None) -> np.ndarray:
         """Heat capacity of every unknown [J/K] at temperatures ``T`` [K] (default 293.15 K)."""
-        from .solver.native import mat_eval
+        mat_eval = entry("mat_eval")
         n = self.n_unknowns
         T = np.full(n, 293.15) if T is None else np.asarray(T, float)
         C = np.zeros(n)
@@ -320,7 +323,7 @@ class System:
 
         Returns an array (n_out, N, 2) for wall node halves and (n_out,) for the chamber.
         """
-        from .solver.native import half_enthalpy
+        half_enthalpy = entry("half_enthalpy")
         T = np.atleast_2d(np.asarray(T, float))
         Hh, Hc = half_enthalpy(T, self.node_i, self.node_f, self.m_off, self.mtab, self.ch_i)
         return Hh, Hc
@@ -328,7 +331,6 @@ class System:
 
 def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_obj, label):
     """Kernel rows for one face."""
-    from .physics.convection import PAR_LEN
     fi = np.full(N_FI, -1, dtype=np.int64)
     ff = np.zeros(N_FF)
     par = np.zeros(PAR_LEN)
@@ -339,7 +341,7 @@ def _face_arrays(tb, face: Face, node: int, area: float, to_chamber: bool, conv_
     if face.fixed_temperature is not None:
         fi[FI_FIXED_T] = tb.schedule(face.fixed_temperature)
         return fi, ff, par
-    fi[FI_FLUX] = tb.schedule(face.flux)
+    fi[FI_FLUX] = tb.schedule(face.heat_flux)
     conv = conv_obj if to_chamber else face.convection
     if conv is not None:
         if not to_chamber and face.fluid_temperature is None:
@@ -383,7 +385,6 @@ def box_area_factor(case: Case) -> float:
 
 def _chains_of(case: Case):
     """The 1-D walls actually solved: (Wall, case wall index, EnclosureWall or None, is_bridge)."""
-    from dataclasses import replace
     if not case.is_enclosure:
         return [(case.wall, 0, None, False)]
     m = box_area_factor(case)
@@ -404,39 +405,6 @@ def _chains_of(case: Case):
         out.append((replace(w, area=w.area * f, layers=tuple(layers), name=f"{w.name}~bridge"),
                     j, ew, True))
     return out
-
-
-#: Attribute of a Case under which a system built for it waits for its first user.
-_HANDED = "_fdwall_built_system"
-
-
-def hand_over(case: Case, system: System) -> None:
-    """Leave ``system`` (built from ``case``) with the case for the next :func:`build_system`.
-
-    The case loader builds the system once to check a case; it hands it over so that the
-    first ``build_system(case)`` afterwards (a run, a steady state, a study variant) returns
-    that system instead of building it again.  The hand-over is taken once: later calls
-    build a fresh system, so no two callers ever share one (a System holds mutable arrays).
-    A copy of the case, or one made by ``dataclasses.replace``, does not take it.
-    """
-    if system.case is not case:
-        raise ModelError("hand_over: the system was not built from this case")
-    object.__setattr__(case, _HANDED, system)   # cases are frozen; like the material caches
-
-
-def handed_system(case: Case):
-    """The system waiting with ``case`` (see :func:`hand_over`), left in place; or None.
-
-    For read-only checks before a run: nothing may change the arrays of the returned system.
-    """
-    sysm = case.__dict__.get(_HANDED)
-    return sysm if sysm is not None and sysm.case is case else None
-
-
-def _take_handed(case):
-    """The system handed over to ``case`` (removed from it), or None."""
-    sysm = case.__dict__.pop(_HANDED, None)
-    return sysm if sysm is not None and sysm.case is case else None
 
 
 def _meshes(walls, like):
@@ -473,12 +441,9 @@ def build_system(case: Case, like: System | None = None) -> System:
         ``build_system(case)`` would give, array for array (``System.mesh_reused`` tells
         which walls were reused).  Meshes are never modified, so sharing them is safe.
 
-    A system the case loader built for this very case (see :func:`hand_over`) is returned
-    the first time instead of being built again; the arrays are the same.
+    The case loader builds no system (it checks the case through the rules of
+    :mod:`fdwall.model`); each call builds one, so no two callers share its arrays.
     """
-    handed = _take_handed(case)
-    if handed is not None:
-        return handed
     tb = _Tables()
     specs = _chains_of(case)
     walls = [s[0] for s in specs]
@@ -516,12 +481,12 @@ def build_system(case: Case, like: System | None = None) -> System:
     if case.is_enclosure:
         for j, (w, jc, ew, is_bridge) in enumerate(specs):
             m, o = meshes[j], offsets[j]
-            inner = Face(emissivity=ew.inner_emissivity)
+            inner = Face(emissivity=ew.inner_face_emissivity)
             for side, face, node, area, to_ch in (
                     ("inner", inner, o, w.inner_area, True),
                     ("outer", ew.outer, o + m.n - 1, w.outer_area, False)):
                 label = f"wall '{w.name}' {side} face"
-                fi, ff, par = _face_arrays(tb, face, node, area, to_ch, ew.inner_h, label)
+                fi, ff, par = _face_arrays(tb, face, node, area, to_ch, ew.inner_face_convection, label)
                 rows_i.append(fi), rows_f.append(ff), rows_p.append(par)
                 names.append(f"{w.name}:{side}")
                 external.append(not to_ch)
@@ -547,7 +512,7 @@ def build_system(case: Case, like: System | None = None) -> System:
     if case.chamber is not None:
         ch = case.chamber
         ch_i[CHI_PRESENT] = 1
-        ch_i[CHI_CAPACITY] = tb.capacity(ch.capacity)
+        ch_i[CHI_CAPACITY] = tb.capacity(ch.heat_capacity)
         ch_i[CHI_AMBIENT] = tb.schedule(ch.room_temperature)
         ch_f[CHF_UA] = ch.extra_loss
         ch_f[CHF_LEAK] = ch.leakage
@@ -559,18 +524,18 @@ def build_system(case: Case, like: System | None = None) -> System:
     ctl_i[CI_HEATER_NODE] = -1
     hz = case.heater
     if hz is not None:
-        if hz.location == "chamber":
+        if hz.placement == "chamber":
             ctl_i[CI_HEATER_NODE] = N
         else:
             hw = _chain_index(specs, hz.wall, "heater")
             m = meshes[hw]
-            if hz.location == "inner":
+            if hz.placement == "inner_face":
                 ctl_i[CI_HEATER_NODE] = offsets[hw]
             else:
-                if not 0 <= hz.interface < len(m.interface_nodes):
-                    raise ModelError(f"heater interface {hz.interface} does not exist in wall "
-                                     f"'{walls[hw].name}' (0..{len(m.interface_nodes) - 1})")
-                ctl_i[CI_HEATER_NODE] = offsets[hw] + m.interface_nodes[hz.interface]
+                problem = interface_problem(walls[hw], hz.after_layer)   # the model's rule
+                if problem is not None:
+                    raise ModelError(f"the heater: {problem[0]} (allowed: {problem[1]})")
+                ctl_i[CI_HEATER_NODE] = offsets[hw] + m.interface_nodes[hz.after_layer]
         ctl_i[CI_POWER] = tb.schedule(hz.power)
         ctl_f[CF_ALPHA] = hz.resistance_coefficient
         ctl_f[CF_T_REF] = hz.rated_at
@@ -698,7 +663,7 @@ def event_rows(system: System, case: Case):
     ev_i = np.full((len(evs), N_EVI), -1, dtype=np.int64)
     ev_f = np.zeros((len(evs), 2))
     for e, ev in enumerate(evs):
-        if ev.where == "chamber":
+        if ev.at == "chamber":
             if not system.has_chamber:
                 raise ModelError(f"event '{ev.name}' watches the chamber, but the case has none")
             ev_i[e, EV_NODE_A] = ev_i[e, EV_NODE_B] = system.n_nodes
@@ -707,14 +672,14 @@ def event_rows(system: System, case: Case):
         j = system.chain_of(ev.wall)
         m, o = system.meshes[j], system.offsets[j]
         wall = system.walls[j]
-        if ev.where == "inner":
+        if ev.at == "inner":
             a = b = o
             w = 1.0
-        elif ev.where == "outer":
+        elif ev.at == "outer":
             a = b = o + m.n - 1
             w = 1.0
-        elif ev.where.startswith("interface:"):
-            n = int(ev.where.split(":")[1])
+        elif ev.at.startswith("interface:"):
+            n = int(ev.at.split(":")[1])
             if not 1 <= n <= len(m.interface_nodes):
                 raise ModelError(f"event '{ev.name}': interface {n} does not exist "
                                  f"(1..{len(m.interface_nodes)})")
@@ -739,7 +704,7 @@ def _time_schedules(case):
     else:
         faces = [case.inner, case.outer]
     for f in faces:
-        for s in (f.fixed_temperature, f.flux, f.fluid_temperature, f.surroundings_temperature):
+        for s in (f.fixed_temperature, f.heat_flux, f.fluid_temperature, f.surroundings_temperature):
             if s is not None:
                 yield s
     if case.heater is not None:

@@ -24,14 +24,14 @@ def _case(T0: float, geometry: str = "slab", adiabatic: bool = False) -> Case:
     """A steel skin on mineral wool, start, fluids and surroundings all at ``T0`` [K]."""
     w = Wall(layers=(Layer(get_material("carbon-steel"), 0.005),
                      Layer(get_material("mineral-wool-128"), 0.05)),
-             geometry=geometry, inner_radius=None if geometry == "slab" else 0.2)
+             shape=geometry, inner_radius=None if geometry == "slab" else 0.2)
     if adiabatic:
-        inner = Face(flux=0.0)
-        outer = Face(flux=0.0)
+        inner = Face(heat_flux=0.0)
+        outer = Face(heat_flux=0.0)
     else:
-        inner = Face(fluid=T0, convection=10.0, emissivity=0.9, surroundings=T0)
-        outer = Face(fluid=T0, convection=8.0, emissivity=0.9, surroundings=T0)
-    return Case(run=RunSettings(duration=DURATION, initial=T0), wall=w, inner=inner, outer=outer)
+        inner = Face(fluid_temperature=T0, convection=10.0, emissivity=0.9, surroundings_temperature=T0)
+        outer = Face(fluid_temperature=T0, convection=8.0, emissivity=0.9, surroundings_temperature=T0)
+    return Case(run=RunSettings(duration=DURATION, start_temperature=T0), wall=w, inner=inner, outer=outer)
 
 
 @pytest.mark.parametrize("geometry,adiabatic", [("slab", False), ("cylinder", False),

@@ -85,12 +85,12 @@ def one_node_box(P=P_RATED, duration=6 * 3600.0, oi=None, tol=1e-4, amb=AMB, cap
                  leak=0.0, extra=EXTRA, heater=None, **ctl):
     walls = tuple(
         EnclosureWall(Wall((Layer(FOIL, L_FOIL, cells=2),), area=A, name=f"panel{i}"),
-                      Face.exchange(amb, H_OUT), inner_h=H_IN)
+                      Face.exchange(amb, H_OUT), inner_face_convection=H_IN)
         for i, A in enumerate(AREAS))
-    return Case(run=RunSettings(duration=duration, output_interval=oi, initial=AMB,
+    return Case(run=RunSettings(duration=duration, output_every=oi, start_temperature=AMB,
                                 tolerance=tol),
                 walls=walls,
-                chamber=Chamber(capacity=cap, ambient=amb, leakage=leak, extra_ua=extra),
+                chamber=Chamber(heat_capacity=cap, room_temperature=amb, leakage=leak, extra_loss=extra),
                 heater=heater if heater is not None else Heater(P), control=Control(**ctl),
                 name="demo one-node box")
 
@@ -176,7 +176,7 @@ def test_chamber_heater_alpha_and_voltage_steady_and_hold():
     Steady network solutions are exact (Newton to 1e-9); the transient ledger to 1e-3.
     Without alpha (a) would be 115 K higher and (b) 0.56 instead of 0.92."""
     P0, u, alpha, T_ref, sp = 5000.0, 0.9, 4e-3, 293.15, 453.15
-    heater = Heater(P0, voltage_ratio=u, alpha=alpha, t_ref=T_ref)
+    heater = Heater(P0, voltage_ratio=u, resistance_coefficient=alpha, rated_at=T_ref)
     G = 1.0 / R_BOX
     P = lambda T: P0 * u * u / (1 + alpha * (T - T_ref))
     st = solve_steady(one_node_box(heater=heater))
@@ -239,7 +239,7 @@ def test_periodic_state_matches_closed_form_cycle():
     tau = R_BOX * cap
     PER, t1 = 4 * 3600.0, 1.5 * 3600.0
     en = Schedule([0.0, t1, t1, PER], [1.0, 1.0, 0.0, 0.0])
-    case = one_node_box(duration=PER, oi=PER / 240, cap=cap, tol=1e-3, enable=en)
+    case = one_node_box(duration=PER, oi=PER / 240, cap=cap, tol=1e-3, power_on=en)
     out = periodic_state(case, PER, tol_K=0.01, max_cycles=30)
     assert out["converged"]
     PR = P_RATED * R_BOX
@@ -289,7 +289,7 @@ def test_implied_rc_of_composite_slab_wall():
     (fdwall's documented definition); C_total = A sum rho c L.  Steady slab solutions and
     the trapezoidal half-cell energy are exact for linear profiles: tolerance 1e-9."""
     A, L1, L2, Rc, h, Th = 1.7, 0.06, 0.05, 0.01, 9.0, 600.0
-    w = Wall((Layer(BRICK, L1), Layer(BOARD, L2)), area=A, contact=(Rc,), name="demo lining")
+    w = Wall((Layer(BRICK, L1), Layer(BOARD, L2)), area=A, interface_resistance=(Rc,), name="demo lining")
     case = Case(run=RunSettings(duration=3600.0), wall=w, inner=Face.fixed(Th),
                 outer=Face.exchange(AMB, h))
     rc = implied_rc(case)
@@ -331,7 +331,7 @@ def test_implied_rc_of_insulated_cylinder():
     C_stored = stored / (Th - AMB)
     errs = []
     for refine in (1.0, 2.0):
-        w = Wall((Layer(STEEL, t1), Layer(WOOL, t2)), geometry="cylinder", inner_radius=ri,
+        w = Wall((Layer(STEEL, t1), Layer(WOOL, t2)), shape="cylinder", inner_radius=ri,
                  length=Lc, refine=refine, name="demo lagged pipe")
         case = Case(run=RunSettings(duration=3600.0), wall=w, inner=Face.fixed(Th),
                     outer=Face.exchange(AMB, h))
@@ -374,9 +374,9 @@ def test_fit_one_node_noisy_synthetic_and_thin_wall_run():
 
     plate = material_from_dict("demo-steel-plate", {"k": 50.0, "cp": 480.0, "rho": 7850.0})
     Lw, h, qin, A = 0.01, 10.0, 2000.0, 0.5
-    case = Case(run=RunSettings(duration=8 * 3600.0, output_interval=120.0, tolerance=1e-3),
+    case = Case(run=RunSettings(duration=8 * 3600.0, output_every=120.0, tolerance=1e-3),
                 wall=Wall((Layer(plate, Lw),), area=A, name="demo plate"),
-                inner=Face(flux=qin), outer=Face.exchange(AMB, h))
+                inner=Face(heat_flux=qin), outer=Face.exchange(AMB, h))
     res = run(case)
     Rw = (Lw / 50.0 + 1 / h) / A
     Cw = 7850 * 480 * Lw * A
@@ -398,11 +398,11 @@ def test_pi_with_wall_sensor_holds_the_sensor_and_power_equals_loss():
     hin, hout, Lw, d, sp, P, kp = 12.0, 8.0, 0.04, 0.015, 423.15, 3000.0, 0.05
     liner = Wall((Layer(LINER, Lw),), area=2.0, name="liner")
     door = Wall((Layer(STEEL, 0.002), Layer(BOARD, 0.08)), area=1.5, name="door")
-    case = Case(run=RunSettings(duration=12 * 3600.0, output_interval=60.0, tolerance=1e-3),
-                walls=(EnclosureWall(liner, Face.exchange(AMB, hout), inner_h=hin),
-                       EnclosureWall(door, Face.exchange(AMB, hout), inner_h=hin)),
-                chamber=Chamber(capacity=2e4, ambient=AMB, extra_ua=0.5), heater=Heater(P),
-                control=Control(mode="pid", setpoint=sp, kp=kp, ki=2e-5, period=30.0,
+    case = Case(run=RunSettings(duration=12 * 3600.0, output_every=60.0, tolerance=1e-3),
+                walls=(EnclosureWall(liner, Face.exchange(AMB, hout), inner_face_convection=hin),
+                       EnclosureWall(door, Face.exchange(AMB, hout), inner_face_convection=hin)),
+                chamber=Chamber(heat_capacity=2e4, room_temperature=AMB, extra_loss=0.5), heater=Heater(P),
+                control=Control(mode="pid", setpoint=sp, proportional_gain=kp, integral_gain=2e-5, period=30.0,
                                 sensor="wall", sensor_wall=0, sensor_depth=d),
                 name="demo liner-sensor oven")
     R_w = 1 / hin + Lw / 1.2 + 1 / hout
@@ -438,10 +438,10 @@ def test_interface_heater_in_enclosure_matches_two_node_network():
     w0 = Wall((Layer(BRICK, 0.03), Layer(BOARD, 0.06)), area=A0, name="heated")
     w1 = Wall((Layer(STEEL, 0.002), Layer(BOARD, 0.08)), area=A1, name="plain")
     case = Case(run=RunSettings(duration=3600.0),
-                walls=(EnclosureWall(w0, Face.exchange(AMB, hout), inner_h=hin),
-                       EnclosureWall(w1, Face.exchange(AMB, hout), inner_h=hin)),
-                chamber=Chamber(capacity=1e4, ambient=AMB, extra_ua=EX),
-                heater=Heater(P, location="interface", wall=0, interface=0, voltage_ratio=u),
+                walls=(EnclosureWall(w0, Face.exchange(AMB, hout), inner_face_convection=hin),
+                       EnclosureWall(w1, Face.exchange(AMB, hout), inner_face_convection=hin)),
+                chamber=Chamber(heat_capacity=1e4, room_temperature=AMB, extra_loss=EX),
+                heater=Heater(P, placement="interface", wall=0, after_layer=0, voltage_ratio=u),
                 name="demo panel-heated cabinet")
     R_in = (1 / hin + 0.03 / 0.25) / A0
     R_out = (0.06 / 0.06 + 1 / hout) / A0

@@ -91,9 +91,9 @@ def periodic_thick():
     # 2 sqrt(alpha t) = 0.34 m by the end, so the back face at 1 m stays out of reach
     # (with a 0.3 m slab its reflection showed up at 1e-3 A at x = 2d).
     wall = Wall((Layer(SOLID, 0.1, cells=100), Layer(SOLID, 0.9, cells=60)))
-    case = Case(run=RunSettings(duration=N_PERIODS * PERIOD, initial=T_MEAN, tolerance=1e-3,
-                                output_interval=PERIOD / 120),
-                wall=wall, inner=Face(temperature=_sine_schedule(N_PERIODS)),
+    case = Case(run=RunSettings(duration=N_PERIODS * PERIOD, start_temperature=T_MEAN, tolerance=1e-3,
+                                output_every=PERIOD / 120),
+                wall=wall, inner=Face(fixed_temperature=_sine_schedule(N_PERIODS)),
                 outer=Face.adiabatic(), name="periodic thick")
     return run(case)
 
@@ -169,10 +169,10 @@ def test_periodic_surface_finite_slab_adiabatic_back():
     semi-infinite exp(-1); a 1 % alpha error moves it by ~3e-3."""
     L = DEPTH
     n = 4
-    case = Case(run=RunSettings(duration=n * PERIOD, initial=T_MEAN, tolerance=1e-3,
-                                output_interval=PERIOD / 120),
+    case = Case(run=RunSettings(duration=n * PERIOD, start_temperature=T_MEAN, tolerance=1e-3,
+                                output_every=PERIOD / 120),
                 wall=Wall((Layer(SOLID, L, cells=30),)),
-                inner=Face(temperature=_sine_schedule(n)), outer=Face.adiabatic())
+                inner=Face(fixed_temperature=_sine_schedule(n)), outer=Face.adiabatic())
     res = run(case)
     sel = res.times >= (n - 1) * PERIOD - 1e-6
     tt, TT = res.times[sel][:-1], res.wall_T()[sel][:-1]
@@ -203,8 +203,8 @@ def test_semi_infinite_surface_convection():
     h, Ti, Tinf = 50.0, 300.0, 500.0
     times = (100.0, 400.0, 1000.0)
     wall = Wall((Layer(SOLID, 0.03, cells=90), Layer(SOLID, 0.12, cells=30)))
-    case = Case(run=RunSettings(duration=times[-1], initial=Ti, tolerance=1e-4,
-                                output_interval=50.0),
+    case = Case(run=RunSettings(duration=times[-1], start_temperature=Ti, tolerance=1e-4,
+                                output_every=50.0),
                 wall=wall, inner=Face.exchange(Tinf, h), outer=Face.adiabatic())
     res = run(case)
 
@@ -247,11 +247,11 @@ def test_two_semi_infinite_solids_in_contact():
     aA, aB = kA / cA, kB / cB
     eA, eB = math.sqrt(kA * cA), math.sqrt(kB * cB)
     Tc = (eA * TA + eB * TB) / (eA + eB)
-    wall = Wall((Layer(mA, 0.08, cells=20, initial=TA), Layer(mA, 0.02, cells=80, initial=TA),
-                 Layer(mB, 0.02, cells=80, initial=TB), Layer(mB, 0.08, cells=20, initial=TB)))
+    wall = Wall((Layer(mA, 0.08, cells=20, start_temperature=TA), Layer(mA, 0.02, cells=80, start_temperature=TA),
+                 Layer(mB, 0.02, cells=80, start_temperature=TB), Layer(mB, 0.08, cells=20, start_temperature=TB)))
     times = (150.0, 600.0)
-    case = Case(run=RunSettings(duration=times[-1], initial=400.0, tolerance=1e-4,
-                                output_interval=25.0),
+    case = Case(run=RunSettings(duration=times[-1], start_temperature=400.0, tolerance=1e-4,
+                                output_every=25.0),
                 wall=wall, inner=Face.adiabatic(), outer=Face.adiabatic())
     res = run(case)
     x = res.x() - 0.1                                # signed distance from the contact [m]
@@ -291,8 +291,8 @@ def test_step_with_conductivity_and_capacity_linear_in_temperature():
     alpha = k0 / C0
     times = (100.0, 400.0)
     wall = Wall((Layer(mat, 0.02, cells=120), Layer(mat, 0.08, cells=30)))
-    case = Case(run=RunSettings(duration=times[-1], initial=Ti, tolerance=1e-4,
-                                output_interval=20.0),
+    case = Case(run=RunSettings(duration=times[-1], start_temperature=Ti, tolerance=1e-4,
+                                output_every=20.0),
                 wall=wall, inner=Face.fixed(Ts), outer=Face.adiabatic())
     res = run(case)
     Us = (Ts - Ti) + b * (Ts - Ti) ** 2 / 2
@@ -323,9 +323,9 @@ def test_surface_temperature_ramp():
     c, Ti, t_end = 0.2, 300.0, 1000.0                  # 0.2 K/s -> +200 K
     times = (250.0, 1000.0)
     wall = Wall((Layer(SOLID, 0.03, cells=90), Layer(SOLID, 0.12, cells=30)))
-    case = Case(run=RunSettings(duration=t_end, initial=Ti, tolerance=1e-4,
-                                output_interval=50.0, exact_outputs=True),
-                wall=wall, inner=Face(temperature=Schedule([0.0, t_end], [Ti, Ti + c * t_end])),
+    case = Case(run=RunSettings(duration=t_end, start_temperature=Ti, tolerance=1e-4,
+                                output_every=50.0, exact_outputs=True),
+                wall=wall, inner=Face(fixed_temperature=Schedule([0.0, t_end], [Ti, Ti + c * t_end])),
                 outer=Face.adiabatic())
     res = run(case)
     x = res.x()
@@ -351,9 +351,9 @@ def test_flux_pulse_switched_off():
     peak rise; the heat stored after switch-off must stay q t1 (first law, 1e-6)."""
     q, t1, Ti = 2000.0, 300.0, 300.0
     wall = Wall((Layer(SOLID, 0.04, cells=120), Layer(SOLID, 0.16, cells=40)))
-    case = Case(run=RunSettings(duration=1200.0, initial=Ti, tolerance=1e-4,
-                                output_interval=10.0),
-                wall=wall, inner=Face(flux=Schedule([0.0, t1, t1, 1200.0], [q, q, 0.0, 0.0])),
+    case = Case(run=RunSettings(duration=1200.0, start_temperature=Ti, tolerance=1e-4,
+                                output_every=10.0),
+                wall=wall, inner=Face(heat_flux=Schedule([0.0, t1, t1, 1200.0], [q, q, 0.0, 0.0])),
                 outer=Face.adiabatic())
     res = run(case)
 
@@ -385,12 +385,12 @@ def test_event_time_at_depth_after_surface_step():
     Ti, Ts = 300.0, 500.0
     x1, x2 = 0.01, 0.025
     thresholds = {"x1 half": (x1, 400.0), "x1 quarter": (x1, 350.0), "x2 fifth": (x2, 340.0)}
-    events = (Event(400.0, where="interface:1", name="x1 half"),
-              Event(350.0, where="interface:1", name="x1 quarter"),
-              Event(340.0, where="", depth=x2, name="x2 fifth"))
+    events = (Event(400.0, at="interface:1", name="x1 half"),
+              Event(350.0, at="interface:1", name="x1 quarter"),
+              Event(340.0, at="", depth=x2, name="x2 fifth"))
     wall = Wall((Layer(SOLID, x1, cells=60), Layer(SOLID, 0.03, cells=120),
                  Layer(SOLID, 0.16, cells=30)))
-    case = Case(run=RunSettings(duration=3000.0, initial=Ti, tolerance=1e-4, events=events),
+    case = Case(run=RunSettings(duration=3000.0, start_temperature=Ti, tolerance=1e-4, watch=events),
                 wall=wall, inner=Face.fixed(Ts), outer=Face.adiabatic())
     res = run(case)
     for name, (x, Tstar) in thresholds.items():
@@ -417,9 +417,9 @@ def test_region_outside_sphere_surface_held():
     a, Ti, Ts = 0.02, 300.0, 500.0
     times = (200.0, 1000.0)
     wall = Wall((Layer(SOLID, 0.03, cells=90), Layer(SOLID, 0.17, cells=40)),
-                geometry="sphere", inner_radius=a)
-    case = Case(run=RunSettings(duration=times[-1], initial=Ti, tolerance=1e-4,
-                                output_interval=50.0, exact_outputs=True),
+                shape="sphere", inner_radius=a)
+    case = Case(run=RunSettings(duration=times[-1], start_temperature=Ti, tolerance=1e-4,
+                                output_every=50.0, exact_outputs=True),
                 wall=wall, inner=Face.fixed(Ts), outer=Face.adiabatic())
     res = run(case)
     r = a + res.x()
@@ -455,9 +455,9 @@ def test_thin_plate_convection_and_radiation_lumped_ode():
     plate = Material("demo-alu-plate", k=Constant(k), cp=Constant(cp), rho=rho)
     air = Schedule([0.0, 200.0, 400.0], [300.0, 300.0, 360.0])
     t_end = 900.0
-    case = Case(run=RunSettings(duration=t_end, initial=T0, tolerance=1e-3, output_interval=10.0),
+    case = Case(run=RunSettings(duration=t_end, start_temperature=T0, tolerance=1e-3, output_every=10.0),
                 wall=Wall((Layer(plate, L, cells=4),)), inner=Face.adiabatic(),
-                outer=Face(fluid=air, convection=h, emissivity=eps, surroundings=Tsur))
+                outer=Face(fluid_temperature=air, convection=h, emissivity=eps, surroundings_temperature=Tsur))
     res = run(case)
 
     def T_air(t):
@@ -497,12 +497,12 @@ def test_heat_traced_pipe_self_limiting_element_steady(volts):
     ri, t_s, t_i, length = 0.05, 0.004, 0.05, 3.0
     hi, ho, T_liq, T_air = 200.0, 10.0, 320.0, 270.0
     P0, alpha, Tref = 150.0, 4e-3, 293.15
-    wall = Wall((Layer(steel, t_s), Layer(lag, t_i)), geometry="cylinder", inner_radius=ri,
+    wall = Wall((Layer(steel, t_s), Layer(lag, t_i)), shape="cylinder", inner_radius=ri,
                 length=length)
     case = Case(run=RunSettings(duration=3600.0), wall=wall,
                 inner=Face.exchange(T_liq, hi), outer=Face.exchange(T_air, ho),
-                heater=Heater(P0, location="interface", wall=0, interface=0, alpha=alpha,
-                              t_ref=Tref, voltage_ratio=volts))
+                heater=Heater(P0, placement="interface", wall=0, after_layer=0, resistance_coefficient=alpha,
+                              rated_at=Tref, voltage_ratio=volts))
     ss = solve_steady(case)
     r1, r2 = ri + t_s, ri + t_s + t_i
     R_in = 1 / (hi * 2 * math.pi * ri * length) + math.log(r1 / ri) / (2 * math.pi * 45.0 * length)
@@ -530,7 +530,7 @@ def test_steady_face_with_temperature_dependent_emissivity():
     k, L, T1, Ta, Tsur, h = 0.5, 0.06, 900.0, 300.0, 290.0, 6.0
     eps_T, eps_v = [300.0, 700.0], [0.25, 0.75]
     wall = Wall((Layer(_solid("demo-board", k, 1.0e6), L, cells=8),))
-    outer = Face(fluid=Ta, convection=h, emissivity=Schedule(eps_T, eps_v), surroundings=Tsur)
+    outer = Face(fluid_temperature=Ta, convection=h, emissivity=Schedule(eps_T, eps_v), surroundings_temperature=Tsur)
     case = Case(run=RunSettings(duration=3600.0), wall=wall, inner=Face.fixed(T1), outer=outer)
     ss = solve_steady(case)
 

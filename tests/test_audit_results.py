@@ -128,7 +128,7 @@ class Run:
         s = self.sysm
         d = {"n_time": len(self.res.times), "n_unknowns": s.n_unknowns,
              "n_faces": len(s.face_names), "n_layers": len(s.layer_names),
-             "n_events": len(self.case.run.events), "n_warnings": len(self.res.warnings())}
+             "n_events": len(self.case.run.watch), "n_warnings": len(self.res.warnings())}
         if j is not None:
             nl = len(s.walls[j].layers)
             d.update(n_nodes_j=s.meshes[j].n, n_layers_j=nl, n_interfaces_j=nl - 1)
@@ -225,7 +225,7 @@ def test_hdf5_layout_is_the_documented_one(run):
         assert datetime.fromisoformat(h.attrs["created"]).utcoffset() is not None
         for j, w in enumerate(run.sysm.walls):
             g = h[f"mesh/wall_{j}"]
-            assert g.attrs["name"] == w.name and g.attrs["geometry"] == w.geometry
+            assert g.attrs["name"] == w.name and g.attrs["geometry"] == w.shape
             assert len(json.loads(g.attrs["layers"])) == len(w.layers)
             between = json.loads(h[f"interfaces/wall_{j}"].attrs["between"])
             assert len(between) == len(w.layers) - 1 and all(" | " in b for b in between)
@@ -292,7 +292,7 @@ def test_mesh_and_columns_are_consistent(run):
             # span = sum of the layer thicknesses of the case [m]; a slab starts at depth 0,
             # a cylinder/sphere at its inner radius
             assert x[-1] - x[0] == pytest.approx(sum(l.thickness for l in w.layers), rel=1e-12)
-            if w.geometry == "slab":
+            if w.shape == "slab":
                 assert x[0] == 0.0
             else:
                 assert x[0] == pytest.approx(w.inner_radius, rel=1e-12)

@@ -124,7 +124,7 @@ def test_interface_heater_with_wall_thermostat_and_correlations(tmp_path):
     out = c.outer.convection
     assert out.kind == "wind_plate" and out.speed == 5.0 and out.length == 2.0
     assert out.pressure == pytest.approx(90000.0) and out.natural.kind == "vertical_plate"
-    assert c.heater.location == "interface" and c.heater.interface == 0 and c.heater.wall == 0
+    assert c.heater.placement == "interface" and c.heater.after_layer == 0 and c.heater.wall == 0
     ctl = c.control
     assert ctl.mode == "thermostat" and ctl.sensor == "wall" and ctl.sensor_depth == 0.003
     assert ctl.band == 4.0 and ctl.setpoint.values == pytest.approx((60 + C0,))
@@ -175,14 +175,14 @@ fixed_temperature = "25 degC"
 def test_enclosure_tables_duty_and_start_temperatures(tmp_path):
     c = _load(tmp_path, ENCLOSURE)
     ch = c.chamber
-    assert isinstance(ch.capacity, Schedule)
-    assert ch.capacity.times == pytest.approx((20 + C0, 500 + C0))
-    assert ch.capacity.values == (5000.0, 7000.0)
+    assert isinstance(ch.heat_capacity, Schedule)
+    assert ch.heat_capacity.times == pytest.approx((20 + C0, 500 + C0))
+    assert ch.heat_capacity.values == (5000.0, 7000.0)
     assert ch.leakage == pytest.approx(10 / 3600)
-    assert ch.ambient.values == pytest.approx((18 + C0,))
+    assert ch.room_temperature.values == pytest.approx((18 + C0,))
     assert c.control.mode == "duty" and c.control.duty.values == pytest.approx((0.4,))
-    assert c.walls[0].inner_h == 12.0 and c.walls[0].inner_emissivity == 0.8
-    T0 = build_system(c).initial_vector(c.run.initial)  # per-layer/chamber starts
+    assert c.walls[0].inner_face_convection == 12.0 and c.walls[0].inner_face_emissivity == 0.8
+    T0 = build_system(c).initial_vector(c.run.start_temperature)  # per-layer/chamber starts
     assert T0[-1] == pytest.approx(120 + C0)                  # chamber is the last unknown
     sysm = build_system(c)
     a, b = sysm.meshes[0].layer_nodes[0]
@@ -197,7 +197,7 @@ def test_chamber_start_without_layer_starts(tmp_path):
     text = ENCLOSURE.replace('start_temperature = "70 degC"\n', "").replace(
         'start_temperature = "30 degC"\n', "")
     c = _load(tmp_path, text)
-    T0 = build_system(c).initial_vector(c.run.initial)  # per-layer/chamber starts
+    T0 = build_system(c).initial_vector(c.run.start_temperature)  # per-layer/chamber starts
     assert T0[-1] == pytest.approx(120 + C0) and np.allclose(T0[:-1], 20 + C0)
 
 
@@ -224,7 +224,7 @@ film_coefficient = "10 W/m2/K"
 def test_fluxes_add_and_heater_area_defaults_to_the_face(tmp_path):
     c = _load(tmp_path, FLUXES)
     A = 2 * math.pi * 0.1 * 2.0                                # inner surface of the bore
-    f = c.inner.flux
+    f = c.inner.heat_flux
     assert f(0.5 * 3600) == pytest.approx(100.0)               # before the step at 1 h
     assert f(1.5 * 3600) == pytest.approx(100.0 + 500.0 / A)
     assert f(2.25 * 3600) == pytest.approx(100.0 + 250.0 / A)  # half-way down the ramp
@@ -235,7 +235,7 @@ def test_fluxes_add_and_heater_area_defaults_to_the_face(tmp_path):
 
 def test_heater_area_override_and_missing_power(tmp_path):
     c = _load(tmp_path, FLUXES.replace('heat_flux = "100 W/m2"', 'heater_area = "0.5 m2"'))
-    assert c.inner.flux(1.5 * 3600) == pytest.approx(1000.0)
+    assert c.inner.heat_flux(1.5 * 3600) == pytest.approx(1000.0)
     no_power = "\n".join(l for l in FLUXES.splitlines() if not l.startswith("heater_power"))
     with pytest.raises(CaseError, match="key wall.inner_face.heater_area"):
         _load(tmp_path, no_power.replace('heat_flux = "100 W/m2"',

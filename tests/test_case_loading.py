@@ -62,30 +62,30 @@ def test_demo_case_loads_runs_and_is_labelled(path):
 def test_curing_oven_panel_converts_to_si():
     c = load_case(CASES / "curing-oven-panel.toml")
     w = c.wall
-    assert w.geometry == "slab" and w.area == pytest.approx(2.4)
+    assert w.shape == "slab" and w.area == pytest.approx(2.4)
     assert [l.thickness for l in w.layers] == pytest.approx([0.001, 0.100, 0.0015])
     assert [l.material.name for l in w.layers] == ["stainless-steel-304", "mineral-wool-64",
                                                    "carbon-steel"]
-    assert c.run.duration == 8 * 3600 and c.run.output_interval == 300
-    assert c.run.profile_times == pytest.approx((900, 3600, 3 * 3600, 8 * 3600))
+    assert c.run.duration == 8 * 3600 and c.run.output_every == 300
+    assert c.run.snapshots == pytest.approx((900, 3600, 3 * 3600, 8 * 3600))
     # inner air: 25 degC -> 200 degC over 20 min (T[K] = T[degC] + 273.15)
-    assert c.inner.fluid.times == (0.0, 1200.0)
-    assert c.inner.fluid.values == pytest.approx((25 + C0, 200 + C0))
+    assert c.inner.fluid_temperature.times == (0.0, 1200.0)
+    assert c.inner.fluid_temperature.values == pytest.approx((25 + C0, 200 + C0))
     assert c.inner.convection == 25.0
     conv = c.outer.convection
     assert conv.kind == "vertical_plate" and conv.height == 2.0
     assert c.outer.emissivity == get_finish("painted_steel").emissivity
-    assert c.run.events[0].where == "outer" and c.run.events[0].threshold == pytest.approx(32 + C0)
+    assert c.run.watch[0].at == "outer" and c.run.watch[0].temperature == pytest.approx(32 + C0)
 
 
 def test_lab_furnace_heater_flux_per_layer_start_and_user_material():
     c = load_case(CASES / "lab-furnace-wall.toml")
     # heater power over an area -> flux: 3.6 kW / 0.6 m2 = 6 kW/m2
-    f = c.inner.flux
+    f = c.inner.heat_flux
     assert max(f.values) == pytest.approx(3600 / 0.6)
     assert f(3 * 3600) == pytest.approx(6000.0) and f(7 * 3600) == pytest.approx(300 / 0.6)
     assert f(10 * 3600) == 0.0
-    assert c.wall.contact == pytest.approx((0.0, 0.005, 0.002))
+    assert c.wall.interface_resistance == pytest.approx((0.0, 0.005, 0.002))
     # the user material: a k table and a cp polynomial in degC
     m = c.wall.layers[2].material
     assert m.k(400 + C0) == pytest.approx(0.026)
@@ -95,7 +95,7 @@ def test_lab_furnace_heater_flux_per_layer_start_and_user_material():
     assert m.rho == 300.0 and m.t_max == pytest.approx(1000 + C0)
     # per-layer start temperatures: a vector over the nodes
     sysm = build_system(c)
-    T0 = build_system(c).initial_vector(c.run.initial)  # per-layer/chamber starts
+    T0 = build_system(c).initial_vector(c.run.start_temperature)  # per-layer/chamber starts
     assert T0.shape == (sysm.n_unknowns,)
     starts = [150, 110, 60, 35]
     for i, (a, b) in enumerate(sysm.meshes[0].layer_nodes):
@@ -110,7 +110,7 @@ def test_lab_furnace_heater_flux_per_layer_start_and_user_material():
 def test_hot_oil_pipe_cylinder_sky_and_solar():
     c = load_case(CASES / "hot-oil-pipe.toml")
     w = c.wall
-    assert w.geometry == "cylinder" and w.length == 1.0
+    assert w.shape == "cylinder" and w.length == 1.0
     assert w.inner_radius == pytest.approx(0.10226 / 2)
     r_out = w.inner_radius + 0.00602 + 0.080 + 0.0007
     conv = c.outer.convection
@@ -123,10 +123,10 @@ def test_hot_oil_pipe_cylinder_sky_and_solar():
     # effective radiant temperature: T^4 = F T_sky^4 + (1 - F) T_air^4 at each knot
     for t_h, sky, air in ((0, -12, 8), (6, -14, 5), (14, 2, 21)):
         expect = (0.5 * (sky + C0) ** 4 + 0.5 * (air + C0) ** 4) ** 0.25
-        assert c.outer.surroundings(t_h * 3600) == pytest.approx(expect, rel=1e-12)
+        assert c.outer.surroundings_temperature(t_h * 3600) == pytest.approx(expect, rel=1e-12)
     # absorbed solar = absorptivity x irradiance
-    assert c.outer.flux(13 * 3600) == pytest.approx(0.3 * 220)
-    assert c.outer.flux(3 * 3600) == 0.0
+    assert c.outer.heat_flux(13 * 3600) == pytest.approx(0.3 * 220)
+    assert c.outer.heat_flux(3 * 3600) == 0.0
     assert c.outer.emissivity == get_finish("aluminium_oxidised").emissivity
 
 
@@ -134,32 +134,32 @@ def test_heat_treat_furnace_enclosure():
     c = load_case(CASES / "heat-treat-furnace.toml")
     assert c.is_enclosure and len(c.walls) == 5
     ch = c.chamber
-    assert ch.capacity == pytest.approx(6000 + 20 * 560)
+    assert ch.heat_capacity == pytest.approx(6000 + 20 * 560)
     assert ch.leakage == pytest.approx(3 / 3600 * 0.077)   # 3 air changes per hour x volume
-    assert ch.box == pytest.approx((0.40, 0.55, 0.35))
-    assert ch.extra_ua == 0.6
-    assert c.heater.location == "chamber" and c.heater.power.values == (6000.0,)
-    assert c.heater.alpha == pytest.approx(5e-5)
+    assert ch.inner_dimensions == pytest.approx((0.40, 0.55, 0.35))
+    assert ch.extra_loss == 0.6
+    assert c.heater.placement == "chamber" and c.heater.power.values == (6000.0,)
+    assert c.heater.resistance_coefficient == pytest.approx(5e-5)
     ctl = c.control
     assert ctl.mode == "pid" and ctl.sensor == "chamber"
-    assert (ctl.kp, ctl.ki, ctl.period) == pytest.approx((0.04, 2e-5, 20.0))
+    assert (ctl.proportional_gain, ctl.integral_gain, ctl.period) == pytest.approx((0.04, 2e-5, 20.0))
     assert ctl.setpoint(1.5 * 3600) == pytest.approx(20 + C0 + 0.5 * 830)
-    assert ctl.enable(4.9 * 3600) == 1.0 and ctl.enable(5.1 * 3600) == 0.0
+    assert ctl.power_on(4.9 * 3600) == 1.0 and ctl.power_on(5.1 * 3600) == 0.0
     names = [ew.wall.name for ew in c.walls]
     assert names == ["side walls", "back wall", "roof", "hearth", "door"]
     roof = c.walls[2]
-    assert roof.inner_h.kind == "horizontal_plate" and roof.inner_h.facing == "down"
-    assert roof.inner_h.where == "chamber"
+    assert roof.inner_face_convection.kind == "horizontal_plate" and roof.inner_face_convection.facing == "down"
+    assert roof.inner_face_convection.where == "chamber"
     assert roof.outer.convection.facing == "up"
     hearth = c.walls[3]
-    assert hearth.inner_h == 4.0 and hearth.outer.convection.facing == "down"
+    assert hearth.inner_face_convection == 4.0 and hearth.outer.convection.facing == "down"
     door = c.walls[4]
-    assert door.bridge.fraction == 0.15 and door.bridge.layers == (0,)
+    assert door.bridge.area_fraction == 0.15 and door.bridge.replaces_layers == (0,)
     assert door.bridge.material.name == "castable-insulating"
-    eps = c.walls[0].inner_emissivity
+    eps = c.walls[0].inner_face_emissivity
     fin = get_finish("ceramic_refractory")
     assert isinstance(eps, Schedule) and eps.times == fin.T_K and eps.values == fin.eps
-    assert c.run.events[0].wall == 4 and c.run.max_step == 120.0
+    assert c.run.watch[0].wall == 4 and c.run.max_step == 120.0
 
 
 # ====================================================================== end-to-end physics
@@ -201,7 +201,7 @@ def test_composite_wall_in_us_units_matches_series_resistance(tmp_path):
     assert c.wall.layers[0].material.rho == pytest.approx(10 * lb / ft ** 3, rel=1e-12)
     assert c.wall.layers[0].material.cp(300.0) == pytest.approx(0.2 * btu / lb * 1.8, rel=1e-12)
     r_contact = 0.5 * ft ** 2 / 1.8 / (btu / 3600)          # h ft2 F/Btu -> m2 K/W
-    assert c.wall.contact[0] == pytest.approx(r_contact, rel=1e-12)
+    assert c.wall.interface_resistance[0] == pytest.approx(r_contact, rel=1e-12)
     steel = get_material("carbon-steel")
     Ti, To = (600 + 459.67) / 1.8, (100 + 459.67) / 1.8      # NIST SP 811 B.9
     # steel k varies with T; its share of R is tiny, evaluate it at the steel's temperature
@@ -273,7 +273,7 @@ def test_good_base_case_loads(tmp_path):
     p = tmp_path / "good.toml"
     p.write_text(GOOD)
     c = load_case(p)
-    assert c.name == "good" and c.outer.surroundings is None and c.outer.fluid.values == (293.15,)
+    assert c.name == "good" and c.outer.surroundings_temperature is None and c.outer.fluid_temperature.values == (293.15,)
 
 
 BAD = [

@@ -30,11 +30,11 @@ T_AMB = 293.15
 
 def _box(duration=40000.0, events=(), control=None, heater_power=P, cap=1.0e4):
     walls = [EnclosureWall(wall=Wall(layers=(Layer(STEEL, 0.001, cells=2),), name=f"w{i}"),
-                           outer=Face(fluid=T_AMB, convection=H_OUT), inner_h=1e5)
+                           outer=Face(fluid_temperature=T_AMB, convection=H_OUT), inner_face_convection=1e5)
              for i in range(6)]
-    return Case(run=RunSettings(duration=duration, initial=T_AMB, tolerance=1e-3,
-                                events=tuple(events)),
-                walls=walls, chamber=Chamber(capacity=cap, ambient=T_AMB),
+    return Case(run=RunSettings(duration=duration, start_temperature=T_AMB, tolerance=1e-3,
+                                watch=tuple(events)),
+                walls=walls, chamber=Chamber(heat_capacity=cap, room_temperature=T_AMB),
                 heater=Heater(power=heater_power), control=control or Control())
 
 
@@ -50,13 +50,13 @@ def test_chamber_event_time_matches_lumped_solution():
     R, C = _rc()
     T_star = T_AMB + 0.5 * P * R
     # exact crossing of T_amb + P R (1 - exp(-t/RC)) at half the final rise: t = RC ln 2
-    res = run(_box(events=[Event(threshold=T_star, where="chamber", name="half rise")]))
+    res = run(_box(events=[Event(temperature=T_star, at="chamber", name="half rise")]))
     t_up = res.events["half rise"][0]
     assert t_up == pytest.approx(R * C * np.log(2.0), rel=2e-3)
 
 
 def test_steady_with_heater_disabled_reports_heater_off():
-    ctl = Control(mode="thermostat", setpoint=350.0, enable=Schedule([0, 100, 100], [1, 1, 0]))
+    ctl = Control(mode="thermostat", setpoint=350.0, power_on=Schedule([0, 100, 100], [1, 1, 0]))
     st = solve_steady(_box(control=ctl))
     assert not st.heater_on and st.heater_power == 0.0 and st.duty == 0.0
     assert st.T[-1] == pytest.approx(T_AMB, abs=1e-9)      # nothing heats: room temperature
@@ -85,8 +85,8 @@ def test_impossible_case_stops_with_partial_result():
     stop before then with a clear message and keep what it computed, marked incomplete."""
     from fdwall import ConvergenceError
     m = Material(name="x", k=Constant(1.0), cp=Constant(1000.0), rho=1000.0)
-    c = Case(run=RunSettings(duration=3600.0, initial=300.0),
-             wall=Wall(layers=(Layer(m, 0.05),)), inner=Face(flux=-1e6), outer=Face())
+    c = Case(run=RunSettings(duration=3600.0, start_temperature=300.0),
+             wall=Wall(layers=(Layer(m, 0.05),)), inner=Face(heat_flux=-1e6), outer=Face())
     with pytest.raises(ConvergenceError) as info:
         run(c)
     res = info.value.result
@@ -102,7 +102,7 @@ def test_pinhole_bore_needs_no_warning():
     the case check raises no accuracy warning for it, nor for a realistic vessel."""
     from fdwall.case import case_warnings
     m = Material(name="x", k=Constant(1.0), cp=Constant(1000.0), rho=1000.0)
-    tiny = Wall(layers=(Layer(m, 0.1),), geometry="sphere", inner_radius=1e-6)
-    vessel = Wall(layers=(Layer(m, 0.1),), geometry="sphere", inner_radius=0.4)
+    tiny = Wall(layers=(Layer(m, 0.1),), shape="sphere", inner_radius=1e-6)
+    vessel = Wall(layers=(Layer(m, 0.1),), shape="sphere", inner_radius=0.4)
     assert not case_warnings(Case(run=RunSettings(duration=1.0), wall=tiny))
     assert not case_warnings(Case(run=RunSettings(duration=1.0), wall=vessel))

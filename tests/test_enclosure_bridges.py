@@ -45,12 +45,12 @@ A = 2.5             # bridged wall area [m2]
 def bridged_case(P=3000.0, **ctl):
     wall = Wall((Layer(STEEL, 0.001), Layer(WOOL, 0.08), Layer(STEEL, 0.001)), area=A, name="panel")
     door = Wall((Layer(STEEL, 0.002), Layer(WOOL, 0.06)), area=0.5, name="door")
-    walls = (EnclosureWall(wall, Face.exchange(AMB, H_OUT), inner_h=H_IN,
+    walls = (EnclosureWall(wall, Face.exchange(AMB, H_OUT), inner_face_convection=H_IN,
                            bridge=Bridge(F, STUD, (1,))),
-             EnclosureWall(door, Face.exchange(AMB, H_OUT), inner_h=H_IN))
+             EnclosureWall(door, Face.exchange(AMB, H_OUT), inner_face_convection=H_IN))
     ctl = ctl or dict(mode="thermostat", setpoint=SP, band=2.0)
     return Case(run=RunSettings(duration=3600.0), walls=walls,
-                chamber=Chamber(capacity=2e4, ambient=AMB), heater=Heater(P),
+                chamber=Chamber(heat_capacity=2e4, room_temperature=AMB), heater=Heater(P),
                 control=Control(**ctl), name="demo bridged box")
 
 
@@ -91,10 +91,10 @@ def test_box_edge_and_corner_correction_equals_shape_factors():
     W, D, H, L, k = 0.6, 0.5, 0.4, 0.05, 0.04
     areas = {"top": W * D, "bottom": W * D, "front": W * H, "back": W * H, "left": D * H, "right": D * H}
     walls = tuple(EnclosureWall(Wall((Layer(WOOL, L, cells=6),), area=a, name=n), Face.fixed(AMB),
-                                inner_h=1e5)
+                                inner_face_convection=1e5)
                   for n, a in areas.items())
     case = Case(run=RunSettings(duration=3600.0), walls=walls,
-                chamber=Chamber(capacity=1e4, ambient=AMB, box=(W, D, H)),
+                chamber=Chamber(heat_capacity=1e4, room_temperature=AMB, inner_dimensions=(W, D, H)),
                 heater=Heater(1000.0), control=Control(mode="thermostat", setpoint=SP))
     S_walls = sum(a / L for a in areas.values())
     S_extra = 4 * 0.54 * (W + D + H) + 8 * 0.15 * L
@@ -115,13 +115,13 @@ def test_energy_breakdown_closes_per_control_volume():
     # radiation: first law for the chamber node and for each wall (bridge path merged).
     wall = Wall((Layer(STEEL, 0.001), Layer(WOOL, 0.08), Layer(STEEL, 0.001)), area=1.2, name="panel")
     side = Wall((Layer(STEEL, 0.0015), Layer(WOOL, 0.06), Layer(STEEL, 0.001)), area=2.0, name="sides")
-    walls = (EnclosureWall(wall, Face.exchange(AMB, 8.0, emissivity=0.8), inner_h=10.0,
-                           inner_emissivity=0.6, bridge=Bridge(0.05, STEEL, (1,))),
-             EnclosureWall(side, Face.exchange(AMB, 6.0), inner_h=10.0, inner_emissivity=0.6))
-    case = Case(run=RunSettings(duration=4 * 3600.0, output_interval=60.0), walls=walls,
-                chamber=Chamber(capacity=8e3, ambient=AMB, leakage=0.0008, extra_ua=0.5,
-                                box=(0.8, 0.6, 0.7)),
-                heater=Heater(2500.0, location="inner", wall=0),
+    walls = (EnclosureWall(wall, Face.exchange(AMB, 8.0, emissivity=0.8), inner_face_convection=10.0,
+                           inner_face_emissivity=0.6, bridge=Bridge(0.05, STEEL, (1,))),
+             EnclosureWall(side, Face.exchange(AMB, 6.0), inner_face_convection=10.0, inner_face_emissivity=0.6))
+    case = Case(run=RunSettings(duration=4 * 3600.0, output_every=60.0), walls=walls,
+                chamber=Chamber(heat_capacity=8e3, room_temperature=AMB, leakage=0.0008, extra_loss=0.5,
+                                inner_dimensions=(0.8, 0.6, 0.7)),
+                heater=Heater(2500.0, placement="inner_face", wall=0),
                 control=Control(mode="thermostat", setpoint=SP, band=3.0))
     res = run(case)
     eb = energy_breakdown(res)

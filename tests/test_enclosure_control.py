@@ -51,10 +51,10 @@ LEAK = 0.0005
 def box(P=P_RATED, duration=3 * 3600.0, oi=None, **ctl):
     w1 = Wall((Layer(SKIN, 0.001), Layer(WOOL, 0.06), Layer(SKIN, 0.001)), area=3.0, name="shell")
     w2 = Wall((Layer(SKIN, 0.002), Layer(WOOL, 0.04)), area=0.6, name="door")
-    walls = (EnclosureWall(w1, Face.exchange(AMB, 8.0), inner_h=15.0),
-             EnclosureWall(w2, Face.exchange(AMB, 8.0), inner_h=15.0))
-    return Case(run=RunSettings(duration=duration, output_interval=oi), walls=walls,
-                chamber=Chamber(capacity=15e3, ambient=AMB, leakage=LEAK),
+    walls = (EnclosureWall(w1, Face.exchange(AMB, 8.0), inner_face_convection=15.0),
+             EnclosureWall(w2, Face.exchange(AMB, 8.0), inner_face_convection=15.0))
+    return Case(run=RunSettings(duration=duration, output_every=oi), walls=walls,
+                chamber=Chamber(heat_capacity=15e3, room_temperature=AMB, leakage=LEAK),
                 heater=Heater(P), control=Control(**ctl), name="demo insulated box")
 
 
@@ -122,7 +122,7 @@ KP, KI = 0.05, 5.6e-5                        # [1/K], [1/K/s]: integral time 900
 
 @pytest.mark.parametrize("switched", [False, True])
 def test_pid_ramp_hold_with_anti_windup(switched):
-    case = box(duration=6 * 3600.0, oi=30.0, mode="pid", setpoint=RAMP, kp=KP, ki=KI,
+    case = box(duration=6 * 3600.0, oi=30.0, mode="pid", setpoint=RAMP, proportional_gain=KP, integral_gain=KI,
                period=20.0, switched=switched)
     res = run(case)
     check_ledger(res)
@@ -150,7 +150,7 @@ def test_pid_ramp_hold_with_anti_windup(switched):
 def test_proportional_only_offset_matches_hand_formula():
     # P-only: u = kp e and u P = G (T_sp - e - T_amb)  =>  e = G (T_sp - T_amb) / (P kp + G)
     # (standard control theory, from memory; G from Incropera §3.1)
-    case = box(duration=6 * 3600.0, oi=60.0, mode="pid", setpoint=RAMP, kp=KP, ki=0.0)
+    case = box(duration=6 * 3600.0, oi=60.0, mode="pid", setpoint=RAMP, proportional_gain=KP, integral_gain=0.0)
     res = run(case)
     check_ledger(res)
     G = G_hand()

@@ -47,9 +47,9 @@ def kiln():
     walls = (EnclosureWall(lining, Face.exchange(AMB, 8.0, emissivity=0.3)),
              EnclosureWall(door, Face.exchange(AMB, 8.0)))
     enable = Schedule([0.0, 3 * 3600.0, 3 * 3600.0, PERIOD], [1.0, 1.0, 0.0, 0.0])
-    return Case(run=RunSettings(duration=PERIOD, output_interval=60.0), walls=walls,
-                chamber=Chamber(capacity=20e3, ambient=AMB, leakage=0.001), heater=Heater(3000.0),
-                control=Control(mode="thermostat", setpoint=SP, band=4.0, enable=enable),
+    return Case(run=RunSettings(duration=PERIOD, output_every=60.0), walls=walls,
+                chamber=Chamber(heat_capacity=20e3, room_temperature=AMB, leakage=0.001), heater=Heater(3000.0),
+                control=Control(mode="thermostat", setpoint=SP, band=4.0, power_on=enable),
                 name="demo kiln firing")
 
 
@@ -92,6 +92,6 @@ def test_first_law_across_cycles():
 def test_periodic_state_rejects_schedules_longer_than_the_period():
     case = kiln()
     long_enable = Schedule([0.0, 3 * 3600.0, 3 * 3600.0, 2 * PERIOD], [1.0, 1.0, 0.0, 0.0])
-    bad = replace(case, control=replace(case.control, enable=long_enable))
+    bad = replace(case, control=replace(case.control, power_on=long_enable))
     with pytest.raises(ModelError, match="enable"):
         periodic_state(bad, PERIOD)

@@ -77,10 +77,10 @@ LEAK, EXTRA = 0.002, 1.5   # [m3/s], [W/K]
 def lumped_case(P=400.0, duration=6 * 3600.0, **ctl):
     walls = tuple(
         EnclosureWall(Wall((Layer(SKIN, L_SKIN, cells=2),), area=A, name=f"panel{i}"),
-                      Face.exchange(AMB, H_OUT), inner_h=H_IN)
+                      Face.exchange(AMB, H_OUT), inner_face_convection=H_IN)
         for i, A in enumerate(AREAS))
-    return Case(run=RunSettings(duration=duration, output_interval=duration / 120, initial=AMB),
-                walls=walls, chamber=Chamber(capacity=C_CH, ambient=AMB, leakage=LEAK, extra_ua=EXTRA),
+    return Case(run=RunSettings(duration=duration, output_every=duration / 120, start_temperature=AMB),
+                walls=walls, chamber=Chamber(heat_capacity=C_CH, room_temperature=AMB, leakage=LEAK, extra_loss=EXTRA),
                 heater=Heater(P), control=Control(**ctl), name="demo lumped box")
 
 
@@ -116,8 +116,8 @@ def test_cooldown_matches_exponential_decay():
     # to a level is R C ln((T_off - T_amb)/(T - T_amb)) and the e-folding time is R C.
     t_off = 3 * 3600.0
     en = Schedule([0.0, t_off, t_off], [1.0, 1.0, 0.0])
-    case = lumped_case(600.0, duration=12 * 3600.0, enable=en)
-    res = run(replace(case, run=replace(case.run, output_interval=60.0)))
+    case = lumped_case(600.0, duration=12 * 3600.0, power_on=en)
+    res = run(replace(case, run=replace(case.run, output_every=60.0)))
     R, C = lumped_RC()
     cd = cooldown(res, temperatures=(320.0, 400.0))
     assert cd["t_off_s"] == pytest.approx(t_off)
@@ -133,12 +133,12 @@ def test_cooldown_matches_exponential_decay():
 # ----------------------------------------------------------------------------- steady network
 def network_case(P=900.0, **ctl):
     # two composite walls with different films, a contact resistance, leakage and extra UA
-    w1 = Wall((Layer(BRICK, 0.06), Layer(BOARD, 0.05)), area=2.2, contact=(0.01,), name="sides")
+    w1 = Wall((Layer(BRICK, 0.06), Layer(BOARD, 0.05)), area=2.2, interface_resistance=(0.01,), name="sides")
     w2 = Wall((Layer(SKIN, 0.002), Layer(BOARD, 0.08), Layer(SKIN, 0.001)), area=0.7, name="door")
-    walls = (EnclosureWall(w1, Face.exchange(AMB, 7.0), inner_h=12.0),
-             EnclosureWall(w2, Face.exchange(AMB, 15.0), inner_h=25.0))
+    walls = (EnclosureWall(w1, Face.exchange(AMB, 7.0), inner_face_convection=12.0),
+             EnclosureWall(w2, Face.exchange(AMB, 15.0), inner_face_convection=25.0))
     return Case(run=RunSettings(duration=3600.0), walls=walls,
-                chamber=Chamber(capacity=2e4, ambient=AMB, leakage=0.0015, extra_ua=0.8),
+                chamber=Chamber(heat_capacity=2e4, room_temperature=AMB, leakage=0.0015, extra_loss=0.8),
                 heater=Heater(P), control=Control(**ctl), name="demo network box")
 
 
@@ -197,7 +197,7 @@ def test_size_heater_matches_lumped_formula_and_2pct_less_fails():
     assert out["steady_loss_at_setpoint_W"] == pytest.approx((sp - AMB) / R, rel=1e-3)
     assert out["n_trials"] <= 12
     # independent check runs (longer than the limit, the case's own thermostat)
-    long = replace(case, run=replace(case.run, duration=2 * t_lim, output_interval=t_lim / 600))
+    long = replace(case, run=replace(case.run, duration=2 * t_lim, output_every=t_lim / 600))
     ok = run(replace(long, heater=Heater(out["power_W"])))
     assert warm_up_time(ok, sp, band) <= t_lim
     short = run(replace(long, heater=Heater(0.98 * out["power_W"])))
@@ -208,7 +208,7 @@ def test_size_heater_matches_lumped_formula_and_2pct_less_fails():
 
 def test_size_heater_full_power_mode_and_bracket_hints():
     sp = 453.15
-    case = lumped_case(300.0, duration=3600.0, mode="pid", setpoint=sp, kp=0.05, ki=1e-4)
+    case = lumped_case(300.0, duration=3600.0, mode="pid", setpoint=sp, proportional_gain=0.05, integral_gain=1e-4)
     a = size_heater(case, 5400.0, setpoint=sp, control="full")
     # full power on from the start is the one-node formula again (Incropera §5.2-5.3)
     R, C = lumped_RC()
@@ -231,8 +231,8 @@ def test_summary_and_clear_errors():
     t_off = 3 * 3600.0
     en = Schedule([0.0, t_off, t_off], [1.0, 1.0, 0.0])
     case = lumped_case(4000.0, duration=8 * 3600.0, mode="thermostat", setpoint=423.15, band=3.0,
-                       enable=en)
-    case = replace(case, run=replace(case.run, output_interval=30.0))
+                       power_on=en)
+    case = replace(case, run=replace(case.run, output_every=30.0))
     res = run(case)
     s = summarise_enclosure(res)
     R, C = lumped_RC()
@@ -281,8 +281,8 @@ def test_chamber_ua_follows_the_room_temperature():
 
     from fdwall.system import build_system
     room = Schedule([0.0, 3600.0], [293.15, 313.15])
-    case = replace(network_case(900.0), chamber=Chamber(capacity=2e4, ambient=room,
-                                                        leakage=0.0015, extra_ua=0.8))
+    case = replace(network_case(900.0), chamber=Chamber(heat_capacity=2e4, room_temperature=room,
+                                                        leakage=0.0015, extra_loss=0.8))
     sysm = build_system(case)
     for t, T in ((0.0, 293.15), (1800.0, 303.15), (3600.0, 313.15)):
         rc = PropsSI("D", "T", T, "P", 101325.0, "Air") * PropsSI("C", "T", T, "P", 101325.0,

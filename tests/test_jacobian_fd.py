@@ -50,11 +50,11 @@ def _enclosure():
     w1 = Wall((Layer(STEEL, 0.001), Layer(KT, 0.06)), area=2.0, name="shell")
     w2 = Wall((Layer(KT, 0.04),), area=0.5, name="door")
     walls = (EnclosureWall(w1, Face.exchange(293.15, 8.0, emissivity=0.8, surroundings=290.0),
-                           inner_h=12.0, inner_emissivity=0.7),
-             EnclosureWall(w2, Face.exchange(293.15, 6.0), inner_h=Convection.chamber(
+                           inner_face_convection=12.0, inner_face_emissivity=0.7),
+             EnclosureWall(w2, Face.exchange(293.15, 6.0), inner_face_convection=Convection.chamber(
                  "wall", size=0.5)))
     return Case(run=RUN, walls=walls,
-                chamber=Chamber(capacity=8e3, room_temperature=293.15, leakage=0.001, extra_loss=0.4),
+                chamber=Chamber(heat_capacity=8e3, room_temperature=293.15, leakage=0.001, extra_loss=0.4),
                 heater=Heater(900.0, resistance_coefficient=2e-3), control=Control(), name="demo box")
 
 
@@ -69,10 +69,10 @@ CASES = {
                       surroundings=600.0),
         Face.exchange(293.15, 5.0, emissivity=0.9, surroundings=280.0)),
     "fixed temperature and flux": lambda: _slab(
-        Face.fixed(523.15), Face(flux=-150.0)),
+        Face.fixed(523.15), Face(heat_flux=-150.0)),
     "heater with falling power": lambda: _slab(
         Face.exchange(293.15, 5.0), Face.exchange(293.15, 5.0),
-        heater=Heater(800.0, location="inner", resistance_coefficient=3e-3, rated_at=293.15)),
+        heater=Heater(800.0, placement="inner_face", resistance_coefficient=3e-3, rated_at=293.15)),
     "chamber, leakage, films and radiation to it": _enclosure,
 }
 

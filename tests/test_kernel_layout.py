@@ -111,7 +111,7 @@ def _slab(**ctl):
     return Case(run=RunSettings(duration=3600.0),
                 wall=Wall((Layer(DEMO, 0.04), Layer(DEMO, 0.06)), area=2.5, name="demo"),
                 inner=Face.exchange(373.15, 10.0), outer=Face.exchange(293.15, 5.0),
-                heater=Heater(500.0, location="inner") if ctl else None,
+                heater=Heater(500.0, placement="inner_face") if ctl else None,
                 control=Control(**ctl) if ctl else Control(), name="demo slab")
 
 
@@ -138,7 +138,7 @@ def test_named_columns_hold_geometry():
 
 def test_named_columns_hold_cylinder_geometry():
     r1, t, length = 0.05, 0.08, 3.0
-    w = Wall((Layer(DEMO, t),), geometry="cylinder", inner_radius=r1, length=length, name="pipe")
+    w = Wall((Layer(DEMO, t),), shape="cylinder", inner_radius=r1, length=length, name="pipe")
     s = build_system(Case(run=RunSettings(duration=60.0), wall=w,
                           inner=Face.exchange(423.15, 50.0), outer=Face.exchange(293.15, 8.0),
                           name="demo pipe"))
@@ -153,8 +153,8 @@ def test_named_columns_hold_cylinder_geometry():
     ({"mode": "duty", "duty": 0.5}, L.CTL_DUTY_AVERAGED),
     ({"mode": "duty", "duty": 0.5, "switched": True, "period": 60.0}, L.CTL_DUTY_SWITCHED),
     ({"mode": "thermostat", "setpoint": 350.0, "band": 2.0, "sensor": "wall"}, L.CTL_THERMOSTAT),
-    ({"mode": "pid", "setpoint": 350.0, "kp": 0.1, "sensor": "wall"}, L.CTL_PID_AVERAGED),
-    ({"mode": "pid", "setpoint": 350.0, "kp": 0.1, "switched": True, "period": 60.0,
+    ({"mode": "pid", "setpoint": 350.0, "proportional_gain": 0.1, "sensor": "wall"}, L.CTL_PID_AVERAGED),
+    ({"mode": "pid", "setpoint": 350.0, "proportional_gain": 0.1, "switched": True, "period": 60.0,
       "sensor": "wall"},
      L.CTL_PID_SWITCHED),
 ])

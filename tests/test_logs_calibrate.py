@@ -29,10 +29,10 @@ WOOL = Material(name="wool", k=Constant(0.045), cp=Constant(840.0), rho=100.0)
 def _box():
     walls = [EnclosureWall(wall=Wall(layers=(Layer(STEEL, 0.001), Layer(WOOL, 0.05),
                                              Layer(STEEL, 0.001)), area=1.0, name=f"w{i}"),
-                           outer=Face(fluid=TA, convection=8.0), inner_h=20.0)
+                           outer=Face(fluid_temperature=TA, convection=8.0), inner_face_convection=20.0)
              for i in range(1, 7)]
-    return Case(run=RunSettings(duration=3600.0, initial=TA), walls=walls,
-                chamber=Chamber(capacity=2e4, ambient=TA), heater=Heater(power=800.0),
+    return Case(run=RunSettings(duration=3600.0, start_temperature=TA), walls=walls,
+                chamber=Chamber(heat_capacity=2e4, room_temperature=TA), heater=Heater(power=800.0),
                 control=Control())
 
 
@@ -161,10 +161,10 @@ def test_single_wall_emissivity_and_contact_resistance_recovered():
     # temperature is the inner face's); the log is made by the solver with a known outer
     # emissivity 0.8 and a contact resistance 0.01 m2K/W between the two layers.
     brick = Material(name="brick", k=Constant(0.3), cp=Constant(1000.0), rho=800.0)
-    case = Case(run=RunSettings(duration=3600.0, initial=TA),
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=TA),
                 wall=Wall(layers=(Layer(brick, 0.03), Layer(WOOL, 0.03)), area=0.5,
-                          contact=(0.0,)),
-                inner=Face(), outer=Face(fluid=TA, convection=6.0, emissivity=0.3))
+                          interface_resistance=(0.0,)),
+                inner=Face(), outer=Face(fluid_temperature=TA, convection=6.0, emissivity=0.3))
     t = np.arange(0, 6 * 3600 + 1, 60.0)
     P = np.where(t < 4 * 3600, 150.0, 0.0)
     driven = log_driven_case(case, t, P, TA, tolerance=1e-3)

@@ -14,9 +14,9 @@ K, RHO, CP, L, A, Q = 0.5, 1000.0, 1000.0, 0.1, 1.0, 200.0
 
 def _slab():
     m = Material(name="slab", k=Constant(K), cp=Constant(CP), rho=RHO)
-    return Case(run=RunSettings(duration=3600.0, initial=TA),
+    return Case(run=RunSettings(duration=3600.0, start_temperature=TA),
                 wall=Wall(layers=(Layer(m, L, cells=60),), area=A),
-                inner=Face(), outer=Face(temperature=TA))
+                inner=Face(), outer=Face(fixed_temperature=TA))
 
 
 def _front_face_rise(t):
@@ -74,7 +74,7 @@ def test_logged_power_replaces_the_inner_face_conditions():
     from fdwall.materials import material_from_dict
     plate = material_from_dict("t-plate", {"k": 400.0, "cp": 400.0, "rho": 8900.0})
     h, A, L, P, Ta = 10.0, 1.0, 0.01, 200.0, 293.15
-    case = Case(run=RunSettings(duration=3600.0, initial=Ta),
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=Ta),
                 wall=Wall(layers=(Layer(plate, L),), area=A),
                 inner=Face.exchange(450.0, 25.0), outer=Face.exchange(Ta, h))
     t = np.arange(0.0, 4 * 3600.0 + 1.0, 60.0)

@@ -24,10 +24,10 @@ T_AMB = 293.15
 def _box(k, thick, P=800.0, cap=2.0e4):
     m = Material(name="w", k=Constant(k), cp=Constant(900.0), rho=1500.0)
     walls = [EnclosureWall(wall=Wall(layers=(Layer(m, thick),), area=1.0, name=f"w{i}"),
-                           outer=Face(fluid=T_AMB, convection=8.0), inner_h=50.0)
+                           outer=Face(fluid_temperature=T_AMB, convection=8.0), inner_face_convection=50.0)
              for i in range(6)]
-    return Case(run=RunSettings(duration=20 * 3600.0, initial=T_AMB),
-                walls=walls, chamber=Chamber(capacity=cap, ambient=T_AMB),
+    return Case(run=RunSettings(duration=20 * 3600.0, start_temperature=T_AMB),
+                walls=walls, chamber=Chamber(heat_capacity=cap, room_temperature=T_AMB),
                 heater=Heater(power=P), control=Control()), m
 
 

@@ -16,8 +16,8 @@ TAU1 = 4 * L * L / (math.pi ** 2 * ALPHA)   # slowest mode of the slab below [s]
 
 
 def _slab(cells=40):
-    return Case(run=RunSettings(duration=1000.0, initial=AMB),
-                wall=Wall((Layer(SOLID, L, cells=cells),)), inner=Face(flux=Q),
+    return Case(run=RunSettings(duration=1000.0, start_temperature=AMB),
+                wall=Wall((Layer(SOLID, L, cells=cells),)), inner=Face(heat_flux=Q),
                 outer=Face.fixed(AMB), name="rc-compare")
 
 
@@ -95,10 +95,10 @@ def test_enclosure_with_light_walls_is_one_node():
     # simulated curve is the one-node exact solution and the fit returns both.
     light = Material("rc-light", k=Constant(0.05), cp=Constant(1000.0), rho=1.0)
     A, Lw, hin, hout, Cch = 2.0, 0.05, 10.0, 8.0, 5e4
-    case = Case(run=RunSettings(duration=1000.0, initial=AMB),
+    case = Case(run=RunSettings(duration=1000.0, start_temperature=AMB),
                 walls=(EnclosureWall(Wall((Layer(light, Lw, cells=4),), area=A, name="w"),
-                                     Face.exchange(AMB, hout), inner_h=hin),),
-                chamber=Chamber(capacity=Cch, ambient=AMB), name="rc-box")
+                                     Face.exchange(AMB, hout), inner_face_convection=hin),),
+                chamber=Chamber(heat_capacity=Cch, room_temperature=AMB), name="rc-box")
     R_ref = 1 / (hin * A) + Lw / (0.05 * A) + 1 / (hout * A)
     r = simulated_fit(case, 200.0, 3 * R_ref * Cch)
     assert r["implied"]["R_K_per_W"] == pytest.approx(R_ref, rel=1e-6)
@@ -121,7 +121,7 @@ def test_held_inner_face_is_driven_by_the_power():
     # A single wall whose inner face is held (here at 70 degC) is driven by the power history
     # instead: its curve is the series solution of the flux-heated slab (see _series), and
     # the implied values are those of that wall (R = L/k).
-    case = Case(run=RunSettings(duration=10.0, initial=AMB),
+    case = Case(run=RunSettings(duration=10.0, start_temperature=AMB),
                 wall=Wall((Layer(SOLID, L, cells=40),)), inner=Face.fixed(AMB + 50.0),
                 outer=Face.fixed(AMB), name="rc-held")
     r = simulated_fit(case, Q, 2 * TAU1)
@@ -143,8 +143,8 @@ def test_thick_two_layer_wall_fit_converges_to_C_effective():
     # docs/lumped-rc.md: 0.85, 0.976, 0.999 of C_effective at 64, 256, 1024 h).
     b = Material("rc-brick-const", k=Constant(0.95), cp=Constant(900.0), rho=2150.0)
     c = Material("rc-board-const", k=Constant(0.052), cp=Constant(1000.0), rho=240.0)
-    case = Case(run=RunSettings(duration=3600.0, initial=AMB),
-                wall=Wall((Layer(b, 0.23), Layer(c, 0.075))), inner=Face(flux=300.0),
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=AMB),
+                wall=Wall((Layer(b, 0.23), Layer(c, 0.075))), inner=Face(heat_flux=300.0),
                 outer=Face.exchange(AMB, 10.0), name="rc-kiln-const")
     Rf, R2, R1 = 1 / 10.0, 0.075 / 0.052, 0.23 / 0.95
     R = Rf + R2 + R1

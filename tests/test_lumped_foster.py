@@ -26,8 +26,8 @@ def _exact(t, m_max=400):
 
 @pytest.fixture(scope="module")
 def modes():
-    case = Case(run=RunSettings(duration=1000.0, initial=300.0),
-                wall=Wall((Layer(SOLID, L, cells=40),)), inner=Face(flux=500.0),
+    case = Case(run=RunSettings(duration=1000.0, start_temperature=300.0),
+                wall=Wall((Layer(SOLID, L, cells=40),)), inner=Face(heat_flux=500.0),
                 outer=Face.fixed(300.0), name="rc-foster")
     return wall_time_constants(case)
 

@@ -15,7 +15,7 @@ ALPHA, L = 1e-6, 0.1
 
 
 def _case(inner, outer, cells):
-    return Case(run=RunSettings(duration=1000.0, initial=300.0),
+    return Case(run=RunSettings(duration=1000.0, start_temperature=300.0),
                 wall=Wall((Layer(SOLID, L, cells=cells),)), inner=inner, outer=outer,
                 name="rc-modes")
 

@@ -25,8 +25,8 @@ ALPHA, L = 1e-6, 0.1
 
 
 def _slab(cells):
-    return Case(run=RunSettings(duration=1000.0, initial=300.0),
-                wall=Wall((Layer(SOLID, L, cells=cells),)), inner=Face(flux=500.0),
+    return Case(run=RunSettings(duration=1000.0, start_temperature=300.0),
+                wall=Wall((Layer(SOLID, L, cells=cells),)), inner=Face(heat_flux=500.0),
                 outer=Face.fixed(300.0), name="rc-networks")
 
 
@@ -150,10 +150,10 @@ def test_enclosure_one_pair_network_is_the_one_node_model():
     from fdwall.model import Chamber, EnclosureWall
     light = Material("rc-light", k=Constant(0.05), cp=Constant(1000.0), rho=1.0)
     A, Lw, hin, hout, Cch = 2.0, 0.05, 10.0, 8.0, 5e4
-    case = Case(run=RunSettings(duration=1000.0, initial=293.15),
+    case = Case(run=RunSettings(duration=1000.0, start_temperature=293.15),
                 walls=(EnclosureWall(Wall((Layer(light, Lw, cells=4),), area=A, name="w"),
-                                     Face.exchange(293.15, hout), inner_h=hin),),
-                chamber=Chamber(capacity=Cch, ambient=293.15), name="rc-box")
+                                     Face.exchange(293.15, hout), inner_face_convection=hin),),
+                chamber=Chamber(heat_capacity=Cch, room_temperature=293.15), name="rc-box")
     R_ref = 1 / (hin * A) + Lw / (0.05 * A) + 1 / (hout * A)
     net = rc_networks(wall_time_constants(case), 1)
     for key in ("foster", "cauer"):
@@ -180,11 +180,11 @@ def test_two_node_from_physics_of_a_chamber_behind_a_plate():
     plate = Material("rc-plate", k=Constant(50.0), cp=Constant(500.0), rho=7800.0)
     ins = Material("rc-ins", k=Constant(0.04), cp=Constant(1000.0), rho=0.5)
     A, hin, hout, Cch = 2.0, 10.0, 8.0, 2e4
-    case = Case(run=RunSettings(duration=1000.0, initial=293.15),
+    case = Case(run=RunSettings(duration=1000.0, start_temperature=293.15),
                 walls=(EnclosureWall(Wall((Layer(plate, 0.005, cells=4),
                                            Layer(ins, 0.05, cells=8)), area=A, name="w"),
-                                     Face.exchange(293.15, hout), inner_h=hin),),
-                chamber=Chamber(capacity=Cch, ambient=293.15), heater=Heater(power=500.0),
+                                     Face.exchange(293.15, hout), inner_face_convection=hin),),
+                chamber=Chamber(heat_capacity=Cch, room_temperature=293.15), heater=Heater(power=500.0),
                 name="rc-two-node")
     m = wall_time_constants(case)
     p = two_node_from_modes(m)

@@ -18,9 +18,9 @@ def test_rc_analysis_flux_in_fixed_back():
     # so R = L/k; the stored energy rho c int theta dx = rho c q L^2/(2k) gives
     # C_stored = rho c L/2; C_total = rho c L; slowest mode tau_1 = 4 L^2/(pi^2 alpha); first
     # moment L^2/(3 alpha) (derived in tests/test_lumped_modes.py).
-    case = Case(run=RunSettings(duration=1000.0, initial=300.0),
+    case = Case(run=RunSettings(duration=1000.0, start_temperature=300.0),
                 wall=Wall((Layer(SOLID, L, cells=40),)),
-                inner=Face(flux=Q), outer=Face.fixed(300.0), name="rc-slab")
+                inner=Face(heat_flux=Q), outer=Face.fixed(300.0), name="rc-slab")
     r = rc_analysis(case)
     assert r["R_K_per_W"] == pytest.approx(L / 1.0, rel=1e-6)
     assert r["C_stored_J_per_K"] == pytest.approx(1e6 * L / 2, rel=1e-6)
@@ -68,7 +68,7 @@ def test_rc_analysis_held_inner_face_with_outer_film():
     from fdwall.materials import material_from_dict
     board = material_from_dict("rc-board", {"k": 0.05, "cp": 900.0, "rho": 120.0})
     Lb, h = 0.060, 8.0
-    case = Case(run=RunSettings(duration=3600.0, initial=293.15),
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=293.15),
                 wall=Wall((Layer(board, Lb, cells=40),), area=1.0),
                 inner=Face.fixed(363.15), outer=Face.exchange(293.15, h))
     r = rc_analysis(case, networks=3)

@@ -32,6 +32,10 @@ from fdwall.model import (
 from fdwall.schedule import Schedule
 from fdwall.solver import run
 
+# this file uses the old names on purpose: their warnings are not errors here (pyproject.toml
+# makes them errors everywhere else)
+pytestmark = pytest.mark.filterwarnings("default::DeprecationWarning")
+
 K_B, RHO, CP = 0.1, 500.0, 1000.0                 # demo board [W/m/K], [kg/m3], [J/kg/K]
 L1, L2, RC = 0.02, 0.03, 0.05                     # [m], [m], contact [m2.K/W]
 H1, H2, T1, T2, AREA = 10.0, 5.0, 473.15, 293.15, 2.0
@@ -59,7 +63,14 @@ PAIRS = [(RunSettings, "initial", "start_temperature"),
          (Chamber, "box", "inner_dimensions"),
          (Bridge, "fraction", "area_fraction"),
          (Bridge, "layers", "replaces_layers"),
-         (Event, "threshold", "temperature")]
+         (Event, "threshold", "temperature"),
+         (Face, "flux", "heat_flux"),
+         (Chamber, "capacity", "heat_capacity"),
+         (Heater, "location", "placement"),
+         (Heater, "interface", "after_layer"),
+         (EnclosureWall, "inner_h", "inner_face_convection"),
+         (EnclosureWall, "inner_emissivity", "inner_face_emissivity"),
+         (Event, "where", "at")]
 
 
 def _pairs(*which):
@@ -67,14 +78,15 @@ def _pairs(*which):
     return [p for p in PAIRS if p[0] in which or (p[0], p[1]) in which]
 
 
-CLASSES = (RunSettings, Wall, Layer, Chamber, Face, Heater, Control, Event, Bridge)
+CLASSES = (RunSettings, Wall, Layer, Chamber, Face, Heater, Control, Event, Bridge,
+           EnclosureWall)
 
 
 def _case(new: bool) -> Case:
     m = material_from_dict("demo-board", {"k": K_B, "cp": CP, "rho": RHO})
     layers = (Layer(m, L1), Layer(m, L2))
     if new:
-        watch = (Event(temperature=330.0, where="outer", name="outer at 330 K"),)
+        watch = (Event(temperature=330.0, at="outer", name="outer at 330 K"),)
         wall = Wall(layers, shape="slab", area=AREA, interface_resistance=(RC,), name="w")
         rs = RunSettings(duration=40 * 3600.0, start_temperature=T2, output_every=1800.0,
                          snapshots=(3600.0,), watch=watch)
@@ -139,8 +151,8 @@ def _box(new: bool) -> Case:
     ch_kw = (dict(room_temperature=T2, start_temperature=300.0) if new
              else dict(ambient=T2, initial=300.0))
     return Case(run=RunSettings(duration=60 * 3600.0, start_temperature=T2),
-                walls=(EnclosureWall(wall, Face.exchange(T2, H2), inner_h=H1),),
-                chamber=Chamber(capacity=2e4, leakage=0.0, **ch_kw), heater=Heater(300.0),
+                walls=(EnclosureWall(wall, Face.exchange(T2, H2), inner_face_convection=H1),),
+                chamber=Chamber(heat_capacity=2e4, leakage=0.0, **ch_kw), heater=Heater(300.0),
                 name="demo box")
 
 
@@ -213,7 +225,7 @@ def test_heater_control_and_chamber_loss_names_and_results():
     with pytest.warns(DeprecationWarning) as rec:
         old = _pid_box(False)
     msgs = " ".join(str(w.message) for w in rec)
-    for cls, old_name, new_name in _pairs(Heater, Control, (Chamber, "extra_ua")):
+    for cls, old_name, new_name in _pairs((Heater, "alpha"), (Heater, "t_ref"), Control, (Chamber, "extra_ua")):
         assert f"{cls.__name__}.{old_name} is deprecated" in msgs, old_name
     assert old == new
     res_old = run(old, progress=False)
@@ -263,3 +275,107 @@ def test_bridge_and_box_names_and_results():
     q_clear = -res_new.face_flow[-1, 2 * clear + 1]     # heat leaving at the outer face [W]
     q_stud = -res_new.face_flow[-1, 2 * stud + 1]
     assert q_clear > 0 and q_stud / 0.05 > 1.2 * q_clear / 0.95
+
+
+def _interface_heater(new: bool) -> Case:
+    """Two boards with a heater element between them and a probe on that interface; both
+    faces lose heat by films to room air (demo data, invented)."""
+    m = material_from_dict("demo-board", {"k": K_B, "cp": CP, "rho": RHO})
+    wall = Wall((Layer(m, L1), Layer(m, L2)), area=AREA, name="w")
+    if new:
+        hz = Heater(200.0, placement="interface", after_layer=0)
+        watch = (Event(temperature=305.0, at="interface:1", name="probe"),)
+        inner = Face(fluid_temperature=T2, convection=H1, heat_flux=-5.0)
+    else:
+        hz = Heater(200.0, location="interface", interface=0)
+        watch = (Event(temperature=305.0, where="interface:1", name="probe"),)
+        inner = Face(fluid_temperature=T2, convection=H1, flux=-5.0)
+    return Case(run=RunSettings(duration=60 * 3600.0, start_temperature=T2, watch=watch),
+                wall=wall, inner=inner, outer=Face.exchange(T2, H2), heater=hz,
+                name="demo heated boards")
+
+
+def test_heater_placement_face_flux_and_watch_spot_names_and_results():
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        new = _interface_heater(True)
+        res_new = run(new, progress=False)
+    with pytest.warns(DeprecationWarning) as rec:
+        old = _interface_heater(False)
+    msgs = " ".join(str(w.message) for w in rec)
+    for cls, old_name, new_name in _pairs((Heater, "location"), (Heater, "interface"),
+                                          (Event, "where"), (Face, "flux")):
+        assert f"{cls.__name__}.{old_name} is deprecated" in msgs, old_name
+    assert old == new
+    res_old = run(old, progress=False)
+    assert np.array_equal(res_old.T, res_new.T)
+    # the old names read in the old vocabulary, with a warning
+    with pytest.warns(DeprecationWarning, match="Heater.location is deprecated"):
+        assert new.heater.location == "interface"
+    with pytest.warns(DeprecationWarning, match="Heater placement 'inner' is deprecated"):
+        assert Heater(100.0, location="inner").placement == "inner_face"
+    with pytest.warns(DeprecationWarning):
+        assert Heater(100.0, placement="inner_face").location == "inner"
+    # steady interface temperature (Incropera ch. 3, parallel resistances to the same air):
+    # the element's 200 W and the 5 W/m2 drawn out of the inner face split between the two
+    # resistances to room air, R_in = 1/(h1 A) + L1/(k A), R_out = L2/(k A) + 1/(h2 A);
+    # an imposed flux -q at the inner face acts through R_in's film part only, so
+    # T_i = T_air + (P R_out - q A (1/(h1 A)) R_out / ... ) is solved here as a 2-node network
+    A = AREA
+    g1, g2 = H1 * A, K_B * A / L1                  # film and board 1 [W/K]
+    g3, g4 = K_B * A / L2, H2 * A                  # board 2 and film [W/K]
+    # nodes: inner face (s), interface (i); outer side lumped as R_out = 1/g3 + 1/g4
+    G = np.array([[g1 + g2, -g2], [-g2, g2 + 1 / (1 / g3 + 1 / g4)]])
+    b = np.array([g1 * T2 - 5.0 * A, 200.0 + T2 / (1 / g3 + 1 / g4)])
+    Ts, Ti = np.linalg.solve(G, b)
+    assert res_new.interface_T(0)[-1, 0] == pytest.approx(Ti, abs=0.05)
+    assert res_new.face_T[-1, 0] == pytest.approx(Ts, abs=0.05)
+    assert np.isfinite(res_new.events["probe"][0])
+
+
+def _box_names(new: bool) -> Case:
+    """The box of _box with a chamber capacity, inner-face film and emissivity given by
+    name (demo data, invented)."""
+    c = _box(True)
+    ew = c.walls[0]
+    if new:
+        ew = dataclasses.replace(ew, inner_face_convection=H1, inner_face_emissivity=0.8)
+        ch = dataclasses.replace(c.chamber, heat_capacity=3e4)
+        watch = (Event(temperature=320.0, at="chamber", name="air"),)
+    else:
+        ew = dataclasses.replace(ew, inner_h=H1, inner_emissivity=0.8)
+        ch = dataclasses.replace(c.chamber, capacity=3e4)
+        watch = (Event(temperature=320.0, where="chamber", name="air"),)
+    return dataclasses.replace(c, walls=(ew,), chamber=ch,
+                               run=dataclasses.replace(c.run, watch=watch))
+
+
+def test_chamber_capacity_and_inner_face_names_and_results():
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        new = _box_names(True)
+        res_new = run(new, progress=False)
+    with pytest.warns(DeprecationWarning) as rec:
+        old = _box_names(False)
+    msgs = " ".join(str(w.message) for w in rec)
+    for cls, old_name, new_name in _pairs(EnclosureWall, (Chamber, "capacity"),
+                                          (Event, "where")):
+        assert f"{cls.__name__}.{old_name} is deprecated" in msgs, old_name
+    assert old == new
+    with pytest.warns(DeprecationWarning):
+        assert new.walls[0].inner_h == new.walls[0].inner_face_convection == H1
+    with pytest.warns(DeprecationWarning):
+        assert new.chamber.capacity == new.chamber.heat_capacity
+    res_old = run(old, progress=False)
+    assert np.array_equal(res_old.T, res_new.T)
+    # steady state (60 h, many time constants): the 300 W leave through the boards and the
+    # outer film in series (Incropera ch. 3), which fixes the inner face temperature; from
+    # the chamber to that face they pass by convection and grey radiation in parallel,
+    # 300 = A [h1 (Tc - Ts) + eps sigma (Tc^4 - Ts^4)] (Stefan-Boltzmann law)
+    from scipy.optimize import brentq
+    sigma = 5.670374419e-8                        # CODATA 2018 [W/m2/K4]
+    Ts = T2 + 300.0 * ((L1 + L2) / (K_B * AREA) + 1 / (H2 * AREA))
+    Tc = brentq(lambda T: AREA * (H1 * (T - Ts) + 0.8 * sigma * (T ** 4 - Ts ** 4)) - 300.0,
+                Ts, Ts + 200.0)
+    assert res_new.chamber_T[-1] == pytest.approx(Tc, abs=0.5)
+    assert res_new.face_T[-1, 0] == pytest.approx(Ts, abs=0.5)

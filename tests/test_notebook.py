@@ -28,7 +28,7 @@ H1, H2, T1, T2, AREA = 20.0, 8.0, 150.0, 20.0, 1.5  # [W/m2/K], [degC], [m2]
 def res():
     a = material_from_dict("demo-board", {"k": K1, "cp": 900.0, "rho": 800.0})
     b = material_from_dict("demo-wool", {"k": K2, "cp": 800.0, "rho": 60.0})
-    case = Case(run=RunSettings(duration=40 * 3600.0, output_interval=1800.0),
+    case = Case(run=RunSettings(duration=40 * 3600.0, output_every=1800.0),
                 wall=Wall(layers=(Layer(a, L1), Layer(b, L2)), area=AREA, name="slab"),
                 inner=Face.exchange(K0 + T1, H1), outer=Face.exchange(K0 + T2, H2),
                 name="demo-notebook")

@@ -39,8 +39,8 @@ def pipe():
     steel = material_from_dict("demo-tube", {"k": 45.0, "cp": 480.0, "rho": 7800.0})
     wool = material_from_dict("demo-wool", {"k": K_INS, "cp": 800.0, "rho": 100.0})
     wall = Wall(layers=(Layer(steel, T_STEEL), Layer(wool, T_INS, name="lagging")),
-                geometry="cylinder", inner_radius=R1, length=LENGTH, name="line")
-    case = Case(run=RunSettings(duration=30 * 3600.0, output_interval=1800.0), wall=wall,
+                shape="cylinder", inner_radius=R1, length=LENGTH, name="line")
+    case = Case(run=RunSettings(duration=30 * 3600.0, output_every=1800.0), wall=wall,
                 inner=Face.fixed(K0 + T_IN), outer=Face.fixed(K0 + T_OUT), name="demo-pipe")
     return fdwall.run(case)
 
@@ -97,14 +97,14 @@ def _enclosure():
     def side(name):
         return EnclosureWall(wall=Wall(layers=(Layer(board, 0.02), Layer(wool, 0.08),
                                                Layer(sheet, 0.0015)), area=0.5, name=name),
-                             outer=Face.exchange(K0 + 20.0, 8.0), inner_h=10.0)
+                             outer=Face.exchange(K0 + 20.0, 8.0), inner_face_convection=10.0)
     roof = EnclosureWall(wall=Wall(layers=(Layer(board, 0.02), Layer(wool, 0.04),
                                            Layer(sheet, 0.0015)), area=0.4, name="roof"),
-                         outer=Face.exchange(K0 + 20.0, 8.0), inner_h=10.0)
+                         outer=Face.exchange(K0 + 20.0, 8.0), inner_face_convection=10.0)
     sp = Schedule((0.0, 1800.0), (K0 + 20.0, K0 + 250.0))
-    return Case(run=RunSettings(duration=3 * 3600.0, output_interval=120.0, max_step=60.0),
+    return Case(run=RunSettings(duration=3 * 3600.0, output_every=120.0, max_step=60.0),
                 walls=(side("left"), side("right"), roof),
-                chamber=Chamber(capacity=8000.0, ambient=K0 + 20.0),
+                chamber=Chamber(heat_capacity=8000.0, room_temperature=K0 + 20.0),
                 heater=Heater(power=3000.0),
                 control=Control(mode="thermostat", setpoint=sp, band=4.0), name="demo-box")
 

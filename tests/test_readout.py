@@ -208,9 +208,9 @@ def test_constant_k_slab_reads_linearly_digit_for_digit():
     # source); the weights are the old ones and the kernel returns w Ta + (1 - w) Tb exactly
     wall = Wall((Layer(STEEL, 0.003), Layer(BRICK, 0.12)), area=1.0)
     ctl = Control(mode="thermostat", setpoint=400.0, sensor="wall", sensor_depth=0.0333)
-    case = Case(run=RunSettings(duration=600.0, watch=(Event(330.0, depth=0.0517, where=""),)),
+    case = Case(run=RunSettings(duration=600.0, watch=(Event(330.0, depth=0.0517, at=""),)),
                 wall=wall, inner=Face.exchange(293.15, 10.0), outer=Face.exchange(293.15, 8.0),
-                heater=Heater(1500.0, location="inner"), control=ctl)
+                heater=Heater(1500.0, placement="inner_face"), control=ctl)
     sysm = build_system(case)
     assert sysm.ctl_i[L.CI_SENSOR_MAT] == -1
     from fdwall.system import event_rows
@@ -238,7 +238,7 @@ def test_controller_holds_its_setpoint_at_the_sensor_depth_in_a_kT_layer():
                   proportional_gain=0.01, integral_gain=1e-5, period=10.0)
     case = Case(run=RunSettings(duration=6 * 3600.0, output_every=600.0, start_temperature=T2),
                 wall=wall, inner=Face(), outer=Face(fixed_temperature=T2),
-                heater=Heater(P, location="inner"), control=ctl, name="sensor in k(T)")
+                heater=Heater(P, placement="inner_face"), control=ctl, name="sensor in k(T)")
     ss = solve_steady(case, tol=1e-11)
     assert ss.duty == pytest.approx(q / P, rel=1e-9)
     assert sensor_temperature(ss.system, ss.T) == pytest.approx(Tsp, abs=1e-7)
@@ -273,7 +273,7 @@ def test_event_times_at_depths_in_a_semi_infinite_kT_solid():
     # mesh is too coarse right after a face step (the mesh work of issue 13, not the read-out).
     Ti, Ts, Lw = 300.0, 900.0, 0.2
     alpha = K0 / (RHO * CP0)
-    evs = tuple(Event(th, depth=d, where="", name=f"{d}:{th}")
+    evs = tuple(Event(th, depth=d, at="", name=f"{d}:{th}")
                 for d in (0.0117, 0.0217, 0.0333) for th in (700.0, 500.0, 400.0))
     wall = Wall((Layer(FIBRE_C, Lw, cells=160),), area=1.0)
     case = Case(run=RunSettings(duration=3 * 3600.0, output_every=60.0, start_temperature=Ti,
@@ -319,7 +319,7 @@ def test_event_times_near_steady_state_in_a_kT_slab():
         for short in (20.0, 5.0, 1.0):
             thr = Tss - short
             ref.append((brentq(lambda t: T_of(U(d, t)) - thr, 1.0, 1e6, xtol=1e-9), short))
-            evs.append(Event(thr, depth=d, where="", name=f"{d}:{short}"))
+            evs.append(Event(thr, depth=d, at="", name=f"{d}:{short}"))
     wall = Wall((Layer(FIBRE_C, Lw, cells=20),), area=1.0)
     case = Case(run=RunSettings(duration=4 * 3600.0, output_every=60.0, start_temperature=T2,
                                 watch=tuple(evs)), wall=wall, inner=Face(fixed_temperature=T1),

@@ -46,8 +46,8 @@ H_IN, H_OUT, T_IN, T_OUT, AREA = 10.0, 5.0, 200.0, 20.0, 2.0  # [W/m2/K], [degC]
 def slab_case(duration=6 * 3600.0):
     board = material_from_dict("demo-board", {"k": K_SLAB, "cp": CP, "rho": RHO})
     w = Wall(layers=(Layer(board, L_SLAB),), area=AREA, name="slab")
-    return Case(run=RunSettings(duration=duration, profile_times=(1800.0, 7200.0),
-                                events=(Event(K0 + 40.0, where="outer", name="skin 40C"),)),
+    return Case(run=RunSettings(duration=duration, snapshots=(1800.0, 7200.0),
+                                watch=(Event(K0 + 40.0, at="outer", name="skin 40C"),)),
                 wall=w, inner=Face.exchange(K0 + T_IN, H_IN), outer=Face.exchange(K0 + T_OUT, H_OUT),
                 name="demo-slab")
 
@@ -59,10 +59,10 @@ def oven_case():
             Wall(layers=(Layer(get_material("stainless-steel-304"), 0.0015),
                          Layer(get_material("mineral-wool-128"), 0.075),
                          Layer(get_material("carbon-steel"), 0.001)), name=name, area=area),
-            outer=Face.exchange(K0 + 20.0, 6.0, 0.9), inner_h=15.0, inner_emissivity=0.5)
+            outer=Face.exchange(K0 + 20.0, 6.0, 0.9), inner_face_convection=15.0, inner_face_emissivity=0.5)
     return Case(run=RunSettings(duration=3 * 3600.0),
                 walls=(wall("sides", 4.0), wall("roof", 1.0)),
-                chamber=Chamber(capacity=50e3, leakage=0.002),
+                chamber=Chamber(heat_capacity=50e3, leakage=0.002),
                 heater=Heater(power=6000.0),
                 control=Control(mode="thermostat", setpoint=K0 + 180.0, band=4.0),
                 name="demo-oven")
@@ -256,7 +256,7 @@ def test_profile_times_default_and_custom(slab_result, tmp_path):
     assert plots._profile_times(slab_result, None) == [1800.0, 7200.0]
     # without them: 5 evenly spaced times up to the end
     no_pt = replace(slab_result, case=replace(slab_result.case,
-                                              run=replace(slab_result.case.run, profile_times=())))
+                                              run=replace(slab_result.case.run, snapshots=())))
     t = plots._profile_times(no_pt, None)
     assert len(t) == 5 and t[-1] == pytest.approx(slab_result.times[-1])
     assert np.allclose(np.diff(t), t[0])

@@ -52,8 +52,8 @@ def _case(cells):
     m = material_from_dict("demo-board", {"k": K, "cp": CP, "rho": RHO})
     wall = Wall(layers=(Layer(m, L / 2, cells=cells, name="front"),
                         Layer(m, L / 2, cells=cells, name="back")), name="slab")
-    return Case(run=RunSettings(duration=T_END, initial=K0 + T0, tolerance=1e-4,
-                                output_interval=T_END / 20),
+    return Case(run=RunSettings(duration=T_END, start_temperature=K0 + T0, tolerance=1e-4,
+                                output_every=T_END / 20),
                 wall=wall, inner=Face.fixed(K0 + T1), outer=Face.adiabatic(), name="demo-slab")
 
 
@@ -108,7 +108,7 @@ def test_not_computed_for_a_profile_start(checks):
     res, _ = checks[4]
     case = _case(4)
     from dataclasses import replace
-    prof = replace(case, run=replace(case.run, initial=res.T[-1]))
+    prof = replace(case, run=replace(case.run, start_temperature=res.T[-1]))
     assert convergence_check(prof, res)["status"].startswith("not computed")
 
 
@@ -205,7 +205,7 @@ def test_on_off_control_gets_a_note():
     m = material_from_dict("demo-board", {"k": K, "cp": CP, "rho": RHO})
     ew = EnclosureWall(wall=Wall(layers=(Layer(m, 0.05),), name="w"),
                        outer=Face.exchange(K0 + 20, 8.0))
-    base = dict(run=RunSettings(duration=600.0), walls=(ew,), chamber=Chamber(capacity=1e4),
+    base = dict(run=RunSettings(duration=600.0), walls=(ew,), chamber=Chamber(heat_capacity=1e4),
                 heater=Heater(power=500.0))
     thermo = Case(control=Control(mode="thermostat", setpoint=K0 + 100), **base)
     assert "switching" in _note(thermo)

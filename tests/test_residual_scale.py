@@ -29,8 +29,8 @@ AREA = 2.0  # m2
 
 def _rest_case(T0: float) -> Case:
     w = Wall(layers=(Layer(SKIN, THICK[0]), Layer(WOOL, THICK[1])), area=AREA)
-    face = Face(fluid=T0, convection=10.0, emissivity=0.9, surroundings=T0)
-    return Case(run=RunSettings(duration=3600.0, initial=T0), wall=w, inner=face, outer=face)
+    face = Face(fluid_temperature=T0, convection=10.0, emissivity=0.9, surroundings_temperature=T0)
+    return Case(run=RunSettings(duration=3600.0, start_temperature=T0), wall=w, inner=face, outer=face)
 
 
 @pytest.mark.parametrize("T0", [1.0, 293.15])

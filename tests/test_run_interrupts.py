@@ -49,7 +49,7 @@ L = 0.30                                   # [m]: the heat front stays far from 
 def _slab(duration=4 * 3600.0, oi=600.0, max_step=None):
     """A thick slab, inner face held at TS from t = 0, outer face adiabatic (demo data)."""
     m = material_from_dict("demo-solid", {"k": K_B, "cp": CP_B, "rho": RHO_B})
-    return Case(run=RunSettings(duration=duration, output_interval=oi, initial=TI,
+    return Case(run=RunSettings(duration=duration, output_every=oi, start_temperature=TI,
                                 tolerance=0.002, max_step=max_step),
                 wall=Wall(layers=(Layer(m, L, cells=120),), area=1.0, name="thick"),
                 inner=Face.fixed(TS), outer=Face(), name="demo thick slab")
@@ -60,9 +60,9 @@ def _box(**ctl):
     skin = material_from_dict("demo-steel-skin", {"k": 45.0, "cp": 480.0, "rho": 7850.0})
     wool = material_from_dict("demo-wool", {"k": 0.04, "cp": 840.0, "rho": 80.0})
     w = Wall((Layer(skin, 0.001), Layer(wool, 0.06), Layer(skin, 0.001)), area=3.0, name="shell")
-    walls = (EnclosureWall(w, Face.exchange(293.15, 8.0), inner_h=15.0),)
-    return Case(run=RunSettings(duration=3 * 3600.0, output_interval=60.0), walls=walls,
-                chamber=Chamber(capacity=15e3, ambient=293.15, leakage=0.0005),
+    walls = (EnclosureWall(w, Face.exchange(293.15, 8.0), inner_face_convection=15.0),)
+    return Case(run=RunSettings(duration=3 * 3600.0, output_every=60.0), walls=walls,
+                chamber=Chamber(heat_capacity=15e3, room_temperature=293.15, leakage=0.0005),
                 heater=Heater(1500.0), control=Control(**ctl), name="demo box")
 
 

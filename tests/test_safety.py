@@ -195,7 +195,7 @@ def _slab_case(ti=200 + C, ta=20 + C, h=10.0, L=0.05, k=0.05, duration=3600.0, o
     ins = _mat("ins", k, 1.0e5)
     wall = Wall(layers=(Layer(ins, L),), area=1.0, name="panel")
     outer = outer or Face.exchange(fluid=ta, h=h)
-    return Case(run=RunSettings(duration=duration, initial=ta), wall=wall,
+    return Case(run=RunSettings(duration=duration, start_temperature=ta), wall=wall,
                 inner=Face.fixed(ti), outer=outer, name="slab")
 
 
@@ -234,8 +234,8 @@ def test_time_to_safe_after_power_off_lumped_exponential():
     steel = _mat("steel", 50.0, 3.6e6)
     L, h, ta = 3e-3, 10.0, 20 + C
     wall = Wall(layers=(Layer(steel, L),), name="skin")
-    case = Case(run=RunSettings(duration=3 * 3600.0, initial=ta, output_interval=10.0),
-                wall=wall, inner=Face(flux=Schedule((0.0, 3600.0, 3600.0), (1000.0, 1000.0, 0.0))),
+    case = Case(run=RunSettings(duration=3 * 3600.0, start_temperature=ta, output_every=10.0),
+                wall=wall, inner=Face(heat_flux=Schedule((0.0, 3600.0, 3600.0), (1000.0, 1000.0, 0.0))),
                 outer=Face.exchange(fluid=ta, h=h), name="thin")
     lim = 40 + C
     a = S.evaluate_touch(case, criterion="limit", limit=lim, simulate_contact=False,
@@ -255,10 +255,10 @@ def test_time_to_safe_after_power_off_lumped_exponential():
 
 
 def test_guarded_faces_are_skipped_and_face_class_used():
-    case = _slab_case(outer=Face(fluid=20 + C, convection=10.0, touch="guarded"))
+    case = _slab_case(outer=Face(fluid_temperature=20 + C, convection=10.0, touch="guarded"))
     a = S.evaluate_touch(case, simulate_contact=False, sensitivity=False)
     assert a.faces == [] and a.skipped == [{"face": "panel:outer", "touch": "guarded"}]
-    case = _slab_case(outer=Face(fluid=20 + C, convection=10.0, surface_class="wood"))
+    case = _slab_case(outer=Face(fluid_temperature=20 + C, convection=10.0, surface_class="wood"))
     a = S.evaluate_touch(case, simulate_contact=False, sensitivity=False)
     assert a.faces[0].surface_class == "wood" and "case file" in a.faces[0].class_source
     a = S.evaluate_touch(case, surface="plastic", simulate_contact=False, sensitivity=False)
@@ -301,9 +301,9 @@ def test_surface_class_from_outer_layer():
     from fdwall.materials import get_material
     steel = Layer(get_material("carbon-steel"), 2e-3)
     glass = Layer(get_material("glass-soda-lime"), 5e-3)
-    assert S.surface_class_of(steel, Face(fluid=300.0, emissivity=0.9))[0] == "coated-metal"
-    assert S.surface_class_of(steel, Face(fluid=300.0, emissivity=0.1))[0] == "bare-metal"
-    assert S.surface_class_of(glass, Face(fluid=300.0, emissivity=0.9))[0] == \
+    assert S.surface_class_of(steel, Face(fluid_temperature=300.0, emissivity=0.9))[0] == "coated-metal"
+    assert S.surface_class_of(steel, Face(fluid_temperature=300.0, emissivity=0.1))[0] == "bare-metal"
+    assert S.surface_class_of(glass, Face(fluid_temperature=300.0, emissivity=0.9))[0] == \
         "ceramic-glass-stone"
 
 

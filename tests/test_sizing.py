@@ -22,8 +22,8 @@ MAT = material_from_dict("test-ins", {"k": K_INS, "cp": 840.0, "rho": 100.0})
 
 def _slab(h_in=1e6, h_out=10.0, T_in=473.15, T_out=293.15):
     wall = Wall(layers=(Layer(MAT, 0.05),), area=1.0)
-    return Case(run=RunSettings(duration=3600.0, initial=293.15), wall=wall,
-                inner=Face(fluid=T_in, convection=h_in), outer=Face(fluid=T_out, convection=h_out))
+    return Case(run=RunSettings(duration=3600.0, start_temperature=293.15), wall=wall,
+                inner=Face(fluid_temperature=T_in, convection=h_in), outer=Face(fluid_temperature=T_out, convection=h_out))
 
 
 def test_critical_radius_textbook():
@@ -53,9 +53,9 @@ def test_pipe_loss_against_log_network():
     # Hollow-cylinder conduction resistance ln(r2/r1)/(2 pi k L) plus film 1/(h 2 pi r2 L)
     # (Incropera 7th ed., eq. 3.33 and Table 3.3); root solved here with scipy brentq.
     r1, h, Ti, Ta, q_lim = 0.03, 8.0, 523.15, 293.15, 60.0
-    wall = Wall(layers=(Layer(MAT, 0.02),), geometry="cylinder", inner_radius=r1)
-    case = Case(run=RunSettings(duration=3600.0, initial=293.15), wall=wall,
-                inner=Face(fluid=Ti, convection=1e6), outer=Face(fluid=Ta, convection=h))
+    wall = Wall(layers=(Layer(MAT, 0.02),), shape="cylinder", inner_radius=r1)
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=293.15), wall=wall,
+                inner=Face(fluid_temperature=Ti, convection=1e6), outer=Face(fluid_temperature=Ta, convection=h))
 
     def q(L):
         r2 = r1 + L

@@ -27,19 +27,19 @@ TA, TSP, HI, HO = 293.15, 473.15, 20.0, 10.0
 
 def _enclosure(mat=MAT, L=0.05):
     big = EnclosureWall(wall=Wall(layers=(Layer(mat, L),), area=2.0, name="big"),
-                        outer=Face(fluid=TA, convection=HO), inner_h=HI)
+                        outer=Face(fluid_temperature=TA, convection=HO), inner_face_convection=HI)
     small = EnclosureWall(wall=Wall(layers=(Layer(MAT, 0.1),), area=0.3, name="small"),
-                          outer=Face(fluid=TA, convection=HO), inner_h=HI)
-    return Case(run=RunSettings(duration=36000.0, initial=TA), walls=(big, small),
-                chamber=Chamber(capacity=1e5, ambient=TA),
+                          outer=Face(fluid_temperature=TA, convection=HO), inner_face_convection=HI)
+    return Case(run=RunSettings(duration=36000.0, start_temperature=TA), walls=(big, small),
+                chamber=Chamber(heat_capacity=1e5, room_temperature=TA),
                 heater=Heater(power=20000.0),
                 control=Control(mode="thermostat", setpoint=TSP, band=1.0))
 
 
 def _slab(mat=MAT, T_in=473.15, T_out=TA, h_out=HO):
-    return Case(run=RunSettings(duration=3600.0, initial=TA),
+    return Case(run=RunSettings(duration=3600.0, start_temperature=TA),
                 wall=Wall(layers=(Layer(mat, 0.05),), area=1.0),
-                inner=Face(fluid=T_in, convection=1e6), outer=Face(fluid=T_out, convection=h_out))
+                inner=Face(fluid_temperature=T_in, convection=1e6), outer=Face(fluid_temperature=T_out, convection=h_out))
 
 
 def test_enclosure_wall_skin_and_loss_against_resistance_network():

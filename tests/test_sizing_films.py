@@ -34,10 +34,10 @@ def test_skin_with_correlation_and_radiation():
     L_ref = K * (Ti - Ts) / q
     assert brentq(lambda L: K * (Ti - Ts) / L - q, 1e-4, 1.0) == pytest.approx(L_ref)
     mat = material_from_dict("t", {"k": K, "cp": 840.0, "rho": 100.0})
-    case = Case(run=RunSettings(duration=3600.0, initial=Ta),
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=Ta),
                 wall=Wall(layers=(Layer(mat, 0.05),)),
-                inner=Face(fluid=Ti, convection=1e7),
-                outer=Face(fluid=Ta, convection=Convection.natural_vertical(H), emissivity=EPS))
+                inner=Face(fluid_temperature=Ti, convection=1e7),
+                outer=Face(fluid_temperature=Ta, convection=Convection.natural_vertical(H), emissivity=EPS))
     r = size_layer(case, 0, [SkinTarget(Ts)])
     # correlation property data differ between libraries: measured 0.05 %, checked to 1 % (common practice)
     assert r.thickness_exact_m == pytest.approx(L_ref, rel=0.01)
@@ -53,10 +53,10 @@ def test_wind_design_condition_mixed_film():
     from fdwall.sizing import Conditions
     V = 3.0
     mat = material_from_dict("t", {"k": K, "cp": 840.0, "rho": 100.0})
-    case = Case(run=RunSettings(duration=3600.0, initial=Ta),
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=Ta),
                 wall=Wall(layers=(Layer(mat, 0.05),)),
-                inner=Face(fluid=Ti, convection=1e7),
-                outer=Face(fluid=Ta, convection=Convection.natural_vertical(H)))
+                inner=Face(fluid_temperature=Ti, convection=1e7),
+                outer=Face(fluid_temperature=Ta, convection=Convection.natural_vertical(H)))
     r = size_layer(case, 0, [SkinTarget(Ts, conditions=Conditions(wind=V))], step=0.025,
                    t_max=0.2)
     for T, hc in zip(r.table["skin_K"], r.table["h_conv_W_m2K"]):

@@ -24,9 +24,9 @@ def _q(L):
 
 def _tube():
     mat = material_from_dict("t-lag", {"k": K, "cp": 900.0, "rho": 150.0})
-    wall = Wall(layers=(Layer(mat, 0.01),), geometry="cylinder", inner_radius=R1)
-    return Case(run=RunSettings(duration=3600.0, initial=TA), wall=wall,
-                inner=Face(fluid=TI, convection=1e6), outer=Face(fluid=TA, convection=H))
+    wall = Wall(layers=(Layer(mat, 0.01),), shape="cylinder", inner_radius=R1)
+    return Case(run=RunSettings(duration=3600.0, start_temperature=TA), wall=wall,
+                inner=Face(fluid_temperature=TI, convection=1e6), outer=Face(fluid_temperature=TA, convection=H))
 
 
 def test_critical_radius_two_feasible_intervals():
@@ -79,10 +79,10 @@ def test_pipe_skin_with_correlation_at_the_insulated_diameter():
     L_ref = brentq(bal, r1 * 1.01, 1.0) - r1
     mat = material_from_dict("t-wool", {"k": k, "cp": 840.0, "rho": 100.0})
     L0 = 0.02
-    wall = Wall(layers=(Layer(mat, L0),), geometry="cylinder", inner_radius=r1)
-    case = Case(run=RunSettings(duration=3600.0, initial=TA), wall=wall,
-                inner=Face(fluid=TI, convection=1e7),
-                outer=Face(fluid=TA, emissivity=eps,
+    wall = Wall(layers=(Layer(mat, L0),), shape="cylinder", inner_radius=r1)
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=TA), wall=wall,
+                inner=Face(fluid_temperature=TI, convection=1e7),
+                outer=Face(fluid_temperature=TA, emissivity=eps,
                            convection=Convection.horizontal_cylinder(2 * (r1 + L0))))
     r = size_layer(case, 0, [SkinTarget(Ts)], step=0.01)
     # correlation property data differ between libraries; checked to 1 % (common practice)
@@ -136,9 +136,9 @@ def test_sphere_loss_against_spherical_shell_network():
                            + 1 / (1e6 * 4 * math.pi * r1 ** 2))
     L_ref = brentq(lambda L: q(L) - q_lim, 1e-4, 1.0)
     mat = material_from_dict("t-sph", {"k": k, "cp": 900.0, "rho": 150.0})
-    case = Case(run=RunSettings(duration=3600.0, initial=TA),
-                wall=Wall(layers=(Layer(mat, 0.05),), geometry="sphere", inner_radius=r1),
-                inner=Face(fluid=TI, convection=1e6), outer=Face(fluid=TA, convection=h))
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=TA),
+                wall=Wall(layers=(Layer(mat, 0.05),), shape="sphere", inner_radius=r1),
+                inner=Face(fluid_temperature=TI, convection=1e6), outer=Face(fluid_temperature=TA, convection=h))
     r = size_layer(case, 0, [LossTarget(q_lim, unit="W")], step=0.01)
     assert r.thickness_exact_m == pytest.approx(L_ref, rel=2e-3)
     assert r.critical_radius_m == pytest.approx(2 * k / h)

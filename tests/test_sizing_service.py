@@ -14,9 +14,9 @@ K1, L1, K2, L2, TMAX = 0.1, 0.04, 0.03, 0.05, 373.15
 def _case(L1=L1, L2=L2):
     hot = material_from_dict("t-hot", {"k": K1, "cp": 840.0, "rho": 200.0})
     foam = material_from_dict("t-foam", {"k": K2, "cp": 1400.0, "rho": 40.0, "t_max": TMAX})
-    return Case(run=RunSettings(duration=3600.0, initial=TA),
+    return Case(run=RunSettings(duration=3600.0, start_temperature=TA),
                 wall=Wall(layers=(Layer(hot, L1), Layer(foam, L2)), area=1.0),
-                inner=Face(fluid=TI, convection=1e6), outer=Face(fluid=TA, convection=H))
+                inner=Face(fluid_temperature=TI, convection=1e6), outer=Face(fluid_temperature=TA, convection=H))
 
 
 def test_service_target_backing_layer_closed_form():

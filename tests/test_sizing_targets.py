@@ -18,8 +18,8 @@ TABLE = Path(__file__).resolve().parents[1] / "fdwall" / "analyses" / "touch_thr
 
 def _slab(mat=MAT, T_in=473.15, T_out=293.15, h_out=10.0, layers=None):
     wall = Wall(layers=layers or (Layer(mat, 0.05),), area=1.0)
-    return Case(run=RunSettings(duration=3600.0, initial=293.15), wall=wall,
-                inner=Face(fluid=T_in, convection=1e6), outer=Face(fluid=T_out, convection=h_out))
+    return Case(run=RunSettings(duration=3600.0, start_temperature=293.15), wall=wall,
+                inner=Face(fluid_temperature=T_in, convection=1e6), outer=Face(fluid_temperature=T_out, convection=h_out))
 
 
 def test_touch_target_sizes_to_threshold_read_back():

@@ -49,9 +49,9 @@ def _skin_series(L, t, n_terms=60):
 
 def _slab(duration):
     mat = material_from_dict("t-ins", {"k": K, "cp": CP, "rho": RHO})
-    return Case(run=RunSettings(duration=duration, initial=TA, output_interval=30.0),
+    return Case(run=RunSettings(duration=duration, start_temperature=TA, output_every=30.0),
                 wall=Wall(layers=(Layer(mat, 0.05, cells=16),), area=1.0),
-                inner=Face.fixed(TI), outer=Face(fluid=TA, convection=H))
+                inner=Face.fixed(TI), outer=Face(fluid_temperature=TA, convection=H))
 
 
 def test_series_reference_tends_to_steady():
@@ -85,9 +85,9 @@ def _oven(power=2000.0, L=0.03):
     # wall of negligible heat capacity, so the chamber is one lumped node
     light = material_from_dict("t-light", {"k": 0.1, "cp": 100.0, "rho": 1.0})
     w = EnclosureWall(wall=Wall(layers=(Layer(light, L, cells=6),), area=4.0, name="shell"),
-                      outer=Face(fluid=TA, convection=10.0), inner_h=10.0)
-    return Case(run=RunSettings(duration=36000.0, initial=TA, output_interval=20.0),
-                walls=(w,), chamber=Chamber(capacity=2e5, ambient=TA),
+                      outer=Face(fluid_temperature=TA, convection=10.0), inner_face_convection=10.0)
+    return Case(run=RunSettings(duration=36000.0, start_temperature=TA, output_every=20.0),
+                walls=(w,), chamber=Chamber(heat_capacity=2e5, room_temperature=TA),
                 heater=Heater(power=power),
                 control=Control(mode="thermostat", setpoint=TSP, band=0.5))
 

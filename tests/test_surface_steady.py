@@ -48,9 +48,9 @@ def _h_ht_hcyl(Ts, Ta, D):
 
 def _slab_case(T_in, layers, conv, eps, Ta=293.15):
     wall = Wall(layers=tuple(Layer(m, t) for m, t in layers))
-    return Case(run=RunSettings(duration=3600.0, initial=Ta), wall=wall,
-                inner=Face(temperature=T_in),
-                outer=Face(fluid=Ta, convection=conv, emissivity=eps))
+    return Case(run=RunSettings(duration=3600.0, start_temperature=Ta), wall=wall,
+                inner=Face(fixed_temperature=T_in),
+                outer=Face(fluid_temperature=Ta, convection=conv, emissivity=eps))
 
 
 @pytest.mark.parametrize("T_in_C,eps", [(80.0, 0.9), (200.0, 0.9), (200.0, 0.1), (450.0, 0.8)])
@@ -88,16 +88,16 @@ def test_bare_vertical_plate_with_heater_flux(q):
     conv = Convection.natural_vertical(0.5)
     eps = 0.85
     wall = Wall(layers=(Layer(_mat(45.0), 0.003),))
-    case = Case(run=RunSettings(duration=3600.0, initial=Ta), wall=wall, inner=Face(flux=q),
-                outer=Face(fluid=Ta, convection=conv, emissivity=eps))
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=Ta), wall=wall, inner=Face(heat_flux=q),
+                outer=Face(fluid_temperature=Ta, convection=conv, emissivity=eps))
     res = solve_steady(case)
     Ts = res.face_T[1]
     Ts_ref = brentq(lambda T: q - _h_ht_vertical(T, Ta, 0.5) * (T - Ta)
                     - eps * SIGMA * (T ** 4 - Ta ** 4), Ta + 1e-3, 2000.0)
     assert Ts == pytest.approx(Ts_ref, abs=0.3)
     # the transient run tends to the same steady state (8 h is many time constants here)
-    tr = run(Case(run=RunSettings(duration=8 * 3600.0, initial=Ta), wall=wall,
-                  inner=Face(flux=q), outer=Face(fluid=Ta, convection=conv, emissivity=eps)))
+    tr = run(Case(run=RunSettings(duration=8 * 3600.0, start_temperature=Ta), wall=wall,
+                  inner=Face(heat_flux=q), outer=Face(fluid_temperature=Ta, convection=conv, emissivity=eps)))
     assert tr.face_T[-1, 1] == pytest.approx(Ts, abs=0.01)
     assert abs(tr.relative_residual) < 1e-8
 
@@ -111,11 +111,11 @@ def test_insulated_pipe_horizontal_cylinder():
     ro = ri + t_ins
     eps = 0.3
     conv = Convection.horizontal_cylinder(2 * ro)
-    wall = Wall(layers=(Layer(_mat(0.05), t_ins),), geometry="cylinder", inner_radius=ri,
+    wall = Wall(layers=(Layer(_mat(0.05), t_ins),), shape="cylinder", inner_radius=ri,
                 length=1.0)
-    case = Case(run=RunSettings(duration=3600.0, initial=Ta), wall=wall,
-                inner=Face(temperature=T_in),
-                outer=Face(fluid=Ta, convection=conv, emissivity=eps))
+    case = Case(run=RunSettings(duration=3600.0, start_temperature=Ta), wall=wall,
+                inner=Face(fixed_temperature=T_in),
+                outer=Face(fluid_temperature=Ta, convection=conv, emissivity=eps))
     res = solve_steady(case)
     Ts = res.face_T[1]
     # series resistance per metre of a cylindrical shell: ln(ro/ri)/(2 pi k) (Incropera eq. 3.33)

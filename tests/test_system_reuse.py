@@ -1,4 +1,5 @@
-"""The system is built once per loaded case, and reused per wall shape across variants.
+"""The case loader builds no system; a study variant builds its system once, and reuses the
+meshes of the previous variant per wall shape.
 
 Checks of the software's bookkeeping (house rules, no outside source) plus one physics check:
 the steady heat flow of a one-layer wall between two fixed film coefficients, with the
@@ -18,7 +19,7 @@ import tomllib
 import fdwall
 import fdwall.system as fsys
 from fdwall.case import case_from_dict, case_warnings
-from fdwall.system import build_system, handed_system
+from fdwall.system import build_system
 
 CASES = pathlib.Path(__file__).resolve().parents[1] / "cases"
 
@@ -44,18 +45,16 @@ def _base():
     return tomllib.loads((CASES / "curing-oven-panel.toml").read_text())
 
 
-def test_loader_hands_its_system_over_once(monkeypatch):
+def test_the_loader_builds_no_system(monkeypatch):
+    # DESIGN.md, layer 4: case I/O parses and validates, builds no system
     calls = []
     real = fsys.mesh_wall
     monkeypatch.setattr(fsys, "mesh_wall", lambda w, *a, **k: calls.append(w) or real(w, *a, **k))
     case = case_from_dict(_base(), "panel.toml")
-    assert len(calls) == 1                      # the loader's check built the system
-    assert handed_system(case) is not None
-    case_warnings(case)                         # read-only use leaves it in place
+    case_warnings(case)
+    assert calls == []
     s1 = build_system(case)
-    assert len(calls) == 1                      # taken over, not built again
-    assert handed_system(case) is None
-    s2 = build_system(case)                     # a second user gets its own system
+    s2 = build_system(case)                     # every caller gets its own system
     assert s2 is not s1 and len(calls) == 2
     _same(s1, s2)
 
@@ -70,21 +69,13 @@ def test_a_study_variant_builds_its_system_once(monkeypatch):
     assert len(calls) == 1
 
 
-def test_a_replaced_case_does_not_take_the_handover():
-    case = case_from_dict(_base(), "panel.toml")
-    other = dataclasses.replace(case, name="other")
-    s = build_system(other)
-    assert s.case is other
-    assert handed_system(case) is not None
-
-
 # ---------------------------------------------------------------- reuse per wall shape
-def _load(base, edits, like=None):
+def _load(base, edits):
     from fdwall.analyses.study_outputs import _set
     d = copy.deepcopy(base)
     for p, v in edits.items():
         _set(d, p, v, "t")
-    return case_from_dict(d, "t.toml", like=like)
+    return case_from_dict(d, "t.toml")
 
 
 NON_SHAPE = [  # curing-oven panel: only face conditions and finishes change
@@ -101,22 +92,18 @@ def test_reused_build_equals_a_fresh_build(edits):
     base = _base()
     prev = build_system(case_from_dict(copy.deepcopy(base), "base.toml"))
     case = _load(base, edits)
-    fresh = build_system(case)                    # the loader's own build (no like)
+    fresh = build_system(case)                    # a build without like
     reused = build_system(case, like=prev)
     assert fresh.mesh_reused == [False] and reused.mesh_reused == [True]
     assert reused.meshes[0] is prev.meshes[0]
     _same(reused, fresh)
-    # through the loader: the check itself reuses the mesh
-    via = build_system(_load(base, edits, like=prev))
-    assert via.mesh_reused == [True]
-    _same(via, fresh)
 
 
 def test_heater_variants_reuse_the_mesh():
     base = tomllib.loads((CASES / "lab-furnace-wall.toml").read_text())
     prev = build_system(case_from_dict(copy.deepcopy(base), "base.toml"))
     case = _load(base, {"wall.inner_face.heater_power": "2.5 kW"})
-    fresh = build_system(case)                    # the loader's own build (no like)
+    fresh = build_system(case)                    # a build without like
     reused = build_system(case, like=prev)
     assert all(reused.mesh_reused) and not any(fresh.mesh_reused)
     _same(reused, fresh)
@@ -147,8 +134,8 @@ def test_conductivity_factor_variants_with_reuse_match_series_resistance(f):
     from study_cases import ONE_LAYER_WALL
     base = tomllib.loads(ONE_LAYER_WALL)
     prev = build_system(case_from_dict(copy.deepcopy(base), "base.toml"))
-    case = _load(base, {"wall.layers[0].conductivity_factor": f}, like=prev)
-    sysm = build_system(case)
+    case = _load(base, {"wall.layers[0].conductivity_factor": f})
+    sysm = build_system(case, like=prev)
     assert sysm.mesh_reused == [True]            # one layer: the cells do not depend on k
     ss = fdwall.solve_steady(case, system=sysm)
     # Incropera sec. 3.1: series resistance of two films and the scaled layer

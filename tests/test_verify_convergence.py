@@ -60,9 +60,9 @@ def _space_errors(geometry, cells_list, Bi=1.0, Fo=0.2, hole=1e-4, refine_list=N
         elif geometry == "slab":
             wall = Wall((Layer(SOLID, L, cells=v),))
         else:
-            wall = Wall((Layer(SOLID, L * (1 - hole), cells=v),), geometry=geometry,
+            wall = Wall((Layer(SOLID, L * (1 - hole), cells=v),), shape=geometry,
                         inner_radius=hole * L)
-        case = Case(run=RunSettings(duration=t, initial=T_INIT, tolerance=1e-6), wall=wall,
+        case = Case(run=RunSettings(duration=t, start_temperature=T_INIT, tolerance=1e-6), wall=wall,
                     inner=Face.adiabatic(), outer=Face.exchange(T_FLUID, h))
         res = run(case)
         x, T, _ = res.profile(t)
@@ -115,8 +115,8 @@ def test_time_order_linear_against_matrix_exponential():
     errs = []
     for M in steps:
         dt = t_end / M
-        case = Case(run=RunSettings(duration=t_end, initial=T_INIT, tolerance=1e3, max_step=dt,
-                                    output_interval=t_end),
+        case = Case(run=RunSettings(duration=t_end, start_temperature=T_INIT, tolerance=1e3, max_step=dt,
+                                    output_every=t_end),
                     wall=wall, inner=Face.adiabatic(), outer=Face.exchange(T_FLUID, h))
         res = run(case)
         assert _forced(res, dt), res.stats
@@ -145,7 +145,7 @@ def test_time_order_nonlinear_against_radau():
     mat = Material("demo-nonlinear", k=Table(*k_tab), cp=Table(*cp_tab), rho=rho)
     ramp = Schedule([0.0, t_end], [300.0, 1000.0])
     wall = Wall((Layer(mat, 0.05, cells=10),))
-    outer = Face(fluid=ramp, convection=hconv, emissivity=eps, surroundings=ramp)
+    outer = Face(fluid_temperature=ramp, convection=hconv, emissivity=eps, surroundings_temperature=ramp)
 
     def flux(t, Ts):
         Te = float(ramp(t))
@@ -157,8 +157,8 @@ def test_time_order_nonlinear_against_radau():
     errs, f = [], None
     for M in steps:
         dt = t_end / M
-        case = Case(run=RunSettings(duration=t_end, initial=300.0, tolerance=10.0, max_step=dt,
-                                    output_interval=t_end),
+        case = Case(run=RunSettings(duration=t_end, start_temperature=300.0, tolerance=10.0, max_step=dt,
+                                    output_every=t_end),
                     wall=wall, inner=Face.adiabatic(), outer=outer)
         res = run(case)
         assert _forced(res, dt), res.stats
@@ -185,8 +185,8 @@ def test_error_falls_with_tolerance_as_two_thirds_power():
     tols = np.array([1e-1, 1e-2, 1e-3, 1e-4])
     errs = []
     for tol in tols:
-        case = Case(run=RunSettings(duration=t_end, initial=T_INIT, tolerance=tol,
-                                    output_interval=t_end / 4),
+        case = Case(run=RunSettings(duration=t_end, start_temperature=T_INIT, tolerance=tol,
+                                    output_every=t_end / 4),
                     wall=wall, inner=Face.adiabatic(), outer=Face.exchange(T_FLUID, h))
         res = run(case)
         C, G = ref.fv_slab_operator(res.x(), K_REF, RHOC)

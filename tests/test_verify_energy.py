@@ -82,7 +82,7 @@ def _stored_independent(res, wall, wall_index=0, T_start=None):
     """Enthalpy stored in one wall since the start, from the node temperatures alone [J]."""
     m = res.system.meshes[wall_index]
     r = m.x
-    geo = wall.geometry
+    geo = wall.shape
     left, right = _half_volumes(geo, r, wall.area, wall.length)
     T = res.wall_T(wall_index)
     T0 = T[0] if T_start is None else T_start
@@ -109,7 +109,7 @@ def _closes(res):
 def test_constant_properties_convective_cooling():
     wall = Wall((Layer(BRICK, 0.2, cells=20),), area=2.0)
     # exact_outputs: outputs at step ends, so flows and temperatures belong to the same state
-    case = Case(run=RunSettings(duration=6 * 3600.0, initial=800.0, exact_outputs=True),
+    case = Case(run=RunSettings(duration=6 * 3600.0, start_temperature=800.0, exact_outputs=True),
                 wall=wall, inner=Face.exchange(900.0, 30.0), outer=Face.exchange(300.0, 10.0))
     res = run(case)
     _closes(res)
@@ -122,9 +122,9 @@ def test_constant_properties_convective_cooling():
 
 def test_temperature_dependent_tables_with_radiation_and_contact():
     """k(T) and cp(T) tables, two layers with a contact resistance, radiation outside."""
-    wall = Wall((Layer(STEEL, 0.004), Layer(WOOL, 0.1)), contact=(5e-3,))
-    outer = Face(fluid=295.0, convection=8.0, emissivity=0.85, surroundings=290.0)
-    case = Case(run=RunSettings(duration=8 * 3600.0, initial=295.0, exact_outputs=True),
+    wall = Wall((Layer(STEEL, 0.004), Layer(WOOL, 0.1)), interface_resistance=(5e-3,))
+    outer = Face(fluid_temperature=295.0, convection=8.0, emissivity=0.85, surroundings_temperature=290.0)
+    case = Case(run=RunSettings(duration=8 * 3600.0, start_temperature=295.0, exact_outputs=True),
                 wall=wall, inner=Face.exchange(Schedule([0.0, 1800.0], [295.0, 873.15]), 40.0),
                 outer=outer)
     res = run(case)
@@ -140,7 +140,7 @@ def test_temperature_dependent_tables_with_radiation_and_contact():
 def test_fixed_temperature_face():
     wall = Wall((Layer(BRICK, 0.1), Layer(WOOL, 0.05)))
     hot = Schedule([0.0, 600.0, 7200.0, 7200.0], [300.0, 900.0, 900.0, 500.0])  # ramp, hold, drop
-    case = Case(run=RunSettings(duration=4 * 3600.0, initial=300.0),
+    case = Case(run=RunSettings(duration=4 * 3600.0, start_temperature=300.0),
                 wall=wall, inner=Face.fixed(hot), outer=Face.exchange(300.0, 10.0))
     res = run(case)
     _closes(res)
@@ -153,11 +153,11 @@ def test_fixed_temperature_face():
 
 @pytest.mark.parametrize("geometry", ["cylinder", "sphere"])
 def test_curved_walls(geometry):
-    wall = Wall((Layer(STEEL, 0.005), Layer(WOOL, 0.06)), geometry=geometry, inner_radius=0.08,
-                length=3.0, contact=(2e-3,))
-    case = Case(run=RunSettings(duration=4 * 3600.0, initial=300.0),
+    wall = Wall((Layer(STEEL, 0.005), Layer(WOOL, 0.06)), shape=geometry, inner_radius=0.08,
+                length=3.0, interface_resistance=(2e-3,))
+    case = Case(run=RunSettings(duration=4 * 3600.0, start_temperature=300.0),
                 wall=wall, inner=Face.exchange(700.0, 200.0),
-                outer=Face(fluid=293.15, convection=6.0, emissivity=0.3))
+                outer=Face(fluid_temperature=293.15, convection=6.0, emissivity=0.3))
     res = run(case)
     _closes(res)
     np.testing.assert_allclose(res.stored, _stored_independent(res, wall),
@@ -171,8 +171,8 @@ def test_flux_schedule_with_steps(fp_strict):
     times = [0.0, 600.0, 600.0, 3000.0, 4800.0, 4800.0, 9000.0]
     values = [0.0, 0.0, 1500.0, 3000.0, 3000.0, 0.0, 0.0]
     wall = Wall((Layer(BRICK, 0.05), Layer(WOOL, 0.05)), area=1.5)
-    case = Case(run=RunSettings(duration=9000.0, initial=300.0),
-                wall=wall, inner=Face(flux=Schedule(times, values)), outer=Face.adiabatic())
+    case = Case(run=RunSettings(duration=9000.0, start_temperature=300.0),
+                wall=wall, inner=Face(heat_flux=Schedule(times, values)), outer=Face.adiabatic())
     res = run(case)
     _closes(res)
     E = 1.5 * sum(0.5 * (values[i] + values[i + 1]) * (times[i + 1] - times[i])
@@ -191,21 +191,21 @@ def _oven(control, heater, duration=6 * 3600.0, leakage=0.002):
     floor = Wall((Layer(BRICK, 0.1),), area=1.0, name="floor")
     door = Wall((Layer(STEEL, 0.003),), area=0.8, name="door")
     walls = (
-        EnclosureWall(panel, Face(fluid=295.0, convection=5.0, emissivity=0.9), inner_h=12.0,
-                      inner_emissivity=0.8),
-        EnclosureWall(floor, Face.exchange(295.0, 3.0), inner_h=8.0),
-        EnclosureWall(door, Face.exchange(295.0, 7.0), inner_h=12.0),
+        EnclosureWall(panel, Face(fluid_temperature=295.0, convection=5.0, emissivity=0.9), inner_face_convection=12.0,
+                      inner_face_emissivity=0.8),
+        EnclosureWall(floor, Face.exchange(295.0, 3.0), inner_face_convection=8.0),
+        EnclosureWall(door, Face.exchange(295.0, 7.0), inner_face_convection=12.0),
     )
-    chamber = Chamber(capacity=Schedule([300.0, 500.0], [3.0e4, 3.6e4]), ambient=295.0,
-                      leakage=leakage, extra_ua=0.5)
-    return Case(run=RunSettings(duration=duration, initial=295.0, output_interval=30.0),
+    chamber = Chamber(heat_capacity=Schedule([300.0, 500.0], [3.0e4, 3.6e4]), room_temperature=295.0,
+                      leakage=leakage, extra_loss=0.5)
+    return Case(run=RunSettings(duration=duration, start_temperature=295.0, output_every=30.0),
                 walls=walls, chamber=chamber, heater=heater, control=control, name="demo-oven")
 
 
 def test_enclosure_thermostat_heater_and_leakage():
     sp, band = 453.15, 4.0
     case = _oven(Control(mode="thermostat", setpoint=sp, band=band),
-                 Heater(power=3000.0, location="chamber"))
+                 Heater(power=3000.0, placement="chamber"))
     res = run(case)
     _closes(res)
     Tc = res.chamber_T
@@ -236,17 +236,17 @@ def test_enclosure_thermostat_heater_and_leakage():
 @pytest.mark.parametrize("control, heater", [
     (Control(mode="fixed"), Heater(power=Schedule([0, 3600, 3600], [2500.0, 2500.0, 0.0]))),
     (Control(mode="duty", duty=0.6, switched=True, period=120.0), Heater(power=3000.0)),
-    (Control(mode="pid", setpoint=433.15, kp=0.05, ki=2e-5, period=30.0), Heater(power=3000.0)),
-    (Control(mode="fixed"), Heater(power=800.0, location="inner", wall=1, alpha=4e-3)),
+    (Control(mode="pid", setpoint=433.15, proportional_gain=0.05, integral_gain=2e-5, period=30.0), Heater(power=3000.0)),
+    (Control(mode="fixed"), Heater(power=800.0, placement="inner_face", wall=1, resistance_coefficient=4e-3)),
     (Control(mode="thermostat", setpoint=360.0, sensor="wall", sensor_wall=0,
-             sensor_depth=0.0), Heater(power=1500.0, location="interface", wall=0,
-                                       interface=0)),
+             sensor_depth=0.0), Heater(power=1500.0, placement="interface", wall=0,
+                                       after_layer=0)),
 ], ids=["fixed-step", "duty-switched", "pid", "inner-face-alpha", "interface-thermostat"])
 def test_enclosure_heater_variants(control, heater):
     case = _oven(control, heater, duration=3 * 3600.0)
     res = run(case)
     _closes(res)
-    if control.mode == "fixed" and heater.alpha == 0.0:
+    if control.mode == "fixed" and heater.resistance_coefficient == 0.0:
         # 2.5 kW for one hour, then off (heater energy = power x time)
         assert res.heater_energy[-1] == pytest.approx(2500.0 * 3600.0, rel=1e-9)
     if control.mode == "thermostat":

@@ -59,7 +59,7 @@ def test_composite_slab_with_films_and_contacts(area, fp_strict):
     contacts = [2e-3, 5e-4]
     h_in, h_out, T_in, T_out = 25.0, 8.0, 873.15, 293.15
     wall = Wall((Layer(LINER, 0.006), Layer(INSUL, 0.10), Layer(JACKET, 0.001)),
-                area=area, contact=tuple(contacts))
+                area=area, interface_resistance=tuple(contacts))
     case, ss = _steady(wall, Face.exchange(T_in, h_in), Face.exchange(T_out, h_out))
     q, T_ref = ref.slab_network(layers, contacts, h_in, h_out, T_in, T_out, area=area)
     assert ss.face_flow[0] == pytest.approx(q, rel=RTOL)        # into the wall at the hot face
@@ -81,7 +81,7 @@ def test_composite_cylinder_with_films_and_contact():
     contacts = [0.0, 1e-3]
     h_in, h_out, T_in, T_out = 150.0, 10.0, 523.15, 283.15
     wall = Wall((Layer(LINER, 0.004), Layer(INSUL, 0.08), Layer(JACKET, 0.0008)),
-                geometry="cylinder", inner_radius=r_in, length=length, contact=tuple(contacts))
+                shape="cylinder", inner_radius=r_in, length=length, interface_resistance=tuple(contacts))
     case, ss = _steady(wall, Face.exchange(T_in, h_in), Face.exchange(T_out, h_out))
     q, T_ref = ref.cylinder_network(r_in, layers, contacts, h_in, h_out, T_in, T_out, length)
     assert ss.face_flow[0] == pytest.approx(q, rel=RTOL)
@@ -100,8 +100,8 @@ def test_composite_sphere_with_films():
     r_in = 0.3
     layers = [(0.01, 40.0), (0.12, 0.05)]
     h_in, h_out, T_in, T_out = 40.0, 6.0, 673.15, 298.15
-    wall = Wall((Layer(LINER, 0.01), Layer(INSUL, 0.12)), geometry="sphere", inner_radius=r_in,
-                contact=(1e-3,))
+    wall = Wall((Layer(LINER, 0.01), Layer(INSUL, 0.12)), shape="sphere", inner_radius=r_in,
+                interface_resistance=(1e-3,))
     case, ss = _steady(wall, Face.exchange(T_in, h_in), Face.exchange(T_out, h_out))
     q, T_ref = ref.sphere_network(r_in, layers, [1e-3], h_in, h_out, T_in, T_out)
     assert ss.face_flow[0] == pytest.approx(q, rel=RTOL)
@@ -133,7 +133,7 @@ def test_slab_conductivity_linear_in_temperature():
 
 def test_cylinder_conductivity_linear_in_temperature():
     k0, b, T0, r1, t, T1, T2, length = 0.04, 3e-3, 300.0, 0.04, 0.06, 700.0, 310.0, 1.5
-    wall = Wall((Layer(_linear_k_material(k0, b, T0), t, cells=12),), geometry="cylinder",
+    wall = Wall((Layer(_linear_k_material(k0, b, T0), t, cells=12),), shape="cylinder",
                 inner_radius=r1, length=length)
     case, ss = _steady(wall, Face.fixed(T1), Face.fixed(T2))
     Q = ref.cylinder_linear_k(k0, b, T0, r1, r1 + t, T1, T2, length)
@@ -147,7 +147,7 @@ def test_radiating_outer_face(eps, h, fp_strict):
     # scipy's brentq (Incropera eqs. 1.7 and 1.12).
     k, L, T1, Tf, Tsur = 0.5, 0.08, 773.15, 293.15, 283.15
     wall = Wall((Layer(_mat("demo-board", k), L, cells=6),))
-    outer = Face(fluid=Tf, convection=h, emissivity=eps, surroundings=Tsur)
+    outer = Face(fluid_temperature=Tf, convection=h, emissivity=eps, surroundings_temperature=Tsur)
     case, ss = _steady(wall, Face.fixed(T1), outer)
     Ts, q = ref.radiating_slab(T1, L, k, h, Tf, eps, Tsur)
     assert ss.face_T[1] == pytest.approx(Ts, rel=RTOL)
@@ -164,9 +164,9 @@ def test_radiating_face_transient_reaches_brentq_state():
     k, L, T1, Tf, Tsur, eps, h = 0.5, 0.02, 773.15, 293.15, 283.15, 0.8, 4.0
     wall = Wall((Layer(_mat("demo-board", k), L, cells=8),))
     # diffusion time L^2/alpha = 800 s; 30000 s is ~40 of them
-    case = Case(run=RunSettings(duration=30000.0, initial=293.15, tolerance=1e-3),
+    case = Case(run=RunSettings(duration=30000.0, start_temperature=293.15, tolerance=1e-3),
                 wall=wall, inner=Face.fixed(T1),
-                outer=Face(fluid=Tf, convection=h, emissivity=eps, surroundings=Tsur))
+                outer=Face(fluid_temperature=Tf, convection=h, emissivity=eps, surroundings_temperature=Tsur))
     res = run(case)
     Ts, q = ref.radiating_slab(T1, L, k, h, Tf, eps, Tsur)
     assert res.face_T[-1, 1] == pytest.approx(Ts, abs=2e-3)
@@ -187,7 +187,7 @@ def test_dirichlet_faces_heat_flows():
     np.testing.assert_allclose(_nodes_at_faces_and_interfaces(ss), T_ref, rtol=RTOL)
     # the same held faces run in time: the transient face flows settle on the same q
     # (insulation diffusion time ~ 0.1^2 / (0.05/108000) ~ 2e4 s; 4e5 s is ~20 of them)
-    case_t = Case(run=RunSettings(duration=4e5, initial=T2, tolerance=1e-3), wall=wall,
+    case_t = Case(run=RunSettings(duration=4e5, start_temperature=T2, tolerance=1e-3), wall=wall,
                   inner=Face.fixed(T1), outer=Face.fixed(T2))
     res = run(case_t)
     assert res.face_flow[-1, 0] == pytest.approx(q, rel=1e-4)

@@ -19,9 +19,9 @@ T_IN, T_AIR = 373.15, 293.15
 
 def _loss(geometry, ri, thickness):
     m = Material(name="ins", k=Constant(K_INS), cp=Constant(1000.0), rho=100.0)
-    w = Wall(layers=(Layer(m, thickness),), geometry=geometry, inner_radius=ri, length=1.0)
-    c = Case(run=RunSettings(duration=1.0), wall=w, inner=Face(temperature=T_IN),
-             outer=Face(fluid=T_AIR, convection=H_OUT))
+    w = Wall(layers=(Layer(m, thickness),), shape=geometry, inner_radius=ri, length=1.0)
+    c = Case(run=RunSettings(duration=1.0), wall=w, inner=Face(fixed_temperature=T_IN),
+             outer=Face(fluid_temperature=T_AIR, convection=H_OUT))
     return solve_steady(c).face_flow[0]
 
 

@@ -52,10 +52,10 @@ def _cooling_case(geometry, Bi, cells, hole=HOLE, tolerance=1e-3):
         wall = Wall((Layer(SOLID, L, cells=cells),))
     else:
         ri = hole * L
-        wall = Wall((Layer(SOLID, L - ri, cells=cells),), geometry=geometry, inner_radius=ri)
+        wall = Wall((Layer(SOLID, L - ri, cells=cells),), shape=geometry, inner_radius=ri)
     times = tuple(Fo * L * L / ALPHA for Fo in FOURIER)
-    return Case(run=RunSettings(duration=times[-1], initial=T_INIT, tolerance=tolerance,
-                                profile_times=times),
+    return Case(run=RunSettings(duration=times[-1], start_temperature=T_INIT, tolerance=tolerance,
+                                snapshots=times),
                 wall=wall, inner=Face.adiabatic(), outer=Face.exchange(T_FLUID, h),
                 name=f"{geometry}-Bi{Bi}")
 
@@ -165,9 +165,9 @@ def test_semi_infinite_constant_flux():
     """
     q = 2000.0
     times = (25.0, 50.0, 100.0)
-    case = Case(run=RunSettings(duration=times[-1], initial=T_FLUID, tolerance=1e-4,
-                                profile_times=times),
-                wall=_thick_slab(), inner=Face(flux=q), outer=Face.adiabatic())
+    case = Case(run=RunSettings(duration=times[-1], start_temperature=T_FLUID, tolerance=1e-4,
+                                snapshots=times),
+                wall=_thick_slab(), inner=Face(heat_flux=q), outer=Face.adiabatic())
     res = run(case)
     for t in times:
         x, T, _ = res.profile(t)
@@ -182,8 +182,8 @@ def test_semi_infinite_constant_flux():
 
 def _step_case(cells_skin, tolerance=1e-4, times=(50.0, 100.0), Ts=500.0, Ti=300.0,
                exact_outputs=False):
-    return Case(run=RunSettings(duration=times[-1], initial=Ti, tolerance=tolerance,
-                                profile_times=times, exact_outputs=exact_outputs),
+    return Case(run=RunSettings(duration=times[-1], start_temperature=Ti, tolerance=tolerance,
+                                snapshots=times, exact_outputs=exact_outputs),
                 wall=_thick_slab(cells_skin), inner=Face.fixed(Ts), outer=Face.adiabatic())
 
 

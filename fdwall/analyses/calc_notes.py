@@ -117,8 +117,8 @@ def _face_rows(section, face):
         rows += _sched_rows(section, "emissivity", face.emissivity, "")
         sur = face.surroundings_temperature if face.surroundings_temperature is not None else face.fluid_temperature
         rows += _sched_rows(section, "radiant surroundings temperature", sur, "K")
-    if face.flux is not None:
-        rows += _sched_rows(section, "imposed heat flux into the wall", face.flux, "W/m2")
+    if face.heat_flux is not None:
+        rows += _sched_rows(section, "imposed heat flux into the wall", face.heat_flux, "W/m2")
     if not rows:
         rows.append(_row(section, "boundary", text="adiabatic (no heat flow)"))
     return rows
@@ -188,12 +188,12 @@ def input_rows(case, system) -> list:
         if face is not None:
             rows += _face_rows(sec, face)
         else:
-            rows += _conv_rows(sec, ew.inner_h, "film coefficient to the chamber")
-            if ew.inner_emissivity is not None:
-                rows += _sched_rows(sec, "emissivity", ew.inner_emissivity, "")
+            rows += _conv_rows(sec, ew.inner_face_convection, "film coefficient to the chamber")
+            if ew.inner_face_emissivity is not None:
+                rows += _sched_rows(sec, "emissivity", ew.inner_face_emissivity, "")
     ch = case.chamber
     if ch is not None:
-        cap = ch.capacity
+        cap = ch.heat_capacity
         if isinstance(cap, (int, float)):
             rows.append(_row("chamber", "heat capacity of the contents", cap, "J/K"))
         else:
@@ -204,7 +204,7 @@ def input_rows(case, system) -> list:
     hz = case.heater
     if hz is not None:
         rows += _sched_rows("heater", "rated power", hz.power, "W")
-        rows.append(_row("heater", "placement", text=hz.location))
+        rows.append(_row("heater", "placement", text=hz.placement))
         rows.append(_row("heater", "supply / rated voltage", hz.voltage_ratio, ""))
         ctl = case.control
         rows.append(_row("control", "mode", text=ctl.mode))
@@ -257,9 +257,9 @@ def correlation_rows(case) -> list:
     out = []
     for j, w, name, face, ew in _faces(case):
         if face is None:
-            c, eps, fixed, flux = ew.inner_h, ew.inner_emissivity, None, None
+            c, eps, fixed, flux = ew.inner_face_convection, ew.inner_face_emissivity, None, None
         else:
-            c, eps, fixed, flux = face.convection, face.emissivity, face.fixed_temperature, face.flux
+            c, eps, fixed, flux = face.convection, face.emissivity, face.fixed_temperature, face.heat_flux
         if fixed is not None:
             out.append({"face": name, "model": "fixed surface temperature",
                         "reference": "boundary condition as given"})

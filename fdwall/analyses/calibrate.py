@@ -31,7 +31,12 @@ import math
 
 import numpy as np
 
+from fdwall.analyses.lumped import implied_rc
+from fdwall.analyses.twonode import block_length, bootstrap_errors, fit_log, residual_acf
 from fdwall.errors import InputError
+from fdwall.model import Control, Face, RunSettings
+from fdwall.schedule import Schedule
+from fdwall.solver import run
 
 __all__ = ["KEYS", "parse_key", "apply_value", "current_value", "log_driven_case",
            "simulate_log", "sensor_filter", "calibrate", "like_for_like"]
@@ -125,7 +130,7 @@ def current_value(case, parsed):
         e = (case.outer if item == "outer" else case.inner).emissivity
     else:
         ew = case.walls[w]
-        e = ew.outer.emissivity if item == "outer" else ew.inner_emissivity
+        e = ew.outer.emissivity if item == "outer" else ew.inner_face_emissivity
     if e is not None and not isinstance(e, (int, float)):
         raise InputError(f"calibration of emissivity:{item}: the case gives it as a table "
                          "against temperature; allowed: a face with one emissivity number")
@@ -166,13 +171,12 @@ def apply_value(case, parsed, value, base=None):
         walls[w] = dataclasses.replace(ew, outer=dataclasses.replace(ew.outer,
                                                                      emissivity=float(value)))
     else:
-        walls[w] = dataclasses.replace(ew, inner_emissivity=float(value))
+        walls[w] = dataclasses.replace(ew, inner_face_emissivity=float(value))
     return dataclasses.replace(case, walls=tuple(walls))
 
 
 def _steps(t, v):
     """Schedule knots holding v[i] on [t[i], t[i+1]) (a step at every change)."""
-    from fdwall.schedule import Schedule
     tt, vv = [float(t[0])], [float(v[0])]
     for i in range(1, len(t)):
         if v[i] != v[i - 1]:
@@ -186,7 +190,6 @@ def _steps(t, v):
 def log_driven_case(case, t, P, T_start, tolerance=None):
     """``case`` driven by the logged power ``P`` [W] at times ``t`` [s], started uniformly
     at ``T_start`` [K], run for the log's length with outputs at its median step."""
-    from fdwall.model import Control, Face, Heater, RunSettings
     span = float(t[-1] - t[0])
     dt = float(np.median(np.diff(t)))
     sched = _steps(np.asarray(t) - t[0], np.asarray(P, float))
@@ -205,14 +208,12 @@ def log_driven_case(case, t, P, T_start, tolerance=None):
             area = 2 * math.pi * w.inner_radius * w.length
         else:
             area = 4 * math.pi * w.inner_radius ** 2
-        from fdwall.schedule import Schedule
         flux = Schedule(sched.times, [v / area for v in sched.values])
         # the logged power enters through the inner face, which replaces that face's own
         # conditions (a fluid held at the case's temperature would be a second, fixed heat
         # source or sink that the logged chamber does not have), as lumped.simulated_fit
-        new = dataclasses.replace(case, inner=Face(flux=flux),
+        new = dataclasses.replace(case, inner=Face(heat_flux=flux),
                                   heater=None, control=Control(mode="fixed"))
-        del Heater
     walls = []
     for ew in (new.walls or ()):
         walls.append(dataclasses.replace(ew, wall=dataclasses.replace(
@@ -230,7 +231,6 @@ def log_driven_case(case, t, P, T_start, tolerance=None):
 
 def simulate_log(case, t):
     """Run a log-driven case; the heated node's temperature [K] at the log times ``t`` [s]."""
-    from fdwall import run
     res = run(case)
     y = res.chamber_T if case.is_enclosure else res.face_T[:, 0]
     return np.interp(np.asarray(t) - t[0], res.times, y)
@@ -293,7 +293,6 @@ def calibrate(case, t, T, P, keys, *, tolerance=1e-3, n_boot=400, seed=0, sensor
     from scipy.optimize import least_squares
     from scipy.special import stdtrit
 
-    from fdwall.analyses.twonode import block_length, bootstrap_errors, residual_acf
     t, T, P = (np.asarray(a, float) for a in (t, T, P))
     keys = [k.strip() for k in keys if k.strip()]
     if not keys or len(set(keys)) != len(keys):
@@ -434,10 +433,8 @@ def like_for_like(case, t, P, T_start, fit=None, *, model="one-node", T_amb=None
         ``ratios`` (log fit / simulated fit: ``R``, ``C``; with ``fit``), ``fit_vs_length``
         (``length_s``, ``R_K_per_W``, ``C_J_per_K`` lists) and ``reading`` (sentences).
     """
-    from fdwall.analyses.twonode import fit_log
     t, P = np.asarray(t, float), np.asarray(P, float)
     if T_amb is None:
-        from fdwall.analyses.lumped import implied_rc
         T_amb = implied_rc(case)["T_amb_K"]
     Ta = np.full(t.size, float(T_amb))
     sim = simulate_log(log_driven_case(case, t, P, T_start), t)

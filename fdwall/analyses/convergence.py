@@ -26,6 +26,10 @@ from dataclasses import replace
 
 import numpy as np
 
+from ..h5tree import add_group
+from ..solver import run as _run
+from .calc_notes import calc_notes
+
 __all__ = ["refined_case", "main_outputs", "convergence_check", "store_report_data",
            "DEFAULT_FACTOR", "DEFAULT_TOL_FACTOR"]
 
@@ -125,7 +129,6 @@ def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
         ``difference`` (refined - base, in ``unit``) and ``relative`` (|difference| over the
         largest magnitude of the same unit) [-].
     """
-    from ..solver import run as _run
     out = {"refine_factor": float(factor), "tolerance_K": float(case.run.tolerance),
            "refined_tolerance_K": float(case.run.tolerance * tol_factor),
            "nodes": int(result.system.n_unknowns), "note": _note(case)}
@@ -166,8 +169,6 @@ def store_report_data(result, h5_path, case=None, progress=False) -> None:
     Called by ``fdwall run CASE --report``; a file without the group reads "not computed"
     in the report.
     """
-    from ..h5tree import add_group
-    from .calc_notes import calc_notes
     case = case if case is not None else result.case
     data = calc_notes(result, case)
     data["convergence"] = convergence_check(case, result, progress=progress)

@@ -31,7 +31,9 @@ from dataclasses import replace
 import numpy as np
 
 from ..model import Case, Control, ModelError
+from ..solver import run, solve_steady
 from ..solver.layout import CF_POWER_FACTOR
+from ..system import build_system
 
 __all__ = [
     "warm_up_time", "settle_time", "hold_duty", "switch_on_times", "full_power_energy",
@@ -202,7 +204,7 @@ def _time_schedules(case: Case):
         out.append(("chamber ambient", case.chamber.room_temperature))
     for ew in case.walls:
         f = ew.outer
-        for key, attr in (("temperature", "fixed_temperature"), ("flux", "flux"),
+        for key, attr in (("temperature", "fixed_temperature"), ("flux", "heat_flux"),
                           ("fluid", "fluid_temperature"),
                           ("surroundings", "surroundings_temperature")):
             s = getattr(f, attr)
@@ -405,7 +407,6 @@ def steady_duty(case: Case, t=None) -> dict:
         ``leakage_loss_W`` (leakage + extra UA), ``loss_W`` (total), ``balance_W`` (should be
         ~0), ``time_s`` and ``steady`` (the SteadyResult).
     """
-    from ..solver import solve_steady
     _need_enclosure(case, "steady_duty")
     _need_heater(case, "steady_duty")
     t = _hold_time(case) if t is None else float(t)
@@ -620,8 +621,6 @@ def periodic_state(case: Case, period: float, tol_K: float = 0.5, max_cycles: in
         ``extra_energy_first_cycle_J``, ``first_warm_up_s``, ``periodic_warm_up_s``};
         ``first_result`` and ``last_result`` (Result of the first and last cycle).
     """
-    from ..solver import run
-    from ..system import build_system
     _need_enclosure(case, "periodic_state")
     period = float(period)
     if not (np.isfinite(period) and period > 0):
@@ -704,7 +703,6 @@ def periodic_state(case: Case, period: float, tol_K: float = 0.5, max_cycles: in
 def _steady_power_to_hold(case: Case, target: float, t: float) -> float:
     """Rated power [W] at which the heater, fully on, holds the chamber at ``target`` [K] in
     steady state (the steady loss at ``target``, referred to the rating)."""
-    from ..solver import solve_steady
     h = case.heater
     P = max(_rated_max(h), 1.0)
     ctl = Control(mode="thermostat", setpoint=float(target), band=0.0, sensor="chamber")
@@ -769,8 +767,6 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
         ``trials`` [(rating W, peak chamber K, reached)], ``n_trials``, ``result`` (the run at
         ``power_W``).
     """
-    from ..solver import run
-    from ..system import build_system
     _need_enclosure(case, "size_heater")
     _need_heater(case, "size_heater")
     if control not in ("case", "full"):

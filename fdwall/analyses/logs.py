@@ -9,9 +9,12 @@ from __future__ import annotations
 
 import io
 import re
+from datetime import datetime, timedelta, timezone
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 import numpy as np
 
+from fdwall.analyses.twonode import fit_log
 from fdwall.errors import CaseError, InputError
 from fdwall.units import parse_header_unit, parse_unit, ureg
 
@@ -53,8 +56,6 @@ def parse_time_zone(text):
 
     Returns a :class:`datetime.tzinfo`; raises InputError naming what is allowed.
     """
-    from datetime import timedelta, timezone
-    from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
     s = str(text).strip()
     m = re.fullmatch(r"(?:UTC)?([+-])(\d{1,2}):?(\d{2})?", s)
     if m:
@@ -79,7 +80,6 @@ def _clock_or_timestamps(cells, key, name, time_zone):
 
     Returns (seconds since the first row, start as ISO text or '', list of repair notes).
     """
-    from datetime import datetime, timezone
     notes = []
     clock = [_CLOCK.match(str(c)) for c in cells]
     if all(clock):
@@ -432,7 +432,6 @@ def fit_one_node_log(t, T, P, T_amb, **kw) -> dict:
     ``C_J_per_K``, ``C_stderr_J_per_K``, ``tau_s``, ``T0_K``, ``rms_K``,
     ``lag1_autocorrelation``, ``n_eff``, ``correlation_RC``, ``warnings``.
     """
-    from fdwall.analyses.twonode import fit_log
     t, T, P, Ta = (np.asarray(a, float) for a in (t, T, P, T_amb))
     _check_inputs(t, T, P, Ta)
     return fit_log(t, T, P, Ta, model="one-node", **kw)

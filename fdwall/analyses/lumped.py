@@ -29,11 +29,17 @@ from dataclasses import replace
 import numpy as np
 
 from fdwall.analyses.networks import cauer_from_foster, cauer_step_response, foster_step_response
+from fdwall.analyses.twonode import residual_acf
 from fdwall.errors import InputError
 from fdwall.model import Control, Face, Heater, ModelError
-from fdwall.physics.convection import EXPONENT_RANGE, h_power_law
+from fdwall.physics.convection import EXPONENT_RANGE, Convection, h_power_law
 from fdwall.schedule import Schedule
 from fdwall.solver.layout import FI_FIXED_T, FI_FLUID, FI_NODE, system_args
+
+from ..solver import native as K
+from ..solver.steady import solve_steady
+from ..solver.transient import run as run_transient
+from ..system import build_system
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
            "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
@@ -175,7 +181,6 @@ def one_node_response(t, P, R, C, T_amb, T0):
 def _ambient(case, sysm, t) -> float:
     """Ambient [K] of the lumped model at time ``t`` [s]: the chamber's room air for an
     enclosure, else the outer face's fixed or fluid temperature (InputError if it has none)."""
-    from ..solver.native import sched_eval
     if case.is_enclosure:
         return float(case.chamber.room_temperature(t))
     outer = sysm.face_i[1]     # face 1: the outer face of the single wall
@@ -184,7 +189,7 @@ def _ambient(case, sysm, t) -> float:
         raise InputError("the lumped R/C needs an ambient: a fixed_temperature or a "
                          "fluid_temperature at the outer face, and this case has neither. "
                          "Give the outer face one of them.")
-    return float(sched_eval(sysm.s_off, sysm.stab, s, float(t), 0.0))
+    return float(K.sched_eval(sysm.s_off, sysm.stab, s, float(t), 0.0))
 
 
 def implied_rc(case, t=None) -> dict:
@@ -210,8 +215,6 @@ def implied_rc(case, t=None) -> dict:
         mean steady temperature), ``tau_s`` = R C_stored [s], ``T_hot_K`` and ``T_amb_K`` [K],
         ``Q_W`` the heat flow [W], ``stored_J`` the energy held above ambient [J].
     """
-    from ..solver.steady import solve_steady
-    from ..system import build_system
     sysm = build_system(case)
     st = solve_steady(case, t=t, system=sysm)
     tt = st.time
@@ -387,7 +390,6 @@ def fit_power_law_loss(t, T, T_amb, *, area, power=0.0, heat_capacity=None, expo
     """
     from scipy.optimize import least_squares
 
-    from fdwall.physics.convection import Convection
     t = np.asarray(t, dtype=float).ravel()
     T = np.asarray(T, dtype=float).ravel()
     Ta = _per_row(T_amb, t.size, "T_amb")
@@ -451,7 +453,6 @@ def fit_power_law_loss(t, T, T_amb, *, area, power=0.0, heat_capacity=None, expo
     a, n, C, T0 = unpack(sol.x)
     # residual variance on the effective sample size n (1 - r1) / (1 + r1) of residuals with
     # lag-1 autocorrelation r1, as the R/C fits of fdwall.analyses.twonode do
-    from fdwall.analyses.twonode import residual_acf
     r1 = float(residual_acf(-sol.fun, 1)[0])
     r1c = min(max(r1, 0.0), 0.99)
     n_eff = t.size * (1 - r1c) / (1 + r1c)
@@ -487,9 +488,6 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
     """
     from scipy.linalg import eigh
 
-    from fdwall.solver import kernels
-    from fdwall.solver.steady import solve_steady
-    from fdwall.system import build_system
 
     sys_ = build_system(case)
     nun = sys_.n_unknowns
@@ -504,7 +502,7 @@ def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
     nf = sys_.face_i.shape[0]
     qf, hc, hr = np.zeros(nf), np.zeros(nf), np.zeros(nf)
     extra = np.zeros(4)
-    kernels.assemble(T, tt, 0.0, 0.0, *system_args(sys_), F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf,
+    K.assemble(T, tt, 0.0, 0.0, *system_args(sys_), F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf,
                      hc, hr, extra)
     N = sys_.n_nodes
     J = np.diag(Jd.copy())
@@ -592,7 +590,7 @@ def _flux_inner(case, flux):
     """``case`` with its inner face replaced by the imposed flux ``flux`` [W/m2] (a number or
     a Schedule), touch marks kept."""
     f = case.inner
-    return replace(case, inner=Face(flux=flux, touch=f.touch, surface_class=f.surface_class))
+    return replace(case, inner=Face(heat_flux=flux, touch=f.touch, surface_class=f.surface_class))
 
 
 def rc_analysis(case, t=None, networks=None) -> dict:
@@ -619,8 +617,6 @@ def rc_analysis(case, t=None, networks=None) -> dict:
         plain-language strings) and, with ``networks``, ``networks`` (the dict of
         :func:`rc_networks`).
     """
-    from fdwall.solver.steady import solve_steady
-    from fdwall.system import build_system
 
     out = implied_rc(case, t=t)
     st = solve_steady(case, t=t, system=build_system(case))
@@ -934,7 +930,7 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
         if case.is_enclosure or case.heater is not None:
             sched = Schedule(kt, kv)
             if case.heater is None:
-                heater = Heater(power=sched, location="chamber")
+                heater = Heater(power=sched, placement="chamber")
             else:
                 heater = replace(case.heater, power=sched, voltage_ratio=1.0, resistance_coefficient=0.0)
             return replace(case, run=run, heater=heater, control=Control())
@@ -945,8 +941,6 @@ def _driven_case(case, tp, pp, duration, initial, n_points):
 
 
 def _simulate(case, power, duration, n_points, initial=None, progress=False):
-    from ..solver.transient import run as run_transient
-    from ..system import build_system
     tp, pp = _power_steps(power, duration)
     sysm0 = build_system(case)
     T_amb = _ambient(case, sysm0, 0.0)

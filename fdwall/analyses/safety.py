@@ -23,9 +23,19 @@ from typing import Optional
 
 import numpy as np
 
+try:
+    import tomllib
+except ModuleNotFoundError:  # pragma: no cover - Python 3.10
+    import tomli as tomllib
+
+from .. import solver  # drivers as solver.run / solver.solve_steady (patchable in tests)
+from ..atomic import atomic_path
 from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
 from ..errors import InputError
+from ..materials import Material
 from ..model import SURFACE_CLASSES, Case, Face, Layer, RunSettings, Wall
+from ..physics.convection import Convection
+from ..system import build_system
 
 __all__ = [
     "CRITERIA", "SURFACE_CLASSES", "DAMAGE_MODELS", "effusivity", "contact_temperature",
@@ -48,10 +58,6 @@ DEFAULT_CONTACT_TIME = 10.0
 
 
 def _toml(name):
-    try:
-        import tomllib
-    except ModuleNotFoundError:  # pragma: no cover - Python 3.10
-        import tomli as tomllib
     with open(_HERE / name, "rb") as fh:
         return tomllib.load(fh)
 
@@ -329,7 +335,6 @@ class ContactResult:
 
 
 def _skin_layers():
-    from ..materials import Material
     out = []
     for ly in skin_data()["layer"]:
         m = Material(name=ly["name"], k=ly["k_W_mK"], cp=ly["rho_c_J_m3K"] / 1000.0, rho=1000.0,
@@ -388,8 +393,6 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
     hold_inner : bool
         Hold the wall's inner face at its start temperature (else adiabatic).
     """
-    from ..solver import run
-    from ..system import build_system
     sd = skin_data()
     skin = _skin_layers() if skin is None else tuple(skin)
     Ts = sd["surface_temperature_C"] + 273.15 if T_skin_surface is None else float(T_skin_surface)
@@ -433,7 +436,7 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
     n_out = 400
     case = replace(probe, run=RunSettings(duration=t_c, output_every=t_c / n_out,
                                           tolerance=0.002, start_temperature=T0))
-    res = run(case, initial=T0, system=sysm, strict=False, progress=False)
+    res = solver.run(case, initial=T0, system=sysm, strict=False, progress=False)
     iface = m.interface_nodes
     j_surf = iface[nw - 1]
     if contact_resistance > 0:
@@ -577,8 +580,8 @@ def _last_switch_off(case: Case):
     if case.heater is not None:
         scheds.append(("heater power", case.heater.power))
         scheds.append(("control enable", case.control.power_on))
-    if case.wall is not None and case.inner.flux is not None:
-        scheds.append(("inner-face heat flux", case.inner.flux))
+    if case.wall is not None and case.inner.heat_flux is not None:
+        scheds.append(("inner-face heat flux", case.inner.heat_flux))
     for what, s in scheds:
         if s is None:
             continue
@@ -593,7 +596,6 @@ def _last_switch_off(case: Case):
 
 
 def _scale_h(face: Face, factor):
-    from ..physics.convection import Convection
     c = face.convection
     if isinstance(c, (int, float)):
         return replace(face, convection=float(c) * factor)
@@ -642,8 +644,6 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
     sensitivity : bool
         Re-solve the steady state with film coefficients +-25 % and bright/painted emissivity.
     """
-    from ..solver import run, solve_steady
-    from ..system import build_system
     _check_criterion(criterion)
     if surface is not None:
         _check_class(surface)
@@ -689,12 +689,12 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
     has_sun = False
     sysm = build_system(run_case)
     if result is None:
-        result = run(run_case, progress=progress, strict=False, system=sysm)
+        result = solver.run(run_case, progress=progress, strict=False, system=sysm)
     else:
         sysm = result.system
     if steady is None:
         try:
-            steady = solve_steady(run_case, system=sysm)
+            steady = solver.solve_steady(run_case, system=sysm)
         except Exception as exc:  # a missing steady state must not lose the run's verdicts
             steady = None
             warnings.append(f"no steady state found: {exc}")
@@ -705,7 +705,7 @@ def evaluate_touch(case: Case, *, criterion="table", contact_time=None, surface=
         vals = []
         for j in range(len(run_case.wall_list)):
             f = _outer_face(run_case, j)
-            if f.flux is not None:
+            if f.heat_flux is not None:
                 has_sun = True
             s = f.fluid_temperature if f.fluid_temperature is not None else f.surroundings_temperature
             if s is not None:
@@ -869,7 +869,6 @@ def _after_off(case, result, rows, off_at, door_open):
 
 
 def _sensitivity(case, rows, warnings):
-    from ..solver import solve_steady
     variants = [("film coefficient -25 %", lambda f: _scale_h(f, 0.75)),
                 ("film coefficient +25 %", lambda f: _scale_h(f, 1.25)),
                 ("bright metal jacket, emissivity 0.1",
@@ -880,7 +879,7 @@ def _sensitivity(case, rows, warnings):
     for label, fn in variants:
         c = _with_outer(case, lambda f, fn=fn: f if f.fixed_temperature is not None else fn(f))
         try:
-            st = solve_steady(c)
+            st = solver.solve_steady(c)
         except Exception as exc:
             warnings.append(f"sensitivity '{label}': no steady state ({exc})")
             continue
@@ -903,7 +902,6 @@ def write_touch_plots(a: TouchAssessment, outdir, stem) -> list:
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    from ..atomic import atomic_path
     outdir = Path(outdir)
     outdir.mkdir(parents=True, exist_ok=True)
     paths = []

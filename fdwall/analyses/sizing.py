@@ -19,6 +19,7 @@ cylinder, W for a sphere], energy [J per m2 / per m / per piece], money in the u
 """
 from __future__ import annotations
 
+import difflib
 import math
 from dataclasses import dataclass, field, replace
 
@@ -330,7 +331,6 @@ def wall_index(case, wall=None):
         return wall
     if wall in names:
         return names.index(wall)
-    import difflib
     near = difflib.get_close_matches(wall, names, n=3, cutoff=0.4)
     raise InputError(f"no wall named {wall!r}; walls are {', '.join(repr(n) for n in names)}"
                      + (f" (did you mean {near[0]!r}?)" if near else ""))

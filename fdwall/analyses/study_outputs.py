@@ -220,8 +220,8 @@ def variant_row(base: dict, edits: dict, name: str, outputs=DEFAULT_OUTPUTS,
     system = None
     try:
         data = edited(base, edits, name)
-        case = case_from_dict(data, name, like=like)
-        system = build_system(case)          # the loader's, shared by the steady and the run
+        case = case_from_dict(data, name)
+        system = build_system(case, like=like)   # shared by the steady state and the run
         outer = _outer_faces(case, system)
         if any(OUTPUT_INFO[k][0] == "steady" for k in outputs):
             ss = solve_steady(case, system=system)

@@ -24,6 +24,7 @@ from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 
 from ..atomic import atomic_path
 from ..errors import InputError
+from ..solver import native  # noqa: F401  (loaded in every worker, see _warm)
 from .study_outputs import TEXT_OUTPUTS, header_of, variant_row
 
 __all__ = ["batch_size", "table_header", "write_table", "read_partial", "execute",
@@ -155,8 +156,8 @@ def _batch(base, items, outputs, skin_limit):
 
 
 def _warm():
-    """Worker start-up: load the compiled kernels once per worker process."""
-    from ..solver import native  # noqa: F401
+    """Worker start-up: load the compiled kernels once per worker process (importing this
+    module, which the pool does to find this function, loads fdwall.solver.native)."""
 
 
 class _Progress:

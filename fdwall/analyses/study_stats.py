@@ -21,9 +21,14 @@ dimensionless [-]).  Layer 8 (analyses): numpy, scipy, SALib (imported lazily).
 """
 from __future__ import annotations
 
+import contextlib
+import io
 import math
+import warnings
 
 import numpy as np
+
+from ..errors import InputError
 
 __all__ = ["check_correlation", "iman_conover", "prcc", "delta_indices", "sobol_unit_sample",
            "sobol_indices", "spearman"]
@@ -31,7 +36,6 @@ __all__ = ["check_correlation", "iman_conover", "prcc", "delta_indices", "sobol_
 
 def check_correlation(c, d: int, file: str) -> np.ndarray:
     """Validate a rank-correlation matrix from a study file (InputError naming the key)."""
-    from ..errors import InputError
     try:
         m = np.array(c, dtype=float)
     except (TypeError, ValueError):
@@ -155,9 +159,6 @@ def delta_indices(x: np.ndarray, y: np.ndarray, seed: int, resamples: int = 20) 
     nan = {k: np.full(d, np.nan) for k in ("delta", "delta_conf", "S1", "S1_conf")}
     if len(y) < 20 or len(np.unique(y)) < 2:
         return nan
-    import contextlib
-    import io
-    import warnings
 
     from SALib.analyze import delta
     with warnings.catch_warnings(), contextlib.redirect_stdout(io.StringIO()), \
@@ -175,7 +176,6 @@ def delta_indices(x: np.ndarray, y: np.ndarray, seed: int, resamples: int = 20) 
 
 def sobol_unit_sample(d: int, n: int, seed: int) -> np.ndarray:
     """Saltelli design for first-order and total indices on [0, 1]^d: n (d + 2) rows."""
-    import warnings
 
     from SALib.sample import sobol
     with warnings.catch_warnings():
@@ -188,7 +188,6 @@ def sobol_unit_sample(d: int, n: int, seed: int) -> np.ndarray:
 
 def sobol_indices(y: np.ndarray, d: int, seed: int) -> dict:
     """First-order S1 and total ST Sobol indices (SALib) with 95 % bootstrap halves."""
-    import warnings
 
     from SALib.analyze import sobol
     with warnings.catch_warnings():

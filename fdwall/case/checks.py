@@ -84,7 +84,7 @@ def _exposed(wall, side):
     return out
 
 
-def _service_warnings(case):
+def _service_warnings(case, sysm=None):
     out = []
     walls = case.wall_list
     # --- faces
@@ -116,9 +116,9 @@ def _service_warnings(case):
         k = int(np.clip(np.searchsorted(edges, ctl.sensor_depth, side="right") - 1, 0,
                         len(w.layers) - 1))
         hz = case.heater
-        first = 0 if hz is not None and hz.location in ("chamber", "inner") else k
-        if hz is not None and hz.location == "interface" and hz.wall == ctl.sensor_wall:
-            first = min(k, hz.interface + 1)
+        first = 0 if hz is not None and hz.placement in ("chamber", "inner_face") else k
+        if hz is not None and hz.placement == "interface" and hz.wall == ctl.sensor_wall:
+            first = min(k, hz.after_layer + 1)
         sp = _max(ctl.setpoint)
         for i in range(first, k + 1):
             _layer_service(out, w, i, sp, "the setpoint of the wall sensor "
@@ -131,12 +131,8 @@ def _service_warnings(case):
                 T0 = float(init) if layer.start_temperature is None else layer.start_temperature
                 _layer_service(out, w, i, T0, "the start temperature" if layer.start_temperature is None
                                else "its start temperature")
-    else:
+    elif sysm is not None:   # a start temperature per node: needs the system's node map
         try:
-            from ..system import build_system, handed_system
-            sysm = handed_system(case)          # the loader's system, read only
-            if sysm is None:
-                sysm = build_system(case)
             if init.shape == (sysm.n_unknowns,):
                 seen = {}
                 gid = 0
@@ -181,12 +177,12 @@ def _convection_warnings(case):
         for ew in case.walls:
             check(ew.outer.convection, _max(ew.outer.fluid_temperature), True,
                   f"Wall '{ew.wall.name}' outer face")
-            check(ew.inner_h, sp, False, f"Wall '{ew.wall.name}' inner face")
+            check(ew.inner_face_convection, sp, False, f"Wall '{ew.wall.name}' inner face")
     else:
         w = case.wall
         hot_in = max([T for T, _ in _face_sources(case.inner)] or [0.0])
         hot_out = max([T for T, _ in _face_sources(case.outer)] or [0.0])
-        if case.heater is not None or case.inner.flux is not None:
+        if case.heater is not None or case.inner.heat_flux is not None:
             hot_in = max(hot_in, hot_out + 1.0)
         check(case.inner.convection, _max(case.inner.fluid_temperature), hot_in < hot_out,
               f"Wall '{w.name}' inner face")
@@ -195,13 +191,17 @@ def _convection_warnings(case):
     return out
 
 
-def case_warnings(case) -> list:
+def case_warnings(case, system=None) -> list:
     """Warnings about a case found before running it.
 
     Parameters
     ----------
     case : fdwall.model.Case
         A case (e.g. from :func:`fdwall.case.load_case`).
+    system : fdwall.system.System, optional
+        The case's system (``fdwall.build_system(case)``), read only.  Needed only for a
+        start temperature given per node (an array): without it those starts are not checked
+        against the layers' service temperatures (the case layer builds no system).
 
     Returns
     -------
@@ -211,4 +211,4 @@ def case_warnings(case) -> list:
         temperature at the face, setpoint, start temperature), then convection correlations
         used outside their data range.  Empty when nothing was found.
     """
-    return _service_warnings(case) + _convection_warnings(case)
+    return _service_warnings(case, system) + _convection_warnings(case)

@@ -22,10 +22,15 @@ try:  # Python >= 3.11
 except ModuleNotFoundError:  # pragma: no cover - Python 3.10
     import tomli as _toml
 
+import difflib
+from dataclasses import replace
+
 from .. import units as U
 from ..errors import InputError
 from ..materials import MaterialError, get_material, list_materials, material_from_dict
 from ..model import (
+    SURFACE_CLASSES,
+    TOUCH_MARKS,
     Bridge,
     Case,
     Chamber,
@@ -37,7 +42,12 @@ from ..model import (
     Layer,
     RunSettings,
     Wall,
+    chamber_watch_problem,
+    depth_problem,
+    interface_problem,
 )
+from ..physics.convection import EXPONENT_RANGE, Convection
+from ..physics.radiation import get_finish
 from ..schedule import Schedule
 from . import schema as S
 from .errors import CaseError
@@ -121,7 +131,7 @@ def load_case(path) -> Case:
 
 
 def case_from_dict(data: Mapping, source_name: str = "<case>", *, text: str = "",
-                   stem: str = "", like=None) -> Case:
+                   stem: str = "") -> Case:
     """Build a Case from an already parsed case file (a dict as read from TOML).
 
     Parameters
@@ -134,11 +144,6 @@ def case_from_dict(data: Mapping, source_name: str = "<case>", *, text: str = ""
         Text of the case file, kept verbatim in ``Case.source``.
     stem : str, optional
         Default title when the file has none.
-    like : fdwall.system.System, optional
-        A system of a case of the same wall shape (e.g. the previous variant of a study):
-        the check of this case reuses its meshes where the shape is unchanged
-        (``fdwall.system.build_system(case, like=...)``).
-
     Returns
     -------
     fdwall.model.Case
@@ -149,11 +154,17 @@ def case_from_dict(data: Mapping, source_name: str = "<case>", *, text: str = ""
         For any missing, unknown or invalid key.
     """
     loader = _Loader(data, source_name, text, stem)
-    loader.like = like
     return loader.case()
 
 
 # ============================================================================ helpers
+
+def _refuse(sec, key, problem):
+    """Refuse ``key`` of ``sec`` when a rule of :mod:`fdwall.model` (the rule's owner) gives a
+    (problem, allowed) pair; the same words as the model's own error."""
+    if problem is not None:
+        raise sec.error(key, *problem)
+
 
 @contextlib.contextmanager
 def _model(file, key, what="this part of the case"):
@@ -171,7 +182,6 @@ _FRACTION = re.compile(r"^\s*(\d+(?:\.\d*)?)\s*/\s*(\d+(?:\.\d*)?)\s*$")
 
 def _power_law_exponent(sec, key):
     """The exponent n [-] of a power-law film: a number or a fraction text ("1/3"), 0 .. 1."""
-    from ..physics.convection import EXPONENT_RANGE
     lo, hi = EXPONENT_RANGE
     allowed = (f"a number {lo:g} .. {hi:g}, e.g. 0.25 (laminar natural convection of air) or "
                '"1/3" (turbulent); 0 is a constant film coefficient. Below 0 the film '
@@ -297,6 +307,7 @@ class _Loader:
                                 key=f"walls[{j}].name", allowed="a different name for each wall")
             chamber, ch_start = self._chamber(top.table("chamber", S.CHAMBER, "the [chamber] table"))
         self.walls, self.wall_names = walls, wall_names
+        self.has_chamber = chamber is not None
 
         heater = None
         if top.has("heater"):
@@ -343,7 +354,7 @@ class _Loader:
             else:
                 case = Case(run=settings, walls=tuple(ews), chamber=chamber, heater=heater,
                             control=control, name=title, source=self.text, report=ident)
-        return self._check(case)
+        return case
 
     def _report(self, sec) -> tuple:
         """The [report] table as ((key, text), ...) in the order of schema.REPORT."""
@@ -377,22 +388,6 @@ class _Loader:
                                  f"make {n_out * self.n_nodes:.3g} stored values, more than fdwall "
                                  f"keeps ({MAX_STORED:g}, {MAX_STORED * 8 / 1e9:g} GB)",
                             "a longer output_every, or fewer cells (cells, mesh_refine)")
-
-    def _check(self, case):
-        """Assemble the system once: catches inconsistencies early, with the file named.
-
-        The system built here is handed over to the case (:func:`fdwall.system.hand_over`):
-        the first ``build_system(case)`` afterwards (a run, a steady state, a study variant)
-        takes it instead of building it a second time.
-        """
-        from ..system import build_system, event_rows, hand_over
-        with _model(self.file, "(case)", "the case"):
-            like = getattr(self, "like", None)
-            sysm = build_system(case) if like is None else build_system(case, like=like)
-        with _model(self.file, "run.watch", "a [[run.watch]] entry"):
-            event_rows(sysm, case)
-        hand_over(case, sysm)
-        return case
 
     # ------------------------------------------------------------------ materials
     def _materials(self):
@@ -587,7 +582,7 @@ class _Loader:
             bridge = self._bridge(sec.table("bridge", S.BRIDGE, "a thermal bridge"), wall)
             self.n_nodes += nodes  # the bridge is a second path through the wall
         with _model(self.file, sec.path, f"wall '{name}'"):
-            ew = EnclosureWall(wall=wall, outer=outer, inner_h=inner_h, inner_emissivity=inner_eps,
+            ew = EnclosureWall(wall=wall, outer=outer, inner_face_convection=inner_h, inner_face_emissivity=inner_eps,
                                bridge=bridge)
         return ew, starts
 
@@ -643,13 +638,11 @@ class _Loader:
         marks = self._touch_marks(sec, side)
         face = self._face_conditions(sec, side, geo)
         if marks:
-            from dataclasses import replace
             face = replace(face, **marks)
         return face
 
     def _touch_marks(self, sec, side):
         """``touch`` and ``surface_class`` of an outer face (fdwall touch), as Face fields."""
-        from ..model import SURFACE_CLASSES, TOUCH_MARKS
         out = {}
         for key, field_name, choices in (("touch", "touch", TOUCH_MARKS),
                                          ("surface_class", "surface_class", SURFACE_CLASSES)):
@@ -747,7 +740,7 @@ class _Loader:
             fluxes.append(_combine(lambda g: a * g, G))
         flux = _combine(lambda *q: float(sum(q)), *fluxes) if fluxes else None
         with _model(self.file, sec.path, f"the {side} face"):
-            return Face(flux=flux, fluid_temperature=air, convection=conv, emissivity=eps, surroundings_temperature=surr)
+            return Face(heat_flux=flux, fluid_temperature=air, convection=conv, emissivity=eps, surroundings_temperature=surr)
 
     def _emissivity(self, sec, key):
         v = sec.raw(key)
@@ -759,7 +752,6 @@ class _Loader:
                                lo=0.0, hi=1.0, what="table")
             return e[0] if len(T) == 1 else Schedule(T, e)
         if isinstance(v, str) and not _NUMERIC_TEXT.match(v):
-            from ..physics.radiation import get_finish
             try:
                 fin = get_finish(v)
             except InputError as exc:
@@ -774,7 +766,6 @@ class _Loader:
                         allowed=allowed)
 
     def _convection(self, sec, side, geo, chamber):
-        from ..physics.convection import Convection
         model = sec.text("model", choices=S.CONVECTION_MODELS)
         used = set(S.CONVECTION_KEYS[model]) | {"model", "multiplier"}
         if model not in S.CONVECTION_NO_AIR:
@@ -896,7 +887,7 @@ class _Loader:
         box = sec.quantity_list("inner_dimensions", "length", None, positive=True, length=3)
         start = sec.quantity("start_temperature", "temperature", None)
         with _model(self.file, sec.path, "the chamber"):
-            ch = Chamber(capacity=cap, room_temperature=room, leakage=leak, extra_loss=extra,
+            ch = Chamber(heat_capacity=cap, room_temperature=room, leakage=leak, extra_loss=extra,
                          inner_dimensions=tuple(box) if box else None, start_temperature=start)
         return ch, start
 
@@ -915,7 +906,6 @@ class _Loader:
         if isinstance(v, str):
             if v in names:
                 return names.index(v)
-            import difflib
             near = difflib.get_close_matches(v, names, n=1, cutoff=0.5)
             hint = f" (did you mean '{near[0]}'?)" if near else ""
             raise sec.error(key, f"there is no wall named '{v}'{hint}", allowed)
@@ -937,19 +927,12 @@ class _Loader:
         j = self._wall_ref(sec, "wall") if placement != "chamber" else 0
         iface = 0
         if placement == "interface":
-            n = len(self.walls[j].layers)
             iface = sec.integer("after_layer")
-            if not 0 <= iface < n - 1:
-                raise sec.error("after_layer", f"there is no interface after layer {iface} in "
-                                               f"wall '{self.wall_names[j]}', which has {n} "
-                                               "layer(s)",
-                                f"a layer index 0..{n - 2} (the element lies between that layer "
-                                "and the next)" if n > 1 else "a wall with two or more layers")
+            _refuse(sec, "after_layer", interface_problem(self.walls[j], iface))
         elif sec.has("after_layer"):
             raise sec.error("after_layer", "'after_layer' applies to placement = \"interface\" only")
         with _model(self.file, sec.path, "the heater"):
-            return Heater(power=P, location={"inner_face": "inner"}.get(placement, placement),
-                          wall=j, interface=iface,
+            return Heater(power=P, placement=placement, wall=j, after_layer=iface,
                           voltage_ratio=_at_most(sec, "voltage_ratio", 1.0, MAX_VOLTAGE_RATIO,
                                                  "an element on ten times its rated voltage "
                                                  "takes a hundred times its rated power and "
@@ -981,12 +964,7 @@ class _Loader:
         if sensor == "wall":
             j = self._wall_ref(sec, "sensor_wall")
             d = sec.quantity("sensor_depth", "length", 0.0, nonnegative=True)
-            th = self.walls[j].thickness
-            if d > th * (1 + 1e-12):
-                raise sec.error("sensor_depth", f"{sec.raw('sensor_depth')!r} lies beyond the "
-                                                f"outer face of wall '{self.wall_names[j]}' "
-                                                f"({th * 1000:g} mm thick)",
-                                f"a depth from 0 to {th * 1000:g} mm below the inner face")
+            _refuse(sec, "sensor_depth", depth_problem(self.walls[j], d))
             kw["sensor_wall"], kw["sensor_depth"] = j, d
         else:
             for k in ("sensor_wall", "sensor_depth"):
@@ -1009,23 +987,16 @@ class _Loader:
             depth = 0.0
             spot = "chamber" if where == "chamber" else f"{where} face"
         elif which == "after_layer":
-            n = len(wall.layers)
             k = sec.integer("after_layer")
-            if not 0 <= k < n - 1:
-                raise sec.error("after_layer", f"there is no interface after layer {k} in wall "
-                                               f"'{self.wall_names[j]}', which has {n} layer(s)",
-                                f"a layer index 0..{n - 2}" if n > 1 else
-                                "'at' or 'depth' for a one-layer wall")
+            _refuse(sec, "after_layer", interface_problem(wall, k))
             where, depth = f"interface:{k + 1}", 0.0
             spot = f"interface after layer {k}"
         else:
             depth = sec.quantity("depth", "length", nonnegative=True)
-            if depth > wall.thickness * (1 + 1e-12):
-                raise sec.error("depth", f"{sec.raw('depth')!r} lies beyond the outer face of "
-                                         f"wall '{self.wall_names[j]}' "
-                                         f"({wall.thickness * 1000:g} mm thick)",
-                                f"a depth from 0 to {wall.thickness * 1000:g} mm")
+            _refuse(sec, "depth", depth_problem(wall, depth))
             where, spot = "", f"{depth * 1000:g} mm deep"
         name = sec.text("name", f"{self.wall_names[j]} {spot} at {thr - 273.15:g} degC")
+        if which == "at" and where == "chamber":
+            _refuse(sec, "at", chamber_watch_problem(self.has_chamber, name))
         with _model(self.file, sec.path, "the watch entry"):
-            return Event(temperature=thr, wall=j, depth=depth, where=where, name=name)
+            return Event(temperature=thr, wall=j, depth=depth, at=where, name=name)

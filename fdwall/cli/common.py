@@ -9,16 +9,35 @@ an exit code.  Raise :class:`InputError` for bad input (exit 2, nothing written)
 from __future__ import annotations
 
 import argparse
+import datetime as _dt
 import json
 import math
 import os
 import sys
 import textwrap
+from datetime import datetime, timezone
+from importlib.metadata import version as _dist_version
 from pathlib import Path
 
+import numpy as np
+from pint.errors import PintError
+
+try:
+    import tomllib
+except ModuleNotFoundError:  # pragma: no cover - Python 3.10
+    import tomli as tomllib
+
+from .. import system as fsystem  # fsystem.build_system (patchable in tests)
+from ..atomic import atomic_path
+from ..case import CaseError, case_warnings, load_case
 from ..errors import FdwallError, OutputError
 from ..errors import InputError as _LibInputError
+from ..h5tree import write_file
+from ..materials import MaterialError
+from ..model import ModelError
 from ..provenance import provenance
+from ..report import html as _html
+from ..units import parse_quantity
 
 # Exit codes, shared by all commands (documented once, in fdwall/cli/__init__.py and README).
 EXIT_OK = 0
@@ -66,8 +85,7 @@ def _info(text: str, quiet: bool = False) -> None:
 
 def _version() -> str:
     try:
-        from importlib.metadata import version
-        return version("fdwall")
+        return _dist_version("fdwall")
     except Exception:  # pragma: no cover - source tree without metadata
         return "0+unknown"
 
@@ -88,35 +106,15 @@ def _input_errors():
     fdwall's own :class:`fdwall.errors.InputError` (with CaseError, MaterialError and
     ModelError below it), broken TOML and unit-library errors; a bare ``ValueError`` is not
     among them: raised from inside fdwall it is a bug, reported as an internal failure."""
-    from ..materials import MaterialError
-    from ..model import ModelError
-    try:
-        import tomllib
-    except ModuleNotFoundError:  # pragma: no cover - Python 3.10
-        import tomli as tomllib
-    types = [_LibInputError, MaterialError, ModelError, tomllib.TOMLDecodeError]
-    try:
-        from ..case import CaseError
-        types.insert(0, CaseError)
-    except ImportError:  # pragma: no cover - loader not installed
-        pass
-    try:
-        from pint.errors import PintError
-        types.append(PintError)
-    except ImportError:  # pragma: no cover
-        pass
+    types = [CaseError, _LibInputError, MaterialError, ModelError, tomllib.TOMLDecodeError]
+    types.append(PintError)
     return tuple(types)
 
 
 def _load_case(path):
     """Read a case file: (Case, list of warning strings).  Raises the loader's errors."""
-    from ..case import load_case
-    try:
-        from ..case import case_warnings
-    except ImportError:  # pragma: no cover - older loader without warnings
-        case_warnings = None
     case = load_case(path)
-    warns = list(case_warnings(case)) if case_warnings is not None else []
+    warns = list(case_warnings(case))
     return case, warns
 
 
@@ -130,10 +128,6 @@ def _load(path_arg):
     if p.is_dir():
         raise InputError(f"'{path_arg}' is a folder, not a case file; give the path of a TOML "
                          "case file.")
-    try:
-        import tomllib
-    except ModuleNotFoundError:  # pragma: no cover
-        import tomli as tomllib
     try:
         return _load_case(p)
     except ImportError as exc:
@@ -165,15 +159,9 @@ def _out_of_range(exc, path_arg) -> str:
 
 def _build(case, path_arg):
     """Build the kernel system; model errors found only here become InputErrors."""
-    from ..system import build_system
     try:
-        system = build_system(case)
+        system = fsystem.build_system(case)
         system.initial_vector(case.run.start_temperature)
-        try:  # validate the watched events (wall/interface indices) before running
-            from ..solver.transient import event_rows
-            event_rows(system, case)
-        except ImportError:  # pragma: no cover
-            pass
         return system
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), path_arg)) from None
@@ -185,7 +173,6 @@ def _build(case, path_arg):
 
 def _clean(o):
     """JSON-safe copy: NaN/inf -> None, numpy scalars/arrays -> Python."""
-    import numpy as np
     if isinstance(o, dict):
         return {str(k): _clean(v) for k, v in o.items()}
     if isinstance(o, (list, tuple)):
@@ -207,7 +194,6 @@ def _dumps(obj) -> str:
 
 
 def _write_text_atomic(path: Path, text: str) -> None:
-    from ..atomic import atomic_path
     with atomic_path(path) as tmp:
         with open(tmp, "w", encoding="utf-8") as fh:
             fh.write(text)
@@ -246,8 +232,6 @@ def quantity(text, kind: str, option: str, *, positive: bool = False,
         A bare number where a unit is needed, a wrong unit, an impossible value: one paragraph
         naming the option.
     """
-    from ..errors import CaseError
-    from ..units import parse_quantity
     try:
         return parse_quantity(text, kind, where=option, positive=positive,
                               nonnegative=nonnegative)
@@ -314,7 +298,6 @@ def warn_replacing(paths) -> list:
     list of str
         The paths that exist (and are about to be replaced).
     """
-    import datetime as _dt
     replaced = []
     for p in paths:
         p = Path(p)
@@ -338,10 +321,6 @@ def write_report(args, h5_path, out=None):
     """
     if not getattr(args, "report", False):
         return None
-    try:
-        from ..report import html as _html
-    except ModuleNotFoundError as exc:  # pragma: no cover - report module not installed
-        raise Failure(f"the HTML report is not available in this installation ({exc}).") from None
     h5_path = Path(h5_path)
     if out is None:
         stem = h5_path.stem
@@ -383,9 +362,7 @@ def write_analysis(args, h5_path, groups: dict, *, kind: str, case_name: str,
     material library and the options that change the answer; see :mod:`fdwall.provenance`).
     A failed write is a :class:`WriteError` (exit 1) and leaves no file.
     """
-    from datetime import datetime, timezone
 
-    from ..h5tree import write_file
     h5_path = Path(h5_path)
     attrs = {"kind": kind, "fdwall_version": _version(), "case_name": case_name,
              "created": datetime.now(timezone.utc).isoformat()}

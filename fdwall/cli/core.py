@@ -2,9 +2,29 @@
 from __future__ import annotations
 
 import sys
+import time as _t
 from pathlib import Path
 
+from .. import solver  # drivers as solver.run / solver.solve_steady (patchable in tests)
+from ..analyses import convergence
+from ..analyses.enclosure import summarise_enclosure
 from ..errors import InternalError
+from ..materials import MaterialError, get_material, list_materials
+from ..report.plots import write_plots
+from ..report.text import (
+    LIST_TEMPS_C,
+    TOUCH_CAUTION,
+    fmt_time,
+    format_case,
+    format_material,
+    format_material_list,
+    format_steady,
+    format_summary,
+    material_k_in_range,
+    material_table,
+)
+from ..solver import native
+from ..solver.observers import InterruptCheck
 from . import common
 from .common import (
     EXIT_NOT_CONVERGED,
@@ -22,12 +42,12 @@ from .common import (
     _warn,
     _write_text_atomic,
 )
+from .interrupts import SIGNAL_NAMES, SecondSignal, exit_code_for, signals_to_flag
 
 
 def cmd_run(args) -> int:
     """``fdwall run``: SIGINT / SIGTERM during the run stop it cleanly (partial result written,
     marked incomplete, exit 130 / 143); a second signal stops the writing too."""
-    from .interrupts import SecondSignal, exit_code_for, signals_to_flag
     try:
         with signals_to_flag() as flag:
             return _run_and_write(args, flag)
@@ -38,10 +58,6 @@ def cmd_run(args) -> int:
 
 
 def _run_and_write(args, flag) -> int:
-    from ..report.text import TOUCH_CAUTION, fmt_time, format_summary
-    from ..solver import run, solve_steady
-    from ..solver.observers import InterruptCheck
-    from .interrupts import SIGNAL_NAMES, exit_code_for
     quiet = args.quiet
     case, warns = _load(args.case)
     for w in warns:
@@ -51,7 +67,7 @@ def _run_and_write(args, flag) -> int:
     outdir = Path(args.out) if args.out else Path("results") / stem
     progress = False if quiet else args.progress
     try:
-        result = run(case, progress=progress, strict=False, system=system,
+        result = solver.run(case, progress=progress, strict=False, system=system,
                      observers=[InterruptCheck(flag)])
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), args.case)) from None
@@ -71,7 +87,7 @@ def _run_and_write(args, flag) -> int:
     result.steady = None
     if not interrupted:
         try:
-            result.steady = solve_steady(case, system=system)
+            result.steady = solver.solve_steady(case, system=system)
         except Exception as exc:  # a failed steady solve must not lose the transient result
             _warn(f"no steady state found for '{args.case}': {exc}")
     # write
@@ -83,7 +99,6 @@ def _run_and_write(args, flag) -> int:
                     "input_warnings": warns, "caution": TOUCH_CAUTION})
     if case.is_enclosure and not interrupted:
         try:
-            from ..analyses.enclosure import summarise_enclosure
             summary["enclosure"] = summarise_enclosure(result, steady=False)
         except Exception as exc:  # analyses must never lose the run's own results
             _warn(f"enclosure analysis not available: {exc}")
@@ -92,7 +107,6 @@ def _run_and_write(args, flag) -> int:
         result.write_hdf5(h5)
         plots = []
         if not args.no_plots and not interrupted:
-            from ..report.plots import write_plots
             plots = write_plots(result, outdir, stem)
         files += [str(p) for p in plots]
         summary["files"] = files
@@ -102,7 +116,6 @@ def _run_and_write(args, flag) -> int:
                          "Choose another folder with --out DIR.") from None
     if not interrupted:
         if args.report:  # convergence check and report data, stored in the result first
-            from ..analyses import convergence
             convergence.store_report_data(result, h5, case, progress=progress)
         report = common.write_report(args, h5)
         if report:
@@ -123,14 +136,12 @@ def _run_and_write(args, flag) -> int:
 
 
 def cmd_steady(args) -> int:
-    from ..report.text import TOUCH_CAUTION, format_steady
-    from ..solver import solve_steady
     case, warns = _load(args.case)
     for w in warns:
         _warn(w)
     system = _build(case, args.case)
     try:
-        st = solve_steady(case, system=system)
+        st = solver.solve_steady(case, system=system)
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), args.case)) from None
     except InternalError:
@@ -150,7 +161,6 @@ def cmd_steady(args) -> int:
 
 
 def cmd_check(args) -> int:
-    from ..report.text import format_case
     case, warns = _load(args.case)
     system = _build(case, args.case)
     print(format_case(case, system, warns), end="")
@@ -160,13 +170,10 @@ def cmd_check(args) -> int:
 
 
 def _k_row(m):
-    from ..report.text import LIST_TEMPS_C, material_k_in_range
     return {f"{t:g}": material_k_in_range(m, t) for t in LIST_TEMPS_C}
 
 
 def cmd_materials(args) -> int:
-    from ..materials import MaterialError, get_material, list_materials
-    from ..report.text import format_material, format_material_list, material_table
     if args.name:
         try:
             m = get_material(args.name)
@@ -194,12 +201,10 @@ def cmd_materials(args) -> int:
 
 def cmd_compile(args) -> int:
     """``fdwall compile``: build the ahead-of-time kernel module, or report its status."""
-    from ..solver import native
     if args.status:
         print(f"kernels: {'ahead-of-time' if native.MODE == 'aot' else 'just-in-time'}"
               f" ({native.STATUS})")
         return EXIT_OK
-    import time as _t
     t0 = _t.perf_counter()
     print("fdwall: compiling the kernels ahead of time (tens of seconds) ...", flush=True)
     try:

@@ -3,14 +3,23 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import numpy as np
+
+from ..analyses.calibrate import calibrate, like_for_like
+from ..analyses.logs import REPAIRS, physics_check, read_log
+from ..analyses.lumped import rc_analysis
+from ..analyses.twonode import fit_log, predict
+from ..errors import CaseError
+from ..errors import InputError as LibInputError
+from ..report.fitplot import plot_fit
+from ..units import parse_quantity
 from . import common
 from .common import EXIT_OK, InputError
+from .fit_power import cmd_fit_power_law
 
 
 def _value_or_column(text, kind, option):
     """A text that parses as a quantity with a unit is a value (SI); anything else a column."""
-    from ..errors import CaseError
-    from ..units import parse_quantity
     try:
         float(text)
     except ValueError:
@@ -66,11 +75,6 @@ def _scalars(d):
 
 
 def cmd_fit(args) -> int:
-    import numpy as np
-
-    from ..analyses.logs import REPAIRS, read_log
-    from ..analyses.twonode import fit_log, predict
-    from ..errors import InputError as LibInputError
     power, rated = _heater(args)
     ambient = _value_or_column(args.ambient, "temperature", "--ambient")
     temps = [c.strip() for c in args.temperature.split(",") if c.strip()]
@@ -90,7 +94,6 @@ def cmd_fit(args) -> int:
     at_power = (None if args.at_power is None
                 else common.quantity(args.at_power, "power", "--at-power"))
     if args.model == "power-law":
-        from .fit_power import cmd_fit_power_law
         return cmd_fit_power_law(args, power, rated, ambient, temps, repair)
     for opt, v in (("--area", args.area), ("--heat-capacity", args.heat_capacity),
                    ("--exponent", args.exponent)):
@@ -112,9 +115,6 @@ def cmd_fit(args) -> int:
                          "the log).")
     if args.case:
         case, case_warns = common._load(args.case)
-        from ..analyses.calibrate import like_for_like
-        from ..analyses.logs import physics_check
-        from ..analyses.lumped import rc_analysis
         try:
             implied = rc_analysis(case)
             check = physics_check(fit, implied, float(log["t_s"][-1] - log["t_s"][0]))
@@ -133,7 +133,6 @@ def cmd_fit(args) -> int:
         if lfl:
             check["reading"] = check["reading"] + lfl["reading"]
         if args.calibrate:
-            from ..analyses.calibrate import calibrate
             keys = [k.strip() for k in args.calibrate.split(",") if k.strip()]
             try:
                 cal = calibrate(case, log["t_s"], log["T_K"], log["P_W"], keys,
@@ -242,7 +241,6 @@ def cmd_fit(args) -> int:
     png = outdir / f"{stem}-fit.png"
     plots = []
     if not args.no_plots:  # drawn first, so that --report embeds it
-        from ..report.fitplot import plot_fit
         label = {"one-node": "one-node fit", "two-node": "two-node fit",
                  "time-constant": "time-constant fit"}[fit["model"]]
         try:

@@ -10,6 +10,13 @@ from __future__ import annotations
 import math
 from pathlib import Path
 
+import numpy as np
+
+from ..analyses.logs import read_log
+from ..analyses.lumped import fit_power_law_loss
+from ..errors import InputError as LibInputError
+from ..physics.convection import EXPONENT_RANGE
+from ..report.fitplot import plot_fit
 from . import common
 from .common import EXIT_OK, InputError
 
@@ -21,7 +28,6 @@ _NOT_WITH = (("sensor_lag", "--sensor-lag"), ("dead_time", "--dead-time"), ("cas
 def exponent_option(text):
     """The value of ``--exponent``: a plain number or a fraction ("1/3"), 0 .. 1; None if not
     given."""
-    from ..physics.convection import EXPONENT_RANGE
     if text is None:
         return None
     lo, hi = EXPONENT_RANGE
@@ -60,11 +66,6 @@ def predictions(fit, T_amb, area, *, setpoint=None, power=None, rated_power=None
 
 def cmd_fit_power_law(args, power, rated, ambient, temps, repair) -> int:
     """Run ``fdwall fit --model power-law`` (options already parsed by ``cmd_fit``)."""
-    import numpy as np
-
-    from ..analyses.logs import read_log
-    from ..analyses.lumped import fit_power_law_loss
-    from ..errors import InputError as LibInputError
     for attr, opt in _NOT_WITH:
         if getattr(args, attr, None):
             raise InputError(f"option {opt} does not go with --model power-law (the power-law "
@@ -152,7 +153,6 @@ def cmd_fit_power_law(args, power, rated, ambient, temps, repair) -> int:
     png = outdir / f"{stem}-fit.png"
     plots = []
     if not args.no_plots:
-        from ..report.fitplot import plot_fit
         label = f"power-law fit, n = {fit['exponent']:.3g}"
         try:
             outdir.mkdir(parents=True, exist_ok=True)

@@ -5,7 +5,10 @@ from pathlib import Path
 
 import numpy as np
 
+from ..analyses.lumped import fit_vs_log_length, rc_analysis
 from ..errors import SolverError
+from ..report.rc_plots import plot_rc
+from ..report.text import fmt_time
 from . import common
 from .common import EXIT_NOT_CONVERGED, EXIT_OK, InputError
 
@@ -23,7 +26,6 @@ _REFERENCES = [
 
 
 def _fmt_s(x):
-    from ..report.text import fmt_time
     return "-" if x is None else f"{x:.5g} s ({fmt_time(x)})"
 
 
@@ -125,7 +127,6 @@ def format_log_lengths(ll) -> str:
     L = [f"  one-node fit of fdwall's own curve ({ll['power_W']:.5g} W step from ambient; "
          f"R fixed at {ll['R_fixed_K_per_W']:.5g} K/W, or fitted):",
          "    log length        C (R fixed)   /C_eff  /C_stored    C (R fitted)   R fitted"]
-    from ..report.text import fmt_time
     for r in ll["rows"]:
         ce = r["C_R_fixed_over_C_effective"]
         L.append(f"    {fmt_time(r['log_length_s']):>12s}  {r['C_fit_R_fixed_J_per_K']:12.5g}"
@@ -143,7 +144,6 @@ def format_log_lengths(ll) -> str:
 
 
 def cmd_rc(args) -> int:
-    from ..analyses.lumped import fit_vs_log_length, rc_analysis
     n_net, lengths, power = _options(args)
     case, warns = common.load(args.case)
     for w in warns:
@@ -232,7 +232,6 @@ def cmd_rc(args) -> int:
     try:
         outdir.mkdir(parents=True, exist_ok=True)
         if not args.no_plots:
-            from ..report.rc_plots import plot_rc
             files_pre.append(plot_rc(r, outdir / f"{stem}-rc.png", case.name or stem, ll))
         if net is not None:
             csv = outdir / f"{stem}-rc-networks.csv"

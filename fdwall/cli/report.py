@@ -3,6 +3,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+from ..report import html as _html
 from . import common
 
 __all__ = ["register", "cmd_report"]
@@ -12,7 +13,6 @@ _IDENT = ("project", "equipment", "author", "checker", "revision", "date")
 
 def cmd_report(args) -> int:
     """Render RESULT.h5 to HTML; exit 2 when it is not an fdwall result."""
-    from ..report import html as _html
     src = Path(args.result)
     if not src.is_file():
         raise common.InputError(f"RESULT '{src}' does not exist; give an fdwall result file (.h5).")

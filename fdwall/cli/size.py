@@ -1,10 +1,30 @@
 """``fdwall size CASE``: insulation thickness of one layer (of a wall) meeting targets."""
 from __future__ import annotations
 
+import difflib
 import math
 import re
 from pathlib import Path
 
+from ..errors import ConvergenceError
+from ..errors import InputError as LibInputError
+from ..materials import MaterialError, get_material, list_materials
+from ..report.sizing_plot import plot_tradeoff
+from ..sizing import (
+    Conditions,
+    Economics,
+    Energy,
+    LossTarget,
+    PeakSkinTarget,
+    ServiceTarget,
+    SkinTarget,
+    WarmUpTarget,
+    size_candidates,
+    size_heater_at,
+    size_layer,
+    touch_target,
+    wall_index,
+)
 from . import common
 from .common import EXIT_OK, InputError
 from .interrupts import run_guarded
@@ -75,7 +95,6 @@ def _energy(args):
     eta = _efficiency(args.supply_efficiency) if args.supply_efficiency is not None else 1.0
     price = _price(args.energy_price) if args.energy_price is not None else None
     # lazy like the other commands: keeps the start-up of every command light
-    from ..sizing import Energy
     return Energy(hours=hours, efficiency=eta, price=price)
 
 
@@ -148,7 +167,6 @@ def _economics(args, energy):
     if energy is None or energy.price is None:
         raise InputError("the economic thickness needs the energy cost: give --hours-per-year "
                          "TIME and --energy-price PRICE too.")
-    from ..sizing import Economics
     rate = _rate(args.discount_rate) if args.discount_rate is not None else 0.0
     return Economics(years=_years(args.years), rate=rate, **_installed(args.installed_cost))
 
@@ -165,7 +183,6 @@ def _factor(text):
 
 
 def _conditions(args, which):
-    from ..sizing import Conditions
     amb = getattr(args, f"{which}_ambient")
     wind = getattr(args, f"{which}_wind")
     return Conditions(
@@ -176,14 +193,12 @@ def _conditions(args, which):
 
 
 def _material(name, case, option):
-    from ..materials import MaterialError, get_material, list_materials
     own = {la.material.name: la.material for w in case.wall_list for la in w.layers}
     if name in own:
         return own[name]
     try:
         return get_material(name)
     except MaterialError:
-        import difflib
         near = difflib.get_close_matches(name, list(own) + list_materials(), n=3, cutoff=0.5)
         raise InputError(f"{option}: unknown material {name!r}; it is neither in the case nor "
                          "in the bundled library" + (f" (did you mean "
@@ -203,7 +218,6 @@ def _layer(args, wall):
     for lst in (names, labels):
         if args.layer in lst:
             return lst.index(args.layer)
-    import difflib
     near = difflib.get_close_matches(args.layer, names + labels)
     raise InputError(f"--layer: no layer of material {args.layer!r} in '{args.case}'"
                      f"{' wall ' + repr(wall.name) if args.wall else ''}; layers are {names}"
@@ -218,20 +232,6 @@ def cmd_size(args) -> int:
 
 
 def _size(args, guard) -> int:
-    from ..errors import ConvergenceError
-    from ..errors import InputError as LibInputError
-    from ..sizing import (
-        LossTarget,
-        PeakSkinTarget,
-        ServiceTarget,
-        SkinTarget,
-        WarmUpTarget,
-        size_candidates,
-        size_heater_at,
-        size_layer,
-        touch_target,
-        wall_index,
-    )
     case, warns = common.load(args.case)
     for w in warns:
         common.warn(w)
@@ -390,7 +390,6 @@ def _size(args, guard) -> int:
     with guard.writing():
         files = []
         if not args.no_plots:
-            from ..report.sizing_plot import plot_tradeoff
             png = outdir / f"{stem}-size.png"
             outdir.mkdir(parents=True, exist_ok=True)
             what = f"layer {layer} ({r.material})" + (f" of wall '{r.wall}'" if r.wall else "")

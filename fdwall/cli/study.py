@@ -15,6 +15,7 @@ from ..cautions import SAFETY_CAUTION
 from ..errors import InputError as LibInputError
 from ..h5tree import write_file
 from ..provenance import provenance
+from ..report.study_plots import write_study_plots
 from . import common
 from .common import InputError, WriteError
 
@@ -129,7 +130,6 @@ def cmd_study(args) -> int:
         raise WriteError(f"cannot write '{h5}': {exc.strerror or exc}.") from None
     files = [str(csv_path), str(h5)]
     if not getattr(args, "no_plots", False) and rows:
-        from ..report.study_plots import write_study_plots
         try:
             files += write_study_plots(st, rows, unc, str(outdir), stem)
         except OSError as exc:

@@ -4,6 +4,12 @@ from __future__ import annotations
 from pathlib import Path
 
 from ..analyses import convergence
+from ..analyses.safety import _check_class, _check_criterion
+from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
+from ..errors import InputError as LibInputError
+from ..h5tree import add_group
+from ..report.text import fmt_time
+from ..safety import CRITERIA, DAMAGE_MODELS, SURFACE_CLASSES, evaluate_touch, write_touch_plots
 from . import common
 from .common import EXIT_NOT_CONVERGED, EXIT_OK, InputError, WriteError
 from .interrupts import SIGNAL_NAMES, SignalStop, exit_code_for, run_guarded
@@ -14,13 +20,11 @@ def _c(T):
 
 
 def _t(t):
-    from ..report.text import fmt_time
     return "-" if t is None else fmt_time(t)
 
 
 def format_touch(a, case_file) -> str:
     """Text summary of a :class:`fdwall.safety.TouchAssessment`."""
-    from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
     info = a.criterion_info
     L = [f"Touch safety of '{case_file}'",
          f"  criterion: {a.criterion}, contact time {a.contact_time_s:g} s, ambient "
@@ -109,9 +113,6 @@ def cmd_touch(args) -> int:
 
 def _touch(args, guard) -> int:
     # options first: bad input must write nothing
-    from ..analyses.safety import _check_class, _check_criterion
-    from ..errors import InputError as LibInputError
-    from ..safety import CRITERIA, DAMAGE_MODELS, SURFACE_CLASSES, evaluate_touch
     try:
         if args.criterion not in CRITERIA:
             _check_criterion(args.criterion)
@@ -183,8 +184,6 @@ def _touch(args, guard) -> int:
 
 def _write_touch(args, a, d, h5, js, outdir, stem, files) -> None:
     """Write the touch result file, its JSON and plots (each atomically)."""
-    from ..h5tree import add_group
-    from ..safety import write_touch_plots
     try:
         outdir.mkdir(parents=True, exist_ok=True)
         a.result.steady = a.steady

@@ -96,6 +96,7 @@ from functools import cached_property
 import numpy as np
 from numba import njit
 
+from fdwall.compiled import entry
 from fdwall.errors import InputError
 from fdwall.physics.air import (
     P_ATM,
@@ -1190,14 +1191,13 @@ class Convection:
         float or numpy.ndarray
             Film coefficient [W/m2/K].
         """
-        from ..solver import native  # compiled ahead of time when built
         par = np.array(self.par, dtype=float)
         if np.ndim(Ts) == 0 and np.ndim(Tf) == 0:
-            return float(native.h_conv(par, float(Ts), float(Tf)))
+            return float(entry("h_conv", h_conv)(par, float(Ts), float(Tf)))
         ts, tf = np.broadcast_arrays(np.asarray(Ts, float), np.asarray(Tf, float))
         shape = ts.shape
-        out = native.h_conv_array(par, np.array(ts, dtype=float).ravel(),
-                                  np.array(tf, dtype=float).ravel())
+        out = entry("h_conv_array", h_conv_array)(par, np.array(ts, dtype=float).ravel(),
+                                                  np.array(tf, dtype=float).ravel())
         return out.reshape(shape)
 
     # ------------------------------------------------------------------ diagnostics
@@ -1231,9 +1231,8 @@ class Convection:
                     "film may lie outside)."
                 )
             return out
-        from ..solver import native
-        ra, gr, re, pr, tfilm = native.dimensionless_numbers(np.array(self.par, dtype=float),
-                                                             float(Ts), float(Tf))
+        ra, gr, re, pr, tfilm = entry("dimensionless_numbers", dimensionless_numbers)(
+            np.array(self.par, dtype=float), float(Ts), float(Tf))
         lo, hi = T_PROPS_VALID
         if not (lo <= tfilm <= hi):
             out.append(

@@ -7,13 +7,16 @@ base64 data URIs, no external resource). Files keep SI; display units are "si" (
 from __future__ import annotations
 
 import base64
+import json
+from datetime import datetime
 from pathlib import Path
 
 import numpy as np
 
 from .. import atomic
+from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
 from ..errors import InputError
-from ..h5tree import read_tree, unit_of
+from ..h5tree import SUFFIX_UNITS, read_tree, unit_of
 from . import units as _units
 
 __all__ = ["write_report", "render_report", "KINDS"]
@@ -36,7 +39,6 @@ def _strip(key: str, unit: str) -> str:
 
 
 def _units_suffixes():
-    from ..h5tree import SUFFIX_UNITS
     return SUFFIX_UNITS.keys()
 
 
@@ -120,7 +122,6 @@ def _images(h5_path: Path, created: str = ""):
     """PNG plots written beside the result (<stem>*.png) as base64 data URIs; plots older
     than the result (by more than :data:`STALE_PLOT_S`) belong to an earlier run: skipped,
     and returned by name as the second item."""
-    from datetime import datetime
     try:
         t_created = datetime.fromisoformat(str(created).replace("Z", "+00:00")).timestamp()
     except ValueError:
@@ -243,7 +244,6 @@ def _run_results(data: dict, system: str) -> dict:
         mesh = (data.get("mesh") or {}).get(name) or {}
         wall = mesh.get("name", name)
         try:
-            import json
             labels = json.loads(mesh.get("layers", "[]"))
         except (TypeError, ValueError):
             labels = []
@@ -306,7 +306,6 @@ def _convergence(data: dict, system: str) -> dict:
 
 def _run_sections(data: dict, system: str) -> dict:
     """Sections of a run result (kind transient/steady), read from its stored groups."""
-    import json
     out = {}
     solver = data.get("solver") or {}
     energy = data.get("energy") or {}
@@ -445,7 +444,6 @@ def render_report(h5_path, units: str = "si", ident: dict | None = None) -> str:
                 and f"{name}.{k}" not in long_keys and name not in shown}
         summary += [(f"{name}.{n}", v, u) for n, v, u in _scalar_rows(scal, units)]
     if run.get("touch"):
-        from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
         run["touch"]["caution"] = run["touch"]["caution"] or SAFETY_CAUTION
         run["touch"]["note"] = run["touch"]["note"] or BURN_INDICATOR_NOTE
         attrs.setdefault("caution", run["touch"]["caution"])

@@ -10,8 +10,11 @@ energy in [MJ].
 from __future__ import annotations
 
 import os
+import textwrap
 
 import numpy as np
+
+from ..atomic import atomic_path
 
 __all__ = ["plot_temperatures", "plot_profiles", "layer_label", "plot_energy", "write_plots"]
 
@@ -32,7 +35,6 @@ def _figure(w=9.0, h=5.5, rows=1, cols=1, sharex=False):
 
 def _save(fig, path) -> str:
     """Write ``fig`` as PNG to ``path`` atomically; return the path."""
-    from ..atomic import atomic_path
     path = os.fspath(path)
     with atomic_path(path, ".png.part") as tmp:
         fig.savefig(tmp, format="png")
@@ -50,7 +52,6 @@ def _hours(result):
 
 
 def _title(result, what):
-    import textwrap
     t = f"{result.case.name}: {what}"
     if not result.complete:
         t += f"  (INCOMPLETE: stopped at {result.times[-1] / 3600.0:.3g} h)"
@@ -196,7 +197,6 @@ def shared_visible_legend(axes, tol_px: float = HIDDEN_TOLERANCE_PX):
 def _visible_legend(ax, width=60):
     """Handles and labels of the curves :func:`merge_hidden` leaves visible, long labels
     wrapped at ``width`` characters."""
-    import textwrap
     handles, labels = [], []
     for ln, _ in merge_hidden(ax):
         handles.append(ln)
@@ -294,7 +294,7 @@ def plot_temperatures(result, path) -> str:
     _setpoint(ax, result, th)
     # event crossings as small markers on the panel of the watched spot
     for (name, (up, down)), ev in zip(result.events.items(), case.run.watch):
-        a = ax_out if ev.where == "outer" else ax
+        a = ax_out if ev.at == "outer" else ax
         for t, mk in ((up, "^"), (down, "v")):
             if np.isfinite(t):
                 a.plot([t / 3600.0], [ev.temperature - KELVIN_OFFSET], mk, color="#444444", ms=7,
@@ -416,7 +416,6 @@ def plot_profiles(result, path, times=None) -> str:
                     bbox=None if wide else dict(fc="white", ec="none", alpha=0.75, pad=1.0))
         geo = "" if w.shape == "slab" else f" ({w.shape})"
         ttl = f"wall '{w.name}'{geo}"
-        import textwrap
         ax.set_title("\n".join(textwrap.wrap(ttl, 70 if ncol == 2 else 100)), fontsize=9)
     for ax in axes[len(walls):]:
         ax.set_visible(False)

@@ -11,6 +11,9 @@ import textwrap
 
 import numpy as np
 
+from ..analyses.enclosure import summarise_enclosure
+from ..solver import native
+
 __all__ = [
     "format_summary", "format_steady", "format_case", "format_material_list", "format_material",
     "layer_peaks", "TOUCH_CAUTION", "KELVIN_OFFSET",
@@ -133,12 +136,12 @@ def _is_outer(name: str) -> bool:
 
 def _event_where(ev, wall=None) -> str:
     """Where an event watches: 'outer face', 'interface after layer N (label)', 'x mm deep'."""
-    if ev.where == "outer":
+    if ev.at == "outer":
         return "outer face"
-    if ev.where == "inner":
+    if ev.at == "inner":
         return "inner face"
-    if ev.where.startswith("interface:"):
-        n = ev.where.split(":", 1)[1]
+    if ev.at.startswith("interface:"):
+        n = ev.at.split(":", 1)[1]
         label = ""
         try:
             label = f" ({wall.layers[int(n) - 1].label})" if wall is not None else ""
@@ -352,7 +355,6 @@ def format_summary(result) -> str:
 
 def _enclosure_lines(result) -> list:
     """Warm-up, hold duty, steady duty and where the heater energy went (enclosures)."""
-    from ..analyses.enclosure import summarise_enclosure
     try:
         s = summarise_enclosure(result, steady=True)
     except Exception as exc:  # an analysis must never hide the run's own summary
@@ -525,8 +527,8 @@ def _face_text(face) -> str:
     if face.emissivity is not None:
         sur = face.surroundings_temperature if face.surroundings_temperature is not None else face.fluid_temperature
         parts.append(f"radiation, {_eps_text(face.emissivity)}, to surroundings at {_sched_text(sur)}")
-    if face.flux is not None:
-        parts.append(f"imposed flux {_sched_text(face.flux, 'W/m2')} into the wall")
+    if face.heat_flux is not None:
+        parts.append(f"imposed flux {_sched_text(face.heat_flux, 'W/m2')} into the wall")
     return "; ".join(parts) if parts else "adiabatic (no heat flow)"
 
 
@@ -615,9 +617,9 @@ def format_case(case, system=None, warnings=()) -> str:
         L += _table(head, units, rows, align=["<", "<"] + [">"] * (len(head) - 2))
         if case.is_enclosure:
             ew = case.walls[j]
-            inner = f"to the chamber: convection {_conv_text(ew.inner_h)}"
-            if ew.inner_emissivity is not None:
-                inner += f"; radiation, {_eps_text(ew.inner_emissivity)}"
+            inner = f"to the chamber: convection {_conv_text(ew.inner_face_convection)}"
+            if ew.inner_face_emissivity is not None:
+                inner += f"; radiation, {_eps_text(ew.inner_face_emissivity)}"
             L.append(_wrap(f"inner face: {inner}", "  "))
             L.append(_wrap(f"outer face: {_face_text(ew.outer)}", "  "))
         else:
@@ -633,7 +635,7 @@ def format_case(case, system=None, warnings=()) -> str:
                        "conduction only, without surface films)"))
     if case.chamber is not None:
         ch = case.chamber
-        cap = ch.capacity
+        cap = ch.heat_capacity
         cap_t = (f"{float(cap) / 1e3:.3g} kJ/K" if not hasattr(cap, "values") else
                  f"{min(cap.values) / 1e3:.3g}..{max(cap.values) / 1e3:.3g} kJ/K (table vs T)")
         L += _heading("Chamber")
@@ -650,7 +652,7 @@ def format_case(case, system=None, warnings=()) -> str:
         c = case.control
         L += _heading("Heater and control")
         where = {"chamber": "in the chamber", "inner": f"on the inner face of wall {hz.wall}",
-                 "interface": f"behind layer {hz.interface + 1} of wall {hz.wall}"}[hz.location]
+                 "interface": f"behind layer {hz.after_layer + 1} of wall {hz.wall}"}[hz.placement]
         L.append(f"  heater {_sched_text(hz.power, 'W')} {where}")
         ctl = f"  control '{c.mode}'"
         if c.setpoint is not None and c.mode in ("thermostat", "pid"):
@@ -667,7 +669,7 @@ def format_case(case, system=None, warnings=()) -> str:
             L.append(f"  {ev.name or f'event{e + 1}'}: {wname}, "
                      f"{_event_where(ev, _case_wall(case, ev.wall))} crossing "
                      f"{fmt_temp(ev.temperature)}")
-        if any(_speaks_of_skin(f"{ev.name} {ev.where}") for ev in r.watch):
+        if any(_speaks_of_skin(f"{ev.name} {ev.at}") for ev in r.watch):
             L.append(_wrap(TOUCH_CAUTION, "  "))
     L += _heading("Warnings")
     if warnings:
@@ -763,5 +765,4 @@ def format_material(m) -> str:
 
 def _leak_ua(ch):
     """Leakage of a chamber as a conductance [W/K], room air at t = 0 (as the solver uses)."""
-    from ..solver import native
     return float(ch.leakage) * native.rho_cp(float(ch.room_temperature(0.0)), 101325.0)

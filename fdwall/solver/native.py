@@ -26,7 +26,9 @@ import sys
 
 import numpy as np
 
-from . import aot
+from .. import compiled
+from ..physics import air, convection
+from . import aot, post
 from . import kernels as _kernels
 from .kernels import *  # noqa: F401,F403  (state and stats layouts, constants)
 
@@ -84,8 +86,6 @@ def fingerprint() -> int:
 
 
 def _jit_functions():
-    from ..physics import air, convection
-    from . import post
     mods = {"kernels": _kernels, "post": post, "convection": convection, "air": air}
     return {name: getattr(mods[m], name) for name, (m, _, _) in ENTRIES.items()}
 
@@ -196,6 +196,9 @@ def _bind():
 
 #: "aot" when the ahead-of-time extension is in use, "jit" otherwise; STATUS says why.
 MODE, STATUS = _bind()
+# Python helpers of the lower layers (Convection.h, System's property evaluations) call these
+# through fdwall.compiled: they cannot import this module
+compiled.provide(sys.modules[__name__])
 
 
 # ---------------------------------------------------------------------------------- building

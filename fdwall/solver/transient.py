@@ -16,6 +16,7 @@ import numpy as np
 
 from ..errors import ConvergenceError, Interrupted
 from ..model import Case, ModelError
+from ..result import Result
 from ..system import build_system, event_rows  # noqa: F401  (event_rows: re-exported)
 from . import native as K
 from .layout import (
@@ -89,7 +90,6 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     -------
     fdwall.result.Result
     """
-    from ..result import Result
     sysm = system if system is not None else build_system(case)
     r = case.run
     t_out = output_times(case)
