@@ -24,12 +24,12 @@ from __future__ import annotations
 import glob
 import os
 import re
-import socket
-import zlib
 import signal
+import socket
 import tempfile
 import threading
 import time
+import zlib
 from contextlib import contextmanager
 
 from .errors import OutputError

@@ -38,10 +38,8 @@ def cmd_run(args) -> int:
 
 
 def _run_and_write(args, flag) -> int:
-    from ..report.text import TOUCH_CAUTION, fmt_time, format_summary
-    from ..solver import run, solve_steady
-    from ..solver.observers import InterruptCheck
-    from .interrupts import SIGNAL_NAMES, exit_code_for
+    from ..solver import run
+    from ..solver.observers import InterruptCheck, StorageObserver
     quiet = args.quiet
     case, warns = _load(args.case)
     for w in warns:
@@ -50,11 +48,25 @@ def _run_and_write(args, flag) -> int:
     stem = Path(args.case).stem
     outdir = Path(args.out) if args.out else Path("results") / stem
     progress = False if quiet else args.progress
+    # the output streams to the result file as the run goes (memory bounded by a window of
+    # rows, not by the run's length); the file is renamed to <stem>.h5 when written below
+    store = StorageObserver(outdir / f"{stem}.h5", keep_open=True)
     try:
         result = run(case, progress=progress, strict=False, system=system,
-                     observers=[InterruptCheck(flag)])
+                     observers=[InterruptCheck(flag)], store=store)
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), args.case)) from None
+    try:
+        return _write_run(args, flag, case, warns, system, stem, outdir, progress, result)
+    finally:
+        result.discard()   # a failure before the file was finished leaves no temporary
+
+
+def _write_run(args, flag, case, warns, system, stem, outdir, progress, result) -> int:
+    from ..report.text import TOUCH_CAUTION, fmt_time, format_summary
+    from ..solver import solve_steady
+    from .interrupts import SIGNAL_NAMES, exit_code_for
+    quiet = args.quiet
     interrupted = result.status == "interrupted"
     reached = float(result.stats.get("reached_s", result.times[-1]))
     if interrupted:
