@@ -279,6 +279,83 @@ class OutputBlock:
         return int(self.times.shape[0])
 
 
+class _GuardedFile:
+    """A raw file for h5py's ``fileobj`` driver that never lets a failed write reach HDF5.
+
+    A write that fails (disk full, file-size limit, I/O error) is recorded in ``error`` and
+    reported to HDF5 as done; that write and every later one are kept in memory (``reads``
+    see them), so HDF5 stays consistent until the caller, who checks ``error`` after each
+    step, abandons the file.  HDF5's own error paths on a failing file are never taken.
+    """
+
+    def __init__(self, name):
+        self.f = open(name, "r+b", buffering=0)
+        self.pos = 0
+        self.error = None
+        self.overlay = []        # (offset, bytes) written after the first failure
+
+    def seek(self, pos, whence=0):
+        if whence == 0:
+            self.pos = pos
+        elif whence == 1:
+            self.pos += pos
+        else:
+            self.pos = max(self.f.seek(0, 2), max((o + len(b) for o, b in self.overlay),
+                                                   default=0)) + pos
+        return self.pos
+
+    def tell(self):
+        return self.pos
+
+    def write(self, data):
+        data = bytes(data)
+        n = len(data)
+        if self.error is None:
+            try:
+                self.f.seek(self.pos)
+                view = memoryview(data)
+                while view:
+                    w = self.f.write(view)
+                    view = view[w:]
+            except OSError as e:
+                self.error = e
+        if self.error is not None:
+            self.overlay.append((self.pos, data))
+        self.pos += n
+        return n
+
+    def read(self, n=-1):
+        self.f.seek(self.pos)
+        out = bytearray(self.f.read(n) if n >= 0 else self.f.read())
+        if n >= 0 and len(out) < n and self.overlay:
+            out.extend(bytes(n - len(out)))
+        for o, b in self.overlay:
+            lo, hi = max(o, self.pos), min(o + len(b), self.pos + len(out))
+            if lo < hi:
+                out[lo - self.pos:hi - self.pos] = b[lo - o:hi - o]
+        self.pos += len(out)
+        return bytes(out)
+
+    def readinto(self, buf):
+        data = self.read(len(buf))
+        buf[:len(data)] = data
+        return len(data)
+
+    def truncate(self, size=None):
+        if self.error is None:
+            try:
+                self.f.truncate(self.pos if size is None else size)
+            except OSError as e:
+                self.error = e
+        return self.pos if size is None else size
+
+    def flush(self):
+        pass
+
+    def close(self):
+        self.f.close()
+
+
 class StorageObserver(RunObserver):
     """Streams the output rows of a run into an HDF5 result file.
 
@@ -313,16 +390,25 @@ class StorageObserver(RunObserver):
         self.names = []          # dataset paths streamed, in creation order
         self._empty = {}         # datasets whose rows hold no values: path -> (shape, dtype)
         self.finished = False
+        self._raw = None
 
     def _open(self):
-        if self.h is None:
+        if self.h is None and not self.finished:
             import h5py
             self.tmp = open_part(self.path, ".h5.part")
             try:
-                self.h = h5py.File(self.tmp, "w")
+                self._raw = _GuardedFile(self.tmp)
+                self.h = h5py.File(self._raw, "w")
             except OSError as e:
-                discard_part(self.tmp)
-                raise OutputError(f"cannot write {self.path}: {e}") from e
+                self.abort()
+                raise OutputError(f"cannot write {self.path}: {e.strerror or e}") from e
+
+    def _check(self):
+        """Raise OutputError (and remove the temporary file) once a write has failed."""
+        e = self._raw.error if self._raw is not None else None
+        if e is not None:
+            self.abort()
+            raise OutputError(f"cannot write {self.path}: {e.strerror or e}") from e
 
     def start(self, progress):
         self._open()
@@ -355,6 +441,8 @@ class StorageObserver(RunObserver):
             d.resize(self.n_rows + n, axis=0)
             d[self.n_rows:self.n_rows + n] = arr
         self.n_rows += n
+        self.h.flush()
+        self._check()
 
     def finish(self, write=None) -> str:
         """Complete the file and rename it to ``path``; return ``path``.
@@ -371,8 +459,12 @@ class StorageObserver(RunObserver):
             if write is not None:
                 write(self.h)
             self.h.flush()
+            self._check()
             self.h.close()
             self.h = None
+            self._raw.close()
+            self._check()
+            self._raw = None
         except BaseException:
             self.abort()
             raise
@@ -388,6 +480,12 @@ class StorageObserver(RunObserver):
             except Exception:  # pragma: no cover - a broken file is removed anyway
                 pass
             self.h = None
+        if self._raw is not None:
+            try:
+                self._raw.close()
+            except OSError:
+                pass
+            self._raw = None
         discard_part(self.tmp)
         self.tmp = None
 
