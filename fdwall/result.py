@@ -595,6 +595,13 @@ class FileResult(Result):
     h_conv = _lazy("h_conv")
     h_rad = _lazy("h_rad")
 
+    def __new__(cls, *args, **kw):
+        if kw and "storage" not in kw and not args:
+            # dataclasses.replace(file_result, ...) builds from Result's fields: a changed
+            # copy is an ordinary in-memory Result
+            return Result(**kw)
+        return super().__new__(cls)
+
     def __init__(self, ends: Result, storage):
         from dataclasses import fields
         self.__dict__["_fields"] = [f.name for f in fields(Result)

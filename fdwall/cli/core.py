@@ -4,7 +4,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from ..errors import InternalError
+from ..errors import InternalError, OutputError
 from . import common
 from .common import (
     EXIT_NOT_CONVERGED,
@@ -56,10 +56,16 @@ def _run_and_write(args, flag) -> int:
                      observers=[InterruptCheck(flag)], store=store)
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), args.case)) from None
+    except OutputError as exc:   # the streamed result file could not be written
+        cause = exc.__cause__
+        why = getattr(cause, "strerror", None) or str(exc)
+        raise WriteError(f"cannot write the results to '{outdir}': {why}. "
+                         "Choose another folder with --out DIR.") from None
     try:
         return _write_run(args, flag, case, warns, system, stem, outdir, progress, result)
     finally:
-        result.discard()   # a failure before the file was finished leaves no temporary
+        if store.pending:  # not finished (a failure, or a result replaced): no temporary left
+            store.abort()
 
 
 def _write_run(args, flag, case, warns, system, stem, outdir, progress, result) -> int:
