@@ -262,7 +262,6 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     budget = FIRST_CHUNK_STEPS if chunk_seconds > 0 else 1
     started = []
     rows_total, steps_total = 0, 0
-    limit = None             # steps per call after a call overshot the window
 
     def _progress():
         return RunProgress(case.name, float(acc[-1]), float(r.duration), int(k), int(n_out),
@@ -277,54 +276,52 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                     w.start(p0)
             while k < n_out:
                 a = win["a"]
-                windowed = a + cap < n_out
                 call = budget
-                if windowed:
-                    # never let a call write past the window: one row per step when outputs
-                    # are landed on, else the measured rows per step, with room to spare
+                if a + cap < n_out:
+                    # keep a call inside the window where that is cheap to know: one row per
+                    # step when outputs are landed on, else the measured rows per step
                     room = cap - (k - a)
                     if land:
                         call = min(call, room)
                     elif steps_total:
                         call = min(call, max(1, int(0.5 * room * steps_total
                                                     / max(rows_total, 1))))
-                    if limit is not None:
-                        call = min(call, limit)
                     snap = tuple(x.copy() for x in (T, cs, acc, stats, ks, qd_state, ev_out))
-                args[1] = k - a
                 steps0 = stats[K.ST_ACC]
-                c0 = _time.perf_counter()
-                done = K.integrate(T, cs, acc, stats, *args, call)
-                spent = _time.perf_counter() - c0
-                if windowed:
-                    t_s = acc[-1]
-                    if t_out[a + cap] <= t_s + 1e-12 * (1.0 + abs(t_s)):
-                        # the call stepped past the window (rows lost): undo it exactly and
-                        # hand the rows on first, take fewer steps, or widen the window
-                        for x, v in zip((T, cs, acc, stats, ks, qd_state, ev_out), snap):
-                            x[...] = v
-                        if k - a > 0:
-                            _deliver(k)
-                            win["a"] = k
-                            args = _window_args()
-                            limit = None
-                        elif call > 1:
-                            limit = max(1, call // 2)
-                        else:       # one step spans more rows than the window holds
-                            cap *= 2
-                            T_out, qf_out, E_out, P_out, hc_out, hr_out = _alloc(
-                                cap if a + cap >= n_out else cap + 1)
-                            args = _window_args()
-                            limit = None
-                        continue
                 k0 = k
+                bad = None
+                c0 = _time.perf_counter()
+                while True:
+                    a = win["a"]
+                    args[1] = k - a
+                    done = K.integrate(T, cs, acc, stats, *args, call)
+                    t_s = acc[-1]
+                    over = a + cap < n_out and t_out[a + cap] <= t_s + 1e-12 * (1.0 + abs(t_s))
+                    if over:    # (a row in the end-of-run slot is none of the window's)
+                        done = min(done, cap - (k - a))
+                    if stats[K.ST_STATUS] == 0:
+                        bad = _implausible(T_out, k - a, k - a + done)
+                    if bad is not None or not over:
+                        break
+                    # the call stepped past the window's last row (never when outputs are
+                    # landed on: at most one row a step, and the call is capped to the room
+                    # left).  Hand the window on and run the same call again from its start
+                    # for the rows after it: without landing, the steps do not depend on the
+                    # output rows, so the state and every row come out exactly as in one go.
+                    k += done
+                    _deliver(k)
+                    win["a"] = k
+                    args = _window_args()
+                    for x, v in zip((T, cs, acc, stats, ks, qd_state, ev_out), snap):
+                        x[...] = v
+                spent = _time.perf_counter() - c0
+                a = win["a"]
                 k += done
-                rows_total += done
+                rows_total += k - k0
                 steps_total += int(stats[K.ST_ACC] - steps0)
                 if stats[K.ST_STATUS] != 0:
                     failed = True
                     break
-                bad = _implausible(T_out, k0 - a, k - a)
                 if bad is not None:
                     failed = True
                     implausible = (bad[0] + a, bad[1])
@@ -339,7 +336,6 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                         _deliver(k)
                         win["a"] = k
                         args = _window_args()
-                        limit = None
                 else:
                     _deliver(k)
                 if k >= n_out:
