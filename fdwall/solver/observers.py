@@ -377,11 +377,16 @@ class StorageObserver(RunObserver):
         finishes it, so that the caller can add to it first (the command line adds the
         steady state); ``discard()`` of the result removes it instead.
     chunk_bytes : int
-        Target size of one HDF5 chunk [bytes].
+        Size of one HDF5 chunk when the run's length is not known [bytes] (otherwise h5py
+        chooses, as for an in-memory write).
+    cache_bytes : int
+        HDF5 chunk cache of each dataset [bytes] (rows come in order: a small one serves).
     """
 
-    def __init__(self, path, keep_open: bool = False, chunk_bytes: int = 1 << 16):
+    def __init__(self, path, keep_open: bool = False, chunk_bytes: int = 1 << 16,
+                 cache_bytes: int = 1 << 20):
         self.path = os.fspath(path)
+        self.cache_bytes = int(cache_bytes)
         self.keep_open = bool(keep_open)
         self.chunk_bytes = int(chunk_bytes)
         self.tmp = None
@@ -398,7 +403,8 @@ class StorageObserver(RunObserver):
             self.tmp = open_part(self.path, ".h5.part")
             try:
                 self._raw = _GuardedFile(self.tmp)
-                self.h = h5py.File(self._raw, "w")
+                # a small chunk cache: rows are appended in order, whole windows at a time
+                self.h = h5py.File(self._raw, "w", rdcc_nbytes=self.cache_bytes)
             except OSError as e:
                 self.abort()
                 raise OutputError(f"cannot write {self.path}: {e.strerror or e}") from e
@@ -411,7 +417,24 @@ class StorageObserver(RunObserver):
             raise OutputError(f"cannot write {self.path}: {e.strerror or e}") from e
 
     def start(self, progress):
+        self.expected_rows = int(progress.n_outputs)
         self._open()
+
+    def _chunks(self, rest, itemsize):
+        """Chunk shape of a series: h5py's own choice for the run's whole length when it can
+        be had (so a streamed file is chunked like an in-memory write), else rows of about
+        ``chunk_bytes``."""
+        n = getattr(self, "expected_rows", 0)
+        if n > 0:
+            try:
+                from h5py._hl.filters import guess_chunk
+                c = guess_chunk((n,) + rest, None, itemsize)
+                if c is not None:
+                    return tuple(int(x) for x in c)
+            except Exception:  # pragma: no cover - a private helper of h5py may move
+                pass
+        per_row = max(1, int(np.prod(rest, dtype=np.int64)) * itemsize)
+        return (max(1, min(self.chunk_bytes // per_row, 1 << 20)),) + rest
 
     def rows(self, block: OutputBlock) -> None:
         """Append ``block`` (its ``series()``) to the datasets, creating them on first use."""
@@ -431,10 +454,9 @@ class StorageObserver(RunObserver):
                     self.names.append(name)
                 continue
             if name not in self.h:
-                per_row = max(1, int(np.prod(rest, dtype=np.int64)) * arr.dtype.itemsize)
-                rows = max(1, min(self.chunk_bytes // per_row, 1 << 20))
                 self.h.create_dataset(name, shape=(0,) + rest, maxshape=(None,) + rest,
-                                      dtype=arr.dtype, chunks=(rows,) + rest,
+                                      dtype=arr.dtype, chunks=self._chunks(rest,
+                                                                           arr.dtype.itemsize),
                                       compression="gzip")
                 self.names.append(name)
             d = self.h[name]
