@@ -394,3 +394,22 @@ def test_stale_rules_other_host_and_untagged(tmp_path):
     gone = atomic.remove_stale_parts(tmp_path)
     assert gone == [os.fspath(mine)]
     assert other.exists() and fresh_untagged.exists() and not_ours.exists()
+
+
+def test_cli_run_writes_the_in_memory_file_content(tmp_path):
+    # `fdwall run --out` streams; its file must hold what the in-memory write of the same
+    # case (with its steady state) holds, dataset by dataset
+    name = "lab-furnace-wall.toml"
+    out = tmp_path / "cli"
+    env = dict(os.environ, PYTHONPATH=ROOT)
+    p = subprocess.run([sys.executable, "-m", "fdwall.cli", "run", os.path.join(CASES, name),
+                        "--out", str(out), "--no-plots", "--quiet"], env=env,
+                       capture_output=True, text=True, timeout=600)
+    assert p.returncode == 0, p.stderr[-2000:]
+    assert sorted(os.listdir(out)) == ["lab-furnace-wall-summary.json", "lab-furnace-wall.h5"]
+    case = fdwall.load_case(os.path.join(CASES, name))
+    mem = run(case, progress=False)
+    mem.steady = fdwall.solve_steady(case)
+    mem.write_hdf5(tmp_path / "mem.h5")
+    diffs = _compare_files(tmp_path / "mem.h5", out / "lab-furnace-wall.h5")
+    assert diffs == [], diffs
