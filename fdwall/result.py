@@ -640,6 +640,19 @@ class FileResult(Result):
                     self._cache[attr] = h[path][()]
         return self._cache[attr]
 
+    @property
+    def face_T(self) -> np.ndarray:
+        """Temperature of every face (n_time, n_faces) [K], read from ``faces/temperature``
+        (without loading ``T``)."""
+        if "face_T" not in self._cache:
+            if self._storage.pending:
+                self._cache["face_T"] = self._storage.h["faces/temperature"][()]
+            else:
+                import h5py
+                with h5py.File(self._storage.path, "r") as h:
+                    self._cache["face_T"] = h["faces/temperature"][()]
+        return self._cache["face_T"]
+
     def layer_max_T(self) -> list:
         return self._synced().layer_max_T()
 

@@ -153,6 +153,7 @@ def test_streamed_file_equals_in_memory_file_dataset_by_dataset(tmp_path, name, 
                  "heater_power", "h_conv", "h_rad"):
         np.testing.assert_array_equal(getattr(st, attr), getattr(mem, attr), err_msg=attr)
     np.testing.assert_array_equal(st.stored, mem.stored)
+    np.testing.assert_array_equal(st.face_T, mem.face_T)
     assert st.events.keys() == mem.events.keys()
     assert [f for f in os.listdir(tmp_path) if f.startswith(".fdwall-")] == []
 
