@@ -19,11 +19,8 @@ from ..model import Case, ModelError
 from ..system import build_system, event_rows  # noqa: F401  (event_rows: re-exported)
 from . import native as K
 from .layout import (
-    CF_SENSOR_W,
     CI_HEATER_NODE,
     CI_MODE,
-    CI_SENSOR_A,
-    CI_SENSOR_B,
     CI_SETPOINT,
     CTL_DUTY_AVERAGED,
     CTL_THERMOSTAT,
@@ -43,6 +40,7 @@ from .observers import (
     Stop,
     StorageObserver,
 )
+from .readout import sensor_temperature
 
 __all__ = ["run", "output_times", "event_rows", "ConvergenceError", "Interrupted"]
 
@@ -474,8 +472,7 @@ def _initial_u(sysm, T):
     if mode == CTL_DUTY_AVERAGED:
         return -1.0
     if mode == CTL_THERMOSTAT:
-        w = sysm.ctl_f[CF_SENSOR_W]
-        y = w * T[sysm.ctl_i[CI_SENSOR_A]] + (1 - w) * T[sysm.ctl_i[CI_SENSOR_B]]
+        y = sensor_temperature(sysm, T)
         sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_SETPOINT], 0.0, 0.0)
         return 1.0 if y < sp else 0.0
     return 0.0
