@@ -414,3 +414,33 @@ def test_cli_run_writes_the_in_memory_file_content(tmp_path):
     mem.write_hdf5(tmp_path / "mem.h5")
     diffs = _compare_files(tmp_path / "mem.h5", out / "lab-furnace-wall.h5")
     assert diffs == [], diffs
+
+
+_ADD_LIMITED = r"""
+import resource, signal, sys
+import numpy as np
+from fdwall import h5tree
+from fdwall.errors import OutputError
+path = sys.argv[1]
+signal.signal(signal.SIGXFSZ, signal.SIG_IGN)
+resource.setrlimit(resource.RLIMIT_FSIZE, (200_000, 200_000))
+try:
+    h5tree.add_group(path, "big", {"x_m": np.random.default_rng(1).random(100_000)})
+except OutputError as e:
+    print("OutputError", e)
+"""
+
+
+def test_add_group_past_a_size_limit_keeps_the_old_file(tmp_path):
+    # setrlimit(2): writes beyond RLIMIT_FSIZE fail with EFBIG; the copy being changed is
+    # dropped and the original stays byte for byte (rename(2) is the only commit)
+    from fdwall import h5tree
+    p = tmp_path / "a.h5"
+    h5tree.write_file(p, {"summary": {"T_K": 300.0}})
+    before = p.read_bytes()
+    out = subprocess.run([sys.executable, "-c", _ADD_LIMITED, str(p)], capture_output=True,
+                         text=True, env=dict(os.environ, PYTHONPATH=ROOT), timeout=300)
+    assert out.returncode == 0 and "OutputError" in out.stdout, out.stderr[-2000:]
+    assert "File too large" in out.stdout
+    assert p.read_bytes() == before
+    assert os.listdir(tmp_path) == ["a.h5"]

@@ -38,6 +38,7 @@ import numpy as np
 
 from ..atomic import commit_part, discard_part, open_part
 from ..errors import OutputError
+from ..h5tree import GuardedFile
 
 __all__ = ["CHUNK_SECONDS", "RunProgress", "Stop", "RunObserver", "StopFlag", "InterruptCheck",
            "EarlyStop", "ProgressBar", "OutputBlock", "StorageObserver", "WINDOW_BYTES"]
@@ -279,83 +280,6 @@ class OutputBlock:
         return int(self.times.shape[0])
 
 
-class _GuardedFile:
-    """A raw file for h5py's ``fileobj`` driver that never lets a failed write reach HDF5.
-
-    A write that fails (disk full, file-size limit, I/O error) is recorded in ``error`` and
-    reported to HDF5 as done; that write and every later one are kept in memory (``reads``
-    see them), so HDF5 stays consistent until the caller, who checks ``error`` after each
-    step, abandons the file.  HDF5's own error paths on a failing file are never taken.
-    """
-
-    def __init__(self, name):
-        self.f = open(name, "r+b", buffering=0)
-        self.pos = 0
-        self.error = None
-        self.overlay = []        # (offset, bytes) written after the first failure
-
-    def seek(self, pos, whence=0):
-        if whence == 0:
-            self.pos = pos
-        elif whence == 1:
-            self.pos += pos
-        else:
-            self.pos = max(self.f.seek(0, 2), max((o + len(b) for o, b in self.overlay),
-                                                   default=0)) + pos
-        return self.pos
-
-    def tell(self):
-        return self.pos
-
-    def write(self, data):
-        data = bytes(data)
-        n = len(data)
-        if self.error is None:
-            try:
-                self.f.seek(self.pos)
-                view = memoryview(data)
-                while view:
-                    w = self.f.write(view)
-                    view = view[w:]
-            except OSError as e:
-                self.error = e
-        if self.error is not None:
-            self.overlay.append((self.pos, data))
-        self.pos += n
-        return n
-
-    def read(self, n=-1):
-        self.f.seek(self.pos)
-        out = bytearray(self.f.read(n) if n >= 0 else self.f.read())
-        if n >= 0 and len(out) < n and self.overlay:
-            out.extend(bytes(n - len(out)))
-        for o, b in self.overlay:
-            lo, hi = max(o, self.pos), min(o + len(b), self.pos + len(out))
-            if lo < hi:
-                out[lo - self.pos:hi - self.pos] = b[lo - o:hi - o]
-        self.pos += len(out)
-        return bytes(out)
-
-    def readinto(self, buf):
-        data = self.read(len(buf))
-        buf[:len(data)] = data
-        return len(data)
-
-    def truncate(self, size=None):
-        if self.error is None:
-            try:
-                self.f.truncate(self.pos if size is None else size)
-            except OSError as e:
-                self.error = e
-        return self.pos if size is None else size
-
-    def flush(self):
-        pass
-
-    def close(self):
-        self.f.close()
-
-
 class StorageObserver(RunObserver):
     """Streams the output rows of a run into an HDF5 result file.
 
@@ -402,7 +326,7 @@ class StorageObserver(RunObserver):
             import h5py
             self.tmp = open_part(self.path, ".h5.part")
             try:
-                self._raw = _GuardedFile(self.tmp)
+                self._raw = GuardedFile(self.tmp)
                 # a small chunk cache: rows are appended in order, whole windows at a time
                 self.h = h5py.File(self._raw, "w", rdcc_nbytes=self.cache_bytes)
             except OSError as e:
