@@ -444,3 +444,35 @@ def test_add_group_past_a_size_limit_keeps_the_old_file(tmp_path):
     assert "File too large" in out.stdout
     assert p.read_bytes() == before
     assert os.listdir(tmp_path) == ["a.h5"]
+
+
+def test_observers_are_served_while_long_steps_are_written_out(tmp_path):
+    # a thin slab that settles early: its time steps grow until one call spans thousands of
+    # output rows, far more than the window holds.  Observers must still be called at least
+    # once per window of rows (behavioural bound), and a stop there keeps exact rows: a
+    # prefix of the in-memory run's rows.
+    case = _slab(duration=100_000 * 10.0, every=10.0, cells=30, L=0.05)
+    window = 64 << 10
+    cap = window // (8 * (31 + 4 * 2 + 2 + 2))
+    seen = []
+
+    def note(p):
+        seen.append(p.outputs)
+        return p.time > 3.0e5          # late: by then one step spans many windows
+
+    with pytest.raises(Interrupted) as e:
+        run(case, progress=False, observers=[EarlyStop(note, "enough")], chunk_seconds=0,
+            store=tmp_path / "s.h5", window_bytes=window)
+    steps = np.diff(seen)
+    assert steps.max() <= cap, (steps.max(), cap)
+    res = e.value.result
+    assert "window by window" in res.message          # the stop came between two passes
+    mem = run(case, progress=False)
+    n = res.n_outputs
+    assert 1 < n < mem.times.size
+    np.testing.assert_array_equal(res.times[:n - 1], mem.times[:n - 1])
+    np.testing.assert_array_equal(res.T[:n - 1], mem.T[:n - 1])
+    with h5py.File(tmp_path / "s.h5", "r") as h:
+        assert h.attrs["status"] == "interrupted"
+        t = h["time"][()]
+        assert np.all(np.diff(t) > 0) and t[-1] == h["solver"].attrs["reached_s"]

@@ -260,6 +260,19 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     budget = FIRST_CHUNK_STEPS if chunk_seconds > 0 else 1
     started = []
     rows_total, steps_total = 0, 0
+    limit = None             # steps a call may take after calls that stepped past the window
+    gap = None               # outputs not kept when a stop came between the passes of a call
+    polled = [_time.perf_counter()]
+
+    def _ask():
+        """Call the observers' update; return the first Stop asked for, or None."""
+        polled[0] = _time.perf_counter()
+        pr = _progress()
+        for w in watchers:
+            ask = w.update(pr)
+            if ask:
+                return ask if isinstance(ask, Stop) else Stop("stopped by an observer")
+        return None
 
     def _progress():
         return RunProgress(case.name, float(acc[-1]), float(r.duration), int(k), int(n_out),
@@ -284,10 +297,13 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                     elif steps_total:
                         call = min(call, max(1, int(0.5 * room * steps_total
                                                     / max(rows_total, 1))))
+                    if limit is not None:
+                        call = min(call, limit)
                     snap = tuple(x.copy() for x in (T, cs, acc, stats, ks, qd_state, ev_out))
                 steps0 = stats[K.ST_ACC]
                 k0 = k
                 bad = None
+                passes = 0
                 c0 = _time.perf_counter()
                 while True:
                     a = win["a"]
@@ -310,14 +326,28 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                     _deliver(k)
                     win["a"] = k
                     args = _window_args()
+                    took = int(stats[K.ST_ACC] - snap[3][K.ST_ACC])
+                    limit = max(1, took // 2)
+                    if _time.perf_counter() - polled[0] > chunk_seconds:
+                        # observers are served between the passes too; a stop here keeps
+                        # the state at the end of the call, and the rows after the window
+                        # up to it are not kept (said in the message)
+                        stop = _ask()
+                        if stop is not None:
+                            gap = (float(t_out[k - 1]), float(acc[-1]))
+                            done = 0
+                            break
                     for x, v in zip((T, cs, acc, stats, ks, qd_state, ev_out), snap):
                         x[...] = v
+                    passes += 1
+                if limit is not None and not passes:
+                    limit = None if 2 * limit >= budget else 2 * limit
                 spent = _time.perf_counter() - c0
                 a = win["a"]
                 k += done
                 rows_total += k - k0
                 steps_total += int(stats[K.ST_ACC] - steps0)
-                if stats[K.ST_STATUS] != 0:
+                if stats[K.ST_STATUS] != 0 or stop is not None:
                     failed = True
                     break
                 if bad is not None:
@@ -343,12 +373,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                 per = spent / max(stats[K.ST_ACC] - steps0, 1.0)
                 budget = int(max(1, min(4 * budget, MAX_CHUNK_STEPS,
                                         chunk_seconds / max(per, 1e-9))))
-                pr = _progress()
-                for w in watchers:
-                    ask = w.update(pr)
-                    if ask:
-                        stop = ask if isinstance(ask, Stop) else Stop("stopped by an observer")
-                        break
+                stop = _ask()
                 if stop is not None:
                     failed = True
                     break
@@ -357,7 +382,11 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                 if hasattr(w, "close"):
                     w.close()
         t_last = t_out[k - 1]
-        if stop is not None and stream:
+        if gap is not None:
+            # stopped between the passes of a call: the rows end at the window handed on;
+            # no stop row (the state is further on, past rows that were not written)
+            stats[K.ST_T] = t_last
+        if stop is not None and stream and gap is None:
             t_stop = float(acc[-1])
             if t_stop > t_last:
                 # the state at the stop time as a last output row, in the window's free slot
@@ -366,7 +395,7 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                 for arr, v in zip((T_out, qf_out, E_out, P_out, hc_out, hr_out), vals):
                     arr[j] = v
                 _deliver(k + 1, np.concatenate([t_out[kept["done"]:k], [t_stop]]))
-        elif stop is not None:
+        elif stop is not None and not stream:
             # keep the state at the stop time as a last output row (what an output there
             # would be)
             t_stop = float(acc[-1])
@@ -399,6 +428,10 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
                            f"({stats[K.ST_T] / 3600:.4g} h) of {r.duration:.6g} s: "
                            f"{stop.reason}. Results up to that time are kept and marked "
                            "incomplete.")
+            if gap is not None:
+                res.message += (" (The stop came while one long stretch of time steps, "
+                                f"computed up to t = {gap[1]:.6g} s, was being written out "
+                                "window by window: the outputs end at the last row written.)")
             raise_ = (Interrupted, stop.signal)
         elif failed and implausible is not None:
             i_out, peak = implausible
