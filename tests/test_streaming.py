@@ -324,6 +324,7 @@ title = "long demo run (invented)"
 duration = "200 d"
 start_temperature = "20 degC"
 output_every = "1 min"
+max_step = "20 s"
 [wall]
 name = "plate"
 shape = "slab"
