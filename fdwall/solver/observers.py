@@ -378,16 +378,19 @@ class StorageObserver(RunObserver):
                     self.names.append(name)
                 continue
             if name not in self.h:
+                chunks = self._chunks(rest, arr.dtype.itemsize)
+                # cache one band of chunks across all columns, twice: a window's rows then
+                # fill each chunk in memory and it is compressed and written once
+                band = int(np.prod(rest, dtype=np.int64)) * chunks[0] * arr.dtype.itemsize
                 self.h.create_dataset(name, shape=(0,) + rest, maxshape=(None,) + rest,
-                                      dtype=arr.dtype, chunks=self._chunks(rest,
-                                                                           arr.dtype.itemsize),
-                                      compression="gzip")
+                                      dtype=arr.dtype, chunks=chunks, compression="gzip",
+                                      rdcc_nbytes=max(self.cache_bytes, 2 * band),
+                                      rdcc_nslots=10007)
                 self.names.append(name)
             d = self.h[name]
             d.resize(self.n_rows + n, axis=0)
             d[self.n_rows:self.n_rows + n] = arr
         self.n_rows += n
-        self.h.flush()
         self._check()
 
     def finish(self, write=None) -> str:
