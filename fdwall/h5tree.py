@@ -4,6 +4,11 @@ Layer 1 (base): numpy, h5py (imported lazily) and :mod:`fdwall.atomic` only.  Th
 (touch safety, sizing, fits, studies) store their answers with these functions, so a report
 or a script can read back exactly what the analysis computed.
 
+Writing: new files are built in memory and written atomically (:func:`h5_atomic`);
+:func:`add_group` changes a copy of an existing file beside it and renames it over the
+original, through :class:`GuardedFile`, which keeps a failed write (disk full, size limit)
+from HDF5's error paths.
+
 Mapping
 -------
 - ``dict`` -> a group; its keys are the member names;
@@ -26,10 +31,10 @@ from contextlib import contextmanager
 
 import numpy as np
 
-from .atomic import write_bytes
+from .atomic import atomic_path, write_bytes
 from .provenance import stamp_h5
 
-__all__ = ["h5_atomic", "write_tree", "read_tree", "add_group", "write_file", "unit_of", "SUFFIX_UNITS"]
+__all__ = ["GuardedFile", "h5_atomic", "write_tree", "read_tree", "add_group", "write_file", "unit_of", "SUFFIX_UNITS"]
 
 #: Key suffix -> unit text (longest suffix wins).
 SUFFIX_UNITS = {
@@ -152,6 +157,88 @@ def _read_member(g):
     return read_tree(g)
 
 
+class GuardedFile:
+    """A raw file for h5py's ``fileobj`` driver that never lets a failed write reach HDF5.
+
+    A write that fails (disk full, file-size limit, I/O error) is recorded in ``error`` and
+    reported to HDF5 as done; that write and every later one are kept in memory (``reads``
+    see them), so HDF5 stays consistent until the caller, who checks ``error`` after each
+    step, abandons the file.  HDF5's own error paths on a failing file are never taken.
+    """
+
+    def __init__(self, name):
+        self.f = open(name, "r+b", buffering=0)
+        self.pos = 0
+        self.error = None
+        self.overlay = []        # (offset, bytes) written after the first failure
+
+    def seek(self, pos, whence=0):
+        if whence == 0:
+            self.pos = pos
+        elif whence == 1:
+            self.pos += pos
+        else:
+            self.pos = max(self.f.seek(0, 2), max((o + len(b) for o, b in self.overlay),
+                                                   default=0)) + pos
+        return self.pos
+
+    def tell(self):
+        return self.pos
+
+    def write(self, data):
+        data = bytes(data)
+        n = len(data)
+        if self.error is None:
+            try:
+                self.f.seek(self.pos)
+                view = memoryview(data)
+                while view:
+                    w = self.f.write(view)
+                    view = view[w:]
+            except OSError as e:
+                self.error = e
+        if self.error is not None:
+            self.overlay.append((self.pos, data))
+        self.pos += n
+        return n
+
+    def read(self, n=-1):
+        self.f.seek(self.pos)
+        out = bytearray(self.f.read(n) if n >= 0 else self.f.read())
+        if n >= 0 and len(out) < n and self.overlay:
+            out.extend(bytes(n - len(out)))
+        for o, b in self.overlay:
+            lo, hi = max(o, self.pos), min(o + len(b), self.pos + len(out))
+            if lo < hi:
+                out[lo - self.pos:hi - self.pos] = b[lo - o:hi - o]
+        self.pos += len(out)
+        return bytes(out)
+
+    def readinto(self, buf):
+        data = self.read(len(buf))
+        buf[:len(data)] = data
+        return len(data)
+
+    def truncate(self, size=None):
+        if self.error is None:
+            try:
+                self.f.truncate(self.pos if size is None else size)
+            except OSError as e:
+                self.error = e
+        return self.pos if size is None else size
+
+    def flush(self):
+        pass
+
+    def raise_error(self):
+        """Raise the OSError of the first failed write, if any."""
+        if self.error is not None:
+            raise self.error
+
+    def close(self):
+        self.f.close()
+
+
 @contextmanager
 def h5_atomic(path, source=None):
     """Yield an in-memory HDF5 file; on success write its bytes to ``path`` atomically.
@@ -189,17 +276,31 @@ class _MemName:
 def add_group(path, name: str, data: dict, *, attrs: dict | None = None) -> str:
     """Add (or replace) the group ``name`` in the existing HDF5 file ``path``, atomically.
 
-    The file is read into memory, changed there and written back through
-    :func:`h5_atomic`, so a failure leaves the old file as it was.
+    The file is copied to a temporary file beside it (block by block: memory does not grow
+    with the file, which may hold a long run's history), changed there through a
+    :class:`GuardedFile` and renamed over the original, so a failure (OSError ->
+    OutputError) leaves the old file as it was and no temporary file.
     """
+    import shutil
+
+    import h5py
     path = os.fspath(path)
-    with h5_atomic(path, source=path) as h:
-        if name in h:
-            del h[name]
-        g = h.create_group(name)
-        write_tree(g, data)
-        for k, v in (attrs or {}).items():
-            g.attrs[k] = v
+    with atomic_path(path, ".h5.part") as tmp:
+        shutil.copyfile(path, tmp)
+        raw = GuardedFile(tmp)
+        try:
+            with h5py.File(raw, "r+") as h:
+                if name in h:
+                    del h[name]
+                g = h.create_group(name)
+                write_tree(g, data)
+                for k, v in (attrs or {}).items():
+                    g.attrs[k] = v
+                h.flush()
+                raw.raise_error()
+            raw.raise_error()
+        finally:
+            raw.close()
     return path
 
 

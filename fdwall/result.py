@@ -21,7 +21,8 @@ from .solver import layout as K
 from .solver.layout import EV_DOWN, EV_UP, EX_HEATER, EX_LOSS, FI_NODE
 from .solver.readout import temperature_at
 
-__all__ = ["Result", "read_result"]
+__all__ = ["Result", "FileResult", "read_result", "series_view", "stream_series",
+           "STREAMED"]
 
 
 def _version():
@@ -91,6 +92,9 @@ class Result:
     wall_time: float = 0.0
     steady: object = None
     control_state: object = None
+
+    #: Path of the HDF5 file that backs the result (:class:`FileResult`); None: in memory.
+    store = None
 
     @classmethod
     def from_run(cls, case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out, stats,
@@ -458,11 +462,15 @@ class Result:
         g.create_dataset("resolved_json", data=json.dumps(resolved_inputs(self.case), default=str))
 
         def ds(grp, name, data, units, **attrs):
-            data = np.asarray(data)
-            kw = {}
-            if data.ndim >= 1 and data.size > 16:
-                kw = dict(chunks=True, compression="gzip", maxshape=(None,) + data.shape[1:])
-            d = grp.create_dataset(name, data=data, **kw)
+            if name in grp:      # streamed during the run (FileResult): keep its rows
+                d = grp[name]
+            else:
+                data = np.asarray(data)
+                kw = {}
+                if data.ndim >= 1 and data.size > 16:
+                    kw = dict(chunks=True, compression="gzip",
+                              maxshape=(None,) + data.shape[1:])
+                d = grp.create_dataset(name, data=data, **kw)
             d.attrs["units"] = units
             for k, v in attrs.items():
                 d.attrs[k] = v
@@ -478,7 +486,7 @@ class Result:
             ds(wg, "layer_last", [b for a, b in m.layer_nodes], "1")
             ds(wg, "interface_nodes", np.array(m.interface_nodes, dtype=int), "1")
             wg.attrs["layers"] = json.dumps([l.label for l in w.layers])
-        ig = h.create_group("interfaces")
+        ig = h.require_group("interfaces")
         for j, w in enumerate(sysm.walls):
             d = ds(ig, f"wall_{j}", self.interface_T(j).reshape(len(self.times), -1), "K")
             d.attrs["wall"] = w.name
@@ -486,7 +494,7 @@ class Result:
                                              for a, b in zip(w.layers[:-1], w.layers[1:])])
         ds(h, "time", self.times, "s")
         ds(h, "temperature", self.T, "K")
-        fg = h.create_group("faces")
+        fg = h.require_group("faces")
         fg.create_dataset("names", data=np.array(self.face_names, dtype=object),
                           dtype=h5py.string_dtype())
         ds(fg, "heat_flow", self.face_flow, "W")
@@ -494,7 +502,7 @@ class Result:
         ds(fg, "h_convective", self.h_conv, "W/m2/K")
         ds(fg, "h_radiative", self.h_rad, "W/m2/K")
         ds(fg, "temperature", self.face_T, "K")
-        eg = h.create_group("energy")
+        eg = h.require_group("energy")
         ds(eg, "stored", self.stored, "J")
         ds(eg, "stored_layers", self.stored_layers, "J",
            layer_names=json.dumps(list(sysm.layer_names)))
@@ -502,7 +510,7 @@ class Result:
         ds(eg, "heater", self.heater_energy, "J")
         ds(eg, "loss_chamber", self.loss_energy, "J")
         ds(eg, "residual", self.residual, "J", relative_max=self.relative_residual)
-        hg = h.create_group("heater")
+        hg = h.require_group("heater")
         ds(hg, "power", self.heater_power, "W")
         ds(hg, "duty", self.duty, "1")
         evg = h.create_group("events")
@@ -519,6 +527,205 @@ class Result:
             stg = h.create_group("steady")
             ds(stg, "temperature", self.steady.T, "K")
             stg.attrs["summary_json"] = json.dumps(self.steady.summary(), default=float)
+
+
+#: HDF5 paths of the time series of a result file (one row per output time), streamed by
+#: :class:`fdwall.solver.observers.StorageObserver`; :func:`stream_series` gives their rows.
+STREAMED = ("time", "temperature", "interfaces/wall_{j}", "faces/heat_flow", "faces/energy",
+            "faces/h_convective", "faces/h_radiative", "faces/temperature", "energy/stored",
+            "energy/stored_layers", "energy/stored_chamber", "energy/heater",
+            "energy/loss_chamber", "energy/residual", "heater/power", "heater/duty")
+
+#: Result attribute -> dataset of a result file holding it.
+_ARRAY_DATASETS = {"times": "time", "T": "temperature", "face_flow": "faces/heat_flow",
+                   "face_energy": "faces/energy", "heater_energy": "energy/heater",
+                   "loss_energy": "energy/loss_chamber", "heater_power": "heater/power",
+                   "h_conv": "faces/h_convective", "h_rad": "faces/h_radiative"}
+
+
+def series_view(case, sysm, t, T, qf, E, P, hc, hr) -> Result:
+    """A :class:`Result` over some consecutive output rows (no statistics), from the driver's
+    raw arrays: times [s], temperatures [K], face flows [W], energies (faces, heater, loss)
+    [J], heater power [W], film coefficients [W/m2/K].  Its derived series (stored energy,
+    residual, duty) are those of the whole run at these rows when the rows start with the
+    run's first row (the reference of the stored energy) and, before the rows wanted, the
+    row preceding them (the duty of an interval needs its start)."""
+    nf = qf.shape[1]
+    return Result(case=case, system=sysm, times=t, T=T, face_flow=qf, face_energy=E[:, :nf],
+                  heater_energy=E[:, nf + EX_HEATER], loss_energy=E[:, nf + EX_LOSS],
+                  heater_power=P, h_conv=hc, h_rad=hr, stats={}, events={})
+
+
+def stream_series(view: Result, skip: int = 0) -> dict:
+    """The time series of a result file (:data:`STREAMED`, as :meth:`Result.write_hdf5`
+    writes them) at the rows of ``view`` after the first ``skip`` (context rows, see
+    :func:`series_view`): dataset path -> array (SI units: s, K, W, J, W/m2/K, -)."""
+    n = len(view.times)
+    out = {"time": view.times, "temperature": view.T}
+    for j in range(len(view.system.walls)):
+        out[f"interfaces/wall_{j}"] = view.interface_T(j).reshape(n, -1)
+    out.update({"faces/heat_flow": view.face_flow, "faces/energy": view.face_energy,
+                "faces/h_convective": view.h_conv, "faces/h_radiative": view.h_rad,
+                "faces/temperature": view.face_T, "energy/stored": view.stored,
+                "energy/stored_layers": view.stored_layers,
+                "energy/stored_chamber": view.stored_chamber,
+                "energy/heater": view.heater_energy, "energy/loss_chamber": view.loss_energy,
+                "energy/residual": view.residual, "heater/power": view.heater_power,
+                "heater/duty": view.duty})
+    return {k: np.asarray(v)[skip:] for k, v in out.items()}
+
+
+def _lazy(attr):
+    def get(self):
+        return self._load(attr)
+    get.__doc__ = f"``{attr}`` of the run, read from ``{_ARRAY_DATASETS[attr]}`` of the file."
+    return property(get)
+
+
+class FileResult(Result):
+    """A run whose output went to an HDF5 file as it ran (``run(case, store=path)``).
+
+    It has everything a :class:`Result` has, with the same numbers.  The series (``times``,
+    ``T``, ``face_flow``, ...) live in the file and are read from it when first used (then
+    kept in memory), so a long run costs memory only for what is looked at.
+    :meth:`summary` needs no series: it comes from the first and last rows and the running
+    maxima the run kept.  ``store`` is the file's path.
+
+    While the file is still open under its temporary name (``StorageObserver(path,
+    keep_open=True)``), :meth:`write_hdf5` with that path finishes it (adding e.g. a
+    ``steady`` set in the meantime) and :meth:`discard` removes it.
+    """
+
+    times = _lazy("times")
+    T = _lazy("T")
+    face_flow = _lazy("face_flow")
+    face_energy = _lazy("face_energy")
+    heater_energy = _lazy("heater_energy")
+    loss_energy = _lazy("loss_energy")
+    heater_power = _lazy("heater_power")
+    h_conv = _lazy("h_conv")
+    h_rad = _lazy("h_rad")
+
+    def __new__(cls, *args, **kw):
+        if kw and "storage" not in kw and not args:
+            # dataclasses.replace(file_result, ...) builds from Result's fields: a changed
+            # copy is an ordinary in-memory Result
+            return Result(**kw)
+        return super().__new__(cls)
+
+    def __init__(self, ends: Result, storage):
+        from dataclasses import fields
+        self.__dict__["_fields"] = [f.name for f in fields(Result)
+                                    if f.name not in _ARRAY_DATASETS]
+        for name in self._fields:
+            setattr(self, name, getattr(ends, name))
+        self._ends = ends
+        self._storage = storage
+        self._cache = {}
+
+    @property
+    def store(self):
+        """Path of the HDF5 file holding the series (its final name)."""
+        return self._storage.path
+
+    @property
+    def n_outputs(self) -> int:
+        """Number of output rows in the file [-]."""
+        return int(self._storage.n_rows)
+
+    def _synced(self) -> Result:
+        """The result over the first row, the running maxima and the last row, with this
+        result's current status, message, steady state, ..."""
+        for name in self._fields:
+            setattr(self._ends, name, getattr(self, name))
+        return self._ends
+
+    def _load(self, attr):
+        if attr not in self._cache:
+            path = _ARRAY_DATASETS[attr]
+            if self._storage.pending:
+                self._cache[attr] = self._storage.h[path][()]
+            else:
+                import h5py
+                with h5py.File(self._storage.path, "r") as h:
+                    self._cache[attr] = h[path][()]
+        return self._cache[attr]
+
+    @property
+    def face_T(self) -> np.ndarray:
+        """Temperature of every face (n_time, n_faces) [K], read from ``faces/temperature``
+        (without loading ``T``)."""
+        if "face_T" not in self._cache:
+            if self._storage.pending:
+                self._cache["face_T"] = self._storage.h["faces/temperature"][()]
+            else:
+                import h5py
+                with h5py.File(self._storage.path, "r") as h:
+                    self._cache["face_T"] = h["faces/temperature"][()]
+        return self._cache["face_T"]
+
+    def layer_max_T(self) -> list:
+        return self._synced().layer_max_T()
+
+    def summary(self) -> dict:
+        return self._synced().summary()
+
+    def __repr__(self):
+        return (f"FileResult(case={self.case.name!r}, status={self.status!r}, "
+                f"outputs={self.n_outputs}, store={self.store!r})")
+
+    def write_hdf5(self, path) -> str:
+        """Finish the file (when still open) as ``path``, or write a copy of it to ``path``
+        with this result's current attributes (e.g. a steady state set after the run);
+        atomically either way."""
+        import shutil
+
+        import h5py
+
+        from .atomic import atomic_path
+        path = os.fspath(path)
+        ends = self._synced()
+        st = self._storage
+        if st.pending and os.path.abspath(path) == os.path.abspath(st.path):
+            st.finish(ends._write)
+            return path
+        if st.pending:
+            st.finish(ends._write)
+        keep = set(st.names)
+        with atomic_path(path, ".h5.part") as tmp:
+            shutil.copyfile(st.path, tmp)
+            with h5py.File(tmp, "r+") as h:
+                _strip_to(h, keep)
+                ends._write(h)
+        return path
+
+    def discard(self) -> None:
+        """Remove the file while it is still open under its temporary name (no-op after)."""
+        if self._storage.pending:
+            self._storage.abort()
+
+
+def _strip_to(h, keep) -> None:
+    """Delete every attribute, group and dataset of the open file ``h`` except the datasets
+    whose paths are in ``keep`` (and the groups that hold them)."""
+    import h5py
+    for k in list(h.attrs):
+        del h.attrs[k]
+
+    def walk(g, prefix):
+        for name in list(g):
+            p = f"{prefix}{name}"
+            obj = g[name]
+            if isinstance(obj, h5py.Group):
+                if any(x.startswith(p + "/") for x in keep):
+                    for a in list(obj.attrs):
+                        del obj.attrs[a]
+                    walk(obj, p + "/")
+                else:
+                    del g[name]
+            elif p not in keep:
+                del g[name]
+    walk(h, "")
 
 
 def resolved_inputs(case) -> dict:

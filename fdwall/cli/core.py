@@ -8,7 +8,7 @@ from pathlib import Path
 from .. import solver  # drivers as solver.run / solver.solve_steady (patchable in tests)
 from ..analyses import convergence
 from ..analyses.enclosure import summarise_enclosure
-from ..errors import InternalError
+from ..errors import InternalError, OutputError
 from ..materials import MaterialError, get_material, list_materials
 from ..report.plots import write_plots
 from ..report.text import (
@@ -24,7 +24,7 @@ from ..report.text import (
     material_table,
 )
 from ..solver import native
-from ..solver.observers import InterruptCheck
+from ..solver.observers import InterruptCheck, StorageObserver
 from . import common
 from .common import (
     EXIT_NOT_CONVERGED,
@@ -66,11 +66,28 @@ def _run_and_write(args, flag) -> int:
     stem = Path(args.case).stem
     outdir = Path(args.out) if args.out else Path("results") / stem
     progress = False if quiet else args.progress
+    # the output streams to the result file as the run goes (memory bounded by a window of
+    # rows, not by the run's length); the file is renamed to <stem>.h5 when written below
+    store = StorageObserver(outdir / f"{stem}.h5", keep_open=True)
     try:
         result = solver.run(case, progress=progress, strict=False, system=system,
-                     observers=[InterruptCheck(flag)])
+                     observers=[InterruptCheck(flag)], store=store)
     except _input_errors() as exc:
         raise InputError(_names_file(str(exc), args.case)) from None
+    except OutputError as exc:   # the streamed result file could not be written
+        cause = exc.__cause__
+        why = getattr(cause, "strerror", None) or str(exc)
+        raise WriteError(f"cannot write the results to '{outdir}': {why}. "
+                         "Choose another folder with --out DIR.") from None
+    try:
+        return _write_run(args, flag, case, warns, system, stem, outdir, progress, result)
+    finally:
+        if store.pending:  # not finished (a failure, or a result replaced): no temporary left
+            store.abort()
+
+
+def _write_run(args, flag, case, warns, system, stem, outdir, progress, result) -> int:
+    quiet = args.quiet
     interrupted = result.status == "interrupted"
     reached = float(result.stats.get("reached_s", result.times[-1]))
     if interrupted:

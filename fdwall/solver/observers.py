@@ -19,16 +19,33 @@ i.e. within a fraction of a second.
 An observer is any object with an ``update(progress)`` method; ``start(progress)`` and
 ``close()`` are called too when present.  Observers are called in the order given; the first
 :class:`Stop` wins.
+
+Output rows: an observer with a ``rows(block)`` method receives every output row of the run
+exactly once, in order, as :class:`OutputBlock` s (the initial state included, the stop row
+of an interrupted run too).  When one is present the driver holds at most a bounded window of
+output rows in memory (``window_bytes`` of :func:`fdwall.solver.transient.run`) and hands each
+filled window on; :class:`StorageObserver` appends them to resizable HDF5 datasets, so the
+memory of a run is bounded by the window and not by its length.  An ``abort()`` method, when
+present, is called if the run ends by an exception.
 """
 from __future__ import annotations
 
+import os
 import sys
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..atomic import commit_part, discard_part, open_part
+from ..errors import OutputError
+from ..h5tree import GuardedFile
+
 __all__ = ["CHUNK_SECONDS", "RunProgress", "Stop", "RunObserver", "StopFlag", "InterruptCheck",
-           "EarlyStop", "ProgressBar"]
+           "EarlyStop", "ProgressBar", "OutputBlock", "StorageObserver", "WINDOW_BYTES"]
+
+WINDOW_BYTES = 4 << 20
+"""Default size of the window of output rows a streamed run holds in memory [bytes] (common
+practice, no source: a few MB amortise the HDF5 appends and stay small beside the kernels)."""
 
 CHUNK_SECONDS = 0.1
 """Target wall time of one chunk of a run [s]: observers (and Ctrl-C) are served at least
@@ -217,3 +234,211 @@ class ProgressBar(RunObserver):
         if self.bar is not None:
             self.bar.close()
             self.bar = None
+
+
+@dataclass(frozen=True)
+class OutputBlock:
+    """Consecutive output rows of a run, handed to observers that have a ``rows`` method.
+
+    Attributes
+    ----------
+    first : int
+        Index of the first row in the whole run (row 0 is the initial state) [-].
+    times : ndarray
+        Output times (n,) [s].
+    T : ndarray
+        Temperatures of all unknowns (n, n_unknowns) [K].
+    face_flow, face_energy : ndarray
+        Heat flow into the wall (n, n_faces) [W] and its running total (n, n_faces) [J].
+    heater_energy, loss_energy, heater_power : ndarray
+        Cumulative heater energy [J], cumulative chamber loss [J], heater power [W], (n,).
+    h_conv, h_rad : ndarray
+        Convective and linearised radiative film coefficients (n, n_faces) [W/m2/K].
+    series : callable
+        ``series()`` -> dict of HDF5 dataset path -> array with n rows: every time series of
+        the result file (derived ones such as stored energy and duty included), computed on
+        demand by the driver.
+
+    The arrays are views of the driver's window: copy what you keep.
+    """
+
+    first: int
+    times: np.ndarray
+    T: np.ndarray
+    face_flow: np.ndarray
+    face_energy: np.ndarray
+    heater_energy: np.ndarray
+    loss_energy: np.ndarray
+    heater_power: np.ndarray
+    h_conv: np.ndarray
+    h_rad: np.ndarray
+    series: object = field(default=None, repr=False)
+
+    @property
+    def n(self) -> int:
+        """Number of rows [-]."""
+        return int(self.times.shape[0])
+
+
+class StorageObserver(RunObserver):
+    """Streams the output rows of a run into an HDF5 result file.
+
+    The rows go to resizable, chunked, compressed datasets (h5py, ``maxshape=None``) in a
+    temporary file beside ``path`` (named as :mod:`fdwall.atomic` names its temporaries, so a
+    run killed outright leaves a file that the next run into that folder removes).  When the
+    run ends -- complete, interrupted or failed -- :meth:`finish` writes the rest of the file
+    (input, mesh, events, solver statistics, status) and renames it to ``path``: a reader
+    never sees a half-written file.  If the run ends by an exception, :meth:`abort` removes
+    the temporary file.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The result file to write.
+    keep_open : bool
+        False: the driver finishes the file at the end of the run.  True: the file stays open
+        (still under its temporary name) until the returned result's ``write_hdf5(path)``
+        finishes it, so that the caller can add to it first (the command line adds the
+        steady state); ``discard()`` of the result removes it instead.
+    chunk_bytes : int
+        Size of one HDF5 chunk when the run's length is not known [bytes] (otherwise h5py
+        chooses, as for an in-memory write).
+    cache_bytes : int
+        HDF5 chunk cache of each dataset [bytes] (rows come in order: a small one serves).
+    """
+
+    def __init__(self, path, keep_open: bool = False, chunk_bytes: int = 1 << 16,
+                 cache_bytes: int = 1 << 20):
+        self.path = os.fspath(path)
+        self.cache_bytes = int(cache_bytes)
+        self.keep_open = bool(keep_open)
+        self.chunk_bytes = int(chunk_bytes)
+        self.tmp = None
+        self.h = None
+        self.n_rows = 0
+        self.names = []          # dataset paths streamed, in creation order
+        self._empty = {}         # datasets whose rows hold no values: path -> (shape, dtype)
+        self.finished = False
+        self._raw = None
+
+    def _open(self):
+        if self.h is None and not self.finished:
+            import h5py
+            self.tmp = open_part(self.path, ".h5.part")
+            try:
+                self._raw = GuardedFile(self.tmp)
+                # a small chunk cache: rows are appended in order, whole windows at a time
+                self.h = h5py.File(self._raw, "w", rdcc_nbytes=self.cache_bytes)
+            except OSError as e:
+                self.abort()
+                raise OutputError(f"cannot write {self.path}: {e.strerror or e}") from e
+
+    def _check(self):
+        """Raise OutputError (and remove the temporary file) once a write has failed."""
+        e = self._raw.error if self._raw is not None else None
+        if e is not None:
+            self.abort()
+            raise OutputError(f"cannot write {self.path}: {e.strerror or e}") from e
+
+    def start(self, progress):
+        self.expected_rows = int(progress.n_outputs)
+        self._open()
+
+    def _chunks(self, rest, itemsize):
+        """Chunk shape of a series: h5py's own choice for the run's whole length when it can
+        be had (so a streamed file is chunked like an in-memory write), else rows of about
+        ``chunk_bytes``."""
+        n = getattr(self, "expected_rows", 0)
+        if n > 0:
+            try:
+                from h5py._hl.filters import guess_chunk
+                c = guess_chunk((n,) + rest, None, itemsize)
+                if c is not None:
+                    return tuple(int(x) for x in c)
+            except Exception:  # pragma: no cover - a private helper of h5py may move
+                pass
+        per_row = max(1, int(np.prod(rest, dtype=np.int64)) * itemsize)
+        return (max(1, min(self.chunk_bytes // per_row, 1 << 20)),) + rest
+
+    def rows(self, block: OutputBlock) -> None:
+        """Append ``block`` (its ``series()``) to the datasets, creating them on first use."""
+        self._open()
+        if block.first != self.n_rows:
+            raise OutputError(f"output rows out of order for {self.path}: got row "
+                              f"{block.first}, expected {self.n_rows}")
+        n = block.n
+        if n == 0:
+            return
+        for name, arr in block.series().items():
+            arr = np.asarray(arr)
+            rest = arr.shape[1:]
+            if int(np.prod(rest, dtype=np.int64)) == 0:
+                self._empty.setdefault(name, (rest, arr.dtype))
+                if name not in self.names:
+                    self.names.append(name)
+                continue
+            if name not in self.h:
+                chunks = self._chunks(rest, arr.dtype.itemsize)
+                # cache one band of chunks across all columns, twice: a window's rows then
+                # fill each chunk in memory and it is compressed and written once
+                band = int(np.prod(rest, dtype=np.int64)) * chunks[0] * arr.dtype.itemsize
+                self.h.create_dataset(name, shape=(0,) + rest, maxshape=(None,) + rest,
+                                      dtype=arr.dtype, chunks=chunks, compression="gzip",
+                                      rdcc_nbytes=max(self.cache_bytes, 2 * band),
+                                      rdcc_nslots=10007)
+                self.names.append(name)
+            d = self.h[name]
+            d.resize(self.n_rows + n, axis=0)
+            d[self.n_rows:self.n_rows + n] = arr
+        self.n_rows += n
+        self._check()
+
+    def finish(self, write=None) -> str:
+        """Complete the file and rename it to ``path``; return ``path``.
+
+        ``write``: a callable taking the open h5py file, that writes everything but the
+        streamed series (:meth:`fdwall.result.Result._write` does: it keeps the streamed
+        datasets and adds their attributes).  On any failure the temporary file is removed.
+        """
+        self._open()
+        try:
+            for name, (rest, dt) in self._empty.items():
+                if name not in self.h:
+                    self.h.create_dataset(name, shape=(self.n_rows,) + rest, dtype=dt)
+            if write is not None:
+                write(self.h)
+            self.h.flush()
+            self._check()
+            self.h.close()
+            self.h = None
+            self._raw.close()
+            self._check()
+            self._raw = None
+        except BaseException:
+            self.abort()
+            raise
+        commit_part(self.tmp, self.path)
+        self.finished = True
+        return self.path
+
+    def abort(self) -> None:
+        """Close and remove the temporary file (nothing is left)."""
+        if self.h is not None:
+            try:
+                self.h.close()
+            except Exception:  # pragma: no cover - a broken file is removed anyway
+                pass
+            self.h = None
+        if self._raw is not None:
+            try:
+                self._raw.close()
+            except OSError:
+                pass
+            self._raw = None
+        discard_part(self.tmp)
+        self.tmp = None
+
+    @property
+    def pending(self) -> bool:
+        """True while the file is open under its temporary name."""
+        return self.h is not None and not self.finished

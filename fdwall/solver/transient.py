@@ -16,7 +16,7 @@ import numpy as np
 
 from ..errors import ConvergenceError, Interrupted
 from ..model import Case, ModelError
-from ..result import Result
+from ..result import FileResult, Result, series_view, stream_series
 from ..system import build_system, event_rows  # noqa: F401  (event_rows: re-exported)
 from . import native as K
 from .layout import (
@@ -26,18 +26,29 @@ from .layout import (
     CTL_DUTY_AVERAGED,
     CTL_THERMOSTAT,
     EX_HEATER,
+    EX_LOSS,
     KS_ARRAYS,
     N_EX,
     resume_size,
     system_args,
 )
-from .observers import CHUNK_SECONDS, ProgressBar, RunProgress, Stop
+from .observers import (
+    CHUNK_SECONDS,
+    WINDOW_BYTES,
+    OutputBlock,
+    ProgressBar,
+    RunProgress,
+    Stop,
+    StorageObserver,
+)
 from .readout import sensor_temperature
 
 __all__ = ["run", "output_times", "event_rows", "ConvergenceError", "Interrupted"]
 
 FIRST_CHUNK_STEPS = 16
 """Time steps of the first chunk of a run [-]; later chunks adapt to ``chunk_seconds``."""
+MIN_WINDOW_ROWS = 8
+"""Smallest window of output rows of a streamed run [-]."""
 MAX_CHUNK_STEPS = 1 << 30
 """Upper bound of the steps of one chunk [-] (keeps the budget a C integer)."""
 
@@ -53,7 +64,7 @@ def output_times(case: Case) -> np.ndarray:
 
 
 def run(case, initial=None, progress=None, strict=True, system=None, control_state=None,
-        observers=None, chunk_seconds=CHUNK_SECONDS):
+        observers=None, chunk_seconds=CHUNK_SECONDS, store=None, window_bytes=WINDOW_BYTES):
     """Run a transient case.
 
     Parameters
@@ -81,14 +92,27 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
         Run observers (:mod:`fdwall.solver.observers`), called between chunks of about
         ``chunk_seconds`` of wall time with a :class:`~fdwall.solver.observers.RunProgress`;
         one that returns a :class:`~fdwall.solver.observers.Stop` ends the run after the
-        current step (the outputs so far plus the state at the stop time are kept).
+        current step (the outputs so far plus the state at the stop time are kept).  One
+        with a ``rows(block)`` method receives every output row once, in order.
     chunk_seconds : float
         Target wall time of one chunk [s]; 0 makes every chunk one time step.  The results
         do not depend on it (the time loop resumes exactly where it stopped).
+    store : str, os.PathLike or StorageObserver, optional
+        Stream the output to this HDF5 result file as the run goes (a
+        :class:`~fdwall.solver.observers.StorageObserver` is made for a path; one in
+        ``observers`` counts too).  The run then holds at most ``window_bytes`` of output
+        rows in memory, and returns a :class:`fdwall.result.FileResult` backed by the file
+        (same numbers as an in-memory run, to the last digit; its series are read from the
+        file when first used).  The file is complete, and marked incomplete when the run
+        stopped early, before this function returns or raises.
+    window_bytes : int
+        Size of the window of output rows a streamed run holds [bytes] (at least 8 rows;
+        a single time step that spans more rows widens it).
 
     Returns
     -------
     fdwall.result.Result
+        In memory, or a :class:`fdwall.result.FileResult` with ``store``.
     """
     sysm = system if system is not None else build_system(case)
     r = case.run
@@ -100,12 +124,29 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     for k, i in enumerate(sysm.dirich_node):
         T[i] = K.sched_eval(sysm.s_off, sysm.stab, sysm.dirich_sched[k], 0.0, 0.0)
     n_out = t_out.size
-    T_out = np.full((n_out, nun), np.nan)
-    qf_out = np.full((n_out, nf), np.nan)
-    E_out = np.full((n_out, nf + N_EX), np.nan)
-    P_out = np.full(n_out, np.nan)
-    hc_out = np.full((n_out, nf), np.nan)
-    hr_out = np.full((n_out, nf), np.nan)
+    t_grid = t_out
+    watchers = list(observers or ())
+    storage = None
+    if store is not None:
+        storage = store if isinstance(store, StorageObserver) else StorageObserver(store)
+        if storage not in watchers:
+            watchers.append(storage)
+    else:
+        storage = next((w for w in watchers if isinstance(w, StorageObserver)), None)
+    sinks = [w for w in watchers if hasattr(w, "rows")]
+    stream = storage is not None
+    # output rows held in memory: all of them, or a window of ``cap`` rows (+1 slot whose time
+    # is the end of the run, so that the kernel sees the same last output time and target)
+    row_bytes = 8 * (nun + 4 * nf + N_EX + 2)
+    cap = n_out if not stream else int(min(n_out, max(MIN_WINDOW_ROWS, window_bytes // row_bytes)))
+    land = bool(r.exact_outputs)
+
+    def _alloc(rows):
+        return (np.full((rows, nun), np.nan), np.full((rows, nf), np.nan),
+                np.full((rows, nf + N_EX), np.nan), np.full(rows, np.nan),
+                np.full((rows, nf), np.nan), np.full((rows, nf), np.nan))
+
+    T_out, qf_out, E_out, P_out, hc_out, hr_out = _alloc(cap if cap >= n_out else cap + 1)
     # row 0: the initial state.  A fixed-temperature face that starts away from the initial
     # temperature takes the heat of that jump at t = 0: it is booked on the face's ledger.
     F = np.empty(nun)
@@ -156,13 +197,61 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     ev_out = np.full((len(ev_i), 2), np.nan)
     max_step = r.max_step if r.max_step is not None else np.inf
     ks = np.zeros(resume_size(nun, nf))
-    args = (t_out, 1, n_out, bool(r.exact_outputs), sysm.breakpoints, sysm.breakpoint_jumps,
-            r.tolerance, max_step, *sa, sysm.dirich_node, sysm.dirich_sched,
-            sysm.dirich_face, qd_state, ev_i, ev_f, ev_out, T_out, qf_out, E_out, P_out, hc_out,
-            hr_out, ks)
-    watchers = list(observers or ())
+    win = {"a": 0}           # global index of row 0 of the buffers
+
+    def _window_args():
+        a = win["a"]
+        if a + cap >= n_out:
+            tw = t_out[a:] if a else t_out
+        else:
+            tw = np.concatenate([t_out[a:a + cap], t_out[-1:]])
+        win["t"] = tw
+        return [tw, 1, tw.size, land, sysm.breakpoints, sysm.breakpoint_jumps,
+                r.tolerance, max_step, *sa, sysm.dirich_node, sysm.dirich_sched,
+                sysm.dirich_face, qd_state, ev_i, ev_f, ev_out, T_out, qf_out, E_out, P_out,
+                hc_out, hr_out, ks]
+
+    args = _window_args()
     if progress is not False:
         watchers.insert(0, ProgressBar(show=True if progress else None))
+    # rows handed to the sinks, and what a streamed result keeps of them: the first and the
+    # last row, and the running maximum of every temperature
+    kept = {"done": 0, "first": None, "prev": None, "Tmax": None}
+
+    def _rows(lo, hi, times=None):
+        """Rows [lo, hi) (global) of the buffers as raw arrays (views)."""
+        a = win["a"]
+        sl = slice(lo - a, hi - a)
+        t = times if times is not None else t_out[lo:hi]
+        return (t, T_out[sl], qf_out[sl], E_out[sl], P_out[sl], hc_out[sl], hr_out[sl])
+
+    def _deliver(hi, times=None):
+        """Hand rows [done, hi) to the sinks and update the streamed reductions."""
+        lo = kept["done"]
+        if hi <= lo or not sinks:
+            return
+        raw = _rows(lo, hi, times)
+        ctx = [x for x in (kept["first"], kept["prev"] if lo > 1 else None) if x is not None]
+        nctx = len(ctx)
+
+        def series():
+            full = raw if not nctx else tuple(
+                np.concatenate([np.asarray(c[i]).reshape((1,) + np.shape(raw[i])[1:])
+                                for c in ctx] + [raw[i]]) for i in range(7))
+            return stream_series(series_view(case, sysm, *full), nctx)
+
+        t, Tb, qfb, Eb, Pb, hcb, hrb = raw
+        block = OutputBlock(lo, t, Tb, qfb, Eb[:, :nf], Eb[:, nf + EX_HEATER],
+                            Eb[:, nf + EX_LOSS], Pb, hcb, hrb, series)
+        for w in sinks:
+            w.rows(block)
+        if kept["first"] is None:
+            kept["first"] = tuple(np.array(x[0]) for x in raw)
+        kept["prev"] = tuple(np.array(x[-1]) for x in raw)
+        m = np.max(Tb, axis=0)
+        kept["Tmax"] = m if kept["Tmax"] is None else np.maximum(kept["Tmax"], m)
+        kept["done"] = hi
+
     k = 1
     t0 = _time.perf_counter()
     failed = False
@@ -170,108 +259,219 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     stop = None
     budget = FIRST_CHUNK_STEPS if chunk_seconds > 0 else 1
     started = []
+    rows_total, steps_total = 0, 0
+    limit = None             # steps a call may take after calls that stepped past the window
+    gap = None               # outputs not kept when a stop came between the passes of a call
+    polled = [_time.perf_counter()]
+
+    def _ask():
+        """Call the observers' update; return the first Stop asked for, or None."""
+        polled[0] = _time.perf_counter()
+        pr = _progress()
+        for w in watchers:
+            ask = w.update(pr)
+            if ask:
+                return ask if isinstance(ask, Stop) else Stop("stopped by an observer")
+        return None
 
     def _progress():
         return RunProgress(case.name, float(acc[-1]), float(r.duration), int(k), int(n_out),
                            int(stats[K.ST_ACC]), _time.perf_counter() - t0, T.copy())
 
     try:
-        p0 = _progress()
-        for w in watchers:
-            started.append(w)
-            if hasattr(w, "start"):
-                w.start(p0)
-        while k < n_out:
-            a = list(args)
-            a[1] = k
-            steps0 = stats[K.ST_ACC]
-            c0 = _time.perf_counter()
-            done = K.integrate(T, cs, acc, stats, *a, budget)
-            spent = _time.perf_counter() - c0
-            k0 = k
-            k += done
-            if stats[K.ST_STATUS] != 0:
-                failed = True
-                break
-            bad = _implausible(T_out, k0, k)
-            if bad is not None:
-                failed = True
-                implausible = bad
-                # keep only the plausible outputs before it: the rest are marked missing
-                for arr in (T_out, qf_out, E_out, P_out, hc_out, hr_out):
-                    arr[bad[0]:] = np.nan
-                stats[K.ST_T] = t_out[bad[0] - 1]
-                break
-            if k >= n_out:
-                break
-            # next budget: about chunk_seconds of wall time at the measured cost of a step,
-            # growing at most fourfold per chunk (the first chunk may include compilation)
-            per = spent / max(stats[K.ST_ACC] - steps0, 1.0)
-            budget = int(max(1, min(4 * budget, MAX_CHUNK_STEPS,
-                                    chunk_seconds / max(per, 1e-9))))
-            pr = _progress()
+        try:
+            p0 = _progress()
             for w in watchers:
-                ask = w.update(pr)
-                if ask:
-                    stop = ask if isinstance(ask, Stop) else Stop("stopped by an observer")
+                started.append(w)
+                if hasattr(w, "start"):
+                    w.start(p0)
+            while k < n_out:
+                a = win["a"]
+                call = budget
+                if a + cap < n_out:
+                    # keep a call inside the window where that is cheap to know: one row per
+                    # step when outputs are landed on, else the measured rows per step
+                    room = cap - (k - a)
+                    if land:
+                        call = min(call, room)
+                    elif steps_total:
+                        call = min(call, max(1, int(0.5 * room * steps_total
+                                                    / max(rows_total, 1))))
+                    if limit is not None:
+                        call = min(call, limit)
+                    snap = tuple(x.copy() for x in (T, cs, acc, stats, ks, qd_state, ev_out))
+                steps0 = stats[K.ST_ACC]
+                k0 = k
+                bad = None
+                passes = 0
+                c0 = _time.perf_counter()
+                while True:
+                    a = win["a"]
+                    args[1] = k - a
+                    done = K.integrate(T, cs, acc, stats, *args, call)
+                    t_s = acc[-1]
+                    over = a + cap < n_out and t_out[a + cap] <= t_s + 1e-12 * (1.0 + abs(t_s))
+                    if over:    # (a row in the end-of-run slot is none of the window's)
+                        done = min(done, cap - (k - a))
+                    if stats[K.ST_STATUS] == 0:
+                        bad = _implausible(T_out, k - a, k - a + done)
+                    if bad is not None or not over:
+                        break
+                    # the call stepped past the window's last row (never when outputs are
+                    # landed on: at most one row a step, and the call is capped to the room
+                    # left).  Hand the window on and run the same call again from its start
+                    # for the rows after it: without landing, the steps do not depend on the
+                    # output rows, so the state and every row come out exactly as in one go.
+                    k += done
+                    _deliver(k)
+                    win["a"] = k
+                    args = _window_args()
+                    took = int(stats[K.ST_ACC] - snap[3][K.ST_ACC])
+                    limit = max(1, took // 2)
+                    if _time.perf_counter() - polled[0] > chunk_seconds:
+                        # observers are served between the passes too; a stop here keeps
+                        # the state at the end of the call, and the rows after the window
+                        # up to it are not kept (said in the message)
+                        stop = _ask()
+                        if stop is not None:
+                            gap = (float(t_out[k - 1]), float(acc[-1]))
+                            done = 0
+                            break
+                    for x, v in zip((T, cs, acc, stats, ks, qd_state, ev_out), snap):
+                        x[...] = v
+                    passes += 1
+                if limit is not None and not passes:
+                    limit = None if 2 * limit >= budget else 2 * limit
+                spent = _time.perf_counter() - c0
+                a = win["a"]
+                k += done
+                rows_total += k - k0
+                steps_total += int(stats[K.ST_ACC] - steps0)
+                if stats[K.ST_STATUS] != 0 or stop is not None:
+                    failed = True
                     break
-            if stop is not None:
-                failed = True
-                break
-    finally:
+                if bad is not None:
+                    failed = True
+                    implausible = (bad[0] + a, bad[1])
+                    # keep only the plausible outputs before it: the rest are marked missing
+                    for arr in (T_out, qf_out, E_out, P_out, hc_out, hr_out):
+                        arr[bad[0]:] = np.nan
+                    k = bad[0] + a
+                    stats[K.ST_T] = t_out[k - 1]
+                    break
+                if stream:
+                    if k - a >= cap // 2 and k < n_out:
+                        _deliver(k)
+                        win["a"] = k
+                        args = _window_args()
+                else:
+                    _deliver(k)
+                if k >= n_out:
+                    break
+                # next budget: about chunk_seconds of wall time at the measured cost of a
+                # step, growing at most fourfold per chunk (the first may include compiling)
+                per = spent / max(stats[K.ST_ACC] - steps0, 1.0)
+                budget = int(max(1, min(4 * budget, MAX_CHUNK_STEPS,
+                                        chunk_seconds / max(per, 1e-9))))
+                stop = _ask()
+                if stop is not None:
+                    failed = True
+                    break
+        finally:
+            for w in started:
+                if hasattr(w, "close"):
+                    w.close()
+        t_last = t_out[k - 1]
+        if gap is not None:
+            # stopped between the passes of a call: the rows end at the window handed on;
+            # no stop row (the state is further on, past rows that were not written)
+            stats[K.ST_T] = t_last
+        if stop is not None and stream and gap is None:
+            t_stop = float(acc[-1])
+            if t_stop > t_last:
+                # the state at the stop time as a last output row, in the window's free slot
+                j = k - win["a"]
+                vals = _stop_row(sysm, T, ks, acc, qd_state)
+                for arr, v in zip((T_out, qf_out, E_out, P_out, hc_out, hr_out), vals):
+                    arr[j] = v
+                _deliver(k + 1, np.concatenate([t_out[kept["done"]:k], [t_stop]]))
+        elif stop is not None and not stream:
+            # keep the state at the stop time as a last output row (what an output there
+            # would be)
+            t_stop = float(acc[-1])
+            if t_stop > t_last:
+                _deliver(k)
+                t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out = _append_stop_row(
+                    sysm, k, t_stop, T, ks, acc, qd_state, t_out, T_out, qf_out, E_out,
+                    P_out, hc_out, hr_out)
+                _deliver(k + 1, t_out[kept["done"]:k + 1])
+        _deliver(k)
+        if stream:
+            # the run's result from the first row, the last row and the running maxima of
+            # the temperatures: every number of the summary is one of those (or of the
+            # statistics), exactly as from the whole history
+            first, last = kept["first"], kept["prev"]
+            mid = (last[0], kept["Tmax"]) + last[2:]
+            t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out = (
+                np.stack([f, m, la]) for f, m, la in zip(first, mid, last))
+        res = Result.from_run(case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out,
+                              stats, ev_out, complete=not failed,
+                              wall_time=_time.perf_counter() - t0)
+        end = cs.copy()
+        end[K.CS_NEXT] -= stats[K.ST_T]
+        end[K.CS_OFF] -= stats[K.ST_T]
+        res.control_state = end
+        raise_ = None
+        if stop is not None:
+            res.status = "interrupted"
+            res.message = (f"the run was stopped at t = {stats[K.ST_T]:.6g} s "
+                           f"({stats[K.ST_T] / 3600:.4g} h) of {r.duration:.6g} s: "
+                           f"{stop.reason}. Results up to that time are kept and marked "
+                           "incomplete.")
+            if gap is not None:
+                res.message += (" (The stop came while one long stretch of time steps, "
+                                f"computed up to t = {gap[1]:.6g} s, was being written out "
+                                "window by window: the outputs end at the last row written.)")
+            raise_ = (Interrupted, stop.signal)
+        elif failed and implausible is not None:
+            i_out, peak = implausible
+            what = "not finite" if not np.isfinite(peak) else f"{peak:.6g} K"
+            res.message = (
+                f"the run was stopped at output {i_out} (t = {t_grid[i_out]:.6g} s): "
+                f"a wall temperature reached {what}, beyond the plausibility ceiling of "
+                f"{PLAUSIBLE_CEILING_K:.0f} K (far above every property table and fluid "
+                "temperature fdwall knows). The heat put in is unphysical for this wall: check "
+                "the heater powers, imposed fluxes and radiation/fluid temperatures of the "
+                "case. Results before that time are kept and marked incomplete.")
+            res.status = "implausible"
+            raise_ = (ConvergenceError, None)
+        elif failed:
+            why = ("the time step fell below its floor" if stats[K.ST_STATUS] == 1 else
+                   "the time steps stalled (tens of thousands of steps without real progress)")
+            if stats[K.ST_COLD] > 0:
+                why += ("; temperatures were driven towards absolute zero: the case takes more "
+                        "heat out than the wall holds (check the signs of fluxes and heater "
+                        "powers)")
+            res.message = (f"the solver could not converge at t = {stats[K.ST_T]:.6g} s "
+                           f"({stats[K.ST_T] / 3600:.4g} h): {why}. Results up to that time are "
+                           "kept and marked incomplete. Check for unphysical inputs (huge film "
+                           "coefficients or fluxes, a heater with no path for its heat).")
+            res.status = "not converged"
+            raise_ = (ConvergenceError, None)
+        if stream:
+            res = FileResult(res, storage)
+            if not storage.keep_open:
+                res.write_hdf5(storage.path)
+    except BaseException:
         for w in started:
-            if hasattr(w, "close"):
-                w.close()
-    if stop is not None:
-        # keep the state at the stop time as a last output row (what an output there would be)
-        t_stop = float(acc[-1])
-        if t_stop > t_out[k - 1]:
-            t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out = _append_stop_row(
-                sysm, k, t_stop, T, ks, acc, qd_state, t_out, T_out, qf_out, E_out, P_out,
-                hc_out, hr_out)
-    res = Result.from_run(case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out,
-                          stats, ev_out, complete=not failed,
-                          wall_time=_time.perf_counter() - t0)
-    end = cs.copy()
-    end[K.CS_NEXT] -= stats[K.ST_T]
-    end[K.CS_OFF] -= stats[K.ST_T]
-    res.control_state = end
-    if stop is not None:
-        res.status = "interrupted"
-        res.message = (f"the run was stopped at t = {stats[K.ST_T]:.6g} s "
-                       f"({stats[K.ST_T] / 3600:.4g} h) of {r.duration:.6g} s: {stop.reason}. "
-                       "Results up to that time are kept and marked incomplete.")
-        if strict:
-            raise Interrupted(res.message, res, stop.signal)
-        return res
-    if failed and implausible is not None:
-        i_out, peak = implausible
-        what = "not finite" if not np.isfinite(peak) else f"{peak:.6g} K"
-        msg = (f"the run was stopped at output {i_out} (t = {t_out[i_out]:.6g} s): a wall "
-               f"temperature reached {what}, beyond the plausibility ceiling of "
-               f"{PLAUSIBLE_CEILING_K:.0f} K (far above every property table and fluid "
-               "temperature fdwall knows). The heat put in is unphysical for this wall: check "
-               "the heater powers, imposed fluxes and radiation/fluid temperatures of the case. "
-               "Results before that time are kept and marked incomplete.")
-        res.message = msg
-        res.status = "implausible"
-        if strict:
-            raise ConvergenceError(msg, res)
-        return res
-    if failed:
-        why = ("the time step fell below its floor" if stats[K.ST_STATUS] == 1 else
-               "the time steps stalled (tens of thousands of steps without real progress)")
-        if stats[K.ST_COLD] > 0:
-            why += ("; temperatures were driven towards absolute zero: the case takes more heat "
-                    "out than the wall holds (check the signs of fluxes and heater powers)")
-        msg = (f"the solver could not converge at t = {stats[K.ST_T]:.6g} s "
-               f"({stats[K.ST_T] / 3600:.4g} h): {why}. Results up to that time are kept and "
-               "marked incomplete. Check for unphysical inputs (huge film coefficients or "
-               "fluxes, a heater with no path for its heat).")
-        res.message = msg
-        res.status = "not converged"
-        if strict:
-            raise ConvergenceError(msg, res)
+            if hasattr(w, "abort"):
+                w.abort()
+        raise
+    if raise_ is not None and strict:
+        exc, sig = raise_
+        if exc is Interrupted:
+            raise Interrupted(res.message, res, sig)
+        raise exc(res.message, res)
     return res
 
 
@@ -312,12 +512,9 @@ def _initial_u(sysm, T):
 
 
 
-def _append_stop_row(sysm, k, t_stop, T, ks, acc, qd_state, t_out, T_out, qf_out, E_out, P_out,
-                     hc_out, hr_out):
-    """Output arrays cut to the ``k`` rows written plus one row at the stop time ``t_stop``
-    [s]: the state at the end of the last step, exactly as an output there would read
-    (temperatures [K], face flows [W], cumulative energies [J], heater power [W], film
-    coefficients [W/m2/K])."""
+def _stop_row(sysm, T, ks, acc, qd_state):
+    """The state at the end of the last step as an output row: temperatures [K], face flows
+    [W], cumulative energies [J], heater power [W], film coefficients [W/m2/K]."""
     nun, nf = T.size, sysm.face_i.shape[0]
     o = KS_ARRAYS + 4 * nun
     q1, hcw, hrw = ks[o:o + nf], ks[o + nf:o + 2 * nf], ks[o + 2 * nf:o + 3 * nf]
@@ -325,14 +522,16 @@ def _append_stop_row(sysm, k, t_stop, T, ks, acc, qd_state, t_out, T_out, qf_out
     qf = q1.copy()
     for kk, f in enumerate(sysm.dirich_face):
         qf[f] = qd_state[kk]
-    rows = (
-        (t_out, t_stop),
-        (T_out, T),
-        (qf_out, qf),
-        (E_out, acc[:nf + N_EX]),
-        (P_out, ex1[EX_HEATER]),
-        (hc_out, hcw),
-        (hr_out, hrw),
-    )
+    return (T, qf, acc[:nf + N_EX], ex1[EX_HEATER], hcw, hrw)
+
+
+def _append_stop_row(sysm, k, t_stop, T, ks, acc, qd_state, t_out, T_out, qf_out, E_out, P_out,
+                     hc_out, hr_out):
+    """Output arrays cut to the ``k`` rows written plus one row at the stop time ``t_stop``
+    [s]: the state at the end of the last step, exactly as an output there would read
+    (temperatures [K], face flows [W], cumulative energies [J], heater power [W], film
+    coefficients [W/m2/K])."""
+    vals = (t_stop,) + _stop_row(sysm, T, ks, acc, qd_state)
+    arrs = (t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out)
     return tuple(np.concatenate([a[:k], np.asarray(v, dtype=float).reshape((1,) + a.shape[1:])])
-                 for a, v in rows)
+                 for a, v in zip(arrs, vals))
