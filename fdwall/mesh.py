@@ -39,7 +39,7 @@ __all__ = ["WallMesh", "MeshGrading", "mesh_wall", "default_cells", "cell_counts
            "problem_grading", "graded_fractions", "TIME_FLOOR"]
 
 GRADING_BETA = 0.5
-GROWTH = 1.2
+GROWTH = 1.1
 """Largest ratio of neighbouring cell sizes of a problem-graded layer [-] (common practice,
 no source: 1.2 to 1.3 keeps a vertex-centred scheme close to its uniform-mesh accuracy)."""
 PENETRATION_FRACTION = 0.15
@@ -53,6 +53,9 @@ TIME_FLOOR = 1.0
 """Floor on the shortest time that matters for the mesh [s]: outputs asked for closer than
 this to the start or to a step in a boundary schedule are not resolved in space to the
 contract (the run says so in its notes)."""
+MID_CELLS_FACTOR = 2.0
+"""Mid-layer cells of a problem-graded layer are at most its thickness over this factor times
+:func:`default_cells` [-] (fronts crossing a layer reach the next interface resolved)."""
 MIN_FIRST_CELL = 1e-5
 """Smallest first cell as a fraction of the layer thickness [-] (bounds the cell count)."""
 
@@ -281,7 +284,7 @@ def graded_fractions(wall, grading) -> list:
             continue
         L = float(l.thickness)
         alpha, kmin = _alpha_k_min(l.material)
-        d_max = L / nb
+        d_max = L / (nb * MID_CELLS_FACTOR)
         d_pen = PENETRATION_FRACTION * np.sqrt(alpha * grading.t_min)
         ends = []
         for h in (grading.h_inner if j == 0 else 0.0, grading.h_outer if j == nl - 1 else 0.0):

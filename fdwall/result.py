@@ -86,6 +86,8 @@ class Result:
     wall_time: float = 0.0
     steady: object = None
     control_state: object = None
+    #: Spatial error estimate and contract margin (fdwall.solver.accuracy); None: not made.
+    error_estimate: object = None
 
     @classmethod
     def from_run(cls, case, sysm, t_out, T_out, qf_out, E_out, P_out, hc_out, hr_out, stats,

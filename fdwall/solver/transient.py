@@ -18,6 +18,7 @@ from ..errors import ConvergenceError, Interrupted
 from ..model import Case, ModelError
 from ..system import build_system, event_rows  # noqa: F401  (event_rows: re-exported)
 from . import native as K
+from .accuracy import checked_run
 from .layout import (
     CF_SENSOR_W,
     CI_HEATER_NODE,
@@ -35,7 +36,7 @@ from .layout import (
 )
 from .observers import CHUNK_SECONDS, ProgressBar, RunProgress, Stop
 
-__all__ = ["run", "output_times", "event_rows", "ConvergenceError", "Interrupted"]
+__all__ = ["run", "run_once", "output_times", "event_rows", "ConvergenceError", "Interrupted"]
 
 FIRST_CHUNK_STEPS = 16
 """Time steps of the first chunk of a run [-]; later chunks adapt to ``chunk_seconds``."""
@@ -54,8 +55,27 @@ def output_times(case: Case) -> np.ndarray:
 
 
 def run(case, initial=None, progress=None, strict=True, system=None, control_state=None,
-        observers=None, chunk_seconds=CHUNK_SECONDS):
-    """Run a transient case.
+        observers=None, chunk_seconds=CHUNK_SECONDS, estimate=True):
+    """Run a transient case, with its spatial error estimated and the mesh refined until the
+    accuracy contract is met (:mod:`fdwall.solver.accuracy`).
+
+    Parameters are those of :func:`run_once`, plus ``estimate`` (bool): True (default)
+    estimates the spatial error of the run by a second run on half the cells and refines the
+    mesh (doubling the cells) until the estimate meets the contract; the reported
+    :class:`fdwall.result.Result` carries it as ``error_estimate``.  False runs the case once
+    on its mesh (for runs inside analyses: sizing loops, studies, fits), and
+    ``error_estimate`` is None.
+    """
+    kw = dict(initial=initial, progress=progress, strict=strict, control_state=control_state,
+              observers=observers, chunk_seconds=chunk_seconds)
+    if not estimate:
+        return run_once(case, system=system, **kw)
+    return checked_run(run_once, case, system, kw)
+
+
+def run_once(case, initial=None, progress=None, strict=True, system=None, control_state=None,
+             observers=None, chunk_seconds=CHUNK_SECONDS):
+    """Run a transient case once, on the mesh of ``system`` (or of ``case``).
 
     Parameters
     ----------
