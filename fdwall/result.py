@@ -330,6 +330,8 @@ class Result:
             out["chamber_max_K"] = float(np.max(self.chamber_T))
         if self.steady is not None:
             out["steady"] = self.steady.summary()
+        if self.error_estimate is not None:
+            out["error_estimate"] = _plain(self.error_estimate)
         return out
 
     # ----------------------------------------------------------------- notebooks
@@ -420,6 +422,11 @@ class Result:
                 "<th>max T [degC]</th><th>final heat flow into wall [W]</th></tr></thead>"
                 f"<tbody>{rows}</tbody></table></div>")
 
+    def _write_error_estimate(self, h):
+        """Write ``/error_estimate`` when the run carries one."""
+        if self.error_estimate is not None:
+            _write_error_estimate_group(h, self.error_estimate)
+
     def write_hdf5(self, path) -> str:
         """Write the run to ``path`` atomically (a temporary file renamed when complete)."""
         from .h5tree import h5_atomic
@@ -506,10 +513,43 @@ class Result:
         sg = h.create_group("solver")
         for k, v in self.stats.items():
             sg.attrs[k] = v
+        self._write_error_estimate(h)
         if self.steady is not None:
             stg = h.create_group("steady")
             ds(stg, "temperature", self.steady.T, "K")
             stg.attrs["summary_json"] = json.dumps(self.steady.summary(), default=float)
+
+
+def _plain(v):
+    """A JSON-ready copy of the error estimate (NaN becomes None)."""
+    if isinstance(v, dict):
+        return {k: _plain(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [_plain(x) for x in v]
+    if isinstance(v, float) and not np.isfinite(v):
+        return None
+    return v
+
+
+def _write_error_estimate_group(h, est):
+    """The attribute group ``/error_estimate`` of a run file (see
+    :mod:`fdwall.solver.accuracy`): scalars as attributes, ``cells`` and ``notes`` as JSON text,
+    one subgroup ``points/<i>`` per point with ``point``, ``max_error_K``, ``at_s``, ``margin``."""
+    g = h.create_group("error_estimate")
+    for k, v in est.items():
+        if k == "points":
+            continue
+        if k in ("cells", "notes"):
+            g.attrs[k] = json.dumps(v)
+        elif v is None:
+            g.attrs[k] = "n/a"
+        else:
+            g.attrs[k] = v
+    pg = g.create_group("points")
+    for i, p in enumerate(est.get("points", [])):
+        sub = pg.create_group(f"{i:03d}")
+        for k, v in p.items():
+            sub.attrs[k] = v
 
 
 def resolved_inputs(case) -> dict:
