@@ -533,23 +533,20 @@ def _plain(v):
 
 def _write_error_estimate_group(h, est):
     """The attribute group ``/error_estimate`` of a run file (see
-    :mod:`fdwall.solver.accuracy`): scalars as attributes, ``cells`` and ``notes`` as JSON text,
-    one subgroup ``points/<i>`` per point with ``point``, ``max_error_K``, ``at_s``, ``margin``."""
+    :mod:`fdwall.solver.accuracy` and docs/results.md): numbers and flags as attributes,
+    ``cells``, ``points`` and ``notes`` as JSON text."""
     g = h.create_group("error_estimate")
-    for k, v in est.items():
-        if k == "points":
-            continue
-        if k in ("cells", "notes"):
-            g.attrs[k] = json.dumps(v)
-        elif v is None:
-            g.attrs[k] = "n/a"
-        else:
-            g.attrs[k] = v
-    pg = g.create_group("points")
-    for i, p in enumerate(est.get("points", [])):
-        sub = pg.create_group(f"{i:03d}")
-        for k, v in p.items():
-            sub.attrs[k] = v
+    estimated = est.get("meets_contract") is not None
+    g.attrs["estimated"] = bool(estimated)
+    g.attrs["meets_contract"] = bool(est.get("meets_contract") or False)
+    for k in ("method",):
+        g.attrs[k] = str(est.get(k, ""))
+    for k in ("order", "refinements", "extra_runs"):
+        g.attrs[k] = int(est.get(k, 0))
+    for k in ("max_error_K", "margin", "flow_margin", "extra_wall_time_s"):
+        g.attrs[k] = float(est.get(k, float("nan")))
+    for k in ("cells", "points", "notes"):
+        g.attrs[k] = json.dumps(_plain(est.get(k, [])))
 
 
 def resolved_inputs(case) -> dict:
