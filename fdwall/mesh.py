@@ -12,7 +12,8 @@ diffusivity over its property tables and ``t_min`` [s] the shortest time that ma
 boundary schedule (face temperature, fluid or surroundings temperature, flux, heater power,
 control) to the next output after it, floored at :data:`TIME_FLOOR` = 1 s.  On a face with a
 fixed film coefficient h the first cell is also at most :data:`FILM_BIOT` k/h (a cell Biot
-number below 0.5, for strong films on solid cylinders and spheres).  Mid-layer cells are at
+number below 0.5, for strong films on solid cylinders and spheres), but not below
+:data:`FILM_FLOOR` of the penetration-based size.  Mid-layer cells are at
 most the size of :func:`default_cells` (2 to 24 per layer, by the layer's share of the wall's
 resistance and diffusion time).  The cell sizes so built (an even number per layer) define a
 smooth monotone map ``x(s)`` (PCHIP through the cell ends against ``s`` uniform on [0, 1]);
@@ -49,6 +50,10 @@ on its analytical references (tests/test_accuracy_contract.py)."""
 FILM_BIOT = 0.5
 """Largest cell Biot number h dx / k of the first cell at a face with a fixed film
 coefficient [-]."""
+FILM_FLOOR = 0.25
+"""The film Biot number refines the first cell to at most this fraction of the penetration-based
+size [-]: beyond it the face is in effect at the fluid temperature, which the penetration depth
+already resolves (an unbounded refinement for h -> infinity would only stiffen the problem)."""
 TIME_FLOOR = 1.0
 """Floor on the shortest time that matters for the mesh [s]: outputs asked for closer than
 this to the start or to a step in a boundary schedule are not resolved in space to the
@@ -266,7 +271,8 @@ def graded_fractions(wall, grading) -> list:
     ``grading`` is a :class:`MeshGrading`.  The first cell at each end of a layer is
     :data:`PENETRATION_FRACTION` sqrt(alpha_min t_min) (at most a third of the largest cell,
     at least :data:`MIN_FIRST_CELL` of the layer), and at a face with a fixed film coefficient
-    h at most :data:`FILM_BIOT` k_min / h.
+    h at most :data:`FILM_BIOT` k_min / h (not below :data:`FILM_FLOOR` of the penetration-based
+    size).
     """
     cache = wall.__dict__.get("_graded")
     if cache is None:
@@ -289,8 +295,8 @@ def graded_fractions(wall, grading) -> list:
         ends = []
         for h in (grading.h_inner if j == 0 else 0.0, grading.h_outer if j == nl - 1 else 0.0):
             d = min(d_pen, d_max * (1 - GRADING_BETA) / (1 + GRADING_BETA))
-            if h > 0.0:
-                d = min(d, FILM_BIOT * kmin / h)
+            if h > 0.0:     # a strong film: finer, but at most FILM_FLOOR finer than d_pen
+                d = min(d, max(FILM_BIOT * kmin / h, FILM_FLOOR * d_pen))
             ends.append(max(d, MIN_FIRST_CELL * L))
         sz = _graded_sizes(L, ends[0], ends[1], d_max)
         f = np.concatenate([[0.0], np.cumsum(sz) / L])

@@ -61,8 +61,10 @@ from dataclasses import replace
 import numpy as np
 
 from ..case.loader import MAX_LAYER_CELLS, MAX_STORED, MAX_WALL_CELLS
+from ..errors import InternalError
 from ..mesh import TIME_FLOOR, cell_counts
 from .layout import CI_HEATER_NODE, CI_MODE, CTL_DUTY_SWITCHED, CTL_PID_SWITCHED, CTL_THERMOSTAT
+from .observers import InterruptCheck
 
 __all__ = ["checked_run", "estimate", "allowance", "refined_case", "CONTRACT_FRACTION",
            "CONTRACT_FLOOR_K", "ORDER", "MAX_ROUNDS"]
@@ -152,7 +154,8 @@ def estimate(fine, coarse) -> dict:
     labels, i_f = _points(fine)
     labels_c, i_c = _points(coarse)
     if labels != labels_c or fine.times.shape != coarse.times.shape:
-        raise ValueError("the coarse run does not match the fine run point for point")
+        raise InternalError("the coarse run of the error estimate does not match the "
+                            "reported run point for point")
     r = _total_cells(fine) / max(_total_cells(coarse), 1.0)
     factor = 1.0 / (r ** ORDER - 1.0)
     Tf, Tc = fine.T[:, i_f], coarse.T[:, i_c]
@@ -252,7 +255,7 @@ def checked_run(run_once, case, system, kw):
             "notes": notes, "extra_runs": 0, "extra_wall_time_s": 0.0}
     initial = kw.get("initial")
     if not fine.complete:
-        notes.append("the run stopped early: no error estimate")
+        notes.append(f"the run did not reach its end ({fine.status}): no error estimate")
         fine.error_estimate = info
         return fine
     if initial is not None and np.ndim(initial) > 0:
@@ -263,12 +266,15 @@ def checked_run(run_once, case, system, kw):
     extra = dict(kw)
     extra["progress"] = False
     extra["strict"] = False
+    # the extra runs are not runs of their own for the caller's observers (no progress, no
+    # start / close calls); an interrupt check among them still stops them
+    extra["observers"] = [w for w in (kw.get("observers") or ()) if isinstance(w, InterruptCheck)]
     n_runs = 0
     coarse = run_once(refined_case(case, 0.5), system=None, **extra)
     n_runs += 1
     if not coarse.complete:
-        notes.append(f"the coarse run of the estimate stopped early ({coarse.status}): no "
-                     "error estimate")
+        notes.append(f"the coarse run of the estimate did not reach its end ({coarse.status}): "
+                     "no error estimate")
         info.update(extra_runs=n_runs, extra_wall_time_s=_time.perf_counter() - t0)
         fine.error_estimate = info
         return fine
@@ -294,8 +300,8 @@ def checked_run(run_once, case, system, kw):
         finer = run_once(cand, system=sysm, **extra)
         n_runs += 1
         if not finer.complete:
-            notes.append(f"the refined run stopped early ({finer.status}): the result on the "
-                         "previous mesh is reported")
+            notes.append(f"the refined run did not reach its end ({finer.status}): the result "
+                         "on the previous mesh is reported")
             break
         est = estimate(finer, fine)
         fine = finer
