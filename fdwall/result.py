@@ -14,6 +14,7 @@ import numpy as np
 
 from .provenance import provenance, stamp_h5
 from .solver.layout import EV_DOWN, EV_UP, EX_HEATER, EX_LOSS, FI_NODE
+from .solver.readout import temperature_at
 
 __all__ = ["Result", "read_result"]
 
@@ -147,6 +148,16 @@ class Result:
         """Node positions of one wall, depth from the inner face [m]."""
         m = self.system.meshes[wall]
         return m.x - m.x[0]
+
+    def T_at_depth(self, depth: float, wall: int = 0) -> np.ndarray:
+        """Temperature history at ``depth`` [m] below the inner face of a wall (n_time) [K].
+
+        Read between the two nodes around that depth in the Kirchhoff integral K = int k dT,
+        linear in x (slab), ln r (cylinder) or -1/r (sphere), as sensors and events are read:
+        exact at steady state for any k(T) (see :mod:`fdwall.solver.readout`).  ``wall``
+        counts the solved paths, as :meth:`wall_T` does.
+        """
+        return temperature_at(self.system, self.T, wall, depth)
 
     def interface_T(self, wall: int = 0) -> np.ndarray:
         """Temperatures at the interfaces of a wall (n_time, n_interfaces) [K]."""

@@ -39,12 +39,14 @@ from .solver.layout import (
     CI_POWER,
     CI_SENSOR_A,
     CI_SENSOR_B,
+    CI_SENSOR_MAT,
     CI_SETPOINT,
     CTL_DUTY_AVERAGED,
     CTL_DUTY_SWITCHED,
     CTL_PID_AVERAGED,
     CTL_PID_SWITCHED,
     CTL_THERMOSTAT,
+    EV_MAT,
     EV_NODE_A,
     EV_NODE_B,
     EV_THRESHOLD,
@@ -63,10 +65,12 @@ from .solver.layout import (
     H_FIXED,
     LINK_CONTACT,
     LINK_NONE,
+    MT_K,
     N_CF,
     N_CHF,
     N_CHI,
     N_CI,
+    N_EVI,
     N_FF,
     N_FI,
     N_NF,
@@ -80,7 +84,7 @@ from .solver.layout import (
 )
 
 __all__ = ["System", "build_system", "event_rows", "hand_over",
-           "handed_system"]
+           "handed_system", "locate_depth", "readout_material"]
 
 
 def _integrated(T, k, c):
@@ -587,6 +591,7 @@ def build_system(case: Case, like: System | None = None) -> System:
         j = _chain_index(specs, ctl.sensor_wall, "sensor")
         a, b, wgt = locate_depth(walls[j], meshes[j], ctl.sensor_depth)
         ctl_i[CI_SENSOR_A], ctl_i[CI_SENSOR_B], ctl_f[CF_SENSOR_W] = offsets[j] + a, offsets[j] + b, wgt
+    sensor_a, sensor_b = ctl_i[CI_SENSOR_A], ctl_i[CI_SENSOR_B]     # material set once packed
     ctl_f[CF_PERIOD] = ctl.period
     ctl_f[CF_BAND] = ctl.band
     ctl_f[CF_KP], ctl_f[CF_KI], ctl_f[CF_KD] = ctl.proportional_gain, ctl.integral_gain, ctl.derivative_gain
@@ -602,6 +607,7 @@ def build_system(case: Case, like: System | None = None) -> System:
     bp = np.array(sorted(t for t in bps if 0.0 < t < dur))
     bpj = np.array([1.0 if t in jumps else 0.0 for t in bp])
     m_off, mtab, s_off, stab = tb.pack()
+    ctl_i[CI_SENSOR_MAT] = readout_material(node_i, m_off, mtab, sensor_a, sensor_b, N)
     return System(case=case, meshes=meshes, offsets=[int(o) for o in offsets], n_nodes=N,
                   node_i=node_i, node_f=node_f, chains=chains, face_i=face_i, face_f=face_f,
                   hpar=hpar, m_off=m_off, mtab=mtab, s_off=s_off, stab=stab, ch_i=ch_i,
@@ -635,28 +641,65 @@ def _chain_index(specs, case_wall, what):
 
 
 def locate_depth(wall, mesh, depth):
-    """Nodes a, b and weight on a for a point ``depth`` [m] below the inner face."""
+    """Nodes a, b and the geometry weight on a [-] for a point ``depth`` [m] below the inner
+    face.
+
+    The weight is linear in the coordinate in which steady conduction through one material is
+    uniform: w = (g_b - g) / (g_b - g_a) with g = x (slab), ln r (cylinder), -1/r (sphere), so
+    that w K(T_a) + (1 - w) K(T_b) is the Kirchhoff integral K = int k dT at the point at
+    steady state (read back by :func:`fdwall.solver.kernels.read_between`).  Nodes sit on
+    every interface, so a and b lie in one layer; a point on an interface reads that node
+    (with a contact resistance, the node on the inner side).
+    """
     if not 0.0 <= depth <= wall.thickness * (1 + 1e-12):
         raise ModelError(f"depth {depth:g} m lies outside wall '{wall.name}' "
                          f"(0 to {wall.thickness:g} m)")
     x = mesh.x - mesh.x[0]
+    # a point on a node (to round-off of the node positions) reads that node alone; on an
+    # interface with a contact resistance, the first of its two nodes (the inner side)
+    on = np.flatnonzero(np.abs(x - depth) <= 1e-12 * max(wall.thickness, abs(float(mesh.x[-1]))))
+    if on.size:
+        i = int(on[0])
+        return i, i, 1.0
     b = int(np.searchsorted(x, depth, side="left"))
     b = min(max(b, 1), len(x) - 1)
     a = b - 1
-    if x[b] == x[a]:
-        return a, b, 1.0
     w = (x[b] - depth) / (x[b] - x[a])
+    ra = float(mesh.x[a])
+    if wall.shape != "slab" and ra > 0.0:
+        rd = ra + (depth - x[a])               # radius of the point [m]
+        if wall.shape == "cylinder":
+            # ln(r_b / r) / ln(r_b / r_a), in log1p form (accurate for thin cells)
+            w = np.log1p((x[b] - depth) / rd) / np.log1p((x[b] - x[a]) / ra)
+        else:
+            # (1/r - 1/r_b) / (1/r_a - 1/r_b) = (r_b - r) r_a / ((r_b - r_a) r)
+            w = (x[b] - depth) * ra / ((x[b] - x[a]) * rd)
     return a, b, float(np.clip(w, 0.0, 1.0))
 
 
+def readout_material(node_i, m_off, mtab, a, b, n_nodes):
+    """Material index whose Kirchhoff integral a read-out between nodes a and b inverts [-],
+    or -1 to read linearly in T: one node read alone, the chamber (index ``n_nodes``), a
+    contact link, or a material of constant k (K linear in T, so the linear read-out is the
+    same, digit for digit)."""
+    if a == b or a >= n_nodes or b >= n_nodes:
+        return -1
+    m = int(node_i[a, NI_LINK])
+    if m < 0:
+        return -1
+    k = mtab[MT_K, m_off[m]:m_off[m + 1]]
+    return -1 if np.all(k == k[0]) else m
+
+
 def event_rows(system: System, case: Case):
-    """Kernel rows (node a, node b; weight on a, threshold [K]) of the case's events.
+    """Kernel rows (node a, node b, read-out material; weight on a, threshold [K]) of the
+    case's events (layout: EV_* of :mod:`fdwall.solver.layout`).
 
     Raises ModelError for an event at a wall, interface or depth that does not exist, so it
     also serves to validate a case's events before a run.
     """
     evs = case.run.watch
-    ev_i = np.zeros((len(evs), 2), dtype=np.int64)
+    ev_i = np.full((len(evs), N_EVI), -1, dtype=np.int64)
     ev_f = np.zeros((len(evs), 2))
     for e, ev in enumerate(evs):
         if ev.where == "chamber":
@@ -685,6 +728,8 @@ def event_rows(system: System, case: Case):
             a, b, w = locate_depth(wall, m, ev.depth)
             a, b = a + o, b + o
         ev_i[e, EV_NODE_A], ev_i[e, EV_NODE_B] = a, b
+        ev_i[e, EV_MAT] = readout_material(system.node_i, system.m_off, system.mtab, a, b,
+                                           system.n_nodes)
         ev_f[e, EV_WEIGHT], ev_f[e, EV_THRESHOLD] = w, ev.temperature
     return ev_i, ev_f
 

@@ -44,7 +44,7 @@ import pint
 from .errors import CaseError
 
 __all__ = ["ureg", "KINDS", "Kind", "parse_quantity", "parse_unit", "parse_leakage",
-           "check_magnitude", "kind_names", "CaseError"]
+           "check_magnitude", "kind_names", "parse_power_law_coefficient", "CaseError"]
 
 def _registry():
     # pint caches its parsed definitions on disk (user cache folder): a tenth of a second less
@@ -692,6 +692,102 @@ def _convert(x, unit, unit_text, kind, where, file):
             "compound unit in a way that cannot be converted", file=file, key=where,
             allowed=f"e.g. {k.examples}") from None
     return float(q.magnitude)
+
+
+#: Largest power-law coefficient accepted [W/(m2 K^(1+n))] (common practice, no source: at
+#: dT = 1 K it is the largest film coefficient of KINDS["film_coefficient"]).
+POWER_LAW_COEFFICIENT_MAX = 1e7
+#: How far the temperature power of the coefficient's unit may stray from 1 + n [-]: enough for
+#: a rounded exponent (0.333 next to K^(4/3)), far less than 1/4 and 1/3 differ.
+POWER_LAW_UNIT_TOLERANCE = 0.005
+
+
+def parse_power_law_coefficient(value, exponent: float, where: str = "", *, file: str = "",
+                                exponent_key: str = "exponent") -> float:
+    """Coefficient a of the power-law film ``h = a |dT|^n`` in SI, W/(m2 K^(1+n)).
+
+    The unit depends on the exponent n, so it is not one of :data:`KINDS`: the text must carry
+    a unit of power per area per temperature to the power 1 + n, e.g. ``"1.32 W/(m2 K^1.25)"``
+    for n = 0.25, ``"1.31 W/(m2*K^(4/3))"`` for n = 1/3, or ``"0.23 Btu/h/ft2/degF^1.25"``
+    (degC and degF are read as differences).  The temperature power may differ from 1 + n by
+    :data:`POWER_LAW_UNIT_TOLERANCE` (a rounded exponent); the value is then taken as written.
+
+    Parameters
+    ----------
+    value : str
+        The coefficient with its unit.
+    exponent : float
+        The exponent n [-] the coefficient goes with.
+    where : str, optional
+        Key path for error messages.
+    file : str, optional
+        File name for error messages.
+    exponent_key : str, optional
+        Name of the exponent key (for messages).
+
+    Returns
+    -------
+    float
+        a [W/(m2 K^(1+n))], > 0.
+
+    Raises
+    ------
+    CaseError
+        A bare number, a unit of another kind or with another temperature power, a value that
+        is not positive or above :data:`POWER_LAW_COEFFICIENT_MAX`.
+    """
+    p = 1.0 + float(exponent)
+    si_text = f"W/(m2 K^{p:g})"
+    label = f"power-law coefficient [{si_text}]"
+    examples = f'"1.31 {si_text}", "1.31 W/m2/K^{p:g}"'
+    allowed = (f"a positive value with a unit of power per area per temperature^{p:g} (the "
+               f"power 1 + {exponent_key}), e.g. {examples}")
+    if isinstance(value, bool) or not isinstance(value, (str, numbers.Real)):
+        raise CaseError(f"got {_describe(value)} where {_a(label)} was expected", file=file,
+                        key=where, allowed=allowed)
+    if isinstance(value, numbers.Real):
+        raise CaseError(f"the bare number {float(value):g} has no unit, so it is not clear "
+                        f"what {label} it means", file=file, key=where,
+                        allowed="write the value with its unit as text, " + allowed)
+    m = _NUMBER.match(value.replace("\u2212", "-"))
+    if not m:
+        raise CaseError(f"cannot read {_describe(value)} as {_a(label)}: it should start with a "
+                        "number followed by a unit", file=file, key=where, allowed=allowed)
+    x = float(m.group(1))
+    unit_text = m.group(2)
+    if not unit_text:
+        raise CaseError(f"the bare number {x:g} has no unit, so it is not clear what {label} it "
+                        "means", file=file, key=where,
+                        allowed="write the value with its unit as text, " + allowed)
+    if not math.isfinite(x):
+        raise CaseError(f"got {_describe(value)}, which is not a finite number", file=file,
+                        key=where, allowed=allowed)
+    unit = parse_unit(unit_text, where, file=file)
+    dims = dict(unit.dimensionality)
+    tpow = -float(dims.get("[temperature]", 0.0))
+    rest = {d: v for d, v in dims.items() if d != "[temperature]"}
+    if rest != {"[mass]": 1, "[time]": -3} or abs(tpow - p) > POWER_LAW_UNIT_TOLERANCE:
+        if rest == {"[mass]": 1, "[time]": -3}:
+            what = (f"its unit '{unit_text}' has temperature to the power {tpow:g}, but with "
+                    f"{exponent_key} = {float(exponent):g} the power must be 1 + "
+                    f"{float(exponent):g} = {p:g}")
+        else:
+            what = f"its unit '{unit_text}' is not a power per area per temperature^{p:g}"
+        raise CaseError(f"{_describe(value)} cannot be {_a(label)}: {what}", file=file,
+                        key=where, allowed=allowed)
+    try:
+        si = float(ureg.Quantity(x, unit).to_base_units().magnitude)
+    except (pint.errors.DimensionalityError, pint.errors.OffsetUnitCalculusError):
+        raise CaseError(f"{_describe(value)} cannot be converted to {si_text}", file=file,
+                        key=where, allowed=allowed) from None
+    if not si > 0.0:
+        raise CaseError(f"{_describe(value)} must be greater than zero", file=file, key=where,
+                        allowed=allowed)
+    if si > POWER_LAW_COEFFICIENT_MAX:
+        raise CaseError(f"{_describe(value)} is {si:.3g} {si_text}, more than the largest "
+                        f"power-law coefficient fdwall accepts, {POWER_LAW_COEFFICIENT_MAX:g} "
+                        f"{si_text}", file=file, key=where, allowed=allowed)
+    return si
 
 
 def parse_leakage(value, volume=None, where: str = "", *, file: str = "",

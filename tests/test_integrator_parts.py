@@ -23,6 +23,11 @@ def _empty(n):
     return np.zeros(n, dtype=np.int64)
 
 
+# material tables m_off, mtab for the read-out between nodes; the rows here read linearly
+# (material -1), so the tables are never looked at
+NO_MAT = (np.zeros(2, dtype=np.int64), np.zeros((L.N_MT, 2)))
+
+
 def test_ledger_weights_sum_to_one_and_integrate_linear_flows_exactly():
     assert 2 * Kr.W0 + Kr.W2 == pytest.approx(1.0, abs=1e-15)
     nf, hs = 3, 7.5
@@ -47,7 +52,7 @@ def test_event_on_a_straight_line_crosses_where_the_line_does():
     ev_i = np.array([[0, 1]], dtype=np.int64)
     ev_f = np.array([[0.25, 330.0]])            # 0.25 T_a + 0.75 T_b crosses 330 K
     ev_out = np.full((1, 2), np.nan)
-    Kr.events(ev_i, ev_f, ev_out, t, hs, T0, T1, F, C, F, C)
+    Kr.events(ev_i, ev_f, ev_out, t, hs, T0, T1, F, C, F, C, *NO_MAT)
     y0, y1 = 0.25 * 300 + 0.75 * 310, 0.25 * 340 + 0.75 * 350
     assert ev_out[0, L.EV_UP] == pytest.approx(t + hs * (330.0 - y0) / (y1 - y0), abs=1e-9)
     assert np.isnan(ev_out[0, L.EV_DOWN])
@@ -75,7 +80,7 @@ def test_pid_sample_follows_the_law():
     cs[L.CS_INT], cs[L.CS_PREV], cs[L.CS_NEXT] = 0.05, 4.0, 50.0
     T = np.array([363.15])                     # 10 K below the setpoint
     u, t_target, jump = Kr.controller(T, 50.0, 1e9, False, cs, L.CTL_PID_AVERAGED, per,
-                                      0.01, ctl_i, ctl_f, s_off, stab)
+                                      0.01, ctl_i, ctl_f, s_off, stab, *NO_MAT)
     e = 10.0
     expect = kp * e + (0.05 + ki * e * per) + kd * (e - 4.0) / per
     assert u == pytest.approx(min(max(expect, 0.0), 1.0), rel=1e-14)
@@ -89,7 +94,7 @@ def test_thermostat_switches_at_the_top_of_its_band():
     cs[L.CS_ON] = 1.0
     for T_s, on in ((374.0, 1.0), (375.2, 0.0), (372.0, 0.0), (371.0, 1.0)):
         u, _, _ = Kr.controller(np.array([T_s]), 0.0, 1e9, False, cs, L.CTL_THERMOSTAT, 10.0,
-                                0.01, ctl_i, ctl_f, s_off, stab)
+                                0.01, ctl_i, ctl_f, s_off, stab, *NO_MAT)
         assert u == on, T_s
 
 
@@ -111,8 +116,8 @@ def test_thermostat_cut_puts_the_step_end_near_the_crossing():
     # straight line crosses at (375.15 - 373) / 4 of the step
     ctl_i, ctl_f, s_off, stab = _ctl(L.CTL_THERMOSTAT, band=4.0)
     frac = Kr.thermostat_cut(np.array([373.0]), np.array([377.0]), 1.0, 10.0, ctl_i, ctl_f,
-                             s_off, stab, 0.01)
+                             s_off, stab, 0.01, *NO_MAT)
     assert frac == pytest.approx((375.15 - 373.0) / 4.0, rel=1e-12)
     # within the tolerance: the step stands
     assert Kr.thermostat_cut(np.array([373.0]), np.array([375.155]), 1.0, 10.0, ctl_i, ctl_f,
-                             s_off, stab, 0.01) == 0.0
+                             s_off, stab, 0.01, *NO_MAT) == 0.0

@@ -34,6 +34,9 @@ CORRELATION_REFERENCES = {
                   "Transfer, sec. 7.2)",
     "wind_cylinder": "forced convection, cylinder in cross-flow: Churchill & Bernstein (1977), "
                      "J. Heat Transfer 99, 300",
+    "power_law": "power-law film coefficient h = a |T_face - T_fluid|^n with a and n as given "
+                 "(the simplified natural-convection forms of air, McAdams 1954 and Holman, "
+                 "Heat Transfer, table 7-2, are of this kind); no air properties",
 }
 MIXED_REFERENCE = ("natural and forced parts combined as (h_N^3 + h_F^3)^(1/3) (Churchill 1977; "
                    "Incropera et al. sec. 9.9)")
@@ -83,6 +86,13 @@ def _conv_rows(section, c, fixed_label="film coefficient"):
         h = float(c) if isinstance(c, (int, float)) else float(c.h_fixed)
         return [_row(section, fixed_label, h, "W/m2/K")]
     rows = [_row(section, "convection correlation", text=_conv_kind(c))]
+    nat = getattr(c, "natural", None)
+    pl = c if _conv_kind(c) == "power_law" else nat if _conv_kind(nat) == "power_law" else None
+    if pl is not None:
+        n = float(pl.exponent)
+        rows.append(_row(section, "power-law coefficient a of h = a |dT|^n", pl.coefficient,
+                         f"W/(m2 K^{1.0 + n:.4g})"))
+        rows.append(_row(section, "power-law exponent n", n, ""))
     for attr, label in (("height", "height"), ("char_length", "length A/P"),
                         ("diameter", "diameter"), ("length", "length along the flow")):
         v = getattr(c, attr, None)
@@ -260,7 +270,7 @@ def correlation_rows(case) -> list:
             if getattr(c, "natural", None) is not None:
                 ref += "; natural part " + CORRELATION_REFERENCES.get(c.natural.kind, "") + \
                     "; " + MIXED_REFERENCE
-            if kind != "fixed":
+            if kind not in ("fixed", "power_law"):
                 ref += "; " + AIR_REFERENCE
             out.append({"face": name, "model": f"convection: {kind.replace('_', ' ')}",
                         "reference": ref})

@@ -31,13 +31,14 @@ import numpy as np
 from fdwall.analyses.networks import cauer_from_foster, cauer_step_response, foster_step_response
 from fdwall.errors import InputError
 from fdwall.model import Control, Face, Heater, ModelError
+from fdwall.physics.convection import EXPONENT_RANGE, h_power_law
 from fdwall.schedule import Schedule
 from fdwall.solver.layout import FI_FIXED_T, FI_FLUID, FI_NODE, system_args
 
 __all__ = ["one_node_response", "implied_rc", "fit_one_node", "time_constant",
            "time_to_level", "cooldown_time", "lumped_cooling", "wall_time_constants",
            "rc_analysis", "step_response_from_modes", "foster_fit", "rc_networks",
-           "two_node_from_modes", "simulated_fit", "fit_vs_log_length"]
+           "two_node_from_modes", "simulated_fit", "fit_vs_log_length", "fit_power_law_loss"]
 
 SIGMA_SB = 5.670374419e-8  # Stefan-Boltzmann constant [W/(m2 K4)], CODATA 2018
 
@@ -109,25 +110,31 @@ def cooldown_time(T_level, R, C, T_amb, T0):
 
 
 def lumped_cooling(t, C, A, T0, T_amb, h=0.0, emissivity=0.0, a_n=0.0, n=0.25, P=0.0,
-                   T_surr=None):
+                   T_surr=None, *, coefficient=None, exponent=None):
     """Lumped node with linear film, power-law film and radiation, integrated by solve_ivp.
 
-    ``C dT/dt = P - A [h (T - T_amb) + a_n |T - T_amb|^n (T - T_amb)
+    ``C dT/dt = P - A [h (T - T_amb) + a |T - T_amb|^n (T - T_amb)
     + emissivity sigma (T^4 - T_surr^4)]``.
 
     t [s] (sorted output times from 0), C [J/K], A [m2], T0, T_amb, T_surr [K] (T_surr defaults
-    to T_amb), h [W/(m2 K)], a_n [W/(m2 K^(1+n))] the power-law film coefficient
-    (h = a_n |T - T_amb|^n), n [-], P [W].  Returns T [K] at ``t``.
+    to T_amb), h [W/(m2 K)], P [W].  The power-law film ``h = a |T - T_amb|^n`` is the one of
+    the convection model ``power_law`` (:func:`fdwall.physics.convection.h_power_law`), with
+    the same names: ``coefficient`` a [W/(m2 K^(1+n))] and ``exponent`` n [-]; ``a_n`` and
+    ``n`` are older names of the same two (used when ``coefficient`` / ``exponent`` are not
+    given).  Returns T [K] at ``t``.
     """
     from scipy.integrate import solve_ivp
     t = np.asarray(t, dtype=float)
     Ts = T_amb if T_surr is None else T_surr
     if not (C > 0 and A > 0):
         raise InputError(f"lumped_cooling: C={C!r} J/K and A={A!r} m2 must be positive.")
+    a_pl = float(a_n if coefficient is None else coefficient)
+    n_pl = float(n if exponent is None else exponent)
 
     def rhs(_t, y):
         d = y[0] - T_amb
-        q = h * d + a_n * abs(d) ** n * d + emissivity * SIGMA_SB * (y[0] ** 4 - Ts ** 4)
+        q = (h * d + (h_power_law(a_pl, n_pl, d) * d if a_pl else 0.0)
+             + emissivity * SIGMA_SB * (y[0] ** 4 - Ts ** 4))
         return [(P - A * q) / C]
 
     sol = solve_ivp(rhs, (0.0, float(t[-1])), [float(T0)], t_eval=t, method="LSODA",
@@ -288,6 +295,184 @@ def fit_one_node(t, T, P, T_amb, R=None, C0=None) -> dict:
             "rms_K": rms}
 
 
+def _per_row(x, n, name):
+    """A scalar or one value per log row, as an array of ``n`` floats."""
+    a = np.asarray(x, dtype=float)
+    if a.ndim == 0:
+        return np.full(n, float(a))
+    a = a.ravel()
+    if a.size != n:
+        raise InputError(f"fit_power_law_loss: {name} has {a.size} values for {n} log rows; "
+                         f"give one {name} or one per row.")
+    if not np.all(np.isfinite(a)):
+        i = int(np.flatnonzero(~np.isfinite(a))[0])
+        raise InputError(f"fit_power_law_loss: {name} at row {i} is not a finite number; fill "
+                         "or drop that row first.")
+    return a
+
+
+def _power_law_history(t, P, Ta, C, A, a, n, T0):
+    """Temperatures [K] at ``t`` of ``C dT/dt = P - A h_power_law(a, n, T - Ta) (T - Ta)``,
+    P [W] and Ta [K] held from each row to the next (scipy solve_ivp, LSODA, per run of equal
+    inputs)."""
+    from scipy.integrate import solve_ivp
+    out = np.empty(t.size)
+    out[0] = T0
+    y = float(T0)
+    i = 0
+    while i < t.size - 1:
+        j = i + 1   # rows i .. j-1 share the inputs of row i
+        while j < t.size - 1 and P[j] == P[i] and Ta[j] == Ta[i]:
+            j += 1
+        p, ta = float(P[i]), float(Ta[i])
+
+        def rhs(_t, yy, p=p, ta=ta):
+            d = yy[0] - ta
+            return [(p - A * h_power_law(a, n, d) * d) / C]
+
+        sol = solve_ivp(rhs, (t[i], t[j]), [y], t_eval=t[i:j + 1], method="LSODA",
+                        rtol=1e-9, atol=1e-9)
+        if not sol.success or sol.y.shape[1] != j - i + 1:  # pragma: no cover - smooth scalar ODE
+            raise InputError(f"fit_power_law_loss: integration failed: {sol.message}")
+        out[i + 1:j + 1] = sol.y[0][1:]
+        y = float(sol.y[0][-1])
+        i = j
+    return out
+
+
+def fit_power_law_loss(t, T, T_amb, *, area, power=0.0, heat_capacity=None, exponent=None,
+                       coefficient=None) -> dict:
+    """Fit a lumped body with a power-law film loss to a log (a cooling curve, or heating).
+
+    Model (the loss of the convection model ``power_law``, the same function
+    :func:`fdwall.physics.convection.h_power_law` and the same names)::
+
+        C dT/dt = P - A a |T - T_amb|^n (T - T_amb)
+
+    with the power-law ``coefficient`` a [W/(m2 K^(1+n))] and ``exponent`` n [-]
+    (0 <= n <= 1).  Least squares (scipy.optimize.least_squares) over the whole log of the
+    temperatures integrated by scipy solve_ivp; fitted are a, n (unless ``exponent`` is
+    given), C (unless ``heat_capacity`` is given) and the start temperature T0.  A log
+    without power carries a A / C and n only, so it needs ``heat_capacity``.
+
+    Parameters
+    ----------
+    t : array_like
+        Times of the log rows [s], strictly increasing.
+    T : array_like
+        Measured temperatures [K].
+    T_amb : float or array_like
+        Ambient (fluid) temperature [K], one value or one per row (held to the next row).
+    area : float
+        Area of the film [m2], > 0.
+    power : float or array_like, optional
+        Heater power [W], one value or one per row (held to the next row); default 0.
+    heat_capacity : float, optional
+        Heat capacity C [J/K] when known (needed for a log without power).
+    exponent : float, optional
+        The exponent n [-] when known (e.g. 0.25); fitted when None.
+    coefficient : float, optional
+        Starting guess for a [W/(m2 K^(1+n))].
+
+    Returns
+    -------
+    dict
+        ``coefficient`` [W/(m2 K^(1+n))], ``coefficient_unit`` (text), ``exponent`` [-],
+        ``C_J_per_K`` [J/K], ``T0_K`` [K], ``stderr`` (same keys; from the Jacobian with the
+        residual variance on the effective sample size ``n_eff`` = n (1 - r1) / (1 + r1) of
+        residuals with lag-1 autocorrelation ``lag1_autocorrelation`` r1), ``rms_K`` residual
+        [K], ``n_points``, ``fitted`` (names of the fitted parameters), ``convection``, the
+        :class:`fdwall.physics.convection.Convection` of kind ``power_law`` to put on a face,
+        ``model_K`` the fitted curve at ``t`` [K] and ``residual_K`` = log - model [K].
+    """
+    from scipy.optimize import least_squares
+
+    from fdwall.physics.convection import Convection
+    t = np.asarray(t, dtype=float).ravel()
+    T = np.asarray(T, dtype=float).ravel()
+    Ta = _per_row(T_amb, t.size, "T_amb")
+    P = _per_row(power, t.size, "power")
+    t, T = _check_curve(t, T, float(P[0]), float(Ta[0]), where="fit_power_law_loss")
+    if not (np.isfinite(area) and area > 0):
+        raise InputError(f"fit_power_law_loss: area = {area!r} m2 must be a finite number > 0.")
+    lo, hi = EXPONENT_RANGE
+    if exponent is not None and not (lo <= float(exponent) <= hi):
+        raise InputError(f"fit_power_law_loss: exponent = {exponent!r} is outside {lo:g} .. "
+                         f"{hi:g} [-].")
+    if heat_capacity is not None and not (np.isfinite(heat_capacity) and heat_capacity > 0):
+        raise InputError(f"fit_power_law_loss: heat_capacity = {heat_capacity!r} J/K must be "
+                         "a finite number > 0.")
+    if heat_capacity is None and not np.any(P > 0):
+        raise InputError("fit_power_law_loss: the log has no heater power, so it carries only "
+                         "a A / C and the exponent; give heat_capacity [J/K] (e.g. from the "
+                         "masses and specific heats) to separate the coefficient a.")
+    A = float(area)
+    d = T - Ta
+    dTdt = np.gradient(T, t)
+    n0 = 0.25 if exponent is None else float(exponent)
+    if heat_capacity is not None:
+        C0 = float(heat_capacity)
+    else:  # early slope, when the loss is still small: C ~ P / (dT/dt)
+        k = max(2, t.size // 20)
+        C0 = float(np.median(P[:k]) / max(np.median(np.abs(dTdt[:k])), 1e-12))
+    if coefficient is not None:
+        a0 = float(coefficient)
+    else:
+        loss = P - C0 * dTdt
+        ok = np.abs(d) > 0.05 * np.max(np.abs(d))
+        est = loss[ok] / (A * np.abs(d[ok]) ** n0 * d[ok])
+        est = est[np.isfinite(est) & (est > 0)]
+        a0 = float(np.median(est)) if est.size else 1.0
+    names = ["coefficient"] + (["exponent"] if exponent is None else []) \
+        + (["C_J_per_K"] if heat_capacity is None else []) + ["T0_K"]
+
+    def unpack(x):
+        i = 0
+        a = math.exp(x[i])
+        i += 1
+        n = float(exponent) if exponent is not None else float(x[i])
+        i += exponent is None
+        C = float(heat_capacity) if heat_capacity is not None else math.exp(x[i])
+        i += heat_capacity is None
+        return a, n, C, float(x[i])
+
+    x0 = [math.log(a0)] + ([n0] if exponent is None else []) \
+        + ([math.log(C0)] if heat_capacity is None else []) + [float(T[0])]
+    lb = [-np.inf] + ([lo] if exponent is None else []) \
+        + ([-np.inf] if heat_capacity is None else []) + [-np.inf]
+    ub = [np.inf] + ([hi] if exponent is None else []) \
+        + ([np.inf] if heat_capacity is None else []) + [np.inf]
+
+    def res(x):
+        a, n, C, T0 = unpack(x)
+        return _power_law_history(t, P, Ta, C, A, a, n, T0) - T
+
+    sol = least_squares(res, x0, bounds=(lb, ub), x_scale="jac")
+    a, n, C, T0 = unpack(sol.x)
+    # residual variance on the effective sample size n (1 - r1) / (1 + r1) of residuals with
+    # lag-1 autocorrelation r1, as the R/C fits of fdwall.analyses.twonode do
+    from fdwall.analyses.twonode import residual_acf
+    r1 = float(residual_acf(-sol.fun, 1)[0])
+    r1c = min(max(r1, 0.0), 0.99)
+    n_eff = t.size * (1 - r1c) / (1 + r1c)
+    s2 = float(sol.fun @ sol.fun) / max(n_eff - len(x0), 1.0)
+    try:
+        cov = np.linalg.inv(sol.jac.T @ sol.jac) * s2
+        se_x = np.sqrt(np.clip(np.diag(cov), 0.0, None))
+    except np.linalg.LinAlgError:
+        se_x = np.full(len(x0), np.nan)
+    se = {}
+    for name, sx in zip(names, se_x):
+        se[name] = float(a * sx) if name == "coefficient" else \
+            float(C * sx) if name == "C_J_per_K" else float(sx)
+    return {"coefficient": float(a), "coefficient_unit": f"W/(m2 K^{1.0 + n:.4g})",
+            "exponent": float(n), "C_J_per_K": float(C), "T0_K": float(T0), "stderr": se,
+            "rms_K": float(np.sqrt(np.mean(sol.fun ** 2))), "n_points": int(t.size),
+            "lag1_autocorrelation": r1, "n_eff": float(n_eff),
+            "fitted": names, "convection": Convection.power_law(a, n),
+            "model_K": T + sol.fun, "residual_K": -sol.fun}
+
+
 def wall_time_constants(case, T_op=None, t=None, n_modes=None) -> dict:
     """Thermal time constants [s] of the linearised finite-volume system of ``case``.
 
@@ -385,12 +570,15 @@ def _rc_notes(rc, modes, case) -> list:
         notes.append(f"The time constants, C_effective and the networks come from the wall "
                      f"linearised at the operating point: their resistance is the differential "
                      f"dT/dQ there, {Rd:.4g} K/W, not the secant R = (T_hot - T_amb)/Q = "
-                     f"{rc['R_K_per_W']:.4g} K/W; the two differ because radiation or k(T) "
-                     f"make the loss grow faster than the temperature rise.")
+                     f"{rc['R_K_per_W']:.4g} K/W; the two differ because radiation, k(T) or "
+                     f"a film that strengthens with the temperature difference (natural "
+                     f"convection, a power-law film) make the loss grow faster than the "
+                     f"temperature rise.")
     notes.append("R and C hold at this operating point only: radiation loss grows roughly as "
-                 "T^3 and k(T) of insulation rises with temperature, so R falls as the wall "
-                 "runs hotter, and cp(T) moves C. Compare a fit with the numbers at the "
-                 "temperatures the log ran at.")
+                 "T^3, a natural-convection film as dT^(1+n) (n about 1/4 to 1/3) and k(T) of "
+                 "insulation rises with temperature, so R falls as the wall runs hotter, and "
+                 "cp(T) moves C. Compare a fit with the numbers at the temperatures the log "
+                 "ran at, or fit the loss law itself (fdwall fit --model power-law).")
     return notes
 
 

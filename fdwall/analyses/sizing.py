@@ -79,7 +79,8 @@ class Conditions:
     wind : wind speed [m/s] (None: the case's convection; 0: still air, natural convection of
         the same face; > 0: forced convection along a plate of the face's height, or across a
         cylinder of the face's diameter, combined with the natural part).  A flat wall needs
-        a convection correlation on its outer face for a wind condition.
+        a convection correlation on its outer face for a wind condition; a power-law film
+        serves as the natural part of a cylinder only (it has no plate length).
     """
     ambient: float | None = None
     wind: float | None = None
@@ -131,6 +132,12 @@ def _apply_conditions(case, wi, cond: Conditions):
             ch["convection"] = Convection.wind_cylinder(2.0 * float(wall.radii()[-1]),
                                                         float(cond.wind), with_natural=nat)
         else:
+            if nat.kind == "power_law":
+                raise InputError("a wind design condition on a flat wall needs the plate's "
+                                 "length along the wind, but the outer face has a power-law "
+                                 "film coefficient (no height or length); give the face a "
+                                 "natural-convection correlation with its height instead "
+                                 "(a cylinder takes the power law as its natural part)")
             L = float(getattr(nat, "height", None) or getattr(nat, "char_length", None) or 1.0)
             ch["convection"] = Convection.wind_plate(L, float(cond.wind), with_natural=nat)
     return _replace_outer(case, wi, replace(face, **ch))

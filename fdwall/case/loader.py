@@ -166,6 +166,38 @@ def _model(file, key, what="this part of the case"):
         raise CaseError(f"{what} is not valid: {exc}", file=file, key=key) from None
 
 
+_FRACTION = re.compile(r"^\s*(\d+(?:\.\d*)?)\s*/\s*(\d+(?:\.\d*)?)\s*$")
+
+
+def _power_law_exponent(sec, key):
+    """The exponent n [-] of a power-law film: a number or a fraction text ("1/3"), 0 .. 1."""
+    from ..physics.convection import EXPONENT_RANGE
+    lo, hi = EXPONENT_RANGE
+    allowed = (f"a number {lo:g} .. {hi:g}, e.g. 0.25 (laminar natural convection of air) or "
+               '"1/3" (turbulent); 0 is a constant film coefficient. Below 0 the film '
+               "coefficient would be infinite where the face reaches the fluid temperature; "
+               "above 1 no convective loss in air grows that fast")
+    v = sec.raw(key)
+    n = None
+    if isinstance(v, str):
+        m = _FRACTION.match(v)
+        if m and float(m.group(2)) > 0:
+            n = float(m.group(1)) / float(m.group(2))
+        else:
+            try:
+                n = float(v)
+            except ValueError:
+                n = None
+    elif isinstance(v, (int, float)) and not isinstance(v, bool):
+        n = float(v)
+    if n is None or not math.isfinite(n):
+        raise sec.error(key, f"expected the power-law exponent as a plain number, got {v!r}",
+                        allowed)
+    if not (lo <= n <= hi):
+        raise sec.error(key, f"the power-law exponent {v!r} is outside {lo:g} .. {hi:g}", allowed)
+    return n
+
+
 def _combine(func, *parts):
     """Combine numbers/Schedules pointwise with ``func`` (None parts are passed as None).
 
@@ -744,7 +776,9 @@ class _Loader:
     def _convection(self, sec, side, geo, chamber):
         from ..physics.convection import Convection
         model = sec.text("model", choices=S.CONVECTION_MODELS)
-        used = set(S.CONVECTION_KEYS[model]) | {"model", "altitude", "pressure", "multiplier"}
+        used = set(S.CONVECTION_KEYS[model]) | {"model", "multiplier"}
+        if model not in S.CONVECTION_NO_AIR:
+            used |= {"altitude", "pressure"}
         for k in sec.data:
             if k not in used:
                 raise sec.error(k, f"'{k}' does not apply to the convection model '{model}'",
@@ -761,15 +795,21 @@ class _Loader:
                                     + ("a horizontal cylinder" if need == "diameter" else
                                        "a vertical plate" if need == "height" else
                                        "a horizontal plate, area/perimeter") + ")")
-        where = sec.exclusive("altitude", "pressure")
         kw = {"multiplier": _at_most(sec, "multiplier", 1.0, MAX_MULTIPLIER,
                                      "a factor that large is no correction of the correlation "
                                      "any more; give film_coefficient instead")}
+        loc = {"where": "chamber" if chamber else "outside"}
+        if model == "power_law":
+            n = _power_law_exponent(sec, "exponent")
+            a = U.parse_power_law_coefficient(sec.raw("coefficient"), n, sec.key("coefficient"),
+                                              file=self.file, exponent_key=sec.key("exponent"))
+            with _model(self.file, sec.path, "the convection model"):
+                return Convection.power_law(a, n, **kw, **loc)
+        where = sec.exclusive("altitude", "pressure")
         if where == "altitude":
             kw["altitude"] = sec.quantity("altitude", "length")
         elif where == "pressure":
             kw["pressure"] = sec.quantity("pressure", "pressure", positive=True)
-        loc = {"where": "chamber" if chamber else "outside"}
         r = wall.radii()[0] if side == "inner" else wall.radii()[-1]
         face_d = 2.0 * r if wall.shape == "cylinder" else None
 

@@ -128,7 +128,8 @@ CHAMBER_FACE = {
 }
 
 CONVECTION_MODELS = ("natural", "vertical_plate", "horizontal_plate", "tilted_plate",
-                     "horizontal_cylinder", "vertical_cylinder", "wind_plate", "wind_cylinder")
+                     "horizontal_cylinder", "vertical_cylinder", "wind_plate", "wind_cylinder",
+                     "power_law")
 
 CONVECTION = {
     "model": "one of " + ", ".join(CONVECTION_MODELS),
@@ -144,6 +145,9 @@ CONVECTION = {
     "altitude": 'site altitude, e.g. "1500 m" (sets the air pressure)',
     "pressure": 'air pressure, e.g. "85 kPa"',
     "multiplier": "factor on the film coefficient (default 1)",
+    "coefficient": 'power_law: a of h = a |T_face - T_fluid|^n, unit W/(m2 K^(1+n)), '
+                   'e.g. "1.31 W/(m2 K^1.25)"',
+    "exponent": 'power_law: n of h = a |T_face - T_fluid|^n, 0 .. 1, e.g. 0.25 or "1/3"',
 }
 
 # keys each model uses (besides model, altitude, pressure, multiplier)
@@ -156,7 +160,10 @@ CONVECTION_KEYS = {
     "vertical_cylinder": ("height", "diameter"),
     "wind_plate": ("length", "wind_speed", "with_natural", "transition_reynolds"),
     "wind_cylinder": ("diameter", "wind_speed", "with_natural"),
+    "power_law": ("coefficient", "exponent"),
 }
+# models that use no air properties, so altitude and pressure have no effect
+CONVECTION_NO_AIR = ("power_law",)
 
 CHAMBER = {
     "heat_capacity": 'contents (air, racks, load): "40 kJ/K" or [[temperature, capacity], ...]',

@@ -89,6 +89,14 @@ def cmd_fit(args) -> int:
                 else common.quantity(args.setpoint, "temperature", "--setpoint"))
     at_power = (None if args.at_power is None
                 else common.quantity(args.at_power, "power", "--at-power"))
+    if args.model == "power-law":
+        from .fit_power import cmd_fit_power_law
+        return cmd_fit_power_law(args, power, rated, ambient, temps, repair)
+    for opt, v in (("--area", args.area), ("--heat-capacity", args.heat_capacity),
+                   ("--exponent", args.exponent)):
+        if v is not None:
+            raise InputError(f"option {opt} goes with --model power-law only. Allowed: "
+                             "--model power-law with it, or leave it out.")
     try:
         log = read_log(args.log, time=args.time, temperature=temps, power=power,
                        ambient=ambient, duty=args.duty, state=args.state, rated_power=rated,
@@ -367,8 +375,17 @@ def register(sub) -> None:
     p.add_argument("--repair", metavar="KIND[,KIND]",
                    help="let the reader repair the log, each repair reported: sort, "
                    "duplicates (averaged), outliers (dropped), gaps (kept, power held)")
-    p.add_argument("--model", default="one-node", choices=("one-node", "two-node"),
-                   help="one-node (default) or two-node (chamber plus wall)")
+    p.add_argument("--model", default="one-node", choices=("one-node", "two-node", "power-law"),
+                   help="one-node (default), two-node (chamber plus wall), or power-law (a "
+                   "lumped body losing heat through a film h = a |T - T_amb|^n; needs --area)")
+    p.add_argument("--area", metavar="AREA",
+                   help='power-law: area of the film, e.g. "1.2 m2"')
+    p.add_argument("--heat-capacity", metavar="VALUE",
+                   help='power-law: heat capacity when known, e.g. "45 kJ/K" (needed for a '
+                   "log without power); fitted when left out")
+    p.add_argument("--exponent", metavar="N",
+                   help='power-law: the exponent n when known, e.g. 0.25 or "1/3"; fitted '
+                   "when left out")
     p.add_argument("--sensor-lag", metavar="TIME|fit",
                    help='first-order time constant of the sensor, e.g. "40 s", or fit')
     p.add_argument("--dead-time", metavar="TIME|fit",

@@ -9,9 +9,11 @@ Kernel
 ====  ============  ==========================================================================
  idx  name          meaning
 ====  ============  ==========================================================================
-  0   P_MODE        0 fixed h, 1 natural, 2 forced, 3 mixed (natural + forced)
+  0   P_MODE        0 fixed h, 1 natural, 2 forced, 3 mixed (natural + forced),
+                    4 power law h = a |Ts - Tf|^n
   1   P_NAT         natural geometry: 0 none, 1 vertical plate, 2 horizontal plate,
-                    3 tilted plate, 4 horizontal cylinder, 5 vertical cylinder
+                    3 tilted plate, 4 horizontal cylinder, 5 vertical cylinder,
+                    6 power law (the natural part of a mixed condition)
   2   P_FORCED      forced geometry: 0 none, 1 flat plate in parallel flow, 2 cylinder in
                     cross-flow
   3   P_HFIX        fixed film coefficient [W/m2/K] (mode 0 only)
@@ -30,8 +32,18 @@ Kernel
  15   P_AMIX        0.037 Re_c^0.8 - 0.664 Re_c^0.5 for the mixed boundary layer [-]
  16   P_GRAV        gravitational acceleration [m/s2]
  17   P_WHERE       0 outside face, 1 face inside a chamber (information only)
-18-19 --            reserved, 0
+ 18   P_PLAW_A      power-law coefficient a [W/(m2 K^(1+n))] (mode 4, natural code 6)
+ 19   P_PLAW_N      power-law exponent n [-], 0 <= n <= 1 (mode 4, natural code 6)
 ====  ============  ==========================================================================
+
+Power law (mode 4, and natural code 6 inside a mixed condition): ``h = a |Ts - Tf|^n``
+[W/m2/K] with the power-law coefficient ``a`` [W/(m2 K^(1+n))] and the exponent ``n`` [-]
+given by the user, no air properties.  The simplified natural-convection forms of air are of
+this kind (for example ``h = 1.42 (dT/L)^(1/4)`` for a laminar vertical plate, ``1.31
+dT^(1/3)`` turbulent; McAdams 1954 / Holman, Heat Transfer, table 7-2).  At ``Ts == Tf`` it
+returns 0 for n > 0 and ``a`` for n = 0; dh/dTs is unbounded there for 0 < n < 1 but the heat
+flux ``a |dT|^n dT`` has the finite slope ``(1 + n) a |dT|^n`` (0 at dT = 0), so the
+solver's forward difference and Newton steps stay finite.
 
 Correlations (all with properties at the film temperature (Ts+Tf)/2 and the pressure
 ``par[P_PRESS]``; Ra and Gr use |Ts - Tf|, beta = 1/T_film):
@@ -98,6 +110,9 @@ __all__ = [
     "MODE_NATURAL",
     "MODE_FORCED",
     "MODE_MIXED",
+    "MODE_POWER",
+    "h_power_law",
+    "EXPONENT_RANGE",
     "h_conv",
     "h_conv_array",
     "dimensionless_numbers",
@@ -125,6 +140,8 @@ P_RETR = 14
 P_AMIX = 15
 P_GRAV = 16
 P_WHERE = 17
+P_PLAW_A = 18
+P_PLAW_N = 19
 #: Length of the parameter vector given to :func:`h_conv`.
 PAR_LEN = 20
 
@@ -132,6 +149,7 @@ MODE_FIXED = 0
 MODE_NATURAL = 1
 MODE_FORCED = 2
 MODE_MIXED = 3
+MODE_POWER = 4
 
 NAT_NONE = 0
 NAT_VPLATE = 1
@@ -139,6 +157,7 @@ NAT_HPLATE = 2
 NAT_TILTED = 3
 NAT_HCYL = 4
 NAT_VCYL = 5
+NAT_POWER = 6
 
 FORCED_NONE = 0
 FORCED_PLATE = 1
@@ -155,6 +174,17 @@ T_PROPS_VALID = (230.0, 1300.0)
 _THIRD = 1.0 / 3.0
 _SIXTH = 1.0 / 6.0
 _COS60 = 0.5
+
+#: Allowed range of the power-law exponent n [-].  0 is a constant film coefficient; the
+#: simplified natural-convection forms of air have 1/4 (laminar) to 1/3 (turbulent), and a
+#: combined convection-plus-radiation fit in air rarely exceeds about 0.5.  Above 1 the loss
+#: would grow faster than dT^2, which no convective mechanism in air does (nucleate boiling,
+#: n of 2 to 3, is no face condition of fdwall); below 0 h would grow without bound as the
+#: face approaches the fluid temperature, which is unphysical and singular.
+EXPONENT_RANGE = (0.0, 1.0)
+#: Usual film coefficients of natural (free) convection in gases [W/m2/K] (Incropera et al.,
+#: Fundamentals of Heat and Mass Transfer, table 1.1): a power law outside gets a warning.
+H_FREE_GAS_RANGE = (2.0, 25.0)
 
 
 # --------------------------------------------------------------------------- correlations
@@ -315,6 +345,37 @@ def nu_cylinder_crossflow_cb(re, pr):
 
 # --------------------------------------------------------------------------- kernel
 @njit(cache=True)
+def h_power_law(a, n, dT):
+    """Power-law film coefficient ``h = a |dT|^n`` [W/m2/K].
+
+    The one implementation shared by the solver (:func:`h_conv`, mode 4) and the lumped
+    helpers (:func:`fdwall.analyses.lumped.lumped_cooling`, :func:`fdwall.analyses.lumped.
+    fit_power_law_loss`).
+
+    Parameters
+    ----------
+    a : float
+        Power-law coefficient [W/(m2 K^(1+n))], > 0.
+    n : float
+        Exponent [-], 0 <= n <= 1 (see :data:`EXPONENT_RANGE`).
+    dT : float
+        Temperature difference surface minus fluid [K] (either sign).
+
+    Returns
+    -------
+    float
+        h >= 0 [W/m2/K]: 0 at dT = 0 for n > 0 (``a`` for n = 0), never NaN for finite
+        inputs (the magnitude is taken before the power).
+    """
+    d = abs(dT)
+    if n == 0.0:
+        return a
+    if not (d > 0.0):  # 0, or NaN in: no film (NaN would otherwise spread into the Newton step)
+        return 0.0
+    return a * d**n
+
+
+@njit(cache=True)
 def _film(Ts, Tf):
     t = 0.5 * (Ts + Tf)
     if t < T_FILM_MIN:
@@ -329,6 +390,8 @@ def _film(Ts, Tf):
 @njit(cache=True)
 def _h_natural(par, dT, tfilm, k, nu, alpha, pr):
     kind = int(par[P_NAT] + 0.5)
+    if kind == NAT_POWER:
+        return h_power_law(par[P_PLAW_A], par[P_PLAW_N], dT)
     # Ra per m^3: g beta |dT| / (nu alpha)
     c = par[P_GRAV] * abs(dT) / (tfilm * nu * alpha)
     if kind == NAT_VPLATE:
@@ -404,6 +467,8 @@ def h_conv(par, Ts, Tf):
     if mode == MODE_FIXED:
         h = par[P_HFIX]
         return (h if h > 0.0 else 0.0) * par[P_MULT]
+    if mode == MODE_POWER:
+        return h_power_law(par[P_PLAW_A], par[P_PLAW_N], Ts - Tf) * par[P_MULT]
     tfilm = _film(Ts, Tf)
     k, nu, alpha, pr = film_properties(tfilm, par[P_PRESS])
     hn = 0.0
@@ -510,7 +575,9 @@ _NATURAL_KINDS = (
     "vertical_cylinder",
 )
 _FORCED_KINDS = ("wind_plate", "wind_cylinder")
-_KINDS = ("fixed",) + _NATURAL_KINDS + _FORCED_KINDS
+_KINDS = ("fixed",) + _NATURAL_KINDS + _FORCED_KINDS + ("power_law",)
+#: Kinds that may be the natural part of a wind condition (mixed convection).
+_NATURAL_PART_KINDS = _NATURAL_KINDS + ("power_law",)
 _NAT_CODE = {
     "vertical_plate": NAT_VPLATE,
     "horizontal_plate": NAT_HPLATE,
@@ -536,6 +603,32 @@ def _resolve_pressure(pressure, altitude, who):
     return P_ATM if pressure is None else pressure
 
 
+def _check_power_law(who, coefficient, exponent):
+    """Validated (a [W/(m2 K^(1+n))], n [-]) of a power-law film; InputError otherwise."""
+    lo, hi = EXPONENT_RANGE
+    try:
+        n = float(exponent)
+    except (TypeError, ValueError):
+        n = float("nan")
+    if isinstance(exponent, bool) or not math.isfinite(n) or not (lo <= n <= hi):
+        raise InputError(
+            f"{who}: exponent = {exponent!r} is not allowed; the power-law exponent n of "
+            f"h = a |Ts - Tf|^n must be a number {lo:g} .. {hi:g} [-] (1/4 laminar, 1/3 "
+            "turbulent natural convection of air, 0 a constant h; below 0 h would be "
+            "infinite at Ts = Tf, above 1 no convective loss in air grows that fast)."
+        )
+    try:
+        a = float(coefficient)
+    except (TypeError, ValueError):
+        a = float("nan")
+    if isinstance(coefficient, bool) or not math.isfinite(a) or a <= 0.0:
+        raise InputError(
+            f"{who}: coefficient = {coefficient!r} is not allowed; the power-law coefficient "
+            f"a must be a finite number > 0 [W/(m2 K^{1.0 + n:g})]."
+        )
+    return a, n
+
+
 def _check_positive(who, name, value, unit):
     try:
         v = float(value)
@@ -559,14 +652,15 @@ class Convection:
     Build it with the constructors (:meth:`fixed`, :meth:`natural_vertical`,
     :meth:`natural_horizontal`, :meth:`natural_tilted`, :meth:`horizontal_cylinder`,
     :meth:`vertical_cylinder`, :meth:`wind_plate`, :meth:`wind_cylinder`,
-    :meth:`chamber`); all lengths in [m], speeds in [m/s], pressures in [Pa].
+    :meth:`chamber`, :meth:`power_law`); all lengths in [m], speeds in [m/s], pressures in
+    [Pa].
 
     Attributes
     ----------
     kind : str
         One of ``"fixed"``, ``"vertical_plate"``, ``"horizontal_plate"``,
         ``"tilted_plate"``, ``"horizontal_cylinder"``, ``"vertical_cylinder"``,
-        ``"wind_plate"``, ``"wind_cylinder"``.
+        ``"wind_plate"``, ``"wind_cylinder"``, ``"power_law"``.
     h_fixed : float or None
         Given film coefficient [W/m2/K] (kind ``"fixed"``).
     height : float or None
@@ -598,6 +692,11 @@ class Convection:
     re_transition : float
         Transition Reynolds number of the flat-plate boundary layer [-]; 0 = turbulent
         from the leading edge.
+    coefficient : float or None
+        Power-law coefficient a of ``h = a |Ts - Tf|^n`` [W/(m2 K^(1+n))] (kind
+        ``"power_law"``), > 0.
+    exponent : float or None
+        Power-law exponent n [-] (kind ``"power_law"``), 0 <= n <= 1.
     """
 
     kind: str
@@ -614,6 +713,8 @@ class Convection:
     multiplier: float = 1.0
     where: str = "outside"
     re_transition: float = 5.0e5
+    coefficient: float | None = None
+    exponent: float | None = None
 
     # ------------------------------------------------------------------ validation
     def __post_init__(self):
@@ -650,6 +751,15 @@ class Convection:
                     "coefficient must be a finite number >= 0 [W/m2/K]."
                 )
             setf("h_fixed", hf)
+        if k == "power_law":
+            a, n = _check_power_law(who, self.coefficient, self.exponent)
+            setf("coefficient", a)
+            setf("exponent", n)
+        elif self.coefficient is not None or self.exponent is not None:
+            raise InputError(
+                f"{who}: coefficient and exponent belong to the kind 'power_law' only; "
+                f"leave them out for {k!r}."
+            )
         if k in ("vertical_plate", "vertical_cylinder", "tilted_plate"):
             setf("height", _check_positive(who, "height", self.height, "m"))
         if k in ("horizontal_plate", "tilted_plate"):
@@ -704,10 +814,10 @@ class Convection:
                 )
             setf("re_transition", rc)
             if self.natural is not None:
-                if not isinstance(self.natural, Convection) or self.natural.kind not in _NATURAL_KINDS:
+                if not isinstance(self.natural, Convection) or self.natural.kind not in _NATURAL_PART_KINDS:
                     raise InputError(
                         f"{who}: the natural part must be a natural-convection Convection "
-                        f"(one of {', '.join(_NATURAL_KINDS)}), got {self.natural!r}."
+                        f"(one of {', '.join(_NATURAL_PART_KINDS)}), got {self.natural!r}."
                     )
                 if self.natural.pressure != self.pressure:
                     setf("natural", dataclasses.replace(self.natural, pressure=self.pressure))
@@ -718,6 +828,34 @@ class Convection:
             )
 
     # ------------------------------------------------------------------ constructors
+    @classmethod
+    def power_law(cls, coefficient, exponent, *, multiplier=1.0, where="outside"):
+        """Power-law film coefficient ``h = a |Ts - Tf|^n``.
+
+        A simplified natural-convection form (McAdams 1954; Holman, Heat Transfer, table
+        7-2), or the loss law fitted to a cooling log.  No air properties are used, so the
+        air pressure has no effect.
+
+        Parameters
+        ----------
+        coefficient : float
+            Power-law coefficient a [W/(m2 K^(1+n))], > 0 (e.g. 1.31 for turbulent natural
+            convection of air with n = 1/3).
+        exponent : float
+            Exponent n [-], 0 <= n <= 1 (:data:`EXPONENT_RANGE`): 1/4 laminar, 1/3
+            turbulent natural convection; 0 is a constant h = a.
+        multiplier : float, optional
+            Factor on h [-].
+        where : str, optional
+            ``"outside"`` or ``"chamber"``.
+
+        Returns
+        -------
+        Convection
+        """
+        return cls("power_law", coefficient=coefficient, exponent=exponent,
+                   multiplier=multiplier, where=where)
+
     @classmethod
     def fixed(cls, h, *, where="outside"):
         """Given film coefficient.
@@ -1000,8 +1138,17 @@ class Convection:
             par[P_MODE] = MODE_FIXED
             par[P_HFIX] = self.h_fixed
             return par
+        if self.kind == "power_law":
+            par[P_MODE] = MODE_POWER
+            par[P_PLAW_A] = self.coefficient
+            par[P_PLAW_N] = self.exponent
+            return par
         nat = self if self.kind in _NATURAL_KINDS else self.natural
-        if nat is not None:
+        if nat is not None and nat.kind == "power_law":
+            par[P_NAT] = NAT_POWER
+            par[P_PLAW_A] = nat.coefficient
+            par[P_PLAW_N] = nat.exponent
+        elif nat is not None:
             par[P_NAT] = _NAT_CODE[nat.kind]
             if nat.height is not None:
                 par[P_HEIGHT] = nat.height
@@ -1071,6 +1218,18 @@ class Convection:
         """
         out = []
         if self.kind == "fixed":
+            return out  # given by the user: no correlation range to leave
+        if self.kind == "power_law":
+            h = float(self.h(Ts, Tf))
+            lo, hi = H_FREE_GAS_RANGE
+            if abs(Ts - Tf) > 0.0 and not (lo <= h <= hi):
+                out.append(
+                    f"the power law gives h = {h:.3g} W/m2/K at |Ts - Tf| = {abs(Ts - Tf):.3g} "
+                    f"K, outside {lo:g} .. {hi:g} W/m2/K, the usual range of natural convection "
+                    "in gases (Incropera et al., Fundamentals of Heat and Mass Transfer, table "
+                    "1.1); check the coefficient and its unit (a liquid or a fitted combined "
+                    "film may lie outside)."
+                )
             return out
         from ..solver import native
         ra, gr, re, pr, tfilm = native.dimensionless_numbers(np.array(self.par, dtype=float),

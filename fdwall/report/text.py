@@ -504,6 +504,16 @@ def _sched_text(s, unit="K") -> str:
             f"t = {fmt_time(max(s.times))})")
 
 
+def power_law_text(c) -> str:
+    """``power law h = a |dT|^n`` of a power-law Convection, with the units of a."""
+    n = c.exponent
+    text = (f"power law h = {c.coefficient:.4g} |dT|^{n:.4g} W/m2/K (coefficient "
+            f"{c.coefficient:.4g} W/(m2 K^{1.0 + n:.4g}), exponent {n:.4g})")
+    if getattr(c, "multiplier", 1.0) != 1.0:
+        text += f" x {c.multiplier:g}"
+    return text
+
+
 def _conv_text(c) -> str:
     if c is None:
         return ""
@@ -512,6 +522,8 @@ def _conv_text(c) -> str:
     kind = getattr(c, "kind", type(c).__name__)
     if kind == "fixed" and getattr(c, "h_fixed", None) is not None:
         return f"h = {c.h_fixed:.2f} W/m2/K"
+    if kind == "power_law":
+        return power_law_text(c)
     bits = []
     for attr, unit in (("height", "m"), ("char_length", "m"), ("diameter", "m"),
                        ("length", "m")):

@@ -49,6 +49,7 @@ from .layout import (  # noqa: F401  re-exported for fdwall.solver.native
     CI_POWER,
     CI_SENSOR_A,
     CI_SENSOR_B,
+    CI_SENSOR_MAT,
     CI_SETPOINT,
     CS_H,
     CS_HJ,
@@ -65,6 +66,7 @@ from .layout import (  # noqa: F401  re-exported for fdwall.solver.native
     CTL_PID_SWITCHED,
     CTL_THERMOSTAT,
     EV_DOWN,
+    EV_MAT,
     EV_NODE_A,
     EV_NODE_B,
     EV_THRESHOLD,
@@ -626,17 +628,70 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
 
 
 @njit(cache=True)
-def _sensor(T, ctl_i, ctl_f):
-    w = ctl_f[CF_SENSOR_W]
-    return w * T[ctl_i[CI_SENSOR_A]] + (1.0 - w) * T[ctl_i[CI_SENSOR_B]]
+def read_between(Ta, Tb, w, mat, m_off, mtab):
+    """Temperature [K] at a point between nodes a and b (at Ta, Tb [K]) of one material, and
+    its sensitivities dT/dTa, dT/dTb [-].
+
+    ``w`` is the geometry weight on node a [-]: w = (g_b - g) / (g_b - g_a) in the coordinate
+    g in which steady conduction is uniform (x for a slab, ln r for a cylinder, -1/r for a
+    sphere).  At steady state the heat flow between the nodes is constant, so the Kirchhoff
+    integral K = int k dT (the table row MT_KINT) is linear in g: the read-out solves
+    K(T) = w K(Ta) + (1 - w) K(Tb) by Newton steps with k as the derivative, started from
+    the linear value and kept between Ta and Tb (K rises with T).  With ``mat`` < 0 (a
+    constant k, a node read alone, the chamber) the read-out is w Ta + (1 - w) Tb.
+    """
+    y = w * Ta + (1.0 - w) * Tb
+    if mat < 0 or w == 1.0 or w == 0.0 or Ta == Tb:
+        return y, w, 1.0 - w
+    ka, Ka, ca, ha = mat_eval(m_off, mtab, mat, Ta)
+    kb, Kb, cb, hb = mat_eval(m_off, mtab, mat, Tb)
+    Kx = w * Ka + (1.0 - w) * Kb
+    lo = Ta if Ta < Tb else Tb
+    hi = Tb if Ta < Tb else Ta
+    k = ka
+    for _ in range(30):
+        k, K, c, hh = mat_eval(m_off, mtab, mat, y)
+        if not k > 0.0:
+            return w * Ta + (1.0 - w) * Tb, w, 1.0 - w
+        yn = y + (Kx - K) / k
+        if yn < lo:
+            yn = lo
+        if yn > hi:
+            yn = hi
+        dy = yn - y
+        y = yn
+        if abs(dy) <= 1e-13 * abs(y):
+            break
+    k, K, c, hh = mat_eval(m_off, mtab, mat, y)
+    return y, w * ka / k, (1.0 - w) * kb / k
 
 
 @njit(cache=True)
-def _hermite_cross(y0, y1, d0, d1, h, thr):
-    """Fraction of the step where the cubic Hermite interpolant crosses ``thr`` (bisection)."""
+def _sensor(T, ctl_i, ctl_f, m_off, mtab):
+    """The controller's sensor reading [K]: the read-out between its nodes (read_between)."""
+    y, ga, gb = read_between(T[ctl_i[CI_SENSOR_A]], T[ctl_i[CI_SENSOR_B]], ctl_f[CF_SENSOR_W],
+                             ctl_i[CI_SENSOR_MAT], m_off, mtab)
+    return y
+
+
+@njit(cache=True)
+def _hermite_cross(ya0, ya1, da0, da1, yb0, yb1, db0, db1, w, mat, m_off, mtab, h, thr):
+    """Fraction of the step where the read-out between nodes a and b crosses ``thr`` [K]
+    (bisection, 2^-40 of the step).
+
+    Each node follows the cubic Hermite interpolant of the dense output (values y [K] and
+    slopes d [K/s] at both ends of the step of length h [s]); the read-out is taken from the
+    two interpolated node temperatures (:func:`read_between`), as an output row there reads.
+    Read linearly (``mat`` < 0), that is the Hermite interpolant of the weighted sum.
+    """
+    # linear read-out: the interpolant of w y_a + (1 - w) y_b, with the weighted slopes
+    y0 = w * ya0 + (1 - w) * yb0
+    y1 = w * ya1 + (1 - w) * yb1
+    d0 = w * da0 + (1 - w) * db0
+    d1 = w * da1 + (1 - w) * db1
     a = 0.0
     b = 1.0
-    fa = y0 - thr
+    fa = read_between(ya0, yb0, w, mat, m_off, mtab)[0] - thr
     for _ in range(40):
         m = 0.5 * (a + b)
         s = m
@@ -644,7 +699,12 @@ def _hermite_cross(y0, y1, d0, d1, h, thr):
         h10 = s ** 3 - 2 * s ** 2 + s
         h01 = -2 * s ** 3 + 3 * s ** 2
         h11 = s ** 3 - s ** 2
-        y = h00 * y0 + h10 * h * d0 + h01 * y1 + h11 * h * d1 - thr
+        if mat < 0:
+            y = h00 * y0 + h10 * h * d0 + h01 * y1 + h11 * h * d1 - thr
+        else:
+            Ta = h00 * ya0 + h10 * h * da0 + h01 * ya1 + h11 * h * da1
+            Tb = h00 * yb0 + h10 * h * db0 + h01 * yb1 + h11 * h * db1
+            y = read_between(Ta, Tb, w, mat, m_off, mtab)[0] - thr
         if (y > 0) == (fa > 0):
             a = m
             fa = y
@@ -696,12 +756,13 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hca, hra, hcb, hrb
 
 @njit(cache=True)
 def controller(T, t, t_target, jump_target, cs, mode, period, ev_tol, ctl_i, ctl_f, s_off,
-               stab):
+               stab, m_off, mtab):
     """The heater controller at the start of a step at time t [s]: samples the duty schedule
     or the PID law once per period (anti-windup), or switches the thermostat at its band;
     updates the control state ``cs``.  Returns the on-fraction for the step (-1: the duty
     schedule itself) and the step target [s], shortened to the next sampling or switch-off
-    time (jump_target True then)."""
+    time (jump_target True then).  The sensor is read between its nodes through the material
+    tables m_off, mtab (:func:`read_between`)."""
     u = -1.0
     if mode == CTL_DUTY_SWITCHED or mode == CTL_PID_AVERAGED or mode == CTL_PID_SWITCHED:
         if t >= cs[CS_NEXT] - 1e-9 * period:
@@ -709,7 +770,7 @@ def controller(T, t, t_target, jump_target, cs, mode, period, ev_tol, ctl_i, ctl
             if mode == CTL_DUTY_SWITCHED:
                 ufrac = sched_eval(s_off, stab, ctl_i[CI_DUTY], t, 0.0)
             else:
-                y = _sensor(T, ctl_i, ctl_f)
+                y = _sensor(T, ctl_i, ctl_f, m_off, mtab)
                 sp = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t, 0.0)
                 e = sp - y
                 de = 0.0
@@ -745,7 +806,7 @@ def controller(T, t, t_target, jump_target, cs, mode, period, ev_tol, ctl_i, ctl
             else:
                 u = 0.0
     elif mode == CTL_THERMOSTAT:
-        y = _sensor(T, ctl_i, ctl_f)
+        y = _sensor(T, ctl_i, ctl_f, m_off, mtab)
         sp = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t, 0.0)
         half = 0.5 * ctl_f[CF_BAND]
         if cs[CS_ON] > 0.5 and y >= sp + half - ev_tol:
@@ -774,21 +835,22 @@ def ledger(acc, hs, q0, qg, q1, F0, Fg, F1, H0, H1, ex0, exg, ex1, dirich_node, 
 
 
 @njit(cache=True)
-def events(ev_i, ev_f, ev_out, t, hs, T0, T1, F0, C0, F1, C1):
+def events(ev_i, ev_f, ev_out, t, hs, T0, T1, F0, C0, F1, C1, m_off, mtab):
     """Record the first upward / downward crossing time [s] of each watched event within the
-    step (t, t + hs], located on the cubic Hermite interpolant of the states T [K] with
-    slopes F/C [K/s] at both ends."""
+    step (t, t + hs]: the read-out between the event's nodes (:func:`read_between`, material
+    tables m_off, mtab) located on the cubic Hermite interpolant of the states T [K] with
+    slopes F/C [K/s] at both ends (:func:`_hermite_cross`)."""
     for e in range(ev_i.shape[0]):
         a = ev_i[e, EV_NODE_A]
         b = ev_i[e, EV_NODE_B]
+        mat = ev_i[e, EV_MAT] if ev_i.shape[1] > EV_MAT else -1
         w = ev_f[e, EV_WEIGHT]
         thr = ev_f[e, EV_THRESHOLD]
-        y0 = w * T0[a] + (1 - w) * T0[b]
-        y1 = w * T1[a] + (1 - w) * T1[b]
+        y0 = read_between(T0[a], T0[b], w, mat, m_off, mtab)[0]
+        y1 = read_between(T1[a], T1[b], w, mat, m_off, mtab)[0]
         if (y0 - thr) * (y1 - thr) <= 0.0 and y0 != y1:
-            d0 = w * F0[a] / C0[a] + (1 - w) * F0[b] / C0[b]
-            d1 = w * F1[a] / C1[a] + (1 - w) * F1[b] / C1[b]
-            fr = _hermite_cross(y0, y1, d0, d1, hs, thr)
+            fr = _hermite_cross(T0[a], T1[a], F0[a] / C0[a], F1[a] / C1[a], T0[b], T1[b],
+                                F0[b] / C0[b], F1[b] / C1[b], w, mat, m_off, mtab, hs, thr)
             col = EV_UP if y1 > y0 else EV_DOWN
             if ev_out[e, col] != ev_out[e, col]:
                 ev_out[e, col] = t + fr * hs
@@ -844,13 +906,13 @@ def error_norm(F0, Fg, F1, hs, dh, Cap, Jd, Jl, Ju, Jcol, Jrow, dirich_node, cha
 
 
 @njit(cache=True)
-def thermostat_cut(T0, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol):
+def thermostat_cut(T0, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol, m_off, mtab):
     """Fraction (0.05 .. 0.95) to shorten a step by when the thermostat's sensor passes its
     switching threshold (setpoint +- band/2 [K]) by more than ``ev_tol`` [K] between the
     states T0 and T1 [K] (heater fraction u); 0 when the step may stand.  The fraction puts
     the end near the crossing of the straight line between the two sensor readings."""
-    y0 = _sensor(T0, ctl_i, ctl_f)
-    y1 = _sensor(T1, ctl_i, ctl_f)
+    y0 = _sensor(T0, ctl_i, ctl_f, m_off, mtab)
+    y1 = _sensor(T1, ctl_i, ctl_f, m_off, mtab)
     sp1 = sched_eval(s_off, stab, ctl_i[CI_SETPOINT], t1, 1.0)
     half = 0.5 * ctl_f[CF_BAND]
     thr = sp1 + half if u > 0.5 else sp1 - half
@@ -973,7 +1035,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
             target_bp = ibp
         # controller: sampling and switching times
         u, t_target, jump_target = controller(T, t, t_target, jump_target, cs, mode, period,
-                                              ev_tol, ctl_i, ctl_f, s_off, stab)
+                                              ev_tol, ctl_i, ctl_f, s_off, stab, m_off, mtab)
         # step size; after the heater switches, restart from the step that worked last time
         switched = u != cs[CS_UPREV] and (mode == CTL_DUTY_SWITCHED or mode == CTL_THERMOSTAT
                                           or mode == CTL_PID_SWITCHED)
@@ -1072,7 +1134,8 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                 continue
             # thermostat: do not step across a switching threshold by more than ev_tol
             if mode == CTL_THERMOSTAT:
-                frac = thermostat_cut(T, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol)
+                frac = thermostat_cut(T, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol, m_off,
+                                      mtab)
                 if frac > 0.0 and hs > hmin * 10:
                     hs *= frac
                     land = False
@@ -1087,7 +1150,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
         # accept the step: ledger with the step's quadrature weights
         ledger(acc, hs, q0, qg, q1, F0, Fg, F1, H0, H1, ex0, exg, ex1, dirich_node, dirich_face)
         # events (cubic Hermite location within the step)
-        events(ev_i, ev_f, ev_out, t, hs, T, T1, F0, C0, F1, Cap)
+        events(ev_i, ev_f, ev_out, t, hs, T, T1, F0, C0, F1, Cap, m_off, mtab)
         for i in range(nun):
             Tprev[i] = T[i]
             T[i] = T1[i]

@@ -47,15 +47,16 @@ ch_f[N_CHF] float     : CHF_UA extra conductance to ambient [W/K], CHF_LEAK leak
                         room conditions [m3/s]
 ctl_i[N_CI] int       : CI_MODE (a CTL_* code), CI_HEATER_NODE (-1 none), CI_SENSOR_A,
                         CI_SENSOR_B (nodes), schedules CI_POWER (rated power), CI_DUTY,
-                        CI_SETPOINT, CI_ENABLE
+                        CI_SETPOINT, CI_ENABLE; CI_SENSOR_MAT the material whose Kirchhoff
+                        integral the sensor read-out inverts (-1: linear in T)
 ctl_f[N_CF] float     : CF_PERIOD [s], CF_BAND [K], CF_KP [1/K], CF_KI [1/K/s], CF_KD [s/K],
-                        CF_SENSOR_W (weight on sensor a) [-], CF_ALPHA [1/K], CF_T_REF [K],
+                        CF_SENSOR_W (geometry weight on sensor a) [-], CF_ALPHA [1/K], CF_T_REF [K],
                         CF_POWER_FACTOR (voltage ratio squared) [-], CF_EVENT_TOL [K]
 
 Other kernel arrays
 -------------------
-ev_i[ne, 2] int (EV_NODE_A, EV_NODE_B), ev_f[ne, 2] float (EV_WEIGHT on node a [-],
-EV_THRESHOLD [K]), ev_out[ne, 2] float (EV_UP, EV_DOWN: first crossing times [s]);
+ev_i[ne, N_EVI] int (EV_NODE_A, EV_NODE_B, EV_MAT), ev_f[ne, 2] float (EV_WEIGHT on node a
+[-], EV_THRESHOLD [K]), ev_out[ne, 2] float (EV_UP, EV_DOWN: first crossing times [s]);
 extra[N_EX] float: EX_HEATER heater power [W], EX_LOSS chamber loss to ambient [W];
 acc[nf + N_EX + 1] float: cumulative energy into each face [J], then heater and loss [J]
 (``nf + EX_*``), then the state time [s] (last).
@@ -137,6 +138,17 @@ EV_WEIGHT, EV_THRESHOLD = range(2)
 EV_UP, EV_DOWN = range(2)
 EX_HEATER, EX_LOSS = range(2)
 N_EX = 2
+
+# ------------------------------------------------------------------ read-out between nodes
+# A temperature read at a point between nodes a and b of one material (a sensor, an event at a
+# depth) inverts the Kirchhoff integral K = int k dT, which is linear at steady state in the
+# geometry coordinate g (x for a slab, ln r for a cylinder, -1/r for a sphere):
+# K(T) = w K(T_a) + (1 - w) K(T_b) with the geometry weight w = (g_b - g) / (g_b - g_a) [-]
+# (CF_SENSOR_W, EV_WEIGHT).  The material column names the material (-1: read linearly in T,
+# exact for a constant k, a node read alone or the chamber).
+CI_SENSOR_MAT = 8          # ctl_i: material of the sensor's link (uses a spare slot of N_CI)
+EV_MAT = 2                 # ev_i: material of the event's link
+N_EVI = 3                  # columns of ev_i
 
 #: Names of the System attributes the kernels take, in their argument order.
 SYSTEM_ARRAYS = ("node_i", "node_f", "chains", "face_i", "face_f", "hpar", "m_off", "mtab",

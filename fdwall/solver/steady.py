@@ -15,15 +15,12 @@ from ..errors import ConvergenceError
 from ..system import System, build_system
 from . import native as K
 from .layout import (
-    CF_SENSOR_W,
     CHI_AMBIENT,
     CI_DUTY,
     CI_ENABLE,
     CI_HEATER_NODE,
     CI_MODE,
     CI_POWER,
-    CI_SENSOR_A,
-    CI_SENSOR_B,
     CI_SETPOINT,
     CTL_DUTY_AVERAGED,
     CTL_DUTY_SWITCHED,
@@ -40,6 +37,7 @@ from .layout import (
     N_STATS,
     system_args,
 )
+from .readout import sensor_temperature
 
 __all__ = ["solve_steady", "SteadyResult"]
 
@@ -256,15 +254,13 @@ def solve_steady(case, t=None, system=None, guess=None, tol=1e-9) -> SteadyResul
         return SteadyResult(sysm, T, qf, hc, hr, ex[EX_HEATER], ex[EX_LOSS], duty, True, it, t)
     # controlled: find u in [0, 1] holding the sensor at the setpoint
     sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_SETPOINT], t, 0.0)
-    w = sysm.ctl_f[CF_SENSOR_W]
-    a, b = sysm.ctl_i[CI_SENSOR_A], sysm.ctl_i[CI_SENSOR_B]
     cache = {}
 
     def gap(u):
         sol = _solve(sysm, t, u, cache.get("T", T0), tol)
         cache["T"] = sol[0]
         cache[u] = sol
-        return w * sol[0][a] + (1 - w) * sol[0][b] - sp
+        return sensor_temperature(sysm, sol[0]) - sp
 
     g1 = gap(1.0)
     if g1 < 0:

@@ -20,11 +20,8 @@ from ..system import build_system, event_rows  # noqa: F401  (event_rows: re-exp
 from . import native as K
 from .accuracy import checked_run
 from .layout import (
-    CF_SENSOR_W,
     CI_HEATER_NODE,
     CI_MODE,
-    CI_SENSOR_A,
-    CI_SENSOR_B,
     CI_SETPOINT,
     CTL_DUTY_AVERAGED,
     CTL_THERMOSTAT,
@@ -35,6 +32,7 @@ from .layout import (
     system_args,
 )
 from .observers import CHUNK_SECONDS, ProgressBar, RunProgress, Stop
+from .readout import sensor_temperature
 
 __all__ = ["run", "run_once", "output_times", "event_rows", "ConvergenceError", "Interrupted"]
 
@@ -327,8 +325,7 @@ def _initial_u(sysm, T):
     if mode == CTL_DUTY_AVERAGED:
         return -1.0
     if mode == CTL_THERMOSTAT:
-        w = sysm.ctl_f[CF_SENSOR_W]
-        y = w * T[sysm.ctl_i[CI_SENSOR_A]] + (1 - w) * T[sysm.ctl_i[CI_SENSOR_B]]
+        y = sensor_temperature(sysm, T)
         sp = K.sched_eval(sysm.s_off, sysm.stab, sysm.ctl_i[CI_SETPOINT], 0.0, 0.0)
         return 1.0 if y < sp else 0.0
     return 0.0
