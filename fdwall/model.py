@@ -704,8 +704,10 @@ class RunSettings:
         Spacing of stored outputs [s] (default duration/200).
     snapshots : tuple of float
         Times at which temperature profiles are plotted [s].
-    tolerance : float
-        Local error tolerance per step [K].
+    tolerance : float, optional
+        Local error tolerance per step [K].  Left out (None), the case derives it from the
+        accuracy contract (:func:`contract_tolerance`, :mod:`fdwall.solver.accuracy`):
+        1e-4 of the scale of temperature change of the case, between 0.001 K and 0.05 K.
     max_step : float, optional
         Upper limit on the time step [s].
     watch : tuple of Event
@@ -724,17 +726,20 @@ class RunSettings:
     start_temperature: object = 293.15
     output_every: Optional[float] = None
     snapshots: tuple = ()
-    tolerance: float = 0.01
+    tolerance: Optional[float] = None
     max_step: Optional[float] = None
     watch: tuple = ()
     exact_outputs: bool = False
     steady_at: Optional[float] = None
+    #: True when ``tolerance`` was derived by the case from the contract (not given).
+    tolerance_derived: bool = False
 
     def __post_init__(self):
         _pos("duration", self.duration)
         if self.output_every is not None:
             _pos("output interval", self.output_every)
-        _pos("tolerance", self.tolerance)
+        if self.tolerance is not None:
+            _pos("tolerance", self.tolerance)
         if self.max_step is not None:
             _pos("max step", self.max_step)
         init = np.asarray(self.start_temperature, dtype=float)
@@ -785,6 +790,10 @@ class Case:
                 and self.chamber is None:
             raise ModelError("a chamber sensor needs a chamber; use sensor = 'wall' for a single wall")
         check_references(self)
+        if self.run.tolerance is None or self.run.tolerance_derived:
+            # no tolerance given: derive it from the accuracy contract (frozen: set once here)
+            object.__setattr__(self, "run", replace(self.run, tolerance=contract_tolerance(self),
+                                                    tolerance_derived=True))
 
     @property
     def is_enclosure(self) -> bool:
@@ -795,3 +804,90 @@ class Case:
     def wall_list(self):
         """All walls of the case, in order [Wall]."""
         return [self.wall] if self.wall is not None else [w.wall for w in self.walls]
+
+
+# ---- default time tolerance from the accuracy contract (fdwall.solver.accuracy) -----------
+TOLERANCE_FRACTION = 1e-4
+"""Default local error tolerance per step as a fraction of the case's scale of temperature
+change [-] (:func:`contract_tolerance`)."""
+TOLERANCE_RANGE = (1e-3, 0.05)
+"""Bounds of the derived default tolerance [K]: the upper one is the contract's absolute floor
+(0.05 K), which the first outputs of a run are held to."""
+
+
+def _values(s):
+    """The values of a schedule or a number, as floats (none for None)."""
+    if s is None:
+        return []
+    if isinstance(s, Schedule):
+        return [float(v) for v in s.values]
+    return [float(s)]
+
+
+def temperature_scale(case) -> float:
+    """Scale of temperature change of ``case`` [K], estimated before any run.
+
+    The largest of: the distance of every imposed temperature (fixed face, fluid,
+    surroundings, room, setpoint) from the start temperature, and for every flux and heater
+    the rise it drives: q min(R, 2 sqrt(t_end / pi) / e), with q the largest flux [W/m2]
+    (a heater's power over the face it heats), R the wall's resistance [m2K/W] and e the
+    effusivity sqrt(k rho cp) of the face layer at 500 K [W s^0.5/m2/K] (the semi-infinite
+    solid under a constant flux, Carslaw & Jaeger 1959, 2.9, capped by the steady rise).
+    At least 1 K.
+    """
+    T0 = np.asarray(case.run.start_temperature, dtype=float).ravel()
+    t0lo, t0hi = float(T0.min()), float(T0.max())
+    if case.is_enclosure:
+        faces = [ew.outer for ew in case.walls]
+        walls = [ew.wall for ew in case.walls]
+    else:
+        faces = [case.inner, case.outer]
+        walls = [case.wall]
+    temps = []
+    for f in faces:
+        for s in (f.fixed_temperature, f.fluid_temperature, f.surroundings_temperature):
+            temps += _values(s)
+    if case.chamber is not None:
+        temps += _values(case.chamber.room_temperature)
+    if case.heater is not None and case.control.setpoint is not None:
+        temps += _values(case.control.setpoint)
+    scale = max([1.0] + [max(abs(v - t0lo), abs(v - t0hi)) for v in temps])
+    dur = float(case.run.duration)
+
+    def rise(q, wall, layer):
+        if q <= 0.0:
+            return 0.0
+        R = sum(l.thickness / max(float(np.interp(500.0, *l.material.tables()[:2])), 1e-12)
+                for l in wall.layers)
+        m = wall.layers[layer].material
+        T, k, cp = m.tables()
+        e = np.sqrt(float(np.interp(500.0, T, k)) * float(np.interp(500.0, T, cp)) * m.rho)
+        return q * min(R, 2.0 * np.sqrt(dur / np.pi) / max(e, 1e-12))
+
+    for j, w in enumerate(walls):
+        if not case.is_enclosure:
+            scale = max(scale, rise(max([0.0] + [abs(v) for v in _values(case.inner.flux)]), w, 0),
+                        rise(max([0.0] + [abs(v) for v in _values(case.outer.flux)]), w, -1))
+        else:
+            scale = max(scale, rise(max([0.0] + [abs(v) for v in _values(faces[j].flux)]), w, -1))
+    hz = case.heater
+    if hz is not None:
+        P = max([0.0] + [abs(v) for v in _values(hz.power)]) * hz.voltage_ratio ** 2
+        if hz.location == "chamber":
+            area = sum(w.inner_area for w in walls)
+            scale = max(scale, max(rise(P / area, w, 0) for w in walls))
+        else:
+            w = walls[hz.wall] if 0 <= hz.wall < len(walls) else walls[0]
+            scale = max(scale, rise(P / w.inner_area, w, 0))
+    return float(scale)
+
+
+def contract_tolerance(case) -> float:
+    """Default local error tolerance per step [K] of ``case``, derived from the accuracy
+    contract of :mod:`fdwall.solver.accuracy` (every output within 0.5 % of the largest change
+    so far, or 0.05 K): :data:`TOLERANCE_FRACTION` times :func:`temperature_scale`, within
+    :data:`TOLERANCE_RANGE`.  On the references of tests/test_accuracy_contract.py the global
+    time error of TR-BDF2 stays below this local tolerance, so it spends at most 0.02 % of the
+    scale (and 0.05 K) of the contract's budget."""
+    lo, hi = TOLERANCE_RANGE
+    return float(min(hi, max(lo, TOLERANCE_FRACTION * temperature_scale(case))))

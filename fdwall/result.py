@@ -92,6 +92,8 @@ class Result:
     wall_time: float = 0.0
     steady: object = None
     control_state: object = None
+    #: Spatial error estimate and contract margin (fdwall.solver.accuracy); None: not made.
+    error_estimate: object = None
 
     #: Path of the HDF5 file that backs the result (:class:`FileResult`); None: in memory.
     store = None
@@ -345,6 +347,8 @@ class Result:
             out["chamber_max_K"] = float(np.max(self.chamber_T))
         if self.steady is not None:
             out["steady"] = self.steady.summary()
+        if self.error_estimate is not None:
+            out["error_estimate"] = _plain(self.error_estimate)
         return out
 
     # ----------------------------------------------------------------- notebooks
@@ -433,6 +437,11 @@ class Result:
                 "<table><thead><tr><th>face</th><th>final T [degC]</th>"
                 "<th>max T [degC]</th><th>final heat flow into wall [W]</th></tr></thead>"
                 f"<tbody>{rows}</tbody></table></div>")
+
+    def _write_error_estimate(self, h):
+        """Write ``/error_estimate`` when the run carries one."""
+        if self.error_estimate is not None:
+            _write_error_estimate_group(h, self.error_estimate)
 
     def write_hdf5(self, path) -> str:
         """Write the run to ``path`` atomically (a temporary file renamed when complete)."""
@@ -523,6 +532,7 @@ class Result:
         sg = h.create_group("solver")
         for k, v in self.stats.items():
             sg.attrs[k] = v
+        self._write_error_estimate(h)
         if self.steady is not None:
             stg = h.create_group("steady")
             ds(stg, "temperature", self.steady.T, "K")
@@ -726,6 +736,34 @@ def _strip_to(h, keep) -> None:
             elif p not in keep:
                 del g[name]
     walk(h, "")
+
+def _plain(v):
+    """A JSON-ready copy of the error estimate (NaN becomes None)."""
+    if isinstance(v, dict):
+        return {k: _plain(x) for k, x in v.items()}
+    if isinstance(v, (list, tuple)):
+        return [_plain(x) for x in v]
+    if isinstance(v, float) and not np.isfinite(v):
+        return None
+    return v
+
+
+def _write_error_estimate_group(h, est):
+    """The attribute group ``/error_estimate`` of a run file (see
+    :mod:`fdwall.solver.accuracy` and docs/results.md): numbers and flags as attributes,
+    ``cells``, ``points`` and ``notes`` as JSON text."""
+    g = h.require_group("error_estimate")
+    estimated = est.get("meets_contract") is not None
+    g.attrs["estimated"] = bool(estimated)
+    g.attrs["meets_contract"] = bool(est.get("meets_contract") or False)
+    for k in ("method",):
+        g.attrs[k] = str(est.get(k, ""))
+    for k in ("order", "refinements", "extra_runs"):
+        g.attrs[k] = int(est.get(k, 0))
+    for k in ("max_error_K", "margin", "flow_margin", "extra_wall_time_s"):
+        g.attrs[k] = float(est.get(k, float("nan")))
+    for k in ("cells", "points", "notes"):
+        g.attrs[k] = json.dumps(_plain(est.get(k, [])))
 
 
 def resolved_inputs(case) -> dict:

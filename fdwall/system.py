@@ -12,7 +12,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from .compiled import entry
-from .mesh import cell_counts, mesh_wall, shape_key
+from .mesh import cell_counts, mesh_wall, problem_grading, shape_key
 from .model import Case, Face, ModelError, interface_problem
 from .physics.air import rho_cp
 from .physics.convection import PAR_LEN
@@ -210,6 +210,7 @@ class System:
     area_factor: float = 1.0                          # box edge/corner factor applied [-]
     shape_keys: list = field(default_factory=list)    # mesh.shape_key of each solved wall
     mesh_reused: list = field(default_factory=list)   # True where the mesh came from like=
+    grading: object = None                            # fdwall.mesh.MeshGrading of the meshes
 
     def chain_of(self, case_wall: int) -> int:
         """Index of the solved wall (clear path) for case wall ``case_wall``."""
@@ -407,16 +408,17 @@ def _chains_of(case: Case):
     return out
 
 
-def _meshes(walls, like):
-    """(meshes, shape keys, reused flags) of the solved walls; a wall whose shape key equals
-    that of the same solved wall of ``like`` takes its mesh."""
+def _meshes(walls, like, grading=None):
+    """(meshes, shape keys, reused flags) of the solved walls, graded by ``grading`` (a
+    :class:`fdwall.mesh.MeshGrading`); a wall whose shape key equals that of the same solved
+    wall of ``like`` takes its mesh."""
     meshes, keys, reused = [], [], []
     old = like.shape_keys if like is not None else []
     for j, w in enumerate(walls):
-        cells = cell_counts(w)
-        key = shape_key(w, cells)
+        cells = cell_counts(w, grading)
+        key = shape_key(w, cells, grading)
         same = j < len(old) and old[j] == key and len(like.meshes) == len(old)
-        meshes.append(like.meshes[j] if same else mesh_wall(w, cells))
+        meshes.append(like.meshes[j] if same else mesh_wall(w, cells, grading))
         keys.append(key)
         reused.append(same)
     return meshes, keys, reused
@@ -447,7 +449,8 @@ def build_system(case: Case, like: System | None = None) -> System:
     tb = _Tables()
     specs = _chains_of(case)
     walls = [s[0] for s in specs]
-    meshes, keys, reused = _meshes(walls, like)
+    grading = problem_grading(case)     # the mesh is chosen from the problem (fdwall.mesh)
+    meshes, keys, reused = _meshes(walls, like, grading)
     offsets = list(np.cumsum([0] + [m.n for m in meshes])[:-1])
     N = int(sum(m.n for m in meshes))
     node_i = np.zeros((N, N_NI), dtype=np.int64)
@@ -578,7 +581,8 @@ def build_system(case: Case, like: System | None = None) -> System:
                   face_names=names, external=np.array(external), layer_of_half=layer_of_half,
                   layer_names=layer_names, layer_wall=layer_wall, walls=walls,
                   wall_origin=[sp[1] for sp in specs], is_bridge=[sp[3] for sp in specs],
-                  area_factor=box_area_factor(case), shape_keys=keys, mesh_reused=reused)
+                  area_factor=box_area_factor(case), shape_keys=keys, mesh_reused=reused,
+                  grading=grading)
 
 
 def _mode_code(ctl) -> int:

@@ -174,7 +174,9 @@ def test_sobol_study_on_a_steady_wall(tmp_path):
     got = {i: (s1, stt) for i, s1, stt in zip(sens["input"], sens["sobol_S1"],
                                                sens["sobol_ST"])}
     # density does not enter the steady state: both indices exactly zero (Incropera eq. 2.21)
-    assert got["materials.demo-board.density"] == (0.0, 0.0)
+    # (zero to round-off: the problem-graded mesh follows the diffusivity, so the density moves
+    # the nodes, and the steady state is exact on any mesh; fdwall.mesh)
+    assert got["materials.demo-board.density"] == pytest.approx((0.0, 0.0), abs=1e-12)
     # the only input that matters carries all the variance (S1 = ST = 1 up to sampling)
     assert got["wall.layers[0].conductivity_factor"][1] == pytest.approx(1.0, abs=0.1)
     assert u["summary"]["outer_T_top_input"] == "wall.layers[0].conductivity_factor"

@@ -139,7 +139,10 @@ def convergence_check(case, result, *, factor: float = DEFAULT_FACTOR,
                                  "which a refined mesh cannot take over"}
     t0 = time.perf_counter()
     try:
-        fine = _run(refined_case(case, factor, tol_factor), progress=progress, strict=False)
+        # the run may have refined its mesh itself (fdwall.solver.accuracy): refine its case
+        fine = _run(refined_case(result.case or case, factor, tol_factor), progress=progress,
+                    strict=False,
+                    estimate=False)
     except Exception as exc:  # a failed check must never lose the run itself
         return {**out, "status": f"not computed: the refined rerun failed ({exc})"}
     out["wall_time_s"] = time.perf_counter() - t0

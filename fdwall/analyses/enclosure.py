@@ -650,7 +650,7 @@ def periodic_state(case: Case, period: float, tol_K: float = 0.5, max_cycles: in
     first = last = None
     converged = False
     for n in range(1, int(max_cycles) + 1):
-        res = run(cyc_case, initial=T0, system=sysm)
+        res = run(cyc_case, initial=T0, system=sysm, estimate=False)
         T1 = res.T[-1].copy()
         change = float(np.max(np.abs(T1[free] - T0[free]))) if np.any(free) else 0.0
         eb = energy_breakdown(res)
@@ -820,7 +820,7 @@ def size_heater(case: Case, warm_up_limit: float, setpoint=None, band: float = 0
         s = replace(sysm, case=c, ctl_f=f)
         if P_ref <= 0:
             s = build_system(c)
-        r = run(c, system=s)
+        r = run(c, system=s, estimate=False)
         Tc, tt = r.chamber_T, r.times
         peak = float(np.max(Tc))
         ok = peak >= target

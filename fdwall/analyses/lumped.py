@@ -946,7 +946,7 @@ def _simulate(case, power, duration, n_points, initial=None, progress=False):
     T_amb = _ambient(case, sysm0, 0.0)
     T_start = T_amb if initial is None else float(initial)
     c2 = _driven_case(case, tp, pp, duration, T_start, int(n_points))
-    res = run_transient(c2, progress=progress)
+    res = run_transient(c2, progress=progress, estimate=False)
     T = res.chamber_T if res.system.has_chamber else res.face_T[:, 0]
     return c2, res, np.asarray(res.times, dtype=float), np.asarray(T, dtype=float), tp, pp, T_amb
 

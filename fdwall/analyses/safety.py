@@ -436,7 +436,7 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
     n_out = 400
     case = replace(probe, run=RunSettings(duration=t_c, output_every=t_c / n_out,
                                           tolerance=0.002, start_temperature=T0))
-    res = solver.run(case, initial=T0, system=sysm, strict=False, progress=False)
+    res = solver.run(case, initial=T0, system=sysm, strict=False, progress=False, estimate=False)
     iface = m.interface_nodes
     j_surf = iface[nw - 1]
     if contact_resistance > 0:

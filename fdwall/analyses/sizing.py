@@ -573,7 +573,7 @@ class _Evaluator:
             # is a failed variant, not a fatal error: that thickness fails every transient
             # target, and the answer's warnings name it
             try:
-                r, why = run_case(c, progress=False), None
+                r, why = run_case(c, progress=False, estimate=False), None
             except ConvergenceError as exc:      # an interrupt (Interrupted) still stops
                 r, why = None, str(exc)
             self.runs += 1

@@ -230,7 +230,7 @@ def variant_row(base: dict, edits: dict, name: str, outputs=DEFAULT_OUTPUTS,
             if "loss_W" in outputs:
                 row["loss_W"] = float(-sum(ss.face_flow[f] for f in outer))
         if any(OUTPUT_INFO[k][0] == "transient" for k in outputs):
-            res = run(case, system=system, progress=False)
+            res = run(case, system=system, progress=False, estimate=False)
             skin = np.max(res.face_T[:, outer], axis=1)
             peak = float(skin.max())
             if "peak_skin_T_K" in outputs:

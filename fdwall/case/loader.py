@@ -332,7 +332,7 @@ class _Loader:
                                 key=join(run.key("snapshots"), i),
                                 allowed="times between 0 and the duration")
         self._check_outputs(run, duration, out_every, len(snaps))
-        tol = run.quantity("tolerance", "temperature_difference", 0.01, positive=True)
+        tol = run.quantity("tolerance", "temperature_difference", None, positive=True)  # None: from the contract
         max_step = run.quantity("max_step", "time", None, positive=True)
         steady_at = run.quantity("steady_at", "time", None, nonnegative=True)
         if steady_at is not None and steady_at > duration:

@@ -34,7 +34,7 @@ RUN = {
     "start_temperature": 'uniform start temperature, e.g. "20 degC" (default 20 degC)',
     "output_every": 'spacing of stored results, e.g. "5 min" (default duration/200)',
     "snapshots": 'times of stored temperature profiles, e.g. ["1 h", "3 h"]',
-    "tolerance": 'local error tolerance per step, e.g. "0.01 K" (default)',
+    "tolerance": 'local error tolerance per step, e.g. "0.01 K" (default: derived from the accuracy contract, 0.001 to 0.05 K)',
     "max_step": 'upper limit of the time step, e.g. "60 s"',
     "steady_at": 'time whose conditions define the reported steady state, e.g. "5 h" (default: end)',
     "watch": "array [[run.watch]]: temperature crossings to report",

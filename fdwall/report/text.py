@@ -347,10 +347,41 @@ def format_summary(result) -> str:
              f"tolerance {s.get('tolerance_K', 0.0):.3g} K; {s.get('nodes', 0)} unknowns; "
              f"wall-clock {s.get('wall_time_s', 0.0):.2f} s")
 
+    L += _accuracy_lines(result)
     if result.steady is not None:
         L += _steady_lines(result.steady, case, "Steady state (boundary conditions at t = "
                            f"{fmt_time(result.steady.time)})")
     return "\n".join(L) + "\n"
+
+
+def _accuracy_lines(result) -> list:
+    """The "Accuracy" section: the spatial error estimate and the contract margin
+    (:mod:`fdwall.solver.accuracy`); nothing when the run made no estimate."""
+    est = getattr(result, "error_estimate", None)
+    if est is None:
+        return []
+    L = _heading("Accuracy (spatial error estimate)")
+    ok = est.get("meets_contract")
+    if ok is None:
+        L.append("  not estimated")
+    else:
+        L.append(_wrap(f"contract: every temperature within max(0.5 % of its largest change so "
+                       f"far, 0.05 K) of the converged answer -- "
+                       f"{'met' if ok else 'NOT met'} (margin {est['margin']:.2f}: the largest "
+                       f"estimated error over its allowance; at most 1 meets it)"))
+        L.append(_wrap(f"largest estimated error {est['max_error_K']:.3g} K; cells per layer "
+                       + "; ".join(", ".join(str(c) for c in w) for w in est.get("cells", []))
+                       + f"; refined {est.get('refinements', 0)} time(s); "
+                       f"{est.get('extra_runs', 0)} extra run(s), "
+                       f"{est.get('extra_wall_time_s', 0.0):.2f} s"))
+        rows = [(p["point"], f"{p['max_error_K']:.3g}", fmt_time(p["at_s"]), f"{p['margin']:.2f}")
+                for p in est.get("points", [])]
+        if rows:
+            L += _table(("point", "est. error", "worst at", "margin"), ("", "K", "", "-"), rows)
+    for n in est.get("notes", []):
+        L.append(textwrap.fill(n, WIDTH, initial_indent="  - ", subsequent_indent="    ",
+                               break_long_words=False, break_on_hyphens=False))
+    return L
 
 
 def _enclosure_lines(result) -> list:

@@ -10,6 +10,7 @@ so the numbers do not depend on the chunks.
 """
 from __future__ import annotations
 
+import os
 import time as _time
 
 import numpy as np
@@ -19,6 +20,7 @@ from ..model import Case, ModelError
 from ..result import FileResult, Result, series_view, stream_series
 from ..system import build_system, event_rows  # noqa: F401  (event_rows: re-exported)
 from . import native as K
+from .accuracy import checked_run
 from .layout import (
     CI_HEATER_NODE,
     CI_MODE,
@@ -43,7 +45,7 @@ from .observers import (
 )
 from .readout import sensor_temperature
 
-__all__ = ["run", "output_times", "event_rows", "ConvergenceError", "Interrupted"]
+__all__ = ["run", "run_once", "output_times", "event_rows", "ConvergenceError", "Interrupted"]
 
 FIRST_CHUNK_STEPS = 16
 """Time steps of the first chunk of a run [-]; later chunks adapt to ``chunk_seconds``."""
@@ -64,8 +66,34 @@ def output_times(case: Case) -> np.ndarray:
 
 
 def run(case, initial=None, progress=None, strict=True, system=None, control_state=None,
-        observers=None, chunk_seconds=CHUNK_SECONDS, store=None, window_bytes=WINDOW_BYTES):
-    """Run a transient case.
+        observers=None, chunk_seconds=CHUNK_SECONDS, store=None, window_bytes=WINDOW_BYTES,
+        estimate=True):
+    """Run a transient case, with its spatial error estimated and the mesh refined until the
+    accuracy contract is met (:mod:`fdwall.solver.accuracy`).
+
+    Parameters are those of :func:`run_once`, plus ``estimate`` (bool): True (default)
+    estimates the spatial error of the run by a second run on half the cells and refines the
+    mesh (doubling the cells) until the estimate meets the contract; the reported
+    :class:`fdwall.result.Result` carries it as ``error_estimate``.  False runs the case once
+    on its mesh (for runs inside analyses: sizing loops, studies, fits), and
+    ``error_estimate`` is None.  With a ``store``, the first run streams to it; the estimate's
+    extra runs are held in memory, and a refined run replaces the stored one (a path store is
+    rewritten with it; an open :class:`StorageObserver` is left for the caller to discard).
+    """
+    kw = dict(initial=initial, progress=progress, strict=strict, control_state=control_state,
+              observers=observers, chunk_seconds=chunk_seconds, store=store,
+              window_bytes=window_bytes)
+    if not estimate:
+        return run_once(case, system=system, **kw)
+    res = checked_run(run_once, case, system, kw)
+    if isinstance(store, (str, os.PathLike)):
+        res.write_hdf5(store)   # the file carries the estimate (and a refined run, if any)
+    return res
+
+
+def run_once(case, initial=None, progress=None, strict=True, system=None, control_state=None,
+             observers=None, chunk_seconds=CHUNK_SECONDS, store=None, window_bytes=WINDOW_BYTES):
+    """Run a transient case once, on the mesh of ``system`` (or of ``case``).
 
     Parameters
     ----------

@@ -1,0 +1,333 @@
+"""Accuracy by default: the contract, the spatial error estimate and automatic refinement.
+
+The accuracy contract
+---------------------
+At default settings (no layer ``cells``, no ``tolerance`` given), **every reported temperature
+is within max(0.5 % of the largest change seen so far at that point, 0.05 K) of the converged
+answer, at every output**, including the first outputs after a step in a boundary condition
+(a heater flux, a face, fluid or surroundings temperature, a heater power), for slabs,
+cylinders and spheres, hollow or solid.  "The largest change seen so far" at a point and an
+output time t is max over the outputs up to t of |T(t') - T(0)| at that point.  Heat flows
+and energies are held to the matching relative accuracy (0.5 % of the largest flow seen so
+far at that face).  Under on/off control (a thermostat, or a switched duty or PID
+controller) the contract is judged on cycle means (temperatures averaged over a few cycles)
+and switching times, not output by output: a switching instant that moves by a fraction of
+a cycle changes the temperature at an output near it by a finite amount however fine the
+mesh.
+
+How it is met
+-------------
+1. The mesh is chosen from the problem (:mod:`fdwall.mesh`): cells graded towards every face
+   and interface to a fraction of the penetration depth over the shortest time that matters
+   (the first output interval, the time from each step in a boundary schedule to the next
+   output), floored at :data:`fdwall.mesh.TIME_FLOOR`; a cell Biot number below 0.5 at faces
+   with a fixed strong film coefficient.
+2. The default time tolerance follows the contract (:func:`fdwall.model.contract_tolerance`:
+   1e-4 of the case's scale of temperature change, 0.001 K to 0.05 K).
+3. Every run estimates its own spatial error (:func:`estimate`): the case is run a second
+   time on the coarse mesh made of every other node (half the cells, same grading: the
+   meshes are nested, so faces and interfaces are nodes of both), and Richardson
+   extrapolation with order p = 2 (the scheme's order, checked in
+   tests/test_verify_convergence.py) gives the error of the reported (fine) run,
+   ``|T_fine - T_coarse| / (r^p - 1)``, r = 2, at every output time, at every face, every
+   interface and the chamber node.  The estimate is compared with the contract's allowance
+   output by output; its ratio is the *contract margin* (at most 1: met).
+4. When the margin exceeds 1 the cells are doubled (the same grading map on twice the
+   cells, so the previous run becomes the coarse one) and the run repeated, up to
+   :data:`MAX_ROUNDS` doublings and the loader's caps on cells and stored values, and while
+   each doubling at least halves the margin (:data:`STALL_RATIO`: otherwise the error left is
+   not spatial); the estimate then says why it stopped.  A layer with its own ``cells`` is never refined (the
+   estimate is still made and reported, with a note).
+
+Runs done inside analyses (sizing loops, studies, fits) may skip all of this with
+``run(case, estimate=False)``; the command-line ``run`` always reports it.  The estimate of a
+run that stopped early, or that starts from a given per-node profile (whose coarse twin does
+not exist), is skipped with a note.
+
+The estimate is reported as ``Result.error_estimate`` (a dict, keys below), in the text
+summary, in the JSON summary under ``"error_estimate"`` and in the HDF5 file as the attribute
+group ``/error_estimate`` (one subgroup per point).
+
+Keys of ``Result.error_estimate``: ``method``, ``order``, ``refinements`` (doublings made),
+``cells`` (per solved wall, per layer), ``max_error_K``, ``margin`` (largest estimate over
+allowance), ``meets_contract`` (bool or None when not estimated), ``flow_margin`` (the same
+for the face heat flows), ``points`` (a list of dicts: ``point``, ``max_error_K``,
+``at_s``, ``margin``), ``notes`` (list of text), ``extra_runs`` and ``extra_wall_time_s``.
+"""
+from __future__ import annotations
+
+import time as _time
+from dataclasses import replace
+
+import numpy as np
+
+from ..case.loader import MAX_LAYER_CELLS, MAX_STORED, MAX_WALL_CELLS
+from ..errors import InternalError
+from ..mesh import TIME_FLOOR, cell_counts
+from ..system import build_system
+from .layout import CI_HEATER_NODE, CI_MODE, CTL_DUTY_SWITCHED, CTL_PID_SWITCHED, CTL_THERMOSTAT
+from .observers import InterruptCheck
+
+__all__ = ["checked_run", "estimate", "allowance", "refined_case", "CONTRACT_FRACTION",
+           "CONTRACT_FLOOR_K", "ORDER", "MAX_ROUNDS", "STALL_RATIO"]
+
+CONTRACT_FRACTION = 0.005
+"""Relative part of the contract: 0.5 % of the largest change seen so far [-]."""
+CONTRACT_FLOOR_K = 0.05
+"""Absolute floor of the contract [K]."""
+ORDER = 2
+"""Order of convergence in space used for Richardson extrapolation [-] (vertex-centred finite
+volumes, second order; measured in tests/test_verify_convergence.py)."""
+MAX_ROUNDS = 3
+"""Largest number of cell doublings of the automatic refinement [-] (8 times the cells)."""
+STALL_RATIO = 0.5
+"""Refinement stops when a doubling leaves the margin above this fraction of the previous one
+[-] (a spatial error of order 2 falls to a quarter; common practice, no source)."""
+
+
+def allowance(T: np.ndarray) -> np.ndarray:
+    """The contract's allowance [K] for a series ``T`` (n_time, n_points) [K]: at every output,
+    max(0.5 % of the largest |T - T[0]| so far, 0.05 K)."""
+    T = np.asarray(T, dtype=float)
+    change = np.maximum.accumulate(np.abs(T - T[:1]), axis=0)
+    return np.maximum(CONTRACT_FRACTION * change, CONTRACT_FLOOR_K)
+
+
+def _points(res):
+    """(labels, unknown indices) of the points the estimate is made at: every face and
+    interface of every solved wall, and the chamber."""
+    sysm = res.system
+    labels, idx = [], []
+    for j, (w, m) in enumerate(zip(sysm.walls, sysm.meshes)):
+        o = sysm.offsets[j]
+        labels.append(f"{w.name}:inner")
+        idx.append(o)
+        for k, i in enumerate(m.interface_nodes):
+            labels.append(f"{w.name}:interface {k + 1}")
+            idx.append(o + i)
+        labels.append(f"{w.name}:outer")
+        idx.append(o + m.n - 1)
+    if sysm.has_chamber:
+        labels.append("chamber")
+        idx.append(sysm.n_nodes)
+    return labels, np.array(idx, dtype=int)
+
+
+def _switched(res) -> bool:
+    """True when the heater is switched on and off (thermostat, switched duty or PID)."""
+    ci = res.system.ctl_i
+    return bool(ci[CI_HEATER_NODE] >= 0 and ci[CI_MODE] in (CTL_THERMOSTAT, CTL_DUTY_SWITCHED,
+                                                             CTL_PID_SWITCHED))
+
+
+def _cycle_window(res) -> int:
+    """Moving-average window [outputs] over which switched control is judged: at least three
+    outputs, three control periods and three mean switching intervals seen at the outputs."""
+    t = res.times
+    dt = float(np.median(np.diff(t))) if t.size > 1 else 1.0
+    span = 3.0 * float(res.case.control.period or 0.0)
+    on = np.asarray(res.heater_power) > 0.0
+    flips = np.flatnonzero(on[1:] != on[:-1])
+    if flips.size >= 2:
+        span = max(span, 3.0 * float(t[flips[-1]] - t[flips[0]]) / (flips.size - 1) * 2.0)
+    return int(max(3, np.ceil(span / max(dt, 1e-12))))
+
+
+def _smooth(a, n):
+    """Centred moving average of the rows of ``a`` over ``n`` outputs (edges: shorter)."""
+    if n <= 1:
+        return a
+    c = np.cumsum(np.vstack([np.zeros((1,) + a.shape[1:]), a]), axis=0)
+    m = a.shape[0]
+    i = np.arange(m)
+    lo = np.clip(i - n // 2, 0, m)
+    hi = np.clip(i + n // 2 + 1, 0, m)
+    return (c[hi] - c[lo]) / (hi - lo)[:, None]
+
+
+def _total_cells(res):
+    return float(sum(m.n - 1 for m in res.system.meshes))
+
+
+def estimate(fine, coarse) -> dict:
+    """Spatial error estimate [K] of the run ``fine`` from the run ``coarse`` on a mesh with
+    half the cells (nested), by Richardson extrapolation of order :data:`ORDER`.
+
+    Returns the dict stored as ``Result.error_estimate`` (see the module docstring), without
+    the refinement bookkeeping (``refinements``, ``notes``, ``extra_runs`` ...).
+    """
+    labels, i_f = _points(fine)
+    labels_c, i_c = _points(coarse)
+    if labels != labels_c or fine.times.shape != coarse.times.shape:
+        raise InternalError("the coarse run of the error estimate does not match the "
+                            "reported run point for point")
+    r = _total_cells(fine) / max(_total_cells(coarse), 1.0)
+    factor = 1.0 / (r ** ORDER - 1.0)
+    Tf, Tc = fine.T[:, i_f], coarse.T[:, i_c]
+    qf, qc = fine.face_flow, coarse.face_flow
+    switched = _switched(fine)
+    if switched:
+        n = _cycle_window(fine)
+        Tf, Tc, qf, qc = (_smooth(a, n) for a in (Tf, Tc, qf, qc))
+    err = np.abs(Tf - Tc) * factor
+    allow = allowance(fine.T[:, i_f])
+    ratio = err / allow
+    points = []
+    for p, lab in enumerate(labels):
+        k = int(np.argmax(ratio[:, p]))
+        points.append({"point": lab, "max_error_K": float(err[:, p].max()),
+                       "at_s": float(fine.times[k]), "margin": float(ratio[k, p])})
+    qerr = np.abs(qf - qc) * factor
+    qscale = np.maximum.accumulate(np.abs(fine.face_flow), axis=0)
+    qfloor = 1e-6 * max(float(np.abs(fine.face_flow).max()), 1e-30)
+    flow_margin = float((qerr / np.maximum(CONTRACT_FRACTION * qscale, qfloor)).max())
+    margin = float(ratio.max())
+    out = {
+        "method": ("Richardson extrapolation against a run on every other node (half the "
+                   "cells), order 2" + ("; on/off control judged on cycle means" if switched
+                                        else "")),
+        "order": ORDER,
+        "max_error_K": float(err.max()),
+        "margin": margin,
+        "meets_contract": bool(margin <= 1.0),
+        "flow_margin": flow_margin,
+        "points": points,
+    }
+    return out
+
+
+def _walls_of(case):
+    return [case.wall] if not case.is_enclosure else [ew.wall for ew in case.walls]
+
+
+def refined_case(case, factor: float):
+    """A copy of ``case`` with every wall's ``refine`` times ``factor`` [-]."""
+    if not case.is_enclosure:
+        return replace(case, wall=replace(case.wall, refine=case.wall.refine * factor))
+    walls = tuple(replace(ew, wall=replace(ew.wall, refine=ew.wall.refine * factor))
+                  for ew in case.walls)
+    return replace(case, walls=walls)
+
+
+def _own_cells(case) -> list:
+    return [f"{w.name}/{l.label}" for w in _walls_of(case) for l in w.layers
+            if l.cells is not None]
+
+
+def _within_caps(system, n_out):
+    """None when the mesh of ``case`` is within the loader's caps, else the reason (text)."""
+    g = system.grading
+    nodes = 0
+    for w in system.walls:
+        cells = cell_counts(w, g)
+        if max(cells) > MAX_LAYER_CELLS:
+            return (f"a layer of wall '{w.name}' would need {max(cells)} cells, more than "
+                    f"fdwall meshes in one layer ({MAX_LAYER_CELLS})")
+        if sum(cells) > MAX_WALL_CELLS:
+            return (f"wall '{w.name}' would need {sum(cells)} cells, more than fdwall meshes "
+                    f"in one wall ({MAX_WALL_CELLS})")
+        nodes += sum(cells) + len(cells) + 1
+    if n_out * nodes > MAX_STORED:
+        return (f"{n_out} outputs x {nodes} temperatures would exceed the stored values "
+                f"fdwall keeps ({MAX_STORED:g})")
+    return None
+
+
+def _cells_of(res):
+    return [[b - a for a, b in m.layer_nodes] for m in res.system.meshes]
+
+
+def checked_run(run_once, case, system, kw):
+    """Run ``case`` with ``run_once`` (the single-mesh driver), estimate its spatial error and
+    refine until the contract is met (see the module docstring); returns the reported
+    :class:`fdwall.result.Result` with ``error_estimate`` set.
+
+    ``kw`` are the remaining keyword arguments of the driver (``initial``, ``progress``,
+    ``strict``, ``control_state``, ``observers``, ``chunk_seconds``).
+    """
+    fine = run_once(case, system=system, **kw)
+    t0 = _time.perf_counter()
+    notes = []
+    g = fine.system.grading
+    if g is not None and g.floored:
+        notes.append(f"outputs are asked for closer than {TIME_FLOOR:g} s to the start or to a "
+                     f"step in a boundary schedule: the mesh resolves {TIME_FLOOR:g} s, and "
+                     "the contract is not promised at those outputs")
+    info = {"method": "not estimated", "order": ORDER, "refinements": 0,
+            "cells": _cells_of(fine), "max_error_K": float("nan"), "margin": float("nan"),
+            "meets_contract": None, "flow_margin": float("nan"), "points": [],
+            "notes": notes, "extra_runs": 0, "extra_wall_time_s": 0.0}
+    initial = kw.get("initial")
+    if not fine.complete:
+        notes.append(f"the run did not reach its end ({fine.status}): no error estimate")
+        fine.error_estimate = info
+        return fine
+    if initial is not None and np.ndim(initial) > 0:
+        notes.append("the run starts from a profile given node by node, which has no twin "
+                     "on the coarse mesh: no error estimate")
+        fine.error_estimate = info
+        return fine
+    extra = dict(kw)
+    extra.pop("store", None)   # the extra runs are held in memory, never stored
+    extra["progress"] = False
+    extra["strict"] = False
+    # the extra runs are not runs of their own for the caller's observers (no progress, no
+    # start / close calls); an interrupt check among them still stops them
+    extra["observers"] = [w for w in (kw.get("observers") or ()) if isinstance(w, InterruptCheck)]
+    n_runs = 0
+    coarse = run_once(refined_case(case, 0.5), system=None, **extra)
+    n_runs += 1
+    if not coarse.complete:
+        notes.append(f"the coarse run of the estimate did not reach its end ({coarse.status}): "
+                     "no error estimate")
+        info.update(extra_runs=n_runs, extra_wall_time_s=_time.perf_counter() - t0)
+        fine.error_estimate = info
+        return fine
+    est = estimate(fine, coarse)
+    own = _own_cells(case)
+    rounds = 0
+    while not est["meets_contract"]:
+        if own:
+            notes.append("not refined: layer(s) " + ", ".join(own) + " set their own cells "
+                         "(leave cells out to let fdwall choose and refine the mesh)")
+            break
+        if rounds >= MAX_ROUNDS:
+            notes.append(f"not refined further: {MAX_ROUNDS} doublings of the cells made "
+                         "(set a layer's cells, or mesh_refine, to go further)")
+            break
+        f = 2.0 ** (rounds + 1)
+        cand = refined_case(case, f)
+        sysm = build_system(cand)
+        why = _within_caps(sysm, fine.times.size)
+        if why is not None:
+            notes.append(f"not refined further: {why}")
+            break
+        finer = run_once(cand, system=sysm, **extra)
+        n_runs += 1
+        if not finer.complete:
+            notes.append(f"the refined run did not reach its end ({finer.status}): the result "
+                         "on the previous mesh is reported")
+            break
+        prev = est["margin"]
+        est = estimate(finer, fine)
+        fine = finer
+        rounds += 1
+        if not est["meets_contract"] and est["margin"] > STALL_RATIO * prev:
+            notes.append(f"not refined further: doubling the cells took the margin only from "
+                         f"{prev:.3g} to {est['margin']:.3g}, so the error left is not spatial "
+                         "(a loose time tolerance, or on/off control) and more cells cannot "
+                         "remove it")
+            break
+    if rounds:
+        notes.append(f"the mesh was refined automatically: cells doubled {rounds} time(s) to "
+                     "meet the accuracy contract")
+    if not est["meets_contract"]:
+        worst = max(est["points"], key=lambda p: p["margin"])
+        notes.append(f"the accuracy contract is not met: estimated spatial error "
+                     f"{worst['max_error_K']:.3g} K at {worst['point']} "
+                     f"({worst['margin']:.3g} times the allowance at t = {worst['at_s']:.6g} s)")
+    info.update(est)
+    info.update(refinements=rounds, cells=_cells_of(fine), notes=notes, extra_runs=n_runs,
+                extra_wall_time_s=_time.perf_counter() - t0)
+    fine.error_estimate = info
+    return fine
