@@ -102,7 +102,7 @@ def _flux_profile(q, x, t):
 def test_semi_infinite_constant_flux_early_times():
     # 5 kW/m2 on a thick slab (1 h: penetration sqrt(alpha t) = 42 mm of 500 mm: semi-infinite)
     q = 5000.0
-    case = _slab_case(Face(flux=q), 3600.0, 60.0)
+    case = _slab_case(Face(heat_flux=q), 3600.0, 60.0)
     res = run(case, progress=False)
     t = res.times
     exact = np.column_stack([T0 + _flux_surface(q, t)])
@@ -138,7 +138,7 @@ def test_step_in_face_flux_mid_run():
     # superposition of two constant-flux solutions (Carslaw & Jaeger 1959, 2.9)
     t1 = 1800.0
     flux = Schedule([0.0, t1, t1], [2000.0, 2000.0, 6000.0])
-    case = _slab_case(Face(flux=flux), 3600.0, 60.0)
+    case = _slab_case(Face(heat_flux=flux), 3600.0, 60.0)
     res = run(case, progress=False)
     t = res.times
     exact = (T0 + _flux_surface(2000.0, t) + _flux_surface(4000.0, t - t1))[:, None]
@@ -210,7 +210,7 @@ def test_own_cells_are_not_refined_and_say_so():
     # (the contract cannot hold on 8 cells at 60-s outputs: common practice, no source)
     wall = Wall([Layer(SOLID, 0.5, cells=8)], name="coarse")
     case = Case(RunSettings(duration=3600.0, start_temperature=T0, output_every=60.0),
-                wall=wall, inner=Face(flux=5000.0), outer=Face(), name="own-cells")
+                wall=wall, inner=Face(heat_flux=5000.0), outer=Face(), name="own-cells")
     res = run(case, progress=False)
     est = res.error_estimate
     assert est["refinements"] == 0 and est["cells"] == [[8]]
@@ -232,7 +232,7 @@ def test_refinement_doubles_cells_until_the_contract_is_met(monkeypatch):
     monkeypatch.setattr(M, "GROWTH", 1.6)
     monkeypatch.setattr(M, "MID_CELLS_FACTOR", 0.5)
     q = 5000.0
-    case = _slab_case(Face(flux=q), 3600.0, 60.0)
+    case = _slab_case(Face(heat_flux=q), 3600.0, 60.0)
     once = run_once(case, progress=False)
     res = run(case, progress=False)
     est = res.error_estimate
@@ -244,7 +244,7 @@ def test_refinement_doubles_cells_until_the_contract_is_met(monkeypatch):
 
 
 def test_estimate_false_runs_once():
-    case = _slab_case(Face(flux=1000.0), 600.0, 60.0)
+    case = _slab_case(Face(heat_flux=1000.0), 600.0, 60.0)
     res = run(case, progress=False, estimate=False)
     assert res.error_estimate is None
 
@@ -252,7 +252,7 @@ def test_estimate_false_runs_once():
 def test_default_tolerance_follows_the_scale_and_the_users_wins():
     # 5 kW/m2 on the slab for 1 h: scale = q * 2 sqrt(t/pi)/e (Carslaw & Jaeger 2.9) = 339 K,
     # so 1e-4 of it = 0.034 K; a user's tolerance is kept as given
-    case = _slab_case(Face(flux=5000.0), 3600.0, 60.0)
+    case = _slab_case(Face(heat_flux=5000.0), 3600.0, 60.0)
     e = np.sqrt(K_W * RHO * CP)
     scale = 5000.0 * 2 * np.sqrt(3600.0 / np.pi) / e
     assert case.run.tolerance == pytest.approx(1e-4 * scale, rel=1e-9)
@@ -263,6 +263,6 @@ def test_default_tolerance_follows_the_scale_and_the_users_wins():
 
 
 def test_outputs_closer_than_the_floor_are_noted():
-    case = _slab_case(Face(flux=1000.0), 5.0, 0.5)
+    case = _slab_case(Face(heat_flux=1000.0), 5.0, 0.5)
     res = run(case, progress=False)
     assert any("closer than 1 s" in n for n in res.error_estimate["notes"])
