@@ -96,7 +96,7 @@ def _time_schedules(case):
     if case.is_enclosure and case.chamber is not None:
         out.append(case.chamber.room_temperature)
     for f in faces:
-        out += [f.fixed_temperature, f.flux, f.fluid_temperature, f.surroundings_temperature]
+        out += [f.fixed_temperature, f.heat_flux, f.fluid_temperature, f.surroundings_temperature]
     if case.heater is not None:
         out.append(case.heater.power)
     c = case.control
@@ -147,7 +147,7 @@ def problem_grading(case) -> MeshGrading:
     floored = tm < TIME_FLOOR * (1 - 1e-9)
     tm = max(tm, TIME_FLOOR)
     if case.is_enclosure:
-        hi = max([_fixed_h(ew.inner_h) for ew in case.walls] + [0.0])
+        hi = max([_fixed_h(ew.inner_face_convection) for ew in case.walls] + [0.0])
         ho = max([_fixed_h(ew.outer.convection) for ew in case.walls] + [0.0])
     else:
         hi, ho = _fixed_h(case.inner.convection), _fixed_h(case.outer.convection)

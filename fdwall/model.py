@@ -866,14 +866,14 @@ def temperature_scale(case) -> float:
 
     for j, w in enumerate(walls):
         if not case.is_enclosure:
-            scale = max(scale, rise(max([0.0] + [abs(v) for v in _values(case.inner.flux)]), w, 0),
-                        rise(max([0.0] + [abs(v) for v in _values(case.outer.flux)]), w, -1))
+            scale = max(scale, rise(max([0.0] + [abs(v) for v in _values(case.inner.heat_flux)]), w, 0),
+                        rise(max([0.0] + [abs(v) for v in _values(case.outer.heat_flux)]), w, -1))
         else:
-            scale = max(scale, rise(max([0.0] + [abs(v) for v in _values(faces[j].flux)]), w, -1))
+            scale = max(scale, rise(max([0.0] + [abs(v) for v in _values(faces[j].heat_flux)]), w, -1))
     hz = case.heater
     if hz is not None:
         P = max([0.0] + [abs(v) for v in _values(hz.power)]) * hz.voltage_ratio ** 2
-        if hz.location == "chamber":
+        if hz.placement == "chamber":
             area = sum(w.inner_area for w in walls)
             scale = max(scale, max(rise(P / area, w, 0) for w in walls))
         else:
