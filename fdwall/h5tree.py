@@ -27,6 +27,7 @@ from __future__ import annotations
 
 import json
 import os
+import shutil
 from contextlib import contextmanager
 
 import numpy as np
@@ -281,8 +282,6 @@ def add_group(path, name: str, data: dict, *, attrs: dict | None = None) -> str:
     :class:`GuardedFile` and renamed over the original, so a failure (OSError ->
     OutputError) leaves the old file as it was and no temporary file.
     """
-    import shutil
-
     import h5py
     path = os.fspath(path)
     with atomic_path(path, ".h5.part") as tmp:

@@ -7,13 +7,15 @@ from __future__ import annotations
 
 import json
 import os
-from dataclasses import dataclass
+import shutil
+from dataclasses import dataclass, fields
 from datetime import datetime, timezone
 from html import escape
 from importlib.metadata import version
 
 import numpy as np
 
+from .atomic import atomic_path
 from .h5tree import h5_atomic
 from .materials import check_service_temperature
 from .provenance import provenance, stamp_h5
@@ -624,7 +626,6 @@ class FileResult(Result):
         return super().__new__(cls)
 
     def __init__(self, ends: Result, storage):
-        from dataclasses import fields
         self.__dict__["_fields"] = [f.name for f in fields(Result)
                                     if f.name not in _ARRAY_DATASETS]
         for name in self._fields:
@@ -688,11 +689,7 @@ class FileResult(Result):
         """Finish the file (when still open) as ``path``, or write a copy of it to ``path``
         with this result's current attributes (e.g. a steady state set after the run);
         atomically either way."""
-        import shutil
-
         import h5py
-
-        from .atomic import atomic_path
         path = os.fspath(path)
         ends = self._synced()
         st = self._storage
