@@ -1,7 +1,7 @@
 """Results of a run: arrays, derived quantities (stored energy, energy ledger), HDF5 archive.
 
 The HDF5 layout (groups, datasets, attributes, units) and the JSON summary are documented in
-docs/results.md, which tests/test_audit_results.py holds to the files actually written.
+docs/results.md, which tests/test_results_files.py holds to the files actually written.
 """
 from __future__ import annotations
 
