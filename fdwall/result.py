@@ -761,8 +761,8 @@ def _write_error_estimate_group(h, est):
         g.attrs[k] = float(est.get(k, float("nan")))
     for k in ("cells", "points", "notes"):
         g.attrs[k] = json.dumps(_plain(est.get(k, [])))
-    if est.get("switching") is not None:   # on/off control: the first switch-off [s]
-        g.attrs["switching"] = json.dumps(_plain(est["switching"]))
+    # on/off control: the first switch-off [s] and its estimated error; null otherwise
+    g.attrs["switching"] = json.dumps(_plain(est.get("switching")))
 
 
 def resolved_inputs(case) -> dict:
