@@ -119,3 +119,26 @@ def test_first_switch_off_is_estimated_and_matches_the_lumped_solution():
     assert sw["first_switch_off_s"] == pytest.approx(t_off, rel=5e-3)
     assert sw["error_s"] <= max(0.005 * t_off, 1.0) and sw["margin"] <= 1.0
     assert est["margin"] >= sw["margin"]
+
+
+def test_face_flow_of_a_convective_face_meets_the_contract_for_flows():
+    # fluid at 800 K, h = 200 W/m2/K on a thick slab (1 m2): the heat flow into the solid is
+    # h (Tf - Ts) with Ts from Incropera 6th ed. eq. 5.60 at x = 0 (Carslaw & Jaeger 1959,
+    # 2.7 eq. 1): (Ts - Ti)/(Tf - Ti) = 1 - exp(b^2) erfc(b), b = h sqrt(alpha t)/k.
+    # The contract for flows: within max(0.5 % of the largest flow so far at that face, the
+    # flow of the face film for 0.05 K) at every output (fdwall.solver.accuracy)
+    from scipy.special import erfcx
+    h, Tf = 200.0, 800.0
+    wall = Wall([Layer(SOLID, 0.5)], shape="slab", name="thick-slab")
+    case = Case(RunSettings(duration=3600.0, start_temperature=T0, output_every=60.0),
+                wall=wall, inner=Face.exchange(Tf, h), outer=Face(), name="semi-infinite")
+    res = run(case, progress=False)
+    t = res.times[1:]                       # the flow at t = 0 is singular in the exact solution
+    b = h * np.sqrt(ALPHA * t) / K_W
+    Ts = T0 + (Tf - T0) * (1.0 - erfcx(b))
+    q_exact = h * (Tf - Ts)                 # W into the solid through 1 m2
+    q = np.abs(res.face_flow[1:, 0])
+    allow = np.maximum(0.005 * np.maximum.accumulate(q_exact), h * 0.05)
+    assert np.all(np.abs(q - q_exact) <= allow), float((np.abs(q - q_exact) / allow).max())
+    est = res.error_estimate
+    assert est["flow_margin"] <= 1.0 and est["meets_contract"] is True
