@@ -142,3 +142,39 @@ def test_face_flow_of_a_convective_face_meets_the_contract_for_flows():
     assert np.all(np.abs(q - q_exact) <= allow), float((np.abs(q - q_exact) / allow).max())
     est = res.error_estimate
     assert est["flow_margin"] <= 1.0 and est["meets_contract"] is True
+
+
+def test_command_line_warns_when_outputs_are_closer_than_the_mesh_floor(tmp_path, capsys):
+    # the mesh resolves the time floor (fdwall.mesh.TIME_FLOOR, 1 s; common practice, no
+    # source): outputs every 0.5 s are outside the contract, and the run says so
+    import json
+
+    from fdwall import cli
+    case = tmp_path / "fast.toml"
+    case.write_text('''# Invented test case: a plate sampled faster than the mesh floor.
+title = "fast outputs (invented)"
+[run]
+duration = "20 s"
+start_temperature = "20 degC"
+output_every = "0.5 s"
+[wall]
+name = "plate"
+shape = "slab"
+area = "1 m2"
+[[wall.layers]]
+name = "brick"
+material = "fireclay-brick-dense"
+thickness = "100 mm"
+[wall.inner_face]
+fluid_temperature = "400 degC"
+film_coefficient = "10 W/m2/K"
+[wall.outer_face]
+fluid_temperature = "20 degC"
+film_coefficient = "10 W/m2/K"
+''')
+    rc = cli.main(["run", str(case), "--out", str(tmp_path / "out"), "--quiet", "--no-plots"])
+    assert rc == 0
+    err = capsys.readouterr().err
+    assert "warning: outputs are asked for closer than 1 s" in err
+    summary = json.loads((tmp_path / "out" / "fast-summary.json").read_text())
+    assert any(w.startswith("outputs are asked for closer") for w in summary["input_warnings"])
