@@ -304,6 +304,44 @@ def _convergence(data: dict, system: str) -> dict:
             "nodes": conv.get("nodes", ""), "refined_nodes": conv.get("refined_nodes", "")}
 
 
+def _accuracy(data: dict, system: str) -> dict | None:
+    """The run's stored spatial error estimate (``/error_estimate``) as display rows, or None
+    when the file holds none (fdwall.solver.accuracy; docs/accuracy.md)."""
+    est = data.get("error_estimate")
+    if not isinstance(est, dict):
+        return None
+
+    def js(key, default):
+        v = est.get(key)
+        try:
+            return json.loads(v) if isinstance(v, (str, bytes)) else (default if v is None else v)
+        except ValueError:
+            return default
+    estimated = bool(est.get("estimated"))
+    rows = []
+    for p in js("points", []) or []:
+        if isinstance(p, dict):
+            rows.append((p.get("point", ""), *_q(p.get("max_error_K"), "K", system,
+                                                 key="difference"),
+                         " ".join(_q(p.get("at_s"), "s", system)).strip(),
+                         f"{float(p.get('margin', 0.0)):.2f}"))
+    sw = js("switching", None)
+    switching = None
+    if isinstance(sw, dict):
+        switching = (_q(sw.get("first_switch_off_s"), "s", system),
+                     _q(sw.get("error_s"), "s", system, key="difference"),
+                     f"{float(sw.get('margin', 0.0)):.2f}")
+    cells = js("cells", [])
+    return {"estimated": estimated, "meets": bool(est.get("meets_contract")),
+            "method": str(est.get("method", "")),
+            "margin": f"{float(est.get('margin', float('nan'))):.2f}",
+            "flow_margin": f"{float(est.get('flow_margin', float('nan'))):.2f}",
+            "refinements": int(est.get("refinements", 0) or 0),
+            "extra_runs": int(est.get("extra_runs", 0) or 0),
+            "cells": "; ".join(", ".join(str(c) for c in w) for w in cells or []),
+            "rows": rows, "switching": switching, "notes": [str(n) for n in js("notes", []) or []]}
+
+
 def _run_sections(data: dict, system: str) -> dict:
     """Sections of a run result (kind transient/steady), read from its stored groups."""
     out = {}
@@ -379,6 +417,7 @@ def _run_sections(data: dict, system: str) -> dict:
     if steps or meshes:
         out["steps"], out["meshes"] = steps, meshes
         out["convergence"] = _convergence(data, system)
+        out["accuracy"] = _accuracy(data, system)
     out["results"] = _run_results(data, system)
     touch = data.get("touch")
     if isinstance(touch, dict):
