@@ -171,3 +171,44 @@ def test_touch_contact_start_profile_uses_the_kirchhoff_read_out(monkeypatch):
     assert np.max(np.abs(T0[inside] - exact)) < 2e-9
     # the linear read-out it replaces is visibly off here
     assert np.max(np.abs(_linear(ss.x(), ss.wall_T(), x[inside]) - exact)) > 0.5
+
+
+def _steady_run(wall, T1, T2, hours=2.0):
+    """A run that starts at the steady state of ``wall`` between fixed faces, so every output
+    is that steady state (to the solver's round-off)."""
+    from fdwall.solver import run
+    ss = solve_steady(_fixed(wall, T1, T2), tol=1e-11)
+    case = Case(run=RunSettings(duration=hours * 3600.0, output_every=1800.0,
+                                start_temperature=ss.T.copy(), snapshots=(3600.0,)),
+                wall=wall, inner=Face(fixed_temperature=T1), outer=Face(fixed_temperature=T2),
+                name="invented steady pipe")
+    return ss, run(case, progress=False, estimate=False)
+
+
+def test_profile_plot_draws_the_ln_r_and_kT_shape_between_nodes(tmp_path, monkeypatch):
+    # the drawn curve of a steady k(T) cylinder (4 cells) against the closed form (Incropera
+    # eq. 3.26 applied to K(T), Kirchhoff), at every point drawn, nodes and between
+    from fdwall.report import plots
+    r1, t, T1, T2 = 0.03, 0.09, 850.0, 330.0
+    r2 = r1 + t
+    wall = Wall((Layer(FIBRE, t, cells=4),), shape="cylinder", inner_radius=r1, length=1.0,
+                name="pipe")
+    ss, res = _steady_run(wall, T1, T2)
+    figs = []
+    real = plots._save
+    monkeypatch.setattr(plots, "_save", lambda fig, path: (figs.append(fig), real(fig, path))[1])
+    out = plots.plot_profiles(res, tmp_path / "p.png")
+    assert (tmp_path / "p.png").stat().st_size > 0 and out.endswith("p.png")
+    ax = figs[-1].axes[0]
+    curves = [ln for ln in ax.get_lines() if ln.get_label().startswith("t = ")]
+    assert len(curves) == 1
+    d = np.asarray(curves[0].get_xdata()) / 1e3
+    T = np.asarray(curves[0].get_ydata()) + 273.15
+    assert d.size >= 100            # many points between the 5 nodes
+    exact = T_of(K_of(T1) + (K_of(T2) - K_of(T1)) * np.log((r1 + d) / r1) / math.log(r2 / r1))
+    assert np.max(np.abs(T - exact)) < 1e-6
+    # what straight segments between the nodes would have drawn is kelvins off
+    assert np.max(np.abs(_linear(ss.x(), ss.wall_T(), d) - exact)) > 1.0
+    # the nodes are drawn too, on the curve, and stay out of the legend
+    dots = [ln for ln in ax.get_lines() if ln.get_label() == "_nodes"]
+    assert len(dots) == 1 and np.asarray(dots[0].get_xdata()).size == 5
