@@ -212,3 +212,36 @@ def test_profile_plot_draws_the_ln_r_and_kT_shape_between_nodes(tmp_path, monkey
     # the nodes are drawn too, on the curve, and stay out of the legend
     dots = [ln for ln in ax.get_lines() if ln.get_label() == "_nodes"]
     assert len(dots) == 1 and np.asarray(dots[0].get_xdata()).size == 5
+
+
+def test_profile_points_keep_the_step_of_a_contact_resistance():
+    # composite plane wall with a contact resistance R''_tc between the layers (Incropera
+    # 6th ed., sec. 3.1.4): q = (K(T1) - K(Ta)) / L1 = (Ta - Tb) / Rc = kb (Tb - T2) / L2,
+    # solved for q with brentq
+    L1, L2, Rc, T1, T2, kb = 0.05, 0.03, 0.05, 900.0, 320.0, 0.3
+
+    def sides(q):
+        Ta = T_of(K_of(T1) - q * L1)
+        return Ta, Ta - q * Rc
+
+    q = brentq(lambda q: kb * (sides(q)[1] - T2) / L2 - q, 1e-9, (K_of(T1) - K_of(T2)) / L1,
+               xtol=1e-13, rtol=1e-15)
+    Ta, Tb = sides(q)
+    wall = Wall((Layer(FIBRE, L1, cells=4), Layer(BRICK, L2, cells=3)), area=1.0,
+                interface_resistance=(Rc,), name="two with contact")
+    ss = solve_steady(_fixed(wall, T1, T2), tol=1e-11)
+    d, T = profile_points(ss.system, ss.T, 0, per_cell=4)
+    at = np.flatnonzero(np.abs(d - L1) < 1e-12)
+    assert at.size == 2                                   # both sides of the contact
+    assert T[at[0]] == pytest.approx(Ta, abs=1e-8) and T[at[1]] == pytest.approx(Tb, abs=1e-8)
+    assert Ta - Tb > 10.0                                 # a step one can see
+    inner = np.arange(d.size) < at[0]
+    outer = np.arange(d.size) > at[1]
+    assert np.max(np.abs(T[inner] - T_of(K_of(T1) + (K_of(Ta) - K_of(T1)) * d[inner] / L1))) \
+        < 1e-8
+    assert np.max(np.abs(T[outer] - (Tb + (T2 - Tb) * (d[outer] - L1) / L2))) < 1e-8
+    # and from the node samples alone (the interface given twice): the inner side on it
+    dd = np.linspace(0.0, L1 + L2, 161)
+    exact = np.where(dd <= L1, T_of(K_of(T1) + (K_of(Ta) - K_of(T1)) * dd / L1),
+                     Tb + (T2 - Tb) * (dd - L1) / L2)
+    assert np.max(np.abs(read_profile(wall, ss.x(), ss.wall_T(), dd) - exact)) < 1e-8
