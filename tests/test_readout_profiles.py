@@ -245,3 +245,26 @@ def test_profile_points_keep_the_step_of_a_contact_resistance():
     exact = np.where(dd <= L1, T_of(K_of(T1) + (K_of(Ta) - K_of(T1)) * dd / L1),
                      Tb + (T2 - Tb) * (dd - L1) / L2)
     assert np.max(np.abs(read_profile(wall, ss.x(), ss.wall_T(), dd) - exact)) < 1e-8
+
+
+def test_histories_and_array_weights_match_single_reads():
+    # the vectorised forms give what one read at a time gives (the closed-form checks above
+    # tie those to Incropera sec. 3.2); weights of exactly 1 and 0 read their node alone
+    from fdwall.solver.readout import read_between, temperature_at
+    wall = Wall((Layer(FIBRE, 0.08, cells=6),), area=1.0, name="fibre")
+    ss = solve_steady(_fixed(wall, 900.0, 320.0), tol=1e-11)
+    d1, T1 = profile_points(ss.system, ss.T, 0)
+    d3, T3 = profile_points(ss.system, np.vstack([ss.T] * 3), 0)
+    assert np.array_equal(d1, d3) and T3.shape == (3, d1.size)
+    assert np.all(T3 == T1)
+    one = [float(temperature_at(ss.system, ss.T, 0, d)) for d in d1]
+    assert np.max(np.abs(np.array(one) - T1)) < 1e-12
+    sysm = ss.system
+    w = np.array([1.0, 0.0, 0.3, 0.7])
+    got = read_between(np.full(4, 900.0), np.full(4, 320.0), w, 0, sysm.m_off, sysm.mtab)
+    assert got[0] == 900.0 and got[1] == 320.0
+    for i in (2, 3):
+        assert got[i] == pytest.approx(float(read_between(900.0, 320.0, w[i], 0, sysm.m_off,
+                                                          sysm.mtab)), abs=1e-12)
+        assert got[i] == pytest.approx(T_of(w[i] * K_of(900.0) + (1 - w[i]) * K_of(320.0)),
+                                       abs=1e-9)
