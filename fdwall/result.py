@@ -96,6 +96,9 @@ class Result:
     control_state: object = None
     #: Spatial error estimate and contract margin (fdwall.solver.accuracy); None: not made.
     error_estimate: object = None
+    #: The enclosure analysis of the run (fdwall.analyses.summarise_enclosure, steady hold
+    #: included), set by the caller that made it; the text summary shows it. None: not made.
+    enclosure: object = None
 
     #: Path of the HDF5 file that backs the result (:class:`FileResult`); None: in memory.
     store = None
@@ -761,8 +764,8 @@ def _write_error_estimate_group(h, est):
         g.attrs[k] = float(est.get(k, float("nan")))
     for k in ("cells", "points", "notes"):
         g.attrs[k] = json.dumps(_plain(est.get(k, [])))
-    if est.get("switching") is not None:   # on/off control: the first switch-off [s]
-        g.attrs["switching"] = json.dumps(_plain(est["switching"]))
+    # on/off control: the first switch-off [s] and its estimated error; null otherwise
+    g.attrs["switching"] = json.dumps(_plain(est.get("switching")))
 
 
 def resolved_inputs(case) -> dict:

@@ -19,8 +19,17 @@ import numpy as np
 import pytest
 
 from fdwall.materials import Constant, Material
-from fdwall.model import (Case, Chamber, Control, EnclosureWall, Face, Heater, Layer,
-                          RunSettings, Wall)
+from fdwall.model import (
+    Case,
+    Chamber,
+    Control,
+    EnclosureWall,
+    Face,
+    Heater,
+    Layer,
+    RunSettings,
+    Wall,
+)
 from fdwall.solver.transient import run
 
 T0 = 300.0

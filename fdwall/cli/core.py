@@ -140,6 +140,11 @@ def _write_run(args, flag, case, warns, system, stem, outdir, progress, result) 
     if args.json:
         print(_dumps(summary))
     elif not quiet:
+        if case.is_enclosure and not interrupted:   # the text's "Heating" section
+            try:
+                result.enclosure = summarise_enclosure(result, steady=True)
+            except Exception as exc:  # analyses must never lose the run's own results
+                result.enclosure = str(exc)
         print(format_summary(result), end="")
         print("\nFiles written:")
         for f in files:
