@@ -90,6 +90,10 @@ def _write_run(args, flag, case, warns, system, stem, outdir, progress, result) 
     quiet = args.quiet
     interrupted = result.status == "interrupted"
     reached = float(result.stats.get("reached_s", result.times[-1]))
+    for note in (result.error_estimate or {}).get("notes", []):
+        if note.startswith("outputs are asked for closer than"):   # the mesh's time floor
+            warns = list(warns) + [note]
+            _warn(note)
     if interrupted:
         name = SIGNAL_NAMES.get(flag.signal, "a signal")
         _error(f"interrupted ({name}): the run of '{args.case}' stopped at t = {reached:.6g} s "
