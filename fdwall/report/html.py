@@ -17,6 +17,7 @@ from .. import atomic
 from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
 from ..errors import InputError
 from ..h5tree import SUFFIX_UNITS, read_tree, unit_of
+from ..units import power_law_unit_power
 from . import units as _units
 
 __all__ = ["write_report", "render_report", "KINDS"]
@@ -42,6 +43,19 @@ def _units_suffixes():
     return SUFFIX_UNITS.keys()
 
 
+def _sibling_unit(d: dict, k: str):
+    """(unit, exponent) a number ``k`` (or its ``<k>_stderr``) takes from a ``<k>_unit`` text
+    beside it (a power-law coefficient, whose unit depends on its exponent n, stored beside it
+    as ``exponent``), or ('', None)."""
+    base = k[:-len("_stderr")] if k.endswith("_stderr") else k
+    u = d.get(f"{base}_unit")
+    if not isinstance(u, str) or power_law_unit_power(u) is None:
+        return "", None
+    n = d.get("exponent")
+    n = float(n) if isinstance(n, (int, float, np.integer, np.floating)) else None
+    return u, n
+
+
 def _scalar_rows(d: dict, system: str):
     rows = []
     for k, v in d.items():
@@ -50,7 +64,16 @@ def _scalar_rows(d: dict, system: str):
                 rows.append((f"{k}.{name}", val, u))
             continue
         u = unit_of(k)
-        if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool) and u:
+        su, n = _sibling_unit(d, k)
+        if k.endswith("_unit") and k[:-len("_unit")] in d and su == "" and \
+                power_law_unit_power(str(v)) is not None:
+            continue   # shown as the unit of its number
+        if su and isinstance(v, (int, float, np.integer, np.floating)) and \
+                not isinstance(v, bool):
+            conv, label = _units.display(float(v), su, system, key=k, exponent=n)
+            rows.append((k, _fmt(float(conv)), label))
+        elif isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool) \
+                and u:
             conv, label = _units.display(float(v), u, system, key=k)
             rows.append((_strip(k, u), _fmt(float(conv)), label))
         elif isinstance(v, np.ndarray) and v.dtype.kind in "fi" and u:
@@ -136,13 +159,14 @@ def _images(h5_path: Path, created: str = ""):
     return out, stale
 
 
-def _q(value, unit, system, key=""):
-    """One stored number as (text, display unit label); '' for a missing value."""
+def _q(value, unit, system, key="", exponent=None):
+    """One stored number as (text, display unit label); '' for a missing value.
+    ``exponent``: the exact n [-] of a power-law coefficient (see :func:`_units.display`)."""
     if value is None or (isinstance(value, float) and not np.isfinite(value)):
         return "", ""
     if not unit:
         return _fmt(value), ""
-    conv, label = _units.display(float(value), unit, system, key=key)
+    conv, label = _units.display(float(value), unit, system, key=key, exponent=exponent)
     return _fmt(float(conv)), label
 
 
@@ -165,6 +189,9 @@ def _notes(data: dict, system: str) -> dict:
     if not isinstance(rd, dict) or "inputs" not in rd:
         return {"status": _NOT_STORED}
     resolved = []
+    # the exact exponent of a power-law coefficient: the exponent row of the same section
+    expo = {r.get("section", ""): _num(r.get("value")) for r in rd.get("inputs") or []
+            if isinstance(r, dict) and r.get("quantity") == "power-law exponent n"}
     for r in rd.get("inputs") or []:
         if not isinstance(r, dict):
             continue
@@ -173,9 +200,10 @@ def _notes(data: dict, system: str) -> dict:
             resolved.append((r.get("section", ""), r.get("quantity", ""), r.get("text", ""), ""))
             continue
         key = r.get("quantity", "")
-        txt, lab = _q(v, u, system, key=key)
+        n = expo.get(r.get("section", "")) if power_law_unit_power(u) is not None else None
+        txt, lab = _q(v, u, system, key=key, exponent=n)
         if hi is not None:
-            txt = f"{txt} .. {_q(hi, u, system, key=key)[0]}"
+            txt = f"{txt} .. {_q(hi, u, system, key=key, exponent=n)[0]}"
         if r.get("text"):
             txt = f"{txt} ({r['text']})"
         resolved.append((r.get("section", ""), key, txt, lab or "-"))
