@@ -178,3 +178,20 @@ film_coefficient = "10 W/m2/K"
     assert "warning: outputs are asked for closer than 1 s" in err
     summary = json.loads((tmp_path / "out" / "fast-summary.json").read_text())
     assert any(w.startswith("outputs are asked for closer") for w in summary["input_warnings"])
+
+
+def test_a_start_profile_given_node_by_node_runs_and_says_why_there_is_no_estimate():
+    # a node-by-node start profile has no twin on the coarse mesh: the run is reported with
+    # a note and no estimate.  A linear start profile between two fixed face temperatures is
+    # the steady solution of a constant-k slab (Incropera sec. 3.1), so it must stay put.
+    from fdwall import build_system
+    wall = Wall([Layer(SOLID, 0.1)], shape="slab", name="slab")
+    faces = dict(inner=Face(fixed_temperature=350.0), outer=Face(fixed_temperature=300.0))
+    flat = Case(RunSettings(duration=3600.0, start_temperature=T0), wall=wall, **faces)
+    x = build_system(flat).meshes[0].x
+    start = 350.0 - 50.0 * x / 0.1
+    case = Case(RunSettings(duration=3600.0, start_temperature=start), wall=wall, **faces)
+    res = run(case, progress=False)
+    assert res.complete and res.error_estimate["meets_contract"] is None
+    assert any("node by node" in n for n in res.error_estimate["notes"])
+    np.testing.assert_allclose(res.T[-1], start, atol=1e-6)

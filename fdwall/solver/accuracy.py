@@ -453,7 +453,8 @@ def _checked(run_once, case, system, kw, path, own):
         notes.append(f"the run did not reach its end ({fine.status}): no error estimate")
         fine.error_estimate = info
         return fine
-    if initial is not None and np.ndim(initial) > 0:
+    if ((initial is not None and np.ndim(initial) > 0)
+            or (initial is None and np.ndim(case.run.start_temperature) > 0)):
         notes.append("the run starts from a profile given node by node, which has no twin "
                      "on the coarse mesh: no error estimate")
         fine.error_estimate = info
