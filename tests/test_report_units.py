@@ -63,3 +63,16 @@ def test_unchanged_units_and_temperatures():
     assert float(v) == pytest.approx(U.Quantity(10.0, "delta_degC").to("delta_degF")
                                      .magnitude)
     assert "difference" in label
+
+
+def test_standard_error_takes_its_numbers_unit_as_a_difference():
+    # a standard error of a temperature is a temperature difference: 0.5 K = 0.9 delta_degF
+    # (pint); the number itself is an absolute temperature, 300 K = 80.33 degF
+    from fdwall.report import html as rhtml
+    rows = {r[0]: r[1:] for r in rhtml._scalar_rows({"T0_K": 300.0, "T0_K_stderr": 0.5}, "us")}
+    ureg = pint.UnitRegistry()
+    assert float(rows["T0_K_stderr"][0]) == pytest.approx(
+        ureg.Quantity(0.5, "delta_degC").to("delta_degF").magnitude)
+    assert "difference" in rows["T0_K_stderr"][1]
+    assert float(rows["T0"][0]) == pytest.approx(
+        ureg.Quantity(300.0, "kelvin").to("degF").magnitude, abs=0.01)

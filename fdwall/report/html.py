@@ -64,6 +64,8 @@ def _scalar_rows(d: dict, system: str):
                 rows.append((f"{k}.{name}", val, u))
             continue
         u = unit_of(k)
+        if not u and k.endswith("_stderr"):   # a standard error takes its number's unit
+            u = unit_of(k[:-len("_stderr")])
         su, n = _sibling_unit(d, k)
         if k.endswith("_unit") and k[:-len("_unit")] in d and su == "" and \
                 power_law_unit_power(str(v)) is not None:
