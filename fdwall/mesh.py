@@ -35,6 +35,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.interpolate import PchipInterpolator
 
+from .model import _base_cells, default_cells  # noqa: F401  (the wall's own scale; re-exported)
 from .schedule import Schedule
 
 __all__ = ["WallMesh", "MeshGrading", "mesh_wall", "default_cells", "cell_counts", "shape_key",
@@ -214,51 +215,6 @@ class WallMesh:
     def n(self) -> int:
         """Number of nodes."""
         return int(self.x.size)
-
-
-def _props_500(m):
-    """Conductivity [W/m/K] and volumetric heat capacity [J/m3/K] at 500 K, cached per material."""
-    v = m.__dict__.get("_props_500")
-    if v is None:
-        T, k, cp = m.tables()
-        v = (float(np.interp(500.0, T, k)), float(np.interp(500.0, T, cp)) * m.rho)
-        object.__setattr__(m, "_props_500", v)   # materials are immutable
-    return v
-
-
-def _base_cells(wall) -> list:
-    """Cell count per layer before the wall's ``refine`` [-] (see :func:`default_cells`)."""
-    got = wall.__dict__.get("_base_cells")
-    if got is not None:
-        return list(got)
-    res, tau = [], []
-    for l in wall.layers:
-        k5, c5 = _props_500(l.material)
-        res.append(l.thickness / k5)
-        tau.append(l.thickness ** 2 * c5 / k5)
-    res, tau = np.array(res), np.array(tau)
-    share = np.sqrt(np.maximum(res / res.max(), tau / tau.max()))
-    cells = np.clip(np.round(4 + 16 * share), 2, 24).astype(int)
-    cells[(res / res.max() < 1e-3) & (tau / tau.max() < 1e-3)] = 2
-    out = tuple(int(c) for c in cells)
-    object.__setattr__(wall, "_base_cells", out)   # walls and materials are immutable
-    return list(out)
-
-
-def default_cells(wall) -> list:
-    """Cell count per layer of the wall's own scale [-], times its ``refine``.
-
-    Based on each layer's thermal resistance share and diffusion time: the layers that
-    carry the temperature drop and store heat get 8 to 24 cells; a thin conductive skin gets 2.
-    These set the largest mid-layer cell of a problem-graded mesh (:func:`graded_fractions`),
-    which adds cells towards the layer ends.
-    """
-    got = wall.__dict__.get("_default_cells")
-    if got is not None:
-        return list(got)
-    out = [int(np.ceil(c * wall.refine)) for c in _base_cells(wall)]
-    object.__setattr__(wall, "_default_cells", tuple(out))   # walls and materials are immutable
-    return out
 
 
 def _alpha_k_min(m):

@@ -891,3 +891,50 @@ def contract_tolerance(case) -> float:
     scale (and 0.05 K) of the contract's budget."""
     lo, hi = TOLERANCE_RANGE
     return float(min(hi, max(lo, TOLERANCE_FRACTION * temperature_scale(case))))
+
+
+# --- the wall's own scale of cells (the mesh starts from it; the loader caps it) ---------
+
+def _props_500(m):
+    """Conductivity [W/m/K] and volumetric heat capacity [J/m3/K] at 500 K, cached per material."""
+    v = m.__dict__.get("_props_500")
+    if v is None:
+        T, k, cp = m.tables()
+        v = (float(np.interp(500.0, T, k)), float(np.interp(500.0, T, cp)) * m.rho)
+        object.__setattr__(m, "_props_500", v)   # materials are immutable
+    return v
+
+
+def _base_cells(wall) -> list:
+    """Cell count per layer before the wall's ``refine`` [-] (see :func:`default_cells`)."""
+    got = wall.__dict__.get("_base_cells")
+    if got is not None:
+        return list(got)
+    res, tau = [], []
+    for l in wall.layers:
+        k5, c5 = _props_500(l.material)
+        res.append(l.thickness / k5)
+        tau.append(l.thickness ** 2 * c5 / k5)
+    res, tau = np.array(res), np.array(tau)
+    share = np.sqrt(np.maximum(res / res.max(), tau / tau.max()))
+    cells = np.clip(np.round(4 + 16 * share), 2, 24).astype(int)
+    cells[(res / res.max() < 1e-3) & (tau / tau.max() < 1e-3)] = 2
+    out = tuple(int(c) for c in cells)
+    object.__setattr__(wall, "_base_cells", out)   # walls and materials are immutable
+    return list(out)
+
+
+def default_cells(wall) -> list:
+    """Cell count per layer of the wall's own scale [-], times its ``refine``.
+
+    Based on each layer's thermal resistance share and diffusion time: the layers that
+    carry the temperature drop and store heat get 8 to 24 cells; a thin conductive skin gets 2.
+    These set the largest mid-layer cell of a problem-graded mesh (:func:`graded_fractions`),
+    which adds cells towards the layer ends.
+    """
+    got = wall.__dict__.get("_default_cells")
+    if got is not None:
+        return list(got)
+    out = [int(np.ceil(c * wall.refine)) for c in _base_cells(wall)]
+    object.__setattr__(wall, "_default_cells", tuple(out))   # walls and materials are immutable
+    return out

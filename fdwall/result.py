@@ -1,7 +1,7 @@
 """Results of a run: arrays, derived quantities (stored energy, energy ledger), HDF5 archive.
 
 The HDF5 layout (groups, datasets, attributes, units) and the JSON summary are documented in
-docs/results.md, which tests/test_audit_results.py holds to the files actually written.
+docs/results.md, which tests/test_results_files.py holds to the files actually written.
 """
 from __future__ import annotations
 
@@ -761,6 +761,8 @@ def _write_error_estimate_group(h, est):
         g.attrs[k] = float(est.get(k, float("nan")))
     for k in ("cells", "points", "notes"):
         g.attrs[k] = json.dumps(_plain(est.get(k, [])))
+    # on/off control: the first switch-off [s] and its estimated error; null otherwise
+    g.attrs["switching"] = json.dumps(_plain(est.get("switching")))
 
 
 def resolved_inputs(case) -> dict:

@@ -312,8 +312,10 @@ def test_heater_placement_face_flux_and_watch_spot_names_and_results():
     # the old names read in the old vocabulary, with a warning
     with pytest.warns(DeprecationWarning, match="Heater.location is deprecated"):
         assert new.heater.location == "interface"
-    with pytest.warns(DeprecationWarning, match="Heater placement 'inner' is deprecated"):
+    with pytest.warns(DeprecationWarning) as both:   # the old keyword and its old value
         assert Heater(100.0, location="inner").placement == "inner_face"
+    said = " ".join(str(w.message) for w in both)
+    assert "Heater placement 'inner' is deprecated" in said and "Heater.location" in said
     with pytest.warns(DeprecationWarning):
         assert Heater(100.0, placement="inner_face").location == "inner"
     # steady interface temperature (Incropera ch. 3, parallel resistances to the same air):

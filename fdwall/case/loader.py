@@ -43,6 +43,7 @@ from ..model import (
     RunSettings,
     Wall,
     chamber_watch_problem,
+    default_cells,
     depth_problem,
     interface_problem,
 )
@@ -588,7 +589,6 @@ class _Loader:
 
     def _check_mesh(self, sec, wall, lsecs):
         """Refuse meshes too large to hold in memory; count the wall's nodes."""
-        from ..mesh import default_cells
         refine = wall.refine
         cells = [int(math.ceil(l.cells * refine)) if l.cells is not None else c
                  for l, c in zip(wall.layers, default_cells(wall))]

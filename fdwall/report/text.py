@@ -378,6 +378,11 @@ def _accuracy_lines(result) -> list:
                 for p in est.get("points", [])]
         if rows:
             L += _table(("point", "est. error", "worst at", "margin"), ("", "K", "", "-"), rows)
+        sw = est.get("switching")
+        if sw is not None:
+            L.append(_wrap(f"on/off control: first switch-off at {fmt_time(sw['first_switch_off_s'])}"
+                           f", estimated error {sw['error_s']:.3g} s (margin {sw['margin']:.2f}; "
+                           "allowed max(0.5 % of its time, 1 s))"))
     for n in est.get("notes", []):
         L.append(textwrap.fill(n, WIDTH, initial_indent="  - ", subsequent_indent="    ",
                                break_long_words=False, break_on_hyphens=False))

@@ -39,6 +39,13 @@ How it is met
    not spatial); the estimate then says why it stopped.  A layer with its own ``cells`` is never refined (the
    estimate is still made and reported, with a note).
 
+Under on/off control the estimate also covers the heater's first switch-off (the end of
+the warm-up), read from the heater energy at the outputs on both meshes and allowed
+max(0.5 % of its time, 1 s); it is reported as ``switching`` (``first_switch_off_s``,
+``error_s``, ``margin``) and counts in the margin.  A streamed run's estimate reads both runs
+from their files a block of rows at a time, and its extra runs stream too, so memory stays
+bounded by the output window.
+
 Runs done inside analyses (sizing loops, studies, fits) may skip all of this with
 ``run(case, estimate=False)``; the command-line ``run`` always reports it.  The estimate of a
 run that stopped early, or that starts from a given per-node profile (whose coarse twin does
@@ -56,6 +63,7 @@ for the face heat flows), ``points`` (a list of dicts: ``point``, ``max_error_K`
 """
 from __future__ import annotations
 
+import os
 import time as _time
 from dataclasses import replace
 
@@ -64,9 +72,10 @@ import numpy as np
 from ..case.loader import MAX_LAYER_CELLS, MAX_STORED, MAX_WALL_CELLS
 from ..errors import InternalError
 from ..mesh import TIME_FLOOR, cell_counts
+from ..result import _ARRAY_DATASETS, FileResult
 from ..system import build_system
 from .layout import CI_HEATER_NODE, CI_MODE, CTL_DUTY_SWITCHED, CTL_PID_SWITCHED, CTL_THERMOSTAT
-from .observers import InterruptCheck
+from .observers import InterruptCheck, StorageObserver
 
 __all__ = ["checked_run", "estimate", "allowance", "refined_case", "CONTRACT_FRACTION",
            "CONTRACT_FLOOR_K", "ORDER", "MAX_ROUNDS", "STALL_RATIO"]
@@ -120,16 +129,78 @@ def _switched(res) -> bool:
                                                              CTL_PID_SWITCHED))
 
 
-def _cycle_window(res) -> int:
+class _Series:
+    """Rows of a run's series, read a block at a time: from memory for a :class:`Result`,
+    from its file for a :class:`FileResult` (so the estimate of a streamed run holds a block
+    of rows, not the history).  ``block`` rows [-] depend on the node count only, so an
+    in-memory and a streamed run give the same estimate to the last digit."""
+
+    def __init__(self, res, block_rows):
+        self.res = res
+        self.block = int(block_rows)
+        self._h = None
+        self._own = False
+        if isinstance(res, FileResult):
+            st = res._storage
+            if st.pending:
+                self._h = st.h
+            else:
+                import h5py
+                self._h = h5py.File(st.path, "r")
+                self._own = True
+        self.n = int(res.n_outputs if isinstance(res, FileResult) else res.times.size)
+
+    def close(self):
+        if self._own and self._h is not None:
+            self._h.close()
+        self._h = None
+
+    def rows(self, attr, a, b, cols=None):
+        """Rows ``a:b`` of the series ``attr`` (``T``, ``face_flow``, ``heater_power``,
+        ``heater_energy``), columns ``cols`` (all when None)."""
+        if self._h is None or attr in self.res._cache:
+            x = getattr(self.res, attr)[a:b]
+        else:
+            x = self._h[_ARRAY_DATASETS[attr]][a:b]
+        x = np.asarray(x, dtype=float)
+        return x if cols is None else x[:, cols]
+
+    def blocks(self, halo=0):
+        """(a, b, lo, hi): the block ``a:b`` and the rows ``lo:hi`` read for it (``halo``
+        rows more on each side, clipped to the run)."""
+        for a in range(0, self.n, self.block):
+            b = min(a + self.block, self.n)
+            yield a, b, max(0, a - halo), min(self.n, b + halo)
+
+
+def _block_rows(res) -> int:
+    """Rows per block of the estimate [-]: about 1 MB of a temperature row block."""
+    return max(64, (1 << 17) // max(int(res.system.n_unknowns), 1))
+
+
+def _cycle_window(res, series) -> int:
     """Moving-average window [outputs] over which switched control is judged: at least three
     outputs, three control periods and three mean switching intervals seen at the outputs."""
     t = res.times
     dt = float(np.median(np.diff(t))) if t.size > 1 else 1.0
     span = 3.0 * float(res.case.control.period or 0.0)
-    on = np.asarray(res.heater_power) > 0.0
-    flips = np.flatnonzero(on[1:] != on[:-1])
-    if flips.size >= 2:
-        span = max(span, 3.0 * float(t[flips[-1]] - t[flips[0]]) / (flips.size - 1) * 2.0)
+    n_flips, first, last, prev = 0, None, None, None
+    for a, b, _, _ in series.blocks():
+        on = series.rows("heater_power", a, b) > 0.0
+        on = on.reshape(on.shape[0], -1)[:, 0]
+        if prev is not None:
+            on = np.concatenate([[prev], on])
+            base = a - 1
+        else:
+            base = a
+        f = np.flatnonzero(on[1:] != on[:-1]) + base
+        if f.size:
+            first = int(f[0]) if first is None else first
+            last = int(f[-1])
+            n_flips += f.size
+        prev = on[-1]
+    if n_flips >= 2:
+        span = max(span, 3.0 * float(t[last] - t[first]) / (n_flips - 1) * 2.0)
     return int(max(3, np.ceil(span / max(dt, 1e-12))))
 
 
@@ -145,6 +216,35 @@ def _smooth(a, n):
     return (c[hi] - c[lo]) / (hi - lo)[:, None]
 
 
+def _first_switch_off(res, series):
+    """Time [s] of the heater's first switch-off under on/off control, from the heater energy
+    at the outputs (the heater is at full power until then: the switch-off lies where the
+    energy first falls behind the full-power line), or None when it never switches off.
+    Accurate when at most one switching falls in the output interval holding it."""
+    t = res.times
+    p_on, prev = 0.0, None
+    for a, b, _, _ in series.blocks():
+        P = series.rows("heater_power", a, b).reshape(b - a, -1)[:, 0]
+        p_on = max(p_on, float(P.max(initial=0.0)))
+    if p_on <= 0.0:
+        return None
+    for a, b, _, _ in series.blocks():
+        E = series.rows("heater_energy", a, b).reshape(b - a, -1)[:, 0]
+        P = series.rows("heater_power", a, b).reshape(b - a, -1)[:, 0]
+        if prev is not None:
+            E, P, base = np.concatenate([[prev[0]], E]), np.concatenate([[prev[1]], P]), a - 1
+        else:
+            base = a
+        off = np.flatnonzero(P[1:] < p_on * (1.0 - 1e-9))
+        if off.size:
+            k = int(off[0])
+            dE = float(E[k + 1] - E[k])
+            t0, t1 = float(t[base + k]), float(t[base + k + 1])
+            return min(t1, t0 + max(dE, 0.0) / p_on)
+        prev = (E[-1], P[-1])
+    return None
+
+
 def _total_cells(res):
     return float(sum(m.n - 1 for m in res.system.meshes))
 
@@ -153,8 +253,12 @@ def estimate(fine, coarse) -> dict:
     """Spatial error estimate [K] of the run ``fine`` from the run ``coarse`` on a mesh with
     half the cells (nested), by Richardson extrapolation of order :data:`ORDER`.
 
-    Returns the dict stored as ``Result.error_estimate`` (see the module docstring), without
-    the refinement bookkeeping (``refinements``, ``notes``, ``extra_runs`` ...).
+    Either run may be held in memory or streamed to a file; the estimate reads them a block
+    of rows at a time.  Under on/off control the temperatures and flows are judged on their
+    moving averages over a few cycles, and the heater's first switch-off (the end of the
+    warm-up) is estimated too, allowed max(0.5 % of its time, 1 s).  Returns the dict stored
+    as ``Result.error_estimate`` (see the module docstring), without the refinement
+    bookkeeping (``refinements``, ``notes``, ``extra_runs`` ...).
     """
     labels, i_f = _points(fine)
     labels_c, i_c = _points(coarse)
@@ -163,36 +267,83 @@ def estimate(fine, coarse) -> dict:
                             "reported run point for point")
     r = _total_cells(fine) / max(_total_cells(coarse), 1.0)
     factor = 1.0 / (r ** ORDER - 1.0)
-    Tf, Tc = fine.T[:, i_f], coarse.T[:, i_c]
-    qf, qc = fine.face_flow, coarse.face_flow
+    rows = _block_rows(fine)
+    sf, sc = _Series(fine, rows), _Series(coarse, rows)
+    try:
+        return _estimate(fine, labels, i_f, i_c, factor, sf, sc)
+    finally:
+        sf.close()
+        sc.close()
+
+
+def _estimate(fine, labels, i_f, i_c, factor, sf, sc) -> dict:
     switched = _switched(fine)
-    if switched:
-        n = _cycle_window(fine)
-        Tf, Tc, qf, qc = (_smooth(a, n) for a in (Tf, Tc, qf, qc))
-    err = np.abs(Tf - Tc) * factor
-    allow = allowance(fine.T[:, i_f])
-    ratio = err / allow
-    points = []
-    for p, lab in enumerate(labels):
-        k = int(np.argmax(ratio[:, p]))
-        points.append({"point": lab, "max_error_K": float(err[:, p].max()),
-                       "at_s": float(fine.times[k]), "margin": float(ratio[k, p])})
-    qerr = np.abs(qf - qc) * factor
-    qscale = np.maximum.accumulate(np.abs(fine.face_flow), axis=0)
-    qfloor = 1e-6 * max(float(np.abs(fine.face_flow).max()), 1e-30)
-    flow_margin = float((qerr / np.maximum(CONTRACT_FRACTION * qscale, qfloor)).max())
-    margin = float(ratio.max())
+    n = _cycle_window(fine, sf) if switched else 1
+    halo = n // 2 + 1 if switched else 0
+    npt = len(labels)
+    # pass 1: the largest face flow of the run (the floor of the flows' allowance)
+    qmax = 0.0
+    for a, b, _, _ in sf.blocks():
+        qmax = max(qmax, float(np.abs(sf.rows("face_flow", a, b)).max(initial=0.0)))
+    qfloor = 1e-6 * max(qmax, 1e-30)
+    # pass 2: the estimate block by block, the running largest changes carried along
+    T0 = sf.rows("T", 0, 1, i_f)[0]
+    chg = np.zeros(npt)
+    qchg = None
+    err_max = np.zeros(npt)
+    best = np.full(npt, -1.0)
+    best_t = np.zeros(npt)
+    flow_margin = 0.0
+    times = fine.times
+    for a, b, lo, hi in sf.blocks(halo):
+        Tf_raw = sf.rows("T", lo, hi, i_f)
+        Tf, Tc = Tf_raw, sc.rows("T", lo, hi, i_c)
+        qf, qc = sf.rows("face_flow", lo, hi), sc.rows("face_flow", lo, hi)
+        if switched:
+            Tf, Tc, qf, qc = (_smooth(x, n) for x in (Tf, Tc, qf, qc))
+        s = slice(a - lo, b - lo)
+        err = np.abs(Tf[s] - Tc[s]) * factor
+        c = np.maximum(np.maximum.accumulate(np.abs(Tf_raw[s] - T0), axis=0), chg)
+        chg = c[-1]
+        ratio = err / np.maximum(CONTRACT_FRACTION * c, CONTRACT_FLOOR_K)
+        err_max = np.maximum(err_max, err.max(axis=0))
+        k = np.argmax(ratio, axis=0)
+        rk = ratio[k, np.arange(npt)]
+        better = rk > best
+        best = np.where(better, rk, best)
+        best_t = np.where(better, times[a + k], best_t)
+        qerr = np.abs(qf[s] - qc[s]) * factor
+        qa = np.abs(sf.rows("face_flow", a, b))
+        qs = np.maximum.accumulate(qa, axis=0)
+        if qchg is not None:
+            qs = np.maximum(qs, qchg)
+        qchg = qs[-1]
+        if qerr.size:
+            flow_margin = max(flow_margin, float(
+                (qerr / np.maximum(CONTRACT_FRACTION * qs, qfloor)).max()))
+    points = [{"point": lab, "max_error_K": float(err_max[p]), "at_s": float(best_t[p]),
+               "margin": float(best[p])} for p, lab in enumerate(labels)]
+    margin = float(best.max()) if npt else 0.0
     out = {
         "method": ("Richardson extrapolation against a run on every other node (half the "
-                   "cells), order 2" + ("; on/off control judged on cycle means" if switched
-                                        else "")),
+                   "cells), order 2" + ("; on/off control judged on cycle means and the "
+                                        "first switch-off" if switched else "")),
         "order": ORDER,
-        "max_error_K": float(err.max()),
+        "max_error_K": float(err_max.max()) if npt else 0.0,
         "margin": margin,
         "meets_contract": bool(margin <= 1.0),
         "flow_margin": flow_margin,
         "points": points,
     }
+    if switched:
+        tf, tc = _first_switch_off(fine, sf), _first_switch_off(sc.res, sc)
+        if tf is not None and tc is not None:
+            terr = abs(tf - tc) * factor
+            tm = terr / max(CONTRACT_FRACTION * tf, TIME_FLOOR)
+            out["switching"] = {"first_switch_off_s": tf, "error_s": terr, "margin": tm}
+            if tm > margin:
+                out["margin"] = tm
+                out["meets_contract"] = bool(tm <= 1.0)
     return out
 
 
@@ -237,14 +388,39 @@ def _cells_of(res):
     return [[b - a for a, b in m.layer_nodes] for m in res.system.meshes]
 
 
+def _store_path(store):
+    """Final path of the caller's store [str], or None for a run held in memory."""
+    if store is None:
+        return None
+    return store.path if isinstance(store, StorageObserver) else os.fspath(store)
+
+
 def checked_run(run_once, case, system, kw):
     """Run ``case`` with ``run_once`` (the single-mesh driver), estimate its spatial error and
     refine until the contract is met (see the module docstring); returns the reported
     :class:`fdwall.result.Result` with ``error_estimate`` set.
 
     ``kw`` are the remaining keyword arguments of the driver (``initial``, ``progress``,
-    ``strict``, ``control_state``, ``observers``, ``chunk_seconds``).
+    ``strict``, ``control_state``, ``observers``, ``chunk_seconds``, ``store``,
+    ``window_bytes``).  When the run streams to a file (``store``), the extra runs stream
+    too (the coarse one to a temporary file in the same folder, removed after; a refined one
+    to a temporary file that becomes the store when the caller finishes it), so memory stays
+    bounded by the output window whatever the run's length.
     """
+    path = _store_path(kw.get("store"))
+    own = []        # temporary stores of the extra runs (all removed unless reported)
+    keep = None
+    try:
+        fine = _checked(run_once, case, system, kw, path, own)
+        keep = fine._storage if isinstance(fine, FileResult) else None
+        return fine
+    finally:
+        for st in own:
+            if st is not keep and st.pending:
+                st.abort()
+
+
+def _checked(run_once, case, system, kw, path, own):
     fine = run_once(case, system=system, **kw)
     t0 = _time.perf_counter()
     notes = []
@@ -268,27 +444,44 @@ def checked_run(run_once, case, system, kw):
         fine.error_estimate = info
         return fine
     extra = dict(kw)
-    extra.pop("store", None)   # the extra runs are held in memory, never stored
     extra["progress"] = False
     extra["strict"] = False
     # the extra runs are not runs of their own for the caller's observers (no progress, no
     # start / close calls); an interrupt check among them still stops them
     extra["observers"] = [w for w in (kw.get("observers") or ()) if isinstance(w, InterruptCheck)]
+
+    def store(final):
+        """A store for an extra run: None in memory, else an open temporary file that is
+        renamed to ``final`` only when finished (a coarse run's never is)."""
+        if path is None:
+            return None
+        st = StorageObserver(final, keep_open=True)
+        own.append(st)
+        return st
+
+    def drop(res):
+        if isinstance(res, FileResult) and res._storage in own:
+            res.discard()
+
     n_runs = 0
-    coarse = run_once(refined_case(case, 0.5), system=None, **extra)
+    coarse_path = (None if path is None else
+                   os.path.join(os.path.dirname(os.path.abspath(path)), ".coarse-estimate.h5"))
+    coarse = run_once(refined_case(case, 0.5), system=None, **dict(extra, store=store(coarse_path)))
     n_runs += 1
     if not coarse.complete:
+        drop(coarse)
         notes.append(f"the coarse run of the estimate did not reach its end ({coarse.status}): "
                      "no error estimate")
         info.update(extra_runs=n_runs, extra_wall_time_s=_time.perf_counter() - t0)
         fine.error_estimate = info
         return fine
     est = estimate(fine, coarse)
-    own = _own_cells(case)
+    drop(coarse)
+    own_cells = _own_cells(case)
     rounds = 0
     while not est["meets_contract"]:
-        if own:
-            notes.append("not refined: layer(s) " + ", ".join(own) + " set their own cells "
+        if own_cells:
+            notes.append("not refined: layer(s) " + ", ".join(own_cells) + " set their own cells "
                          "(leave cells out to let fdwall choose and refine the mesh)")
             break
         if rounds >= MAX_ROUNDS:
@@ -302,14 +495,16 @@ def checked_run(run_once, case, system, kw):
         if why is not None:
             notes.append(f"not refined further: {why}")
             break
-        finer = run_once(cand, system=sysm, **extra)
+        finer = run_once(cand, system=sysm, **dict(extra, store=store(path)))
         n_runs += 1
         if not finer.complete:
+            drop(finer)
             notes.append(f"the refined run did not reach its end ({finer.status}): the result "
                          "on the previous mesh is reported")
             break
         prev = est["margin"]
         est = estimate(finer, fine)
+        drop(fine)
         fine = finer
         rounds += 1
         if not est["meets_contract"] and est["margin"] > STALL_RATIO * prev:
@@ -323,9 +518,16 @@ def checked_run(run_once, case, system, kw):
                      "meet the accuracy contract")
     if not est["meets_contract"]:
         worst = max(est["points"], key=lambda p: p["margin"])
-        notes.append(f"the accuracy contract is not met: estimated spatial error "
-                     f"{worst['max_error_K']:.3g} K at {worst['point']} "
-                     f"({worst['margin']:.3g} times the allowance at t = {worst['at_s']:.6g} s)")
+        sw = est.get("switching")
+        if sw is not None and sw["margin"] >= worst["margin"]:
+            notes.append(f"the accuracy contract is not met: estimated error of the first "
+                         f"switch-off {sw['error_s']:.3g} s at {sw['first_switch_off_s']:.6g} s "
+                         f"({sw['margin']:.3g} times the allowance)")
+        else:
+            notes.append(f"the accuracy contract is not met: estimated spatial error "
+                         f"{worst['max_error_K']:.3g} K at {worst['point']} "
+                         f"({worst['margin']:.3g} times the allowance at t = "
+                         f"{worst['at_s']:.6g} s)")
     info.update(est)
     info.update(refinements=rounds, cells=_cells_of(fine), notes=notes, extra_runs=n_runs,
                 extra_wall_time_s=_time.perf_counter() - t0)

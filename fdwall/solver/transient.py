@@ -76,9 +76,12 @@ def run(case, initial=None, progress=None, strict=True, system=None, control_sta
     mesh (doubling the cells) until the estimate meets the contract; the reported
     :class:`fdwall.result.Result` carries it as ``error_estimate``.  False runs the case once
     on its mesh (for runs inside analyses: sizing loops, studies, fits), and
-    ``error_estimate`` is None.  With a ``store``, the first run streams to it; the estimate's
-    extra runs are held in memory, and a refined run replaces the stored one (a path store is
-    rewritten with it; an open :class:`StorageObserver` is left for the caller to discard).
+    ``error_estimate`` is None.  With a ``store``, the first run streams to it and so do the
+    estimate's extra runs (the coarse one to a temporary file in the same folder, removed
+    after it is compared), so memory stays bounded by the output window; a refined run
+    replaces the stored one (a path store is rewritten with it; when the caller passed an
+    open :class:`StorageObserver`, the returned result's own store replaces it on
+    ``write_hdf5`` and the caller's is left for it to discard).
     """
     kw = dict(initial=initial, progress=progress, strict=strict, control_state=control_state,
               observers=observers, chunk_seconds=chunk_seconds, store=store,

@@ -1,4 +1,4 @@
-"""Audit: the files ``fdwall run`` writes are exactly what docs/results.md says.
+"""The files ``fdwall run`` writes are exactly what docs/results.md says.
 
 For every bundled demo case (cases/*.toml) the command line is run in-process
 (``fdwall.cli.main``) and its archive and summary are checked against the tables of

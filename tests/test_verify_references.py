@@ -1,4 +1,4 @@
-"""Independent audit of fdwall's physics against references outside the project.
+"""Checks of fdwall's physics against references outside the project.
 
 Every check below compares a full fdwall run (Case -> run / solve_steady) with a result
 derived here from the governing equations or quoted from the literature; nothing is taken

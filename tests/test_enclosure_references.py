@@ -1,4 +1,4 @@
-"""Independent audit of the heated-enclosure, control and lumped R/C features against
+"""Checks of the heated-enclosure, control and lumped R/C features against
 references outside fdwall.
 
 Each check compares fdwall with a closed-form solution of the governing equations, a

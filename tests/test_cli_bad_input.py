@@ -1,4 +1,4 @@
-"""Audit of the bad-input rule on the command line.
+"""The bad-input rule on the command line.
 
 Rule (fdwall contributor rules, "bad input"): a case file that is wrong in any way gives ONE
 paragraph on stderr that names the file, the key (or the line of a TOML syntax error), what
