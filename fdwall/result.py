@@ -96,6 +96,9 @@ class Result:
     control_state: object = None
     #: Spatial error estimate and contract margin (fdwall.solver.accuracy); None: not made.
     error_estimate: object = None
+    #: The enclosure analysis of the run (fdwall.analyses.summarise_enclosure, steady hold
+    #: included), set by the caller that made it; the text summary shows it. None: not made.
+    enclosure: object = None
 
     #: Path of the HDF5 file that backs the result (:class:`FileResult`); None: in memory.
     store = None

@@ -44,7 +44,8 @@ import pint
 from .errors import CaseError
 
 __all__ = ["ureg", "KINDS", "Kind", "parse_quantity", "parse_unit", "parse_leakage",
-           "check_magnitude", "kind_names", "parse_power_law_coefficient", "CaseError"]
+           "check_magnitude", "kind_names", "parse_power_law_coefficient", "CaseError",
+           "power_law_coefficient_us", "power_law_unit_power", "W_M2K_IN_BTU_HFT2F"]
 
 def _registry():
     # pint caches its parsed definitions on disk (user cache folder): a tenth of a second less
@@ -788,6 +789,52 @@ def parse_power_law_coefficient(value, exponent: float, where: str = "", *, file
                         f"power-law coefficient fdwall accepts, {POWER_LAW_COEFFICIENT_MAX:g} "
                         f"{si_text}", file=file, key=where, allowed=allowed)
     return si
+
+
+#: 1 W/(m2 K) in Btu/(h ft2 F) [-]: 3600 s/h / 1055.05585262 J/Btu (International Table) x
+#: (0.3048 m/ft)^2 / (1.8 F/K), = 0.176110 (all factors exact by definition).
+W_M2K_IN_BTU_HFT2F = 3600.0 / 1055.05585262 * 0.3048 ** 2 / 1.8
+
+
+def power_law_coefficient_us(a, exponent):
+    """Coefficient a of the power-law film ``h = a |dT|^n`` from W/(m2 K^(1+n)) to
+    Btu/(h ft2 F^(1+n)) (US display; SI stays the unit of files and of the model).
+
+    The heat flux is q'' = a dT^(1+n).  With q''[Btu/(h ft2)] = 1.8 W_M2K_IN_BTU_HFT2F
+    q''[W/m2] and dT[K] = dT[F] / 1.8, a_US dT_F^(1+n) = 1.8 c a_SI (dT_F / 1.8)^(1+n), so
+    a_US = a_SI c (5/9)^n with c = :data:`W_M2K_IN_BTU_HFT2F` = 0.17611 (for n = 0 the film
+    coefficient's own factor).
+
+    Parameters
+    ----------
+    a : float or array
+        Coefficient [W/(m2 K^(1+n))].
+    exponent : float
+        Exponent n [-].
+
+    Returns
+    -------
+    float or ndarray
+        Coefficient [Btu/(h ft2 F^(1+n))].
+    """
+    return a * W_M2K_IN_BTU_HFT2F * (5.0 / 9.0) ** float(exponent)
+
+
+#: Unit text of a power-law coefficient as fdwall writes it: ``W/(m2 K^1.25)``.
+_POWER_LAW_UNIT = re.compile(r"^W/\(m2 K\^([0-9.eE+-]+)\)$")
+
+
+def power_law_unit_power(unit: str):
+    """The temperature power 1 + n [-] of a power-law coefficient unit as fdwall writes it
+    (``"W/(m2 K^1.25)"`` gives 1.25), or None for any other unit text."""
+    m = _POWER_LAW_UNIT.match(str(unit).strip())
+    if not m:
+        return None
+    try:
+        p = float(m.group(1))
+    except ValueError:
+        return None
+    return p if math.isfinite(p) else None
 
 
 def parse_leakage(value, volume=None, where: str = "", *, file: str = "",

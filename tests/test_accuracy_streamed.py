@@ -119,3 +119,62 @@ def test_first_switch_off_is_estimated_and_matches_the_lumped_solution():
     assert sw["first_switch_off_s"] == pytest.approx(t_off, rel=5e-3)
     assert sw["error_s"] <= max(0.005 * t_off, 1.0) and sw["margin"] <= 1.0
     assert est["margin"] >= sw["margin"]
+
+
+def test_face_flow_of_a_convective_face_meets_the_contract_for_flows():
+    # fluid at 800 K, h = 200 W/m2/K on a thick slab (1 m2): the heat flow into the solid is
+    # h (Tf - Ts) with Ts from Incropera 6th ed. eq. 5.60 at x = 0 (Carslaw & Jaeger 1959,
+    # 2.7 eq. 1): (Ts - Ti)/(Tf - Ti) = 1 - exp(b^2) erfc(b), b = h sqrt(alpha t)/k.
+    # The contract for flows: within max(0.5 % of the largest flow so far at that face, the
+    # flow of the face film for 0.05 K) at every output (fdwall.solver.accuracy)
+    from scipy.special import erfcx
+    h, Tf = 200.0, 800.0
+    wall = Wall([Layer(SOLID, 0.5)], shape="slab", name="thick-slab")
+    case = Case(RunSettings(duration=3600.0, start_temperature=T0, output_every=60.0),
+                wall=wall, inner=Face.exchange(Tf, h), outer=Face(), name="semi-infinite")
+    res = run(case, progress=False)
+    t = res.times[1:]                       # the flow at t = 0 is singular in the exact solution
+    b = h * np.sqrt(ALPHA * t) / K_W
+    Ts = T0 + (Tf - T0) * (1.0 - erfcx(b))
+    q_exact = h * (Tf - Ts)                 # W into the solid through 1 m2
+    q = np.abs(res.face_flow[1:, 0])
+    allow = np.maximum(0.005 * np.maximum.accumulate(q_exact), h * 0.05)
+    assert np.all(np.abs(q - q_exact) <= allow), float((np.abs(q - q_exact) / allow).max())
+    est = res.error_estimate
+    assert est["flow_margin"] <= 1.0 and est["meets_contract"] is True
+
+
+def test_command_line_warns_when_outputs_are_closer_than_the_mesh_floor(tmp_path, capsys):
+    # the mesh resolves the time floor (fdwall.mesh.TIME_FLOOR, 1 s; common practice, no
+    # source): outputs every 0.5 s are outside the contract, and the run says so
+    import json
+
+    from fdwall import cli
+    case = tmp_path / "fast.toml"
+    case.write_text('''# Invented test case: a plate sampled faster than the mesh floor.
+title = "fast outputs (invented)"
+[run]
+duration = "20 s"
+start_temperature = "20 degC"
+output_every = "0.5 s"
+[wall]
+name = "plate"
+shape = "slab"
+area = "1 m2"
+[[wall.layers]]
+name = "brick"
+material = "fireclay-brick-dense"
+thickness = "100 mm"
+[wall.inner_face]
+fluid_temperature = "400 degC"
+film_coefficient = "10 W/m2/K"
+[wall.outer_face]
+fluid_temperature = "20 degC"
+film_coefficient = "10 W/m2/K"
+''')
+    rc = cli.main(["run", str(case), "--out", str(tmp_path / "out"), "--quiet", "--no-plots"])
+    assert rc == 0
+    err = capsys.readouterr().err
+    assert "warning: outputs are asked for closer than 1 s" in err
+    summary = json.loads((tmp_path / "out" / "fast-summary.json").read_text())
+    assert any(w.startswith("outputs are asked for closer") for w in summary["input_warnings"])

@@ -248,3 +248,34 @@ def test_run_report_touch_verdicts_with_caution(tmp_path, capsys):
     assert float(r[4]) == pytest.approx(35.0, abs=1e-6)
     assert float(r[5]) == pytest.approx(margin, abs=1e-4)   # a difference: not shifted
     assert r[7] == "degC"
+
+
+def test_run_report_shows_the_stored_error_estimate(tmp_path, capsys):
+    # the report presents /error_estimate as stored (docs/results.md); an estimated error is
+    # a temperature difference: 1 K = 1.8 delta_degF (pint)
+    import json
+
+    from fdwall.cli import main
+    p = tmp_path / "panel.toml"
+    p.write_text(RUN_CASE)
+    out = tmp_path / "out"
+    assert main(["run", str(p), "--out", str(out), "--report", "--no-plots", "--quiet"]) == 0
+    text = (out / "panel-report.html").read_text()
+    with h5py.File(out / "panel.h5") as h:
+        g = h["error_estimate"]
+        points = json.loads(g.attrs["points"])
+        margin = float(g.attrs["margin"])
+        met = bool(g.attrs["meets_contract"])
+    assert 'id="accuracy"' in text and "Accuracy (spatial error estimate)" in text
+    assert f"margin {margin:.2f} for temperatures" in text
+    assert ("<b>met</b>" if met else "<b>NOT met</b>") in text
+    rows = {r[0]: r[1:] for r in _rows(text, "mesh-steps") if r and r[0] in
+            {q["point"] for q in points}}
+    assert set(rows) == {q["point"] for q in points}
+    for q in points:
+        assert float(rows[q["point"]][0]) == pytest.approx(q["max_error_K"], rel=1e-5)
+        assert rows[q["point"]][1] == "K"
+    us = rhtml.render_report(out / "panel.h5", units="us")
+    rows_us = {r[0]: r[1:] for r in _rows(us, "mesh-steps") if r and r[0] == points[0]["point"]}
+    f = pint.UnitRegistry().Quantity(points[0]["max_error_K"], "delta_degC").to("delta_degF")
+    assert float(rows_us[points[0]["point"]][0]) == pytest.approx(f.magnitude, rel=1e-5)

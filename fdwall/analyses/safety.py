@@ -35,6 +35,7 @@ from ..errors import InputError
 from ..materials import Material
 from ..model import SURFACE_CLASSES, Case, Face, Layer, RunSettings, Wall
 from ..physics.convection import Convection
+from ..solver.readout import read_profile
 from ..system import build_system
 
 __all__ = [
@@ -377,7 +378,10 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
     wall : Wall
         The wall (slab assumed at fingertip scale), inner layer first.
     x, T_wall : array
-        Depth from the inner face [m] and temperature [K] of the wall at the start of contact.
+        Depth from the inner face [m] and temperature [K] of the wall at the start of contact
+        (its node profile).  The contact mesh takes its start temperatures between these
+        samples from the Kirchhoff read-out in the wall's own geometry
+        (:func:`fdwall.solver.readout.read_profile`).
     contact_time : float
         Contact time [s] (capped at :data:`MAX_SIMULATED_CONTACT`).
     skin : tuple of Layer, optional
@@ -424,15 +428,16 @@ def simulate_contact(wall: Wall, x, T_wall, contact_time, *, skin=None, T_skin_s
     T0 = np.empty(xs.size)
     b_w = effusivity(*_props(wall.layers[-1].material, T_wall[-1]))
     b_s = effusivity(*_props(skin[0].material, Ts))
-    for i in range(xs.size):
-        side = {int(v) for v in (ll[i], lr[i]) if v >= 0}
-        if side and max(side) < nw:
-            T0[i] = np.interp(xs[i], x, T_wall)
-        elif side and min(side) >= nw:
-            r = np.interp(xs[i] - L, d, R)
-            T0[i] = Ts + (Tc - Ts) * r / R[-1]
-        else:   # the shared node of the contact plane: the instant contact temperature
-            T0[i] = contact_temperature(T_wall[-1], b_w, Ts, b_s)
+    sides = [{int(v) for v in (ll[i], lr[i]) if v >= 0} for i in range(xs.size)]
+    in_wall = np.array([bool(sd_) and max(sd_) < nw for sd_ in sides])
+    in_skin = np.array([bool(sd_) and min(sd_) >= nw for sd_ in sides])
+    # the wall's profile between its nodes: the Kirchhoff read-out in the wall's own geometry
+    # (exact at steady state for any k(T), slab, cylinder or sphere)
+    if np.any(in_wall):
+        T0[in_wall] = read_profile(wall, x, T_wall, xs[in_wall])
+    T0[in_skin] = Ts + (Tc - Ts) * np.interp(xs[in_skin] - L, d, R) / R[-1]
+    # the shared node of the contact plane: the instant contact temperature
+    T0[~(in_wall | in_skin)] = contact_temperature(T_wall[-1], b_w, Ts, b_s)
     n_out = 400
     case = replace(probe, run=RunSettings(duration=t_c, output_every=t_c / n_out,
                                           tolerance=0.002, start_temperature=T0))

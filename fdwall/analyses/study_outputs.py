@@ -43,6 +43,7 @@ from ..case.loader import case_from_dict
 from ..errors import FdwallError, InputError
 from ..solver import run, solve_steady
 from ..system import build_system
+from ..units import parse_power_law_coefficient
 from .enclosure import warm_up_time
 from .safety import DEFAULT_CONTACT_TIME, surface_class_of, touch_limit
 
@@ -104,13 +105,86 @@ def edited(base: dict, edits: dict, file: str) -> dict:
     """The parsed base case with ``edits`` (path -> value) applied; ``base`` is not changed.
 
     Only the tables and lists on the edited paths are copied (the case loader only reads its
-    input), which is cheaper per variant than a deep copy of the whole case.
+    input), which is cheaper per variant than a deep copy of the whole case.  A varied
+    power-law exponent carries its coefficient's unit along (:func:`_follow_exponent`).
     """
     data = dict(base)
     copied = {id(data)}
     for p, v in edits.items():
         _set(data, p, v, file, copied)
+    _follow_exponent(base, data, edits, file, copied)
     return data
+
+
+_FRACTION = re.compile(r"^\s*(\d+(?:\.\d*)?)\s*/\s*(\d+(?:\.\d*)?)\s*$")
+
+
+def _exponent_value(v):
+    """A power-law exponent as written in a case file (a number or a fraction text, "1/3")
+    [-], or None when it is neither (the loader then reports it)."""
+    if isinstance(v, bool):
+        return None
+    if isinstance(v, (int, float)):
+        return float(v)
+    if isinstance(v, str):
+        m = _FRACTION.match(v)
+        if m:
+            return float(m.group(1)) / float(m.group(2)) if float(m.group(2)) > 0 else None
+        try:
+            return float(v)
+        except ValueError:
+            return None
+    return None
+
+
+def _table_at(data, path: str, file: str):
+    """The table at case-file ``path`` in the parsed case ``data``, or None."""
+    node = data
+    for s in _steps(path, file):
+        if isinstance(s, int):
+            if not isinstance(node, list) or s >= len(node):
+                return None
+        elif not isinstance(node, dict) or s not in node:
+            return None
+        node = node[s]
+    return node if isinstance(node, dict) else None
+
+
+def _follow_exponent(base: dict, data: dict, edits: dict, file: str, copied) -> None:
+    """Keep a power-law coefficient consistent with a varied exponent (in place in ``data``).
+
+    The unit of the coefficient a of h = a |dT|^n has the temperature power 1 + n, so a
+    coefficient written for the base case's exponent (``"1.42 W/(m2 K^1.25)"`` with n = 0.25)
+    would not load once a variant changes n.  When a variant edits ``...exponent`` of a
+    ``power_law`` table and the coefficient (the base's, or the variant's own edit) is
+    written for the base exponent, it is converted to SI with the base exponent and written
+    back as ``"<a> W/(m2 K^(1 + n))"`` with the variant's n: the SI value of a (h at a 1 K
+    difference) is held, its unit follows n.  A coefficient that already fits the variant's
+    exponent, or that fits neither, is left as it is (the loader judges it).
+    """
+    for p, v in edits.items():
+        if p.split(".")[-1] != "exponent" or "." not in p:
+            continue
+        parent = p[: -len(".exponent")]
+        table = _table_at(data, parent, file)
+        if table is None or table.get("model") != "power_law":
+            continue
+        coef = table.get("coefficient")
+        btab = _table_at(base, parent, file)
+        n_new = _exponent_value(v)
+        n_old = _exponent_value(btab.get("exponent")) if btab is not None else None
+        if not isinstance(coef, str) or n_new is None or n_old is None:
+            continue
+        try:
+            parse_power_law_coefficient(coef, n_new)
+            continue                       # written for this variant's exponent already
+        except FdwallError:
+            pass
+        try:
+            a = parse_power_law_coefficient(coef, n_old)
+        except FdwallError:
+            continue                       # wrong either way: the loader says why
+        _set(data, f"{parent}.coefficient", f"{a!r} W/(m2 K^{1.0 + n_new!r})", file, copied)
 
 
 __all__ = ["OUTPUT_INFO", "DEFAULT_OUTPUTS", "TOUCH_OUTPUTS", "header_of", "check_outputs",

@@ -90,6 +90,10 @@ def _write_run(args, flag, case, warns, system, stem, outdir, progress, result) 
     quiet = args.quiet
     interrupted = result.status == "interrupted"
     reached = float(result.stats.get("reached_s", result.times[-1]))
+    for note in (result.error_estimate or {}).get("notes", []):
+        if note.startswith("outputs are asked for closer than"):   # the mesh's time floor
+            warns = list(warns) + [note]
+            _warn(note)
     if interrupted:
         name = SIGNAL_NAMES.get(flag.signal, "a signal")
         _error(f"interrupted ({name}): the run of '{args.case}' stopped at t = {reached:.6g} s "
@@ -140,6 +144,11 @@ def _write_run(args, flag, case, warns, system, stem, outdir, progress, result) 
     if args.json:
         print(_dumps(summary))
     elif not quiet:
+        if case.is_enclosure and not interrupted:   # the text's "Heating" section
+            try:
+                result.enclosure = summarise_enclosure(result, steady=True)
+            except Exception as exc:  # analyses must never lose the run's own results
+                result.enclosure = str(exc)
         print(format_summary(result), end="")
         print("\nFiles written:")
         for f in files:

@@ -17,6 +17,7 @@ from .. import atomic
 from ..cautions import BURN_INDICATOR_NOTE, SAFETY_CAUTION
 from ..errors import InputError
 from ..h5tree import SUFFIX_UNITS, read_tree, unit_of
+from ..units import power_law_unit_power
 from . import units as _units
 
 __all__ = ["write_report", "render_report", "KINDS"]
@@ -42,6 +43,19 @@ def _units_suffixes():
     return SUFFIX_UNITS.keys()
 
 
+def _sibling_unit(d: dict, k: str):
+    """(unit, exponent) a number ``k`` (or its ``<k>_stderr``) takes from a ``<k>_unit`` text
+    beside it (a power-law coefficient, whose unit depends on its exponent n, stored beside it
+    as ``exponent``), or ('', None)."""
+    base = k[:-len("_stderr")] if k.endswith("_stderr") else k
+    u = d.get(f"{base}_unit")
+    if not isinstance(u, str) or power_law_unit_power(u) is None:
+        return "", None
+    n = d.get("exponent")
+    n = float(n) if isinstance(n, (int, float, np.integer, np.floating)) else None
+    return u, n
+
+
 def _scalar_rows(d: dict, system: str):
     rows = []
     for k, v in d.items():
@@ -50,7 +64,16 @@ def _scalar_rows(d: dict, system: str):
                 rows.append((f"{k}.{name}", val, u))
             continue
         u = unit_of(k)
-        if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool) and u:
+        su, n = _sibling_unit(d, k)
+        if k.endswith("_unit") and k[:-len("_unit")] in d and su == "" and \
+                power_law_unit_power(str(v)) is not None:
+            continue   # shown as the unit of its number
+        if su and isinstance(v, (int, float, np.integer, np.floating)) and \
+                not isinstance(v, bool):
+            conv, label = _units.display(float(v), su, system, key=k, exponent=n)
+            rows.append((k, _fmt(float(conv)), label))
+        elif isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool) \
+                and u:
             conv, label = _units.display(float(v), u, system, key=k)
             rows.append((_strip(k, u), _fmt(float(conv)), label))
         elif isinstance(v, np.ndarray) and v.dtype.kind in "fi" and u:
@@ -136,13 +159,14 @@ def _images(h5_path: Path, created: str = ""):
     return out, stale
 
 
-def _q(value, unit, system, key=""):
-    """One stored number as (text, display unit label); '' for a missing value."""
+def _q(value, unit, system, key="", exponent=None):
+    """One stored number as (text, display unit label); '' for a missing value.
+    ``exponent``: the exact n [-] of a power-law coefficient (see :func:`_units.display`)."""
     if value is None or (isinstance(value, float) and not np.isfinite(value)):
         return "", ""
     if not unit:
         return _fmt(value), ""
-    conv, label = _units.display(float(value), unit, system, key=key)
+    conv, label = _units.display(float(value), unit, system, key=key, exponent=exponent)
     return _fmt(float(conv)), label
 
 
@@ -165,6 +189,9 @@ def _notes(data: dict, system: str) -> dict:
     if not isinstance(rd, dict) or "inputs" not in rd:
         return {"status": _NOT_STORED}
     resolved = []
+    # the exact exponent of a power-law coefficient: the exponent row of the same section
+    expo = {r.get("section", ""): _num(r.get("value")) for r in rd.get("inputs") or []
+            if isinstance(r, dict) and r.get("quantity") == "power-law exponent n"}
     for r in rd.get("inputs") or []:
         if not isinstance(r, dict):
             continue
@@ -173,9 +200,10 @@ def _notes(data: dict, system: str) -> dict:
             resolved.append((r.get("section", ""), r.get("quantity", ""), r.get("text", ""), ""))
             continue
         key = r.get("quantity", "")
-        txt, lab = _q(v, u, system, key=key)
+        n = expo.get(r.get("section", "")) if power_law_unit_power(u) is not None else None
+        txt, lab = _q(v, u, system, key=key, exponent=n)
         if hi is not None:
-            txt = f"{txt} .. {_q(hi, u, system, key=key)[0]}"
+            txt = f"{txt} .. {_q(hi, u, system, key=key, exponent=n)[0]}"
         if r.get("text"):
             txt = f"{txt} ({r['text']})"
         resolved.append((r.get("section", ""), key, txt, lab or "-"))
@@ -304,6 +332,44 @@ def _convergence(data: dict, system: str) -> dict:
             "nodes": conv.get("nodes", ""), "refined_nodes": conv.get("refined_nodes", "")}
 
 
+def _accuracy(data: dict, system: str) -> dict | None:
+    """The run's stored spatial error estimate (``/error_estimate``) as display rows, or None
+    when the file holds none (fdwall.solver.accuracy; docs/accuracy.md)."""
+    est = data.get("error_estimate")
+    if not isinstance(est, dict):
+        return None
+
+    def js(key, default):
+        v = est.get(key)
+        try:
+            return json.loads(v) if isinstance(v, (str, bytes)) else (default if v is None else v)
+        except ValueError:
+            return default
+    estimated = bool(est.get("estimated"))
+    rows = []
+    for p in js("points", []) or []:
+        if isinstance(p, dict):
+            rows.append((p.get("point", ""), *_q(p.get("max_error_K"), "K", system,
+                                                 key="difference"),
+                         " ".join(_q(p.get("at_s"), "s", system)).strip(),
+                         f"{float(p.get('margin', 0.0)):.2f}"))
+    sw = js("switching", None)
+    switching = None
+    if isinstance(sw, dict):
+        switching = (_q(sw.get("first_switch_off_s"), "s", system),
+                     _q(sw.get("error_s"), "s", system, key="difference"),
+                     f"{float(sw.get('margin', 0.0)):.2f}")
+    cells = js("cells", [])
+    return {"estimated": estimated, "meets": bool(est.get("meets_contract")),
+            "method": str(est.get("method", "")),
+            "margin": f"{float(est.get('margin', float('nan'))):.2f}",
+            "flow_margin": f"{float(est.get('flow_margin', float('nan'))):.2f}",
+            "refinements": int(est.get("refinements", 0) or 0),
+            "extra_runs": int(est.get("extra_runs", 0) or 0),
+            "cells": "; ".join(", ".join(str(c) for c in w) for w in cells or []),
+            "rows": rows, "switching": switching, "notes": [str(n) for n in js("notes", []) or []]}
+
+
 def _run_sections(data: dict, system: str) -> dict:
     """Sections of a run result (kind transient/steady), read from its stored groups."""
     out = {}
@@ -379,6 +445,7 @@ def _run_sections(data: dict, system: str) -> dict:
     if steps or meshes:
         out["steps"], out["meshes"] = steps, meshes
         out["convergence"] = _convergence(data, system)
+        out["accuracy"] = _accuracy(data, system)
     out["results"] = _run_results(data, system)
     touch = data.get("touch")
     if isinstance(touch, dict):

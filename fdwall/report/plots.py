@@ -15,6 +15,7 @@ import textwrap
 import numpy as np
 
 from ..atomic import atomic_path
+from ..solver.readout import profile_points
 
 __all__ = ["plot_temperatures", "plot_profiles", "layer_label", "plot_energy", "write_plots"]
 
@@ -356,9 +357,20 @@ def _per_length(result):
     return 1.0, ""
 
 
+def _fine_profile(system, T, wall):
+    """Depths [m] and temperatures [K] of a profile drawn between the nodes: the Kirchhoff
+    read-out (:func:`fdwall.solver.readout.profile_points`) at a few points per cell, more on
+    a coarse mesh (about 120 points per wall at least), so the curve follows ln r in a
+    cylinder, 1/r in a sphere and the k(T) shape of each layer."""
+    cells = max(system.meshes[wall].n - 1, 1)
+    return profile_points(system, T, wall, per_cell=max(4, -(-120 // cells)))
+
+
 def plot_profiles(result, path, times=None) -> str:
     """Temperature profiles [degC] through each wall against depth from the inner face [mm], at
     the case's profile times (or 5 evenly spaced times), with the layers shaded and labelled.
+    The curves pass through the nodes (dots) and, between them, through the Kirchhoff
+    read-out (exact at steady state for any k(T) in slab, cylinder and sphere).
 
     Parameters
     ----------
@@ -388,13 +400,18 @@ def plot_profiles(result, path, times=None) -> str:
             if i > 0:
                 ax.axvline(edges[i], color="#8c8c8c", lw=0.8, zorder=1)
         for k, t in enumerate(times):
-            xx, T, ta = result.profile(t, j)
+            kt = int(np.argmin(np.abs(result.times - t)))
+            ta = float(result.times[kt])
+            xx, T = _fine_profile(result.system, np.asarray(result.T[kt], dtype=float), j)
             col = cmap(0.9 * k / max(len(times) - 1, 1))
-            ax.plot(xx * 1e3, T - KELVIN_OFFSET, "-", color=col, lw=1.8, marker=".", ms=3,
+            ax.plot(xx * 1e3, T - KELVIN_OFFSET, "-", color=col, lw=1.8,
                     label=f"t = {ta / 3600.0:.3g} h", zorder=3)
+            # the nodes themselves, on the curve (not in the legend)
+            ax.plot(result.x(j) * 1e3, result.wall_T(j)[kt] - KELVIN_OFFSET, ".", color=col,
+                    ms=3, label="_nodes", zorder=3)
         if result.steady is not None:
-            ax.plot(result.steady.x(j) * 1e3, result.steady.wall_T(j) - KELVIN_OFFSET, "--",
-                    color="black", lw=1.3,
+            xs, Ts = _fine_profile(result.steady.system, result.steady.T, j)
+            ax.plot(xs * 1e3, Ts - KELVIN_OFFSET, "--", color="black", lw=1.3,
                     label=f"steady state (conditions at {result.steady.time / 3600.0:.3g} h)",
                     zorder=4)
         _style(ax, "depth from inner face [mm]", "temperature [degC]")

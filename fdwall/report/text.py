@@ -11,7 +11,6 @@ import textwrap
 
 import numpy as np
 
-from ..analyses.enclosure import summarise_enclosure
 from ..solver import native
 
 __all__ = [
@@ -391,10 +390,14 @@ def _accuracy_lines(result) -> list:
 
 def _enclosure_lines(result) -> list:
     """Warm-up, hold duty, steady duty and where the heater energy went (enclosures)."""
-    try:
-        s = summarise_enclosure(result, steady=True)
-    except Exception as exc:  # an analysis must never hide the run's own summary
-        return _heading("Heating") + [_wrap(f"(enclosure analysis not available: {exc})")]
+    s = getattr(result, "enclosure", None)
+    if s is None:   # the report computes nothing: the analysis is made by whoever ran the case
+        return _heading("Heating") + [_wrap(
+            "(not computed for this result: fdwall.analyses.summarise_enclosure(result) gives "
+            "warm-up, hold duty, steady duty and where the heater energy went; set it as "
+            "result.enclosure to have it here, as fdwall run does)")]
+    if isinstance(s, str):
+        return _heading("Heating") + [_wrap(f"(enclosure analysis not available: {s})")]
     L = _heading("Heating")
     sp = s.get("setpoint_K")
     if sp is not None and math.isfinite(sp):

@@ -7,6 +7,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import InputError
+from ..units import power_law_coefficient_us, power_law_unit_power
 
 __all__ = ["display", "UNIT_SYSTEMS", "SAME_IN_US"]
 
@@ -57,13 +58,25 @@ def is_difference(key: str) -> bool:
     return any(w.lower() in low for w in _DIFFERENCE_WORDS)
 
 
-def display(values, unit: str, system: str = "si", key: str = ""):
+def display(values, unit: str, system: str = "si", key: str = "", exponent=None):
     """Convert SI ``values`` in ``unit`` (SUFFIX_UNITS text) to the display system.
 
     Returns (converted values, label). Temperatures in K show as degC (si) or degF (us);
     temperature differences (``key`` names one, see :func:`is_difference`) as K or degF
-    difference.
+    difference.  A power-law film coefficient (unit ``W/(m2 K^p)``, p = 1 + n) shows in
+    Btu/(h ft2 F^p) (us); ``exponent`` is its exact n [-] when known (else p - 1 from the
+    unit text, which may be rounded).
     """
+    p = power_law_unit_power(unit) if unit else None
+    if p is not None:
+        if system not in UNIT_SYSTEMS:
+            raise InputError(f"display units must be one of {UNIT_SYSTEMS}, not {system!r}")
+        arr = np.asarray(values, dtype=float)
+        if system == "si":
+            return arr, unit
+        n = float(exponent) if exponent is not None else p - 1.0
+        return np.asarray(power_law_coefficient_us(arr, n), dtype=float), \
+            f"Btu/(h ft2 F^{1.0 + n:.4g})"
     if unit == "K" and key and is_difference(key):
         arr = np.asarray(values, dtype=float)
         if system == "us":
