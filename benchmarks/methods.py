@@ -37,9 +37,12 @@ def passes(err):
 
 # ---- fdwall ---------------------------------------------------------------------------------
 
-def solve_fdwall(geometry, tolerance, refine=BENCH_REFINE, cells=None):
+def solve_fdwall(geometry, tolerance, refine=BENCH_REFINE, cells=None, estimate=False):
+    """fdwall on problem (a)/(b) at a tuned tolerance and mesh: no spatial error estimate by
+    default (the setting is chosen against the reference)."""
     from fdwall.solver import run
-    r = run(P.wall_case(geometry, tolerance=tolerance, refine=refine, cells=cells))
+    r = run(P.wall_case(geometry, tolerance=tolerance, refine=refine, cells=cells),
+            estimate=estimate)
     st = dict(r.stats)
     st["steps"] = st["accepted_steps"]
     return r.face_T.copy(), st
@@ -201,15 +204,21 @@ def step_fv(x, duration=P.DURATION, t_off=P.STEP_OFF, hot_face="dense"):
 
 
 def solve_step_fdwall(tolerance=None, refine=None, duration=P.DURATION, t_off=P.STEP_OFF,
-                      hot_face="dense"):
-    """fdwall on problem (e); None keeps fdwall's default tolerance / mesh.  Stats carry
-    steps, nodes and newton (Newton iterations, all stages)."""
+                      hot_face="dense", estimate=True):
+    """fdwall on problem (e); None keeps fdwall's default tolerance / mesh.  ``estimate``
+    is passed to ``run`` (True, the default, is what a user gets: the spatial error estimate
+    and the refinement it may call for).  Stats carry steps, nodes and newton (Newton
+    iterations, all stages) of the reported run, and ``estimate`` (None when off, else a dict:
+    extra_runs, refinements, margin, meets_contract)."""
     from fdwall.solver import run
     r = run(P.step_case(tolerance=tolerance, refine=refine, duration=duration, t_off=t_off,
-                        hot_face=hot_face))
+                        hot_face=hot_face), estimate=estimate)
     st = dict(r.stats)
     st["steps"] = st["accepted_steps"]
     st["newton"] = st["newton_iterations"]
+    ee = r.error_estimate
+    st["estimate"] = None if ee is None else {
+        k: ee[k] for k in ("extra_runs", "refinements", "margin", "meets_contract")}
     return r.face_T.copy(), st
 
 
@@ -250,7 +259,7 @@ def step_references(quick=False, duration=P.DURATION, t_off=P.STEP_OFF, hot_face
     else:
         fd_refine, fd_tol, cells, rtol = 16.0, 1e-5, (800, 800, 16), 1e-9
     fd, fst = solve_step_fdwall(fd_tol, fd_refine, duration=duration, t_off=t_off,
-                                hot_face=hot_face)
+                                hot_face=hot_face, estimate=False)
     fv = step_fv(P.uniform_nodes(cells, thickness=P.STEP_WALLS[hot_face][1]), duration, t_off,
                  hot_face)
     from .peers import scipy_bdf

@@ -231,14 +231,16 @@ def matched(geometry, quick, repeats, use_fipy, compile_s):
     if kn is not None:
         case = P.wall_case(geometry, tolerance=kn, refine=M.BENCH_REFINE)
         from fdwall.solver import run
-        run(case)
-        timers.append((len(results), lambda case=case: run(case)))
-        mem = peak_memory(lambda: run(case))
+        # a tuned setting (chosen against the reference): no error estimate
+        run(case, estimate=False)
+        timers.append((len(results), lambda case=case: run(case, estimate=False)))
+        mem = peak_memory(lambda: run(case, estimate=False))
         results.append(["fdwall TR-BDF2", f"tolerance={kn:g} K", n, st["steps"], 0, 0, mem,
                         err, compile_s.get("fdwall")])
         from fdwall.system import build_system
         sysm = build_system(case)
-        timers.append((len(results), lambda case=case, sysm=sysm: run(case, system=sysm)))
+        timers.append((len(results),
+                       lambda case=case, sysm=sysm: run(case, system=sysm, estimate=False)))
         results.append(["fdwall, system prebuilt", f"tolerance={kn:g} K", n, st["steps"], 0,
                         0, mem, err, None])
     # scipy BDF
@@ -417,11 +419,13 @@ def flux_step(quick, repeats, hot_face="dense"):
     # fdwall tuned: mesh refine x tolerance, loosest tolerance per mesh, fastest passing
     for rf in usable:
         kn, T, st, err, tr = M.loosest(
-            lambda tol, rf=rf: M.solve_step_fdwall(tol, rf, hot_face=hot_face), FD_TOLS, ref)
-        tried.append((f"fdwall refine {rf:g}, tolerance [K]", tr))
+            lambda tol, rf=rf: M.solve_step_fdwall(tol, rf, hot_face=hot_face, estimate=False),
+            FD_TOLS, ref)
+        tried.append((f"fdwall refine {rf:g}, tolerance [K], estimate off", tr))
         if kn is not None:
             case = P.step_case(tolerance=kn, refine=rf, hot_face=hot_face)
-            pick("fdwall tuned", rf, kn, T, st, err, lambda case=case: run(case))
+            pick("fdwall tuned", rf, kn, T, st, err,
+                 lambda case=case: run(case, estimate=False))
     # scipy BDF
     for rf in usable:
         fv = meshes[rf][1]
@@ -450,18 +454,39 @@ def flux_step(quick, repeats, hot_face="dense"):
         results.append([name, setting, st["nodes"], st["steps"], 0.0, 0.0, st["newton"], err,
                         extra or {}])
 
-    add("fdwall, default settings", f"tolerance {st_def['tolerance_K']:g} K, default mesh",
-        st_def, e_def, lambda: run(case_def))
+    # the estimate's extra runs, for the node-iterations of the whole default call: the
+    # coarse run (half the cells) and any refined runs, as fdwall.solver.accuracy makes them
+    from fdwall.solver.accuracy import refined_case
+    from fdwall.solver.transient import run_once
+    est = st_def["estimate"]
+    est_ni = 0
+    for f in [0.5] + [2.0 ** (j + 1) for j in range(est["refinements"])]:
+        if f == 2.0 ** est["refinements"]:
+            continue            # the last refined run is the reported one
+        rx = run_once(refined_case(case_def, f))
+        est_ni += rx.system.n_unknowns * rx.stats["newton_iterations"]
+    est_txt = (f"{est['extra_runs']} extra run(s), {est['refinements']} refinement(s), "
+               f"margin {est['margin']:.2f}, contract "
+               f"{'met' if est['meets_contract'] else 'NOT met'}")
+    est_def = {"estimate": est_txt, "extra_ni": est_ni}
+    add("fdwall, default settings", f"tolerance {st_def['tolerance_K']:g} K, default mesh, "
+        f"error estimate (`run(case)`)", st_def, e_def, lambda: run(case_def), est_def)
     sys_def = build_system(case_def)
     add("fdwall, default settings, system prebuilt", "as above", st_def, e_def,
-        lambda: run(case_def, system=sys_def))
+        lambda: run(case_def, system=sys_def), est_def)
+    T_off, st_off = M.solve_step_fdwall(hot_face=hot_face, estimate=False)
+    add("fdwall default, estimate off", "default tolerance and mesh, "
+        "`run(case, estimate=False)`", st_off, M.errors(T_off, ref),
+        lambda: run(case_def, estimate=False), {"estimate": "off"})
     if "fdwall tuned" in best:
         _, kn, rf, T, st, err, fn = best["fdwall tuned"]
-        add("fdwall, tuned", f"refine {rf:g}, tolerance {kn:g} K", st, err, fn)
+        add("fdwall, tuned", f"refine {rf:g}, tolerance {kn:g} K, estimate off", st, err, fn,
+            {"estimate": "off (tuned against the reference)"})
         case_t = P.step_case(tolerance=kn, refine=rf, hot_face=hot_face)
         sys_t = build_system(case_t)
         add("fdwall, tuned, system prebuilt", "as above", st, err,
-            lambda: run(case_t, system=sys_t))
+            lambda: run(case_t, system=sys_t, estimate=False),
+            {"estimate": "off (tuned against the reference)"})
     if "scipy" in best:
         _, kn, rf, T, st, err, fn = best["scipy"]
         add("scipy solve_ivp BDF (compiled rhs, banded Jacobian)",
@@ -489,16 +514,24 @@ def flux_step(quick, repeats, hot_face="dense"):
     fdt = next((r[4] for r in results if r[0] == "fdwall, tuned"), None)
     rows = []
     for name, setting, nn, steps, med, mn, newton, err, extra, first in results:
-        ni = nn * newton
+        # node-iterations of the whole call: the estimate's extra runs count too
+        ni = nn * newton + extra.get("extra_ni", 0)
         rows.append((name, setting, nn, steps, newton, fmt_ms(med), fmt_ms(mn),
                      f"{med / (nn * steps) * 1e9:.0f}", f"{med / ni * 1e9:.1f}",
                      f"{med / ni / thomas[nn]:.1f}", f"{err[0]:.3f}", f"{err[1]:.4f}",
-                     "yes" if M.passes(err) else "**no**", f"{med / fd0:.1f}",
-                     f"{med / fdt:.1f}" if fdt else "-"))
+                     "yes" if M.passes(err) else "**no**", extra.get("estimate", "-"),
+                     f"{med / fd0:.1f}", f"{med / fdt:.1f}" if fdt else "-"))
     table(["method", "setting", "nodes", "steps", "Newton its", "wall median [ms]",
            "wall min [ms]", "ns per node-step", "ns per node-iteration",
            "node-iteration / bare Thomas per node", "err heated [K]", "err outer [K]", "meets",
-           "time / fdwall default", "time / fdwall tuned"], rows)
+           "error estimate", "time / fdwall default", "time / fdwall tuned"], rows)
+    say("fdwall rows: nodes, steps and Newton its are those of the reported run; the default "
+        "call (`run(case)`) also makes the estimate's coarse run (half the cells) and any "
+        "refined runs, whose time is in its wall time and whose node-iterations are in its "
+        "'ns per node-iteration' (the estimate column says how many runs and refinements, "
+        "the contract margin = largest estimated error over the contract's allowance). Tuned "
+        "rows pass `estimate=False`: their setting was chosen against the reference.")
+    say()
     say("Newton its: fdwall's Newton iterations over all stages (`stats['newton_iterations']`); "
         "scipy: right-hand-side evaluations (`nfev`, one per Newton iteration of BDF plus the "
         "finite-difference part of the Jacobian); fixed-step BE: Newton iterations. scipy's "
@@ -514,15 +547,19 @@ def flux_step(quick, repeats, hot_face="dense"):
     # the gain split in two parts: cost per node-iteration, and node-iterations needed
     gain = []
     by = {r[0]: r for r in results}
-    for fd_name in ("fdwall, default settings", "fdwall, tuned"):
+
+    def n_it(r):        # node-iterations of a row's call (the estimate's runs included)
+        return r[2] * r[6] + r[8].get("extra_ni", 0)
+
+    for fd_name in ("fdwall, default settings", "fdwall default, estimate off", "fdwall, tuned"):
         if fd_name not in by:
             continue
         f = by[fd_name]
         for peer in [r for r in results if not r[0].startswith("fdwall")]:
             t_ratio = peer[4] / f[4]
-            c_ratio = (peer[4] / (peer[2] * peer[6])) / (f[4] / (f[2] * f[6]))
+            c_ratio = (peer[4] / n_it(peer)) / (f[4] / n_it(f))
             gain.append((f"{peer[0].split(' (')[0]} vs {fd_name}", f"{t_ratio:.1f}",
-                         f"{c_ratio:.2f}", f"{peer[2] * peer[6] / (f[2] * f[6]):.1f}",
+                         f"{c_ratio:.2f}", f"{n_it(peer) / n_it(f):.1f}",
                          f"{peer[2] / f[2]:.2f}", f"{peer[3] / f[3]:.1f}",
                          f"{(peer[6] / peer[3]) / (f[6] / f[3]):.2f}"))
     say("The ratio of times split into its two parts (time ratio = cost per node-iteration "
@@ -543,7 +580,8 @@ def flux_step(quick, repeats, hot_face="dense"):
     say()
     say(f"- fdwall at default settings meets the accuracy: {'yes' if M.passes(e_def) else 'NO'} "
         f"(heated face {e_def[0]:.3f} K, outer face {e_def[1]:.4f} K off; "
-        f"{st_def['nodes']} nodes, tolerance {st_def['tolerance_K']:g} K).")
+        f"{st_def['nodes']} nodes, tolerance {st_def['tolerance_K']:g} K; its own estimate: "
+        f"{est_def['estimate']}).")
     for key, label, target in (("scipy", "scipy BDF", 30.0), ("fixed-step BE, careful", "the "
                                "careful fixed-step BE", 20.0)):
         r = next((r for r in results if r[0].startswith(key)), None)
@@ -554,11 +592,14 @@ def flux_step(quick, repeats, hot_face="dense"):
         say(f"- {label} time / fdwall default time = {ratio:.1f} (target >= {target:g}: "
             f"{'met' if ratio >= target and M.passes(e_def) else 'MISSED'}"
             f"{'' if M.passes(e_def) else ', and the default misses the accuracy'})"
+            + (f"; / fdwall default with the estimate off = "
+               f"{r[4] / by['fdwall default, estimate off'][4]:.1f}")
             + (f"; / fdwall tuned = {r[4] / fdt:.1f}" if fdt else "") + ".")
-    for name in ("fdwall, default settings, system prebuilt", "fdwall, tuned, system prebuilt"):
+    for name in ("fdwall, default settings, system prebuilt", "fdwall default, estimate off",
+                 "fdwall, tuned, system prebuilt"):
         if name in by:
             r = by[name]
-            per = r[4] / (r[2] * r[6])
+            per = r[4] / n_it(r)
             say(f"- {name}: {per * 1e9:.1f} ns per node and Newton iteration, whole run, = "
                 f"{per / thomas[r[2]]:.1f} x the bare Thomas solve at {r[2]} nodes "
                 f"(target <= 3: {'met' if per / thomas[r[2]] <= 3 else 'MISSED'}).")
@@ -580,8 +621,8 @@ def per_node_cost(quick, repeats, be_set, hot_face="dense"):
     """Cost per node and Newton iteration as the mesh grows (problem (e)), so that the fixed
     cost of a run (Python set-up, allocation) and the cost of the 481 samples are told apart
     from the per-node cost of the stepping: fdwall at its default tolerance with the system
-    prebuilt, with 60-s samples and with hourly samples (the same steps: fdwall's outputs are
-    interpolated, not stepped to), the careful BE at its passing dt, and the bare Thomas
+    prebuilt and the estimate off (one run on the given mesh), with 60-s samples and with
+    hourly samples (the same steps: fdwall's outputs are interpolated, not stepped to), the careful BE at its passing dt, and the bare Thomas
     solve, on fdwall's mesh at refine 1, 4, 16."""
     from dataclasses import replace
 
@@ -596,17 +637,19 @@ def per_node_cost(quick, repeats, be_set, hot_face="dense"):
     for rf in refines:
         case = P.step_case(refine=rf, hot_face=hot_face)
         sysm = build_system(case)
-        r = run(case, system=sysm)
+        r = run(case, system=sysm, estimate=False)
         case_h = replace(case, run=replace(case.run, output_interval=3600.0))
-        sys_h = build_system(case_h)
-        rh = run(case_h, system=sys_h)
+        # the 60-s case's system (its mesh: the default mesh of hourly outputs is coarser,
+        # as the first output interval sets the grading), so both rows solve the same nodes
+        sys_h = sysm
+        rh = run(case_h, system=sys_h, estimate=False)
         fv = M.step_fv(M.step_nodes(rf, hot_face), hot_face=hot_face)
         tabs = be_careful.segment_tables(fv)
         _, sb = M.solve_step_be(nsub, fv, tables=tabs)
         res = [["fd", 0, 0, 0, 0.0, 0.0], ["fdh", 0, 0, 0, 0.0, 0.0],
                ["be", 0, 0, 0, 0.0, 0.0]]
-        round_robin(res, [(0, lambda: run(case, system=sysm)),
-                          (1, lambda: run(case_h, system=sys_h)),
+        round_robin(res, [(0, lambda: run(case, system=sysm, estimate=False)),
+                          (1, lambda: run(case_h, system=sys_h, estimate=False)),
                           (2, lambda: M.solve_step_be(nsub, fv, tables=tabs))],
                     max(1, repeats // 2) if rf > 4 else repeats)
         n = fv.n
@@ -630,8 +673,8 @@ def per_node_cost(quick, repeats, be_set, hot_face="dense"):
                      f"{res[2][4] / ni_be * 1e9:.1f}", f"{res[2][4] / ni_be / th:.1f}",
                      f"{th * 1e9:.1f}"))
     say(f"Cost per node and Newton iteration as the mesh grows (problem (e); fdwall at its "
-        f"default tolerance, system prebuilt, with the 60-s samples and with hourly samples "
-        f"(same steps); careful BE at {P.STEP_INTERVAL / nsub:.3g} s; x Thomas = cost per "
+        f"default tolerance, system prebuilt, estimate off (one run per call), with the 60-s "
+        f"samples and with hourly samples (same steps); careful BE at {P.STEP_INTERVAL / nsub:.3g} s; x Thomas = cost per "
         f"node-iteration over the bare Thomas solve per node at that size, timed here):")
     say()
     table(["refine", "nodes", "fdwall steps", "fdwall Newton its", "fdwall 60-s [ms]",

@@ -29,6 +29,7 @@ contact resistance, the interface carries two nodes joined by the contact conduc
 """
 from __future__ import annotations
 
+from collections import OrderedDict
 from dataclasses import dataclass
 
 import numpy as np
@@ -64,6 +65,27 @@ MID_CELLS_FACTOR = 2.0
 :func:`default_cells` [-] (fronts crossing a layer reach the next interface resolved)."""
 MIN_FIRST_CELL = 1e-5
 """Smallest first cell as a fraction of the layer thickness [-] (bounds the cell count)."""
+CACHE_NODES = 200_000
+"""Most nodes the meshes kept by :func:`mesh_wall` for reuse hold together [-] (each node costs
+about 60 bytes in its seven arrays; 12 MB at most)."""
+
+# Derived values kept across calls, keyed by value (never by object identity), so a copy of a
+# wall (the coarse and refined twins of the error estimate, a study variant) finds them too.
+# The cached arrays are read-only; the values are what a fresh computation gives, bit for bit.
+_SIZES = OrderedDict()     # (L, d_left, d_right, d_max) -> graded cell sizes [m]
+_MAPS = OrderedDict()      # node fractions (bytes) -> PCHIP map s -> fraction
+_MESHES = OrderedDict()    # shape_key -> WallMesh
+_MESH_NODES = [0]          # nodes held in _MESHES
+_SMALL_CACHE = 256         # entries kept in _SIZES and _MAPS
+
+
+def _remember(cache, key, value, size=_SMALL_CACHE):
+    """Store ``value`` under ``key`` in the LRU dict ``cache``, dropping the oldest beyond
+    ``size`` entries; returns ``value``."""
+    cache[key] = value
+    while len(cache) > size:
+        cache.popitem(last=False)
+    return value
 
 
 @dataclass(frozen=True)
@@ -209,7 +231,20 @@ def _alpha_k_min(m):
 def _graded_sizes(L, d_left, d_right, d_max):
     """Cell sizes [m] across a layer of thickness L [m]: growing by :data:`GROWTH` from
     ``d_left`` and ``d_right`` [m] at the ends, at most ``d_max`` [m]; an even number of cells,
-    scaled to sum to L."""
+    scaled to sum to L (a read-only array, cached by value)."""
+    key = (float(L), float(d_left), float(d_right), float(d_max))
+    got = _SIZES.get(key)
+    if got is not None:
+        _SIZES.move_to_end(key)
+        return got
+    sz = _graded_sizes_new(L, d_left, d_right, d_max)
+    sz.setflags(write=False)
+    return _remember(_SIZES, key, sz)
+
+
+def _graded_sizes_new(L, d_left, d_right, d_max):
+    """:func:`_graded_sizes` computed afresh [m]: the fewest (even) cells whose sizes, growing
+    by GROWTH from both ends and capped at d_max, reach L; then scaled to sum to L."""
     n = 2
     while True:
         i = np.arange(n)
@@ -264,8 +299,14 @@ def graded_fractions(wall, grading) -> list:
 
 
 def _layer_map(f):
-    """The smooth monotone map s -> fraction through the node fractions ``f`` (s = i/n)."""
-    return PchipInterpolator(np.linspace(0.0, 1.0, f.size), f)
+    """The smooth monotone map s -> fraction through the node fractions ``f`` (s = i/n),
+    cached by the bytes of ``f``."""
+    key = f.tobytes()
+    got = _MAPS.get(key)
+    if got is not None:
+        _MAPS.move_to_end(key)
+        return got
+    return _remember(_MAPS, key, PchipInterpolator(np.linspace(0.0, 1.0, f.size), f))
 
 
 def _geometry(geometry, r1, r2, area, length):
@@ -345,8 +386,27 @@ def mesh_wall(wall, cells=None, grading=None) -> WallMesh:
     ``grading`` (a :class:`MeshGrading`, from :func:`problem_grading`) grades the layers
     without their own ``cells`` from the problem; without it they follow the smooth sine map.
     ``cells`` (per layer) defaults to :func:`cell_counts`; pass it when already known.
+
+    Meshes are read-only and depend on nothing but :func:`shape_key`, so a mesh made before
+    for an equal key (the same wall, a copy of it, a study variant of the same shape) is
+    returned again, up to :data:`CACHE_NODES` nodes kept.
     """
     cells = cell_counts(wall, grading) if cells is None else cells
+    key = shape_key(wall, cells, grading)
+    got = _MESHES.get(key)
+    if got is not None:
+        _MESHES.move_to_end(key)
+        return got
+    mesh = _mesh_wall_new(wall, cells, grading)
+    _MESHES[key] = mesh
+    _MESH_NODES[0] += mesh.n
+    while _MESH_NODES[0] > CACHE_NODES and len(_MESHES) > 1:
+        _MESH_NODES[0] -= _MESHES.popitem(last=False)[1].n
+    return mesh
+
+
+def _mesh_wall_new(wall, cells, grading) -> WallMesh:
+    """:func:`mesh_wall` computed afresh (``cells`` per layer given)."""
     edges = wall.radii()
     geo, A, L = wall.shape, wall.area, wall.length
     nl = len(cells)

@@ -71,7 +71,8 @@ def _digest(a) -> str:
 
 
 def capture(case) -> list:
-    """The arguments of the first ``integrate`` call of ``fdwall.run(case)`` (copies)."""
+    """The arguments of the first ``integrate`` call of ``fdwall.run(case)`` (copies): the
+    reported run's (the estimate's extra runs come after it)."""
     import fdwall
     from fdwall.solver import native, transient
     got = []

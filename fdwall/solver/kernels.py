@@ -230,15 +230,19 @@ def mat_eval(m_off, mtab, m, T):
 
 
 @njit(cache=True, inline="always")
-def face_h(face_i, face_f, hpar, f, Ts, Tf):
-    """Convective film coefficient [W/m2/K] of face ``f`` and its derivatives d/dTs, d/dTf."""
+def face_h(face_i, face_f, hpar, f, Ts, Tf, need_f):
+    """Convective film coefficient [W/m2/K] of face ``f`` and its derivatives d/dTs, d/dTf;
+    d/dTf only when ``need_f`` (the fluid is an unknown: the chamber), else 0 (a correlation
+    costs as much as the rest of a small assembly, so it is not evaluated for nothing)."""
     if face_i[f, FI_H_MODE] == H_FIXED:
         return face_f[f, FF_H], 0.0, 0.0
     p = hpar[f]
     h = h_conv(p, Ts, Tf)
     dT = 1e-3
     dhs = (h_conv(p, Ts + dT, Tf) - h) / dT
-    dhf = (h_conv(p, Ts, Tf + dT) - h) / dT
+    dhf = 0.0
+    if need_f:
+        dhf = (h_conv(p, Ts, Tf + dT) - h) / dT
     return h, dhs, dhf
 
 
@@ -365,10 +369,11 @@ def conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju):
 
 
 @njit(cache=True, inline="always")
-def film(face_i, face_f, hpar, f, A, Ts, Tf):
+def film(face_i, face_f, hpar, f, A, Ts, Tf, need_f):
     """Convective film of face ``f`` (area A [m2], surface Ts and fluid Tf [K]): film
-    coefficient [W/m2/K], heat into the wall [W] and its derivatives d/dTs, d/dTf [W/K]."""
-    hcv, dhs, dhf = face_h(face_i, face_f, hpar, f, Ts, Tf)
+    coefficient [W/m2/K], heat into the wall [W] and its derivatives d/dTs, d/dTf [W/K]
+    (d/dTf exact only when ``need_f``: see :func:`face_h`)."""
+    hcv, dhs, dhf = face_h(face_i, face_f, hpar, f, Ts, Tf, need_f)
     qc = A * hcv * (Tf - Ts)
     dqc_s = A * (dhs * (Tf - Ts) - hcv)
     dqc_f = A * (dhf * (Tf - Ts) + hcv)
@@ -418,7 +423,7 @@ def faces(T, t, left, face_i, face_f, hpar, s_off, stab, has_ch, nc_idx, F, Jd, 
             Tf = sched_eval(s_off, stab, face_i[f, FI_FLUID], t, left)
         else:
             Tf = Ts
-        hcv, qc, dqc_s, dqc_f = film(face_i, face_f, hpar, f, A, Ts, Tf)
+        hcv, qc, dqc_s, dqc_f = film(face_i, face_f, hpar, f, A, Ts, Tf, to_ch)
         hc[f] = hcv
         qr = 0.0
         dqr_s = 0.0
