@@ -899,6 +899,15 @@ def _sensitivity(case, rows, warnings):
     return out
 
 
+def _caution_footer(fig, text):
+    """Write the caution ``text`` in full, wrapped, along the foot of ``fig`` and lay the
+    axes out above it (every plot that speaks of touch or burns carries it)."""
+    import textwrap
+    lines = textwrap.wrap(text, 150, break_on_hyphens=False)
+    fig.text(0.01, 0.01, "\n".join(lines), fontsize=7, va="bottom", color="#444444")
+    fig.tight_layout(rect=(0, 0.012 + 0.032 * len(lines), 1, 1))
+
+
 def write_touch_plots(a: TouchAssessment, outdir, stem) -> list:
     """PNG plots of an assessment (matplotlib imported here, lazily): skin temperature of each
     face against time with its limit (``<stem>-touch.png``) and the contact-simulation
@@ -927,8 +936,7 @@ def write_touch_plots(a: TouchAssessment, outdir, stem) -> list:
     ax.set_title(f"Touch safety: {a.criterion} criterion, contact {a.contact_time_s:g} s")
     ax.grid(alpha=0.3)
     ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
-    fig.text(0.01, 0.01, "Engineering estimate: confirm by measurement.", fontsize=7)
-    fig.tight_layout(rect=(0, 0.03, 1, 1))
+    _caution_footer(fig, SAFETY_CAUTION)
     p = outdir / f"{stem}-touch.png"
     with atomic_path(p, ".png.part") as tmp:
         fig.savefig(tmp, dpi=110, format="png")
@@ -949,8 +957,7 @@ def write_touch_plots(a: TouchAssessment, outdir, stem) -> list:
         ax.set_title(f"Contact simulation ({_damage_set(sims[0].contact_history.model)['title']})")
         ax.grid(alpha=0.3)
         ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
-        fig.text(0.01, 0.01, "Engineering indicator, not a medical prediction.", fontsize=7)
-        fig.tight_layout(rect=(0, 0.03, 1, 1))
+        _caution_footer(fig, SAFETY_CAUTION + " " + BURN_INDICATOR_NOTE)
         p = outdir / f"{stem}-contact.png"
         with atomic_path(p, ".png.part") as tmp:
             fig.savefig(tmp, dpi=110, format="png")

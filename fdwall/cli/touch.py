@@ -218,7 +218,7 @@ def register(sub) -> None:
         "time over it, instant contact temperature, a short-contact simulation with a "
         "burn-damage indicator, time to safe after power-off, and how the verdict moves with "
         "the film coefficient and emissivity. Exit 0 whatever the verdict; 3 when the run "
-        "stopped early (verdict 'unknown'). Engineering estimate: confirm by measurement.")
+        "stopped early (verdict 'unknown'). " + SAFETY_CAUTION + " " + BURN_INDICATOR_NOTE)
     p.add_argument("case", metavar="CASE", help="TOML case file")
     p.add_argument("--criterion", default="table", metavar="NAME",
                    help="table (default; burn thresholds by surface class and contact time), "

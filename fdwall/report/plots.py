@@ -15,6 +15,7 @@ import textwrap
 import numpy as np
 
 from ..atomic import atomic_path
+from ..cautions import SAFETY_CAUTION
 from ..solver.readout import profile_points
 
 __all__ = ["plot_temperatures", "plot_profiles", "layer_label", "plot_energy", "write_plots"]
@@ -313,6 +314,9 @@ def plot_temperatures(result, path) -> str:
                      "inner face and interfaces", fontsize=9)
         ax_out.set_title("outer faces (skin: the surfaces people can touch)" if not single
                          else "outer face (skin)", fontsize=9)
+        # the panel speaks of skin temperatures: it carries the caution
+        fig.supxlabel("\n".join(textwrap.wrap(SAFETY_CAUTION, 150)), fontsize=7,
+                      color="#444444")
     _suptitle(fig, result, "face and interface temperatures")
     for a in axes:
         handles, labels = _visible_legend(a)
