@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import difflib
 import math
+import textwrap
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from pathlib import Path
@@ -902,7 +903,6 @@ def _sensitivity(case, rows, warnings):
 def _caution_footer(fig, text):
     """Write the caution ``text`` in full, wrapped, along the foot of ``fig`` and lay the
     axes out above it (every plot that speaks of touch or burns carries it)."""
-    import textwrap
     lines = textwrap.wrap(text, 150, break_on_hyphens=False)
     fig.text(0.01, 0.01, "\n".join(lines), fontsize=7, va="bottom", color="#444444")
     fig.tight_layout(rect=(0, 0.012 + 0.032 * len(lines), 1, 1))
