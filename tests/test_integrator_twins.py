@@ -144,7 +144,7 @@ def test_error_norm_matches_a_dense_solve(name):
     hs, tol = 45.0, 0.01
     work = [np.empty(n) for _ in range(5)]
     got = Kr.error_norm(F0, Fg, F1, hs, Kr.D_COEF * hs, Cap, *J, sysm.dirich_node,
-                        sysm.chains, sysm.n_nodes, sysm.has_chamber, *work, tol)
+                        sysm.chains, sysm.n_nodes, sysm.has_chamber, *work, tol, False)
     assert got == pytest.approx(tw.error_norm(sysm, F0, Fg, F1, hs, Cap, Jdense, tol),
                                 rel=1e-9)
 
@@ -305,3 +305,66 @@ def test_conduction_sets_its_entries_whatever_the_arrays_held():
     assert np.allclose(arrs[0], F, rtol=1e-10, atol=1e-9) and np.allclose(arrs[1], Cap)
     assert np.allclose(arrs[2], H, rtol=1e-12)
     assert np.allclose(arrs[3], np.diag(J), rtol=1e-10)
+
+
+# ------------------------------------------------------------------ end of a Newton stage
+def _stage(sysm, linear_end, T0, dh, tol):
+    """One time stage H(T) - Hbase - dh F(T) = 0 from T0 (Hbase = H(T0) + dh F(T0) + a
+    perturbation, so Newton has work to do) through ``_newton_iterate``; returns its code,
+    the solution and the F, Cap, H, qf, hc, hr and matrix arrays it leaves."""
+    n, nf = sysm.n_unknowns, sysm.face_i.shape[0]
+    sa = system_args(sysm)
+    F, Cap, H = np.empty(n), np.empty(n), np.empty(n)
+    J = [np.empty(n) for _ in range(5)]
+    qf, hc, hr, ex = np.empty(nf), np.empty(nf), np.empty(nf), np.zeros(N_EX)
+    Kr.assemble(T0, 100.0, 0.0, -1.0, *sa, F, Cap, H, *J, qf, hc, hr, ex)
+    Hbase = H + dh * F + np.linspace(-0.02, 0.03, n) * Cap     # about 0.03 K of change
+    T = np.empty(n)
+    work = [np.empty(n) for _ in range(5)]
+    stats = np.zeros(L.N_STATS)
+    code = Kr._newton_iterate(T, T0.copy(), 100.0, dh, Hbase, -1.0, sysm.dirich_node,
+                              sysm.dirich_sched, *sa, F, Cap, H, *J, qf, hc, hr, ex, *work,
+                              tol, stats, linear_end)
+    return code, T, F, Cap, H, qf, hc, hr, J, Hbase
+
+
+@pytest.mark.parametrize("name", list(CASES))
+def test_newton_stage_linear_end_satisfies_the_stage_equation(name):
+    # Newton's method: after the last correction dx the values at the new point are, to first
+    # order, H + Cap dx and F + J dx (Taylor); carried that way they satisfy the stage equation
+    # exactly (energy bookkeeping unchanged) and differ from an assembly there by O(dx^2)
+    sysm = build_system(CASES[name]())
+    n = sysm.n_unknowns
+    T0 = np.linspace(560.0, 320.0, n) + RNG.uniform(-3, 3, n)
+    for i, d in enumerate(sysm.dirich_node):
+        T0[d] = Kr.sched_eval(sysm.s_off, sysm.stab, sysm.dirich_sched[i], 100.0, 1.0)
+    dh, tol = 40.0, 1e-4
+    full = _stage(sysm, False, T0, dh, tol)
+    lin = _stage(sysm, True, T0, dh, tol)
+    assert full[0] == 1
+    # the same iterations: the same temperatures, bit for bit
+    assert np.array_equal(full[1], lin[1])
+    allowed = (len(sysm.dirich_node) == 0 and not sysm.has_chamber
+               and not (sysm.ctl_i[L.CI_HEATER_NODE] >= 0 and sysm.ctl_f[L.CF_ALPHA] > 0))
+    if not allowed:
+        # fixed-temperature rows, a chamber or a temperature-dependent heater: assembled
+        assert lin[0] == 1
+        for a, b in zip(full[2:8], lin[2:8]):
+            assert np.array_equal(a, b)
+        return
+    assert lin[0] == 2
+    F, Cap, H, qf, hc, hr, M, Hbase = lin[2], lin[3], lin[4], lin[5], lin[6], lin[7], lin[8], \
+        lin[9]
+    scale = np.max(np.abs(H))
+    # the stage equation holds for the carried values to rounding
+    assert np.max(np.abs(H - Hbase - dh * F)) < 1e-13 * scale
+    # and they are the assembled values at the solution to second order in the correction
+    Fa, Ha = full[2], full[4]
+    assert np.max(np.abs(H - Ha)) < 1e-9 * scale
+    assert np.max(np.abs(F - Fa)) < 1e-6 * max(1.0, np.max(np.abs(Fa)))
+    # face flows and film coefficients: evaluated at the solution, as an assembly does
+    for a, b in zip(full[5:8], (qf, hc, hr)):
+        assert np.allclose(a, b, rtol=0, atol=1e-12 * max(1.0, np.max(np.abs(a))))
+    # the Newton matrix is left for the error filter: diag(Cap) - dh J at the last iterate
+    Jd_full = full[8][0]
+    assert np.allclose(M[0], Cap - dh * Jd_full, rtol=1e-5)

@@ -619,7 +619,46 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
                   R, dx, wc, wy, wz, tol, stats):
     """Solve H(T) - Hbase - dh*F(T) = 0 (Dirichlet rows: T = T_set(t)) by Newton.
 
-    Returns True on convergence; T holds the solution and F/Cap/H/J the values there.
+    Returns True on convergence; T holds the solution and F/Cap/H/J the values there (one
+    assembly at the solution: see :func:`_newton_iterate`, here without its linear end).
+    """
+    return _newton_iterate(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
+                           node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off,
+                           stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow,
+                           qf, hc, hr, extra, R, dx, wc, wy, wz, tol, stats, False) > 0
+
+
+@njit(cache=True, inline="always")
+def _linear_end_allowed(dirich_node, ch_i, ctl_i, ctl_f):
+    """True when the values at a converged Newton iterate may be carried to the corrected
+    temperatures to first order (:func:`_newton_iterate`): no fixed-temperature rows (their
+    flow needs the Jacobian row the Newton matrix replaces), no chamber node, and a heater
+    power that does not depend on temperature."""
+    if dirich_node.shape[0] > 0 or ch_i[CHI_PRESENT] == 1:
+        return False
+    return not (ctl_i[CI_HEATER_NODE] >= 0 and ctl_f[CF_ALPHA] > 0.0)
+
+
+@njit(cache=True)
+def _newton_iterate(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
+                    node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab,
+                    ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc, hr,
+                    extra, R, dx, wc, wy, wz, tol, stats, linear_end):
+    """Newton iterations of a time stage H(T) - Hbase - dh*F(T) = 0 (Dirichlet rows:
+    T = T_set(t)).
+
+    Returns 0 when Newton fails; else T holds the solution and
+
+    - 1: F, Cap, H, qf, hc, hr, extra and the Jacobian dF/dT (Jd .. Jrow) are assembled at
+      it (one more assembly after the last correction);
+    - 2 (``linear_end`` and :func:`_linear_end_allowed`): no assembly after the last
+      correction dx [K] (below ``tol``).  H and F are carried to it to first order,
+      H + Cap dx and F + J dx, where J dx = (Cap dx - R) / dh from the Newton system
+      M dx = R (M = diag(Cap) - dh J, R = -(H - Hbase - dh F)), so the carried values
+      satisfy the stage equation exactly and the energy ledger closes as with an assembly;
+      the face flows qf and film coefficients hc, hr are evaluated at the solution (cheap:
+      the faces only); Cap, extra and the Newton matrix M (left in Jd .. Jrow, for the
+      error filter) are those of the last iterate, O(dx) away.
     """
     N = node_i.shape[0]
     nun = T.shape[0]
@@ -640,27 +679,42 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
         stats[ST_NEWTON] += 1
         mx = _apply_correction(T, dx, 200.0)
         if mx < 0.0:
-            return False
+            return 0
         if mx < tol:
             # a solution pinned at the 1 K floor is no solution: more heat was taken than the
             # wall holds; the caller shortens the step (and reports it if that fails)
             # (a node that starts the step at the floor and stays there is a case at rest)
+            floored = False
             for i in range(nun):
-                if T[i] <= 1.0 and Tguess[i] > 1.0 + tol:
-                    stats[ST_COLD] += 1
-                    return False
+                if T[i] <= 1.0:
+                    floored = True
+                    if Tguess[i] > 1.0 + tol:
+                        stats[ST_COLD] += 1
+                        return 0
+            if (linear_end and not floored
+                    and _linear_end_allowed(dirich_node, ch_i, ctl_i, ctl_f)):
+                inv = 1.0 / dh
+                for i in range(nun):
+                    cdx = Cap[i] * dx[i]
+                    H[i] += cdx
+                    F[i] += (cdx - R[i]) * inv
+                # the faces at the solution (R, dx, wy, wz as scratch for the flows and
+                # derivatives that faces() adds: F and the Newton matrix are kept)
+                faces(T, t, 1.0, face_i, face_f, hpar, s_off, stab, False, N, R, dx, wy, wz,
+                      qf, hc, hr)
+                return 2
             # values at the converged point for the caller
             assemble(T, t, 1.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
                      mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol,
                      Jrow, qf, hc, hr, extra)
             stats[ST_ASSEMBLE] += 1
-            return True
+            return 1
         # diverging: corrections stop shrinking (a correction cut to the 200 K cap still
         # makes steady progress and does not count)
         if it >= 3 and mx <= 200.0 and mx > 0.7 * prev:
-            return False
+            return 0
         prev = mx
-    return False
+    return 0
 
 
 @njit(cache=True)
@@ -924,16 +978,22 @@ def balance(acc, stats, H1, has_ext):
 
 @njit(cache=True)
 def error_norm(F0, Fg, F1, hs, dh, Cap, Jd, Jl, Ju, Jcol, Jrow, dirich_node, chains, N, has_ch,
-               R, dx, wc, wy, wz, tol):
+               R, dx, wc, wy, wz, tol, held):
     """Local error of a TR-BDF2 step of hs [s] relative to ``tol`` [K] (accept when <= 1):
     the embedded estimate of Bank et al. (1985) from the flows F [W] at the start, stage and
     end, filtered by the stage matrix Cap - dh J (Hosea & Shampine 1996), max norm.  Jd ..
-    Jrow hold dF/dT at the step end on entry and the Newton matrix on return."""
+    Jrow hold dF/dT at the step end on entry (``held`` False) or already the stage matrix
+    (``held`` True: the second stage's Newton matrix at its last iterate), and the matrix on
+    return."""
     nun = F0.shape[0]
     for i in range(nun):
         R[i] = 2.0 * KERR * hs * (F0[i] / GAMMA - Fg[i] / (GAMMA * (1.0 - GAMMA))
                                   + F1[i] / (1.0 - GAMMA))
-    _newton_matrix(Cap, 1.0, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R)
+    if held:
+        for k in range(dirich_node.shape[0]):
+            R[dirich_node[k]] = 0.0
+    else:
+        _newton_matrix(Cap, 1.0, dh, Jd, Jl, Ju, Jcol, Jrow, dirich_node, R)
     solve_arrow(Jd, Jl, Ju, Jcol, Jrow, chains, N, has_ch, R, dx, wc, wy, wz)
     err = 0.0
     for i in range(nun):
@@ -1161,12 +1221,13 @@ def stage_trapezoid(Tg, T, Tprev, hprev, have_prev, t, hs, dh, H0, F0, u, dirich
                     s_off, stab, ch_i, ch_f, ctl_i, ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol,
                     Jrow, qg, hcw, hrw, exg, R, dx, wc, wy, wz, Hb, Tp, newton_tol, stats):
     """Solve the first stage for the state Tg [K] at t + gamma hs: H(Tg) - dh F(Tg) =
-    H0 + dh F0.  True on convergence (Fg, Cap, Hg, qg, exg then hold the stage values)."""
+    H0 + dh F0.  Nonzero on convergence (Fg, Cap, Hg, qg, exg then hold the stage values;
+    1 or 2 as :func:`_newton_iterate`)."""
     trapezoid_guess(T, Tprev, hprev, have_prev, hs, dh, H0, F0, Hb, Tp)
-    return _newton_stage(Tg, Tp, t + GAMMA * hs, dh, Hb, u, dirich_node, dirich_sched, node_i,
-                         node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i,
-                         ch_f, ctl_i, ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol, Jrow, qg, hcw, hrw,
-                         exg, R, dx, wc, wy, wz, newton_tol, stats)
+    return _newton_iterate(Tg, Tp, t + GAMMA * hs, dh, Hb, u, dirich_node, dirich_sched,
+                           node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off,
+                           stab, ch_i, ch_f, ctl_i, ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol, Jrow,
+                           qg, hcw, hrw, exg, R, dx, wc, wy, wz, newton_tol, stats, True)
 
 
 @njit(cache=True)
@@ -1175,13 +1236,14 @@ def stage_bdf2(T1, T, Tg, t, hs, dh, H0, Hg, u, dirich_node, dirich_sched, node_
                ctl_f, F1, Cap, H1, Jd, Jl, Ju, Jcol, Jrow, q1, hcw, hrw, ex1, R, dx, wc, wy,
                wz, Hb, Tp, newton_tol, stats):
     """Solve the second stage for the step-end state T1 [K] at t + hs: H(T1) - dh F(T1) =
-    A2 Hg - B2 H0.  True on convergence (F1, Cap, H1, q1, ex1 and the Jacobian then hold
-    the values at the step end)."""
+    A2 Hg - B2 H0.  Nonzero on convergence: F1, Cap, H1, q1, ex1 then hold the values at the
+    step end, and Jd .. Jrow the Jacobian there (1) or the stage's Newton matrix at its last
+    iterate (2), see :func:`_newton_iterate`."""
     bdf2_guess(T, Tg, H0, Hg, Hb, Tp)
-    return _newton_stage(T1, Tp, t + hs, dh, Hb, u, dirich_node, dirich_sched, node_i, node_f,
-                         chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f,
-                         ctl_i, ctl_f, F1, Cap, H1, Jd, Jl, Ju, Jcol, Jrow, q1, hcw, hrw, ex1, R,
-                         dx, wc, wy, wz, newton_tol, stats)
+    return _newton_iterate(T1, Tp, t + hs, dh, Hb, u, dirich_node, dirich_sched, node_i,
+                           node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab,
+                           ch_i, ch_f, ctl_i, ctl_f, F1, Cap, H1, Jd, Jl, Ju, Jcol, Jrow, q1,
+                           hcw, hrw, ex1, R, dx, wc, wy, wz, newton_tol, stats, True)
 
 
 @njit(cache=True)
@@ -1378,13 +1440,13 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                                  face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i,
                                  ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol, Jrow, qg, hcw, hrw, exg,
                                  R, dx, wc, wy, wz, Hb, Tp, newton_tol, stats)
-            if ok:
+            if ok > 0:
                 ok = stage_bdf2(T1, T, Tg, t, hs, dh, H0, Hg, u, dirich_node, dirich_sched,
                                 node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
                                 s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F1, Cap, H1, Jd, Jl, Ju,
                                 Jcol, Jrow, q1, hcw, hrw, ex1, R, dx, wc, wy, wz, Hb, Tp,
                                 newton_tol, stats)
-            if not ok:
+            if ok == 0:
                 stats[ST_NFAIL] += 1
                 hs *= 0.25
                 land = False
@@ -1394,7 +1456,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
                 continue
             # error estimate (Bank et al. 1985), filtered by the stage matrix (Hosea & Shampine 1996)
             err = error_norm(F0, Fg, F1, hs, dh, Cap, Jd, Jl, Ju, Jcol, Jrow, dirich_node, chains,
-                             N, has_ch, R, dx, wc, wy, wz, tol)
+                             N, has_ch, R, dx, wc, wy, wz, tol, ok == 2)
             if not (err <= 1.0):
                 stats[ST_REJ] += 1
                 hs *= factor_rejected(err)
