@@ -311,7 +311,8 @@ def test_conduction_sets_its_entries_whatever_the_arrays_held():
 def _stage(sysm, linear_end, T0, dh, tol):
     """One time stage H(T) - Hbase - dh F(T) = 0 from T0 (Hbase = H(T0) + dh F(T0) + a
     perturbation, so Newton has work to do) through ``_newton_iterate``; returns its code,
-    the solution and the F, Cap, H, qf, hc, hr and matrix arrays it leaves."""
+    the solution, the F, Cap, H, qf, hc, hr and matrix arrays it leaves, Hbase and the
+    heater power and chamber loss."""
     n, nf = sysm.n_unknowns, sysm.face_i.shape[0]
     sa = system_args(sysm)
     F, Cap, H = np.empty(n), np.empty(n), np.empty(n)
@@ -325,7 +326,7 @@ def _stage(sysm, linear_end, T0, dh, tol):
     code = Kr._newton_iterate(T, T0.copy(), 100.0, dh, Hbase, -1.0, sysm.dirich_node,
                               sysm.dirich_sched, *sa, F, Cap, H, *J, qf, hc, hr, ex, *work,
                               tol, stats, linear_end)
-    return code, T, F, Cap, H, qf, hc, hr, J, Hbase
+    return code, T, F, Cap, H, qf, hc, hr, J, Hbase, ex
 
 
 @pytest.mark.parametrize("name", list(CASES))
@@ -344,10 +345,8 @@ def test_newton_stage_linear_end_satisfies_the_stage_equation(name):
     assert full[0] == 1
     # the same iterations: the same temperatures, bit for bit
     assert np.array_equal(full[1], lin[1])
-    allowed = (len(sysm.dirich_node) == 0 and not sysm.has_chamber
-               and not (sysm.ctl_i[L.CI_HEATER_NODE] >= 0 and sysm.ctl_f[L.CF_ALPHA] > 0))
-    if not allowed:
-        # fixed-temperature rows, a chamber or a temperature-dependent heater: assembled
+    if len(sysm.dirich_node):
+        # fixed-temperature rows: assembled
         assert lin[0] == 1
         for a, b in zip(full[2:8], lin[2:8]):
             assert np.array_equal(a, b)
@@ -362,8 +361,9 @@ def test_newton_stage_linear_end_satisfies_the_stage_equation(name):
     Fa, Ha = full[2], full[4]
     assert np.max(np.abs(H - Ha)) < 1e-9 * scale
     assert np.max(np.abs(F - Fa)) < 1e-6 * max(1.0, np.max(np.abs(Fa)))
-    # face flows and film coefficients: evaluated at the solution, as an assembly does
-    for a, b in zip(full[5:8], (qf, hc, hr)):
+    # face flows, film coefficients, heater power and chamber loss: evaluated at the
+    # solution, as an assembly does
+    for a, b in zip(full[5:8] + (full[10],), (qf, hc, hr, lin[10])):
         assert np.allclose(a, b, rtol=0, atol=1e-12 * max(1.0, np.max(np.abs(a))))
     # the Newton matrix is left for the error filter: diag(Cap) - dh J at the last iterate
     Jd_full = full[8][0]

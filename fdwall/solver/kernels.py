@@ -629,14 +629,11 @@ def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
 
 
 @njit(cache=True, inline="always")
-def _linear_end_allowed(dirich_node, ch_i, ctl_i, ctl_f):
+def _linear_end_allowed(dirich_node):
     """True when the values at a converged Newton iterate may be carried to the corrected
-    temperatures to first order (:func:`_newton_iterate`): no fixed-temperature rows (their
-    flow needs the Jacobian row the Newton matrix replaces), no chamber node, and a heater
-    power that does not depend on temperature."""
-    if dirich_node.shape[0] > 0 or ch_i[CHI_PRESENT] == 1:
-        return False
-    return not (ctl_i[CI_HEATER_NODE] >= 0 and ctl_f[CF_ALPHA] > 0.0)
+    temperatures to first order (:func:`_newton_iterate`): no fixed-temperature rows (the
+    flow of such a row needs the Jacobian row that the Newton matrix replaces)."""
+    return dirich_node.shape[0] == 0
 
 
 @njit(cache=True)
@@ -656,9 +653,10 @@ def _newton_iterate(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
       H + Cap dx and F + J dx, where J dx = (Cap dx - R) / dh from the Newton system
       M dx = R (M = diag(Cap) - dh J, R = -(H - Hbase - dh F)), so the carried values
       satisfy the stage equation exactly and the energy ledger closes as with an assembly;
-      the face flows qf and film coefficients hc, hr are evaluated at the solution (cheap:
-      the faces only); Cap, extra and the Newton matrix M (left in Jd .. Jrow, for the
-      error filter) are those of the last iterate, O(dx) away.
+      the face flows qf, film coefficients hc, hr, heater power and chamber loss (extra)
+      are evaluated at the solution (cheap: no material look-up through the walls); Cap and
+      the Newton matrix M (left in Jd .. Jrow, for the error filter) are those of the last
+      iterate, O(dx) away.
     """
     N = node_i.shape[0]
     nun = T.shape[0]
@@ -691,17 +689,20 @@ def _newton_iterate(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
                     if Tguess[i] > 1.0 + tol:
                         stats[ST_COLD] += 1
                         return 0
-            if (linear_end and not floored
-                    and _linear_end_allowed(dirich_node, ch_i, ctl_i, ctl_f)):
+            if linear_end and not floored and _linear_end_allowed(dirich_node):
                 inv = 1.0 / dh
                 for i in range(nun):
                     cdx = Cap[i] * dx[i]
                     H[i] += cdx
                     F[i] += (cdx - R[i]) * inv
-                # the faces at the solution (R, dx, wy, wz as scratch for the flows and
-                # derivatives that faces() adds: F and the Newton matrix are kept)
-                faces(T, t, 1.0, face_i, face_f, hpar, s_off, stab, False, N, R, dx, wy, wz,
+                # the faces, the chamber's loss and the heater power at the solution, in the
+                # order of an assembly (R, dx, wy, wz as scratch for the flows, capacities and
+                # derivatives they write: F, H, Cap and the Newton matrix are kept)
+                faces(T, t, 1.0, face_i, face_f, hpar, s_off, stab, has_ch, N, R, dx, wy, wz,
                       qf, hc, hr)
+                chamber(T, t, 1.0, ch_i, ch_f, m_off, mtab, s_off, stab, N, R, wy, wz, dx,
+                        extra)
+                heater(T, t, 1.0, u_ctl, ctl_i, ctl_f, s_off, stab, R, dx, extra)
                 return 2
             # values at the converged point for the caller
             assemble(T, t, 1.0, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off,
