@@ -125,7 +125,10 @@ class Result:
         evs = {}
         for e, ev in enumerate(case.run.watch):
             evs[ev.name or f"event{e + 1}"] = (float(ev_out[e, EV_UP]), float(ev_out[e, EV_DOWN]))
-        return cls(case=case, system=sysm, times=t_out[:n].copy(), T=T_out[:n].copy(),
+        # the temperature history is the run's own array when every row of it is kept (no
+        # copy of the largest array; the driver hands it over), else the rows kept
+        T = T_out if n == T_out.shape[0] and T_out.flags.c_contiguous else T_out[:n].copy()
+        return cls(case=case, system=sysm, times=t_out[:n].copy(), T=T,
                    face_flow=qf_out[:n].copy(), face_energy=E_out[:n, :nf].copy(),
                    heater_energy=E_out[:n, nf + EX_HEATER].copy(),
                    loss_energy=E_out[:n, nf + EX_LOSS].copy(),

@@ -67,3 +67,23 @@ def test_moderate_flux_is_not_stopped(tmp_path):
     res = fdwall.run(_case(tmp_path, "2 kW/m2"), progress=False)
     assert res.complete
     assert np.nanmax(res.T) < 293.15 + 200.0 + 1.0
+
+
+def test_implausible_row_search_finds_nan_inf_and_hot_rows():
+    # the plausibility check of a block of output rows: the first row with a NaN, an
+    # infinity or a temperature above the ceiling, with its peak (NaN when not finite);
+    # None for a plausible block (common practice, no source: the ceiling is fdwall's own)
+    from fdwall.solver.transient import _implausible
+    T = np.full((6, 4), 500.0)
+    assert _implausible(T, 0, 6) is None
+    assert _implausible(T, 3, 3) is None
+    for j, bad, peak in ((4, np.nan, np.nan), (2, np.inf, np.nan), (1, -np.inf, np.nan),
+                         (3, 2 * PLAUSIBLE_CEILING_K, 2 * PLAUSIBLE_CEILING_K)):
+        U = T.copy()
+        U[j, 2] = bad
+        got = _implausible(U, 0, 6)
+        assert got[0] == j and (np.isnan(got[1]) if np.isnan(peak) else got[1] == peak)
+        # a block that starts after the bad row is plausible
+        assert _implausible(U, j + 1, 6) is None
+        if j >= 1:      # row numbers count from the start of the array, not of the block
+            assert _implausible(U, 1, 6)[0] == j

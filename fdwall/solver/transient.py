@@ -518,6 +518,10 @@ def _implausible(T_out, k0, k1):
     block = T_out[k0:k1]
     if block.size == 0:
         return None
+    # the common case in two plain reductions (a NaN anywhere makes the maximum NaN, and a
+    # -inf makes the minimum -inf): only a block that fails them is searched row by row
+    if block.max() <= PLAUSIBLE_CEILING_K and block.min() > -np.inf:
+        return None
     ok = np.isfinite(block).all(axis=1) & (np.nanmax(np.where(np.isfinite(block), block, np.inf),
                                                     axis=1) <= PLAUSIBLE_CEILING_K)
     if ok.all():
