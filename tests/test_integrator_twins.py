@@ -193,7 +193,8 @@ def _dense_call(t_out, k, t, hs, land, t_target, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb,
     e = np.zeros(0, dtype=np.int64)
     k_new = Kr.dense_output(k, n, t, hs, land, t_target, t_out, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb,
                             hc, hc, hc, hc, ex, ex, acc_a, acc_b, np.zeros(0), np.zeros(0), e, e,
-                            e, np.zeros(1, dtype=np.int64), np.zeros((2, 1)), nf, *outs)
+                            e, np.zeros(1, dtype=np.int64), np.zeros((2, 1)), nf, *outs,
+                            np.empty(nun), np.empty(nun))
     return k_new, outs
 
 

@@ -230,6 +230,44 @@ def mat_eval(m_off, mtab, m, T):
 
 
 @njit(cache=True, inline="always")
+def mat_eval_near(m_off, mtab, m, T, lo):
+    """:func:`mat_eval` started from a guess of the table segment: ``lo`` (the segment of the
+    last look-up, e.g. of the neighbouring node; any value) is taken when T lies in it and the
+    table is searched otherwise.  A segment is accepted by the rule the search finds it by
+    (T_lo <= T < T_lo+1), so the values are those of :func:`mat_eval`, bit for bit.  Returns
+    k, K, c, H as :func:`mat_eval` and the segment used (the guess for the next look-up)."""
+    a = m_off[m]
+    b = m_off[m + 1]
+    if T <= mtab[MT_T, a]:
+        k = mtab[MT_K, a]
+        c = mtab[MT_C, a]
+        d = T - mtab[MT_T, a]
+        return k, mtab[MT_KINT, a] + k * d, c, mtab[MT_H, a] + c * d, lo
+    if T >= mtab[MT_T, b - 1]:
+        k = mtab[MT_K, b - 1]
+        c = mtab[MT_C, b - 1]
+        d = T - mtab[MT_T, b - 1]
+        return k, mtab[MT_KINT, b - 1] + k * d, c, mtab[MT_H, b - 1] + c * d, lo
+    if lo < a or lo >= b - 1 or mtab[MT_T, lo] > T or T >= mtab[MT_T, lo + 1]:
+        lo = a
+        hi = b - 1
+        while hi - lo > 1:
+            mid = (lo + hi) // 2
+            if mtab[MT_T, mid] <= T:
+                lo = mid
+            else:
+                hi = mid
+    d = T - mtab[MT_T, lo]
+    w = d / (mtab[MT_T, lo + 1] - mtab[MT_T, lo])
+    k0 = mtab[MT_K, lo]
+    c0 = mtab[MT_C, lo]
+    k = k0 + w * (mtab[MT_K, lo + 1] - k0)
+    c = c0 + w * (mtab[MT_C, lo + 1] - c0)
+    return (k, mtab[MT_KINT, lo] + 0.5 * d * (k0 + k), c, mtab[MT_H, lo] + 0.5 * d * (c0 + c),
+            lo)
+
+
+@njit(cache=True, inline="always")
 def face_h(face_i, face_f, hpar, f, Ts, Tf, need_f):
     """Convective film coefficient [W/m2/K] of face ``f`` and its derivatives d/dTs, d/dTf;
     d/dTf only when ``need_f`` (the fluid is an unknown: the chamber), else 0 (a correlation
@@ -302,7 +340,8 @@ def conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju):
     contact conductances [W/K]; sets F [W] and the tridiagonal Jd, Jl, Ju [W/K] of the N wall
     nodes (the first term of the assembly: the others add to what it sets).
 
-    Each node's materials are evaluated once at its own temperature; the link i-1 -> i uses
+    Each node's materials are evaluated once at its own temperature (starting from the
+    table segment of the node before: :func:`mat_eval_near`); the link i-1 -> i uses
     the right-half value of node i-1 (same material as the left half of node i), so every
     link costs no extra table look-up.  One pass over the nodes: each entry is written once
     when its node is reached and corrected once by the link to the next node, in the same
@@ -311,6 +350,9 @@ def conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju):
     N = node_i.shape[0]
     kr_prev = 0.0
     Kr_prev = 0.0
+    # table segment of the last look-up: neighbouring nodes of a layer mostly share one, so
+    # the next node tries it before searching (same values: mat_eval_near)
+    lo = -1
     for i in range(N):
         Ti = T[i]
         ml = node_i[i, NI_MAT_L]
@@ -322,7 +364,7 @@ def conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju):
         cap = 0.0
         hh = 0.0
         if ml >= 0:
-            kl, Kl, c, h = mat_eval(m_off, mtab, ml, Ti)
+            kl, Kl, c, h, lo = mat_eval_near(m_off, mtab, ml, Ti, lo)
             v = node_f[i, NF_VOL_L]
             cap = 0.0 + v * c
             hh = 0.0 + v * h
@@ -333,7 +375,7 @@ def conduction(T, node_i, node_f, m_off, mtab, F, Cap, H, Jd, Jl, Ju):
                 kr = kl
                 Kr = Kl
             else:
-                kr, Kr, c, h = mat_eval(m_off, mtab, mr, Ti)
+                kr, Kr, c, h, lo = mat_eval_near(m_off, mtab, mr, Ti, lo)
             v = node_f[i, NF_VOL_R]
             cap += v * c
             hh += v * h
@@ -805,12 +847,13 @@ def _hermite_cross(ya0, ya1, da0, da1, yb0, yb1, db0, db1, w, mat, m_off, mtab, 
 
 
 @njit(cache=True)
-def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hca, hra, hcb, hrb, exa, exb,
+def _write_row(k, th, hs, tk, Ta, Tb, sa, sb, qa, qb, hca, hra, hcb, hrb, exa, exb,
                acc_a, acc_b, qd_a, qd_b, dirich_node, dirich_sched, dirich_face, s_off, stab, nf,
                T_out, qf_out, E_out, P_out, hc_out, hr_out):
     """Write output row ``k`` at fraction ``th`` of the step: cubic Hermite in the states
-    (slopes F/C) and in the cumulative energies (slopes = the flows), linear in the flows and
-    the film coefficients (step start ``a``, step end ``b``)."""
+    (slopes sa, sb = F/C [K/s] at the step start ``a`` and end ``b``; not read when th = 1)
+    and in the cumulative energies (slopes = the flows), linear in the flows and the film
+    coefficients."""
     nun = Ta.shape[0]
     s2 = th * th
     s3 = s2 * th
@@ -823,10 +866,10 @@ def _write_row(k, th, hs, tk, Ta, Tb, Fa, Ca, Fb, Cb, qa, qb, hca, hra, hcb, hrb
         for i in range(nun):
             row[i] = Tb[i]
     else:
-        a = h10 * hs        # the products in the order of h10 * hs * Fa / Ca
+        a = h10 * hs
         b = h11 * hs
         for i in range(nun):
-            row[i] = h00 * Ta[i] + a * Fa[i] / Ca[i] + h01 * Tb[i] + b * Fb[i] / Cb[i]
+            row[i] = h00 * Ta[i] + a * sa[i] + h01 * Tb[i] + b * sb[i]
     nd = dirich_node.shape[0]
     for kk in range(nd):
         T_out[k, dirich_node[kk]] = sched_eval(s_off, stab, dirich_sched[kk], tk, 1.0)
@@ -1313,15 +1356,23 @@ def dirichlet_flows(qd_b, qd_state, H1, H0, F1, hs, dirich_node):
 def dense_output(k, k1, t, hs, land, t_target, t_out, Tprev, T, F0, C0, F1, Cap, q0, q1, hc0,
                  hr0, hcw, hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b, dirich_node,
                  dirich_sched, dirich_face, s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out,
-                 hr_out):
+                 hr_out, sa, sb):
     """Write the output rows k.. that fall in the step (t - hs, t] [s] (exact at the step
-    end, cubic Hermite inside: :func:`_write_row`); returns the next row to write."""
+    end, cubic Hermite inside: :func:`_write_row`); returns the next row to write.  sa, sb
+    [nun] are work arrays for the slopes F/C [K/s] at the step ends, computed once per step
+    when a row falls inside it."""
     t0s = t - hs
+    slopes = False
     while k < k1 and t_out[k] <= t + 1e-12 * (1.0 + abs(t)):
         th = (t_out[k] - t0s) / hs
         if th >= 1.0 - 1e-12 or land and t_out[k] >= t_target:
             th = 1.0
-        _write_row(k, th, hs, t_out[k], Tprev, T, F0, C0, F1, Cap, q0, q1, hc0, hr0,
+        if th != 1.0 and not slopes:
+            for i in range(T.shape[0]):
+                sa[i] = F0[i] / C0[i]
+                sb[i] = F1[i] / Cap[i]
+            slopes = True
+        _write_row(k, th, hs, t_out[k], Tprev, T, sa, sb, q0, q1, hc0, hr0,
                    hcw, hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b, dirich_node, dirich_sched,
                    dirich_face, s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out, hr_out)
         k += 1
@@ -1509,7 +1560,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
         k = dense_output(k, k1, t, hs, land, t_target, t_out, Tprev, T, F0, C0, F1, Cap, q0,
                          q1, hc0, hr0, hcw, hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b,
                          dirich_node, dirich_sched, dirich_face, s_off, stab, nf, T_out,
-                         qf_out, E_out, P_out, hc_out, hr_out)
+                         qf_out, E_out, P_out, hc_out, hr_out, R, dx)
         carry_step_end(qd_state, qd_b, acc_prev, acc)
         # resume state after every accepted step, so that a stop anywhere can be continued
         resume_save(ks, ibp, hprev, have_prev, reuse, after_jump, u_last)
