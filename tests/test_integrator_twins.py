@@ -369,3 +369,42 @@ def test_newton_stage_linear_end_satisfies_the_stage_equation(name):
     # the Newton matrix is left for the error filter: diag(Cap) - dh J at the last iterate
     Jd_full = full[8][0]
     assert np.allclose(M[0], Cap - dh * Jd_full, rtol=1e-5)
+
+
+# ------------------------------------------------------------------ the arrow solve
+@pytest.mark.parametrize("has_ch", [False, True])
+def test_arrow_solve_matches_a_dense_solve(has_ch):
+    # chains of 1 to 9 rows and a long one (the two-sided elimination meets in the middle of
+    # each: odd and even lengths, a chain of one row), diagonally dominant like a stage matrix
+    # diag(Cap) - dh J, with and without the chamber border; against numpy's dense LU solve
+    # (LAPACK gesv)
+    lengths = [1, 2, 3, 4, 5, 6, 7, 8, 9, 40]
+    N = sum(lengths)
+    first = np.cumsum([0] + lengths[:-1])
+    chains = np.zeros((len(lengths), 2), dtype=np.int64)
+    chains[:, L.CHAIN_FIRST] = first
+    chains[:, L.CHAIN_LAST] = first + np.array(lengths) - 1
+    n = N + int(has_ch)
+    for _ in range(20):
+        Ml, Mu = -RNG.uniform(0.1, 1.0, n), -RNG.uniform(0.1, 1.0, n)
+        Md = 2.2 + RNG.uniform(0.0, 3.0, n)
+        Mcol = -RNG.uniform(0.0, 0.3, n) if has_ch else np.zeros(n)
+        Mrow = -RNG.uniform(0.0, 0.3, n) if has_ch else np.zeros(n)
+        if has_ch:
+            Md[N] = 2.0 + np.sum(np.abs(Mrow[:N]))
+        A = np.zeros((n, n))
+        for a, b in chains:
+            for i in range(a, b + 1):
+                A[i, i] = Md[i]
+                if i > a:
+                    A[i, i - 1] = Ml[i]
+                if i < b:
+                    A[i, i + 1] = Mu[i]
+        if has_ch:
+            A[:N, N] = Mcol[:N]
+            A[N, :N] = Mrow[:N]
+            A[N, N] = Md[N]
+        rhs = RNG.normal(0.0, 10.0, n)
+        x, wc, wy, wz = (np.empty(n) for _ in range(4))
+        Kr.solve_arrow(Md, Ml, Mu, Mcol, Mrow, chains, N, has_ch, rhs, x, wc, wy, wz)
+        assert np.allclose(x, np.linalg.solve(A, rhs), rtol=0, atol=1e-13 * np.max(np.abs(x)))
