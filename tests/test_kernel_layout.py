@@ -162,3 +162,44 @@ def test_controller_codes(ctl, code):
     s = build_system(_slab(**ctl))
     assert s.ctl_i[L.CI_MODE] == code
     assert s.ctl_i[L.CI_HEATER_NODE] == 0
+
+
+# the kernels that keep numba's runtime (they allocate or return arrays); every other compiled
+# function of the time loop runs without it (fdwall/solver/kernels.py, "Reference counting")
+_WITH_RUNTIME = {"integrate", "steady", "resume_views"}
+_ALLOC = {"empty", "zeros", "ones", "full", "array", "empty_like", "zeros_like", "copy",
+          "concatenate", "arange", "linspace"}
+
+
+def _njit_options(fn):
+    """Keyword options of the function's @njit decorator, or None when it has none."""
+    import ast
+    for d in fn.decorator_list:
+        if isinstance(d, ast.Call) and getattr(d.func, "id", None) == "njit":
+            return {k.arg: ast.literal_eval(k.value) for k in d.keywords}
+    return None
+
+
+def test_loop_kernels_run_without_reference_counting_and_allocate_nothing():
+    import ast
+    tree = ast.parse((PKG / "solver" / "kernels.py").read_text())
+    seen = set()
+    for fn in [n for n in tree.body if isinstance(n, ast.FunctionDef)]:
+        opts = _njit_options(fn)
+        if opts is None or opts.get("inline") == "always":
+            continue                # inlined bodies belong to their caller
+        seen.add(fn.name)
+        if fn.name in _WITH_RUNTIME:
+            assert opts.get("_nrt", True), fn.name
+            continue
+        assert opts.get("_nrt") is False, f"{fn.name}: compile it with _nrt=False (or list it)"
+        # without the runtime a function may not allocate, nor hand out a view it made
+        for node in ast.walk(fn):
+            if isinstance(node, ast.Call) and isinstance(node.func, ast.Attribute):
+                assert node.func.attr not in _ALLOC, f"{fn.name} allocates ({node.func.attr})"
+            if isinstance(node, ast.Return) and node.value is not None:
+                vals = node.value.elts if isinstance(node.value, ast.Tuple) else [node.value]
+                for v in vals:
+                    assert not (isinstance(v, ast.Subscript)
+                                and isinstance(v.slice, ast.Slice)), f"{fn.name} returns a view"
+    assert _WITH_RUNTIME <= seen

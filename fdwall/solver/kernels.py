@@ -14,6 +14,15 @@ ch_f, ctl_i, ctl_f, the events, the ledger, the state and statistics vectors) ha
 :mod:`fdwall.solver.layout`, which documents them with their units; nothing indexes them by
 number.  :mod:`fdwall.system` builds them; :func:`fdwall.solver.layout.system_args` puts the
 system arrays in the kernels' argument order.
+
+Reference counting
+------------------
+The functions the time loop calls are compiled with ``_nrt=False`` (numba's runtime off):
+they allocate nothing and return no arrays, only fill the arrays they are given, so they need
+no reference counts, and without them a call does not pay an atomic increment and decrement
+per array argument (on small meshes that was over half of the loop's time).  A function that
+allocates or returns an array (``integrate``, ``steady``, ``resume_views``) keeps the runtime;
+``tests/test_kernel_layout.py`` checks the rule on the source.
 """
 from __future__ import annotations
 
@@ -284,7 +293,7 @@ def face_h(face_i, face_f, hpar, f, Ts, Tf, need_f):
     return h, dhs, dhf
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def assemble(T, t, left, u_ctl, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
              s_off, stab, ch_i, ch_f, ctl_i, ctl_f,
              F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc, hr, extra):
@@ -635,7 +644,7 @@ def _chain_solve(Md, Ml, Mu, Mcol, a, b, has_ch, rhs, wc, wy, wz):
                 wz[j] -= wc[j] * wz[j - 1]
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def solve_arrow(Md, Ml, Mu, Mcol, Mrow, chains, N, has_ch, rhs, x, wc, wy, wz):
     """Solve the arrow system (tridiagonal chains + chamber border) ``M x = rhs``.
 
@@ -727,7 +736,7 @@ def _apply_correction(T, dx, cap):
     return mx
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def _newton_stage(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
                   node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab,
                   ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc, hr, extra,
@@ -751,7 +760,7 @@ def _linear_end_allowed(dirich_node):
     return dirich_node.shape[0] == 0
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def _newton_iterate(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
                     node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab,
                     ch_i, ch_f, ctl_i, ctl_f, F, Cap, H, Jd, Jl, Ju, Jcol, Jrow, qf, hc, hr,
@@ -833,7 +842,7 @@ def _newton_iterate(T, Tguess, t, dh, Hbase, u_ctl, dirich_node, dirich_sched,
     return 0
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def read_between(Ta, Tb, w, mat, m_off, mtab):
     """Temperature [K] at a point between nodes a and b (at Ta, Tb [K]) of one material, and
     its sensitivities dT/dTa, dT/dTb [-].
@@ -872,7 +881,7 @@ def read_between(Ta, Tb, w, mat, m_off, mtab):
     return y, w * ka / k, (1.0 - w) * kb / k
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def _sensor(T, ctl_i, ctl_f, m_off, mtab):
     """The controller's sensor reading [K]: the read-out between its nodes (read_between)."""
     y, ga, gb = read_between(T[ctl_i[CI_SENSOR_A]], T[ctl_i[CI_SENSOR_B]], ctl_f[CF_SENSOR_W],
@@ -880,7 +889,7 @@ def _sensor(T, ctl_i, ctl_f, m_off, mtab):
     return y
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def _hermite_cross(ya0, ya1, da0, da1, yb0, yb1, db0, db1, w, mat, m_off, mtab, h, thr):
     """Fraction of the step where the read-out between nodes a and b crosses ``thr`` [K]
     (bisection, 2^-40 of the step).
@@ -919,7 +928,7 @@ def _hermite_cross(ya0, ya1, da0, da1, yb0, yb1, db0, db1, w, mat, m_off, mtab, 
     return 0.5 * (a + b)
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def _write_row(k, th, hs, tk, Ta, Tb, sa, sb, qa, qb, hca, hra, hcb, hrb, exa, exb,
                acc_a, acc_b, qd_a, qd_b, dirich_node, dirich_sched, dirich_face, s_off, stab, nf,
                T_out, qf_out, E_out, P_out, hc_out, hr_out):
@@ -964,7 +973,7 @@ def _write_row(k, th, hs, tk, Ta, Tb, sa, sb, qa, qb, hca, hra, hcb, hrb, exa, e
     P_out[k] = exb[EX_HEATER] if th == 1.0 else (1 - th) * exa[EX_HEATER] + th * exb[EX_HEATER]
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def controller(T, t, t_target, jump_target, cs, mode, period, ev_tol, ctl_i, ctl_f, s_off,
                stab, m_off, mtab):
     """The heater controller at the start of a step at time t [s]: samples the duty schedule
@@ -1027,7 +1036,7 @@ def controller(T, t, t_target, jump_target, cs, mode, period, ev_tol, ctl_i, ctl
     return u, t_target, jump_target
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def ledger(acc, hs, q0, qg, q1, F0, Fg, F1, H0, H1, ex0, exg, ex1, dirich_node, dirich_face):
     """Add one accepted step of length hs [s] to the cumulative energies ``acc`` [J] with the
     TR-BDF2 quadrature weights: face flows q [W] (a fixed-temperature face: the change of its
@@ -1044,7 +1053,7 @@ def ledger(acc, hs, q0, qg, q1, F0, Fg, F1, H0, H1, ex0, exg, ex1, dirich_node, 
     acc[nf + EX_LOSS] += hs * (W0 * (ex0[EX_LOSS] + exg[EX_LOSS]) + W2 * ex1[EX_LOSS])
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def events(ev_i, ev_f, ev_out, t, hs, T0, T1, F0, C0, F1, C1, m_off, mtab):
     """Record the first upward / downward crossing time [s] of each watched event within the
     step (t, t + hs]: the read-out between the event's nodes (:func:`read_between`, material
@@ -1066,7 +1075,7 @@ def events(ev_i, ev_f, ev_out, t, hs, T0, T1, F0, C0, F1, C1, m_off, mtab):
                 ev_out[e, col] = t + fr * hs
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def balance(acc, stats, H1, has_ext):
     """Energy ledger check after a step: heat in from outside (faces with ``has_ext``, the
     heater) minus the chamber loss, against the change of stored enthalpy H [J] since the
@@ -1093,7 +1102,7 @@ def balance(acc, stats, H1, has_ext):
         stats[ST_SCALE] = sc
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def error_norm(F0, Fg, F1, hs, dh, Cap, Jd, Jl, Ju, Jcol, Jrow, dirich_node, chains, N, has_ch,
                R, dx, wc, wy, wz, tol, held):
     """Local error of a TR-BDF2 step of hs [s] relative to ``tol`` [K] (accept when <= 1):
@@ -1121,7 +1130,7 @@ def error_norm(F0, Fg, F1, hs, dh, Cap, Jd, Jl, Ju, Jcol, Jrow, dirich_node, cha
     return err
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def thermostat_cut(T0, T1, u, t1, ctl_i, ctl_f, s_off, stab, ev_tol, m_off, mtab):
     """Fraction (0.05 .. 0.95) to shorten a step by when the thermostat's sensor passes its
     switching threshold (setpoint +- band/2 [K]) by more than ``ev_tol`` [K] between the
@@ -1170,7 +1179,7 @@ def resume_views(ks, nun, nf):
     return Tprev, F1, Cap, H1, q1, hcw, hrw, ex1
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def resume_load(ks, bp, t):
     """The scalars of the resume state ``ks`` at the start of a call at time t [s]; the first
     call of a run sets them (first breakpoint after t).  Returns (breakpoint index, previous
@@ -1192,7 +1201,7 @@ def resume_load(ks, bp, t):
             ks[KS_AFTER_JUMP] > 0.5, ks[KS_ULAST])
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def resume_save(ks, ibp, hprev, have_prev, reuse, after_jump, u_last):
     """Store the scalars of the resume state after an accepted step (see :func:`resume_load`)."""
     ks[KS_IBP] = ibp
@@ -1203,7 +1212,7 @@ def resume_save(ks, ibp, hprev, have_prev, reuse, after_jump, u_last):
     ks[KS_ULAST] = u_last
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def step_target(t_out, k, k1, land_outputs, bp, ibp):
     """Where the next step must end at the latest [s]: the next output (or the last one when
     outputs are interpolated), or the next breakpoint before it.  Returns (target [s],
@@ -1218,7 +1227,7 @@ def step_target(t_out, k, k1, land_outputs, bp, ibp):
     return t_target, jump_target, target_bp
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def heater_switched(u, cs, mode):
     """True when a switching controller changed the heater fraction u [-] since the last
     step (the step then restarts from the one that worked after the last switch)."""
@@ -1228,7 +1237,7 @@ def heater_switched(u, cs, mode):
     return switched
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def step_size(h, t, t_target, max_step, switched, restart, cs):
     """Size of the next step attempt [s] from the proposed step h [s] at time t [s]: no longer
     than the step that worked after the last heater switch (``switched``) or schedule jump
@@ -1253,7 +1262,7 @@ def step_size(h, t, t_target, max_step, switched, restart, cs):
     return hs, land
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def factor_rejected(err):
     """Step-size factor [-] after a step rejected with scaled error err [-] (> 1): the
     elementary controller 0.9 err^(-1/3) of a method with a third-order local error, at
@@ -1264,7 +1273,7 @@ def factor_rejected(err):
     return fac
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def factor_accepted(err):
     """Step-size factor [-] for the step after one accepted with scaled error err [-]
     (<= 1): 0.9 err^(-1/3), clipped to 0.2 .. 5."""
@@ -1276,7 +1285,7 @@ def factor_accepted(err):
     return fac
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def start_values(reuse, T, t, u, u_last, node_i, node_f, chains, face_i, face_f, hpar, m_off,
                  mtab, s_off, stab, ch_i, ch_f, ctl_i, ctl_f, F0, C0, H0, q0, ex0, F1, Cap, H1,
                  q1, ex1, Jd, Jl, Ju, Jcol, Jrow, hcw, hrw, hc0, hr0, stats):
@@ -1306,7 +1315,7 @@ def start_values(reuse, T, t, u, u_last, node_i, node_f, chains, face_i, face_f,
         hr0[f] = hrw[f]
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def trapezoid_guess(T, Tprev, hprev, have_prev, hs, dh, H0, F0, Hb, Tp):
     """First TR-BDF2 stage, the trapezoid rule over gamma*hs [s]: its known part
     Hb = H0 + dh F0 [J] (dh = gamma hs / 2 [s]) and the Newton start Tp [K], extrapolated
@@ -1321,7 +1330,7 @@ def trapezoid_guess(T, Tprev, hprev, have_prev, hs, dh, H0, F0, Hb, Tp):
             Tp[i] = T[i]
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def bdf2_guess(T, Tg, H0, Hg, Hb, Tp):
     """Second TR-BDF2 stage, BDF2 through t, t + gamma h and t + h: its known part
     Hb = A2 Hg - B2 H0 [J] and the Newton start Tp [K], extrapolated through the stage."""
@@ -1332,7 +1341,7 @@ def bdf2_guess(T, Tg, H0, Hg, Hb, Tp):
         Hb[i] = A2 * Hg[i] - B2 * H0[i]
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def stage_trapezoid(Tg, T, Tprev, hprev, have_prev, t, hs, dh, H0, F0, u, dirich_node,
                     dirich_sched, node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab,
                     s_off, stab, ch_i, ch_f, ctl_i, ctl_f, Fg, Cap, Hg, Jd, Jl, Ju, Jcol,
@@ -1347,7 +1356,7 @@ def stage_trapezoid(Tg, T, Tprev, hprev, have_prev, t, hs, dh, H0, F0, u, dirich
                            qg, hcw, hrw, exg, R, dx, wc, wy, wz, newton_tol, stats, True)
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def stage_bdf2(T1, T, Tg, t, hs, dh, H0, Hg, u, dirich_node, dirich_sched, node_i, node_f,
                chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f, ctl_i,
                ctl_f, F1, Cap, H1, Jd, Jl, Ju, Jcol, Jrow, q1, hcw, hrw, ex1, R, dx, wc, wy,
@@ -1363,7 +1372,7 @@ def stage_bdf2(T1, T, Tg, t, hs, dh, H0, Hg, u, dirich_node, dirich_sched, node_
                            hcw, hrw, ex1, R, dx, wc, wy, wz, newton_tol, stats, True)
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def thermostat_retry(mode, T, T1, u, t1, hs, hmin, ctl_i, ctl_f, s_off, stab, ev_tol, m_off,
                      mtab):
     """Shortened step [s] when a thermostat's sensor passed its threshold within the step by
@@ -1375,7 +1384,7 @@ def thermostat_retry(mode, T, T1, u, t1, hs, hmin, ctl_i, ctl_f, s_off, stab, ev
     return 0.0
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def stop_run(stats, acc, t, status):
     """End a call early with ``status`` (a STATUS_* code) at time t [s]."""
     stats[ST_STATUS] = status
@@ -1383,7 +1392,7 @@ def stop_run(stats, acc, t, status):
     acc[acc.shape[0] - 1] = t
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def stall_guard(stats, hs, t_end):
     """Count steps in a row far below the run's time scale (hs < 1e-9 t_end [s]); True when
     more than 20,000 such steps make no real progress (the run is stalled)."""
@@ -1396,7 +1405,7 @@ def stall_guard(stats, hs, t_end):
     return False
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def step_range(stats, hs):
     """Keep the smallest and largest accepted step [s] in ``stats``."""
     if hs < stats[ST_HMIN]:
@@ -1405,7 +1414,7 @@ def step_range(stats, hs):
         stats[ST_HMAX] = hs
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def accept_state(T, T1, Tprev):
     """The step is taken: Tprev gets the start state, T the end state T1 [K]."""
     for i in range(T.shape[0]):
@@ -1413,7 +1422,7 @@ def accept_state(T, T1, Tprev):
         T[i] = T1[i]
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def dirichlet_flows(qd_b, qd_state, H1, H0, F1, hs, dirich_node):
     """Heat flow [W] that holds each fixed-temperature face at the end of a step of hs [s]:
     the storage rate of its node (H1 - H0)/hs [W] minus the conduction F1 into it; the state
@@ -1425,7 +1434,7 @@ def dirichlet_flows(qd_b, qd_state, H1, H0, F1, hs, dirich_node):
             qd_state[kk] = qd_b[kk]
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def dense_output(k, k1, t, hs, land, t_target, t_out, Tprev, T, F0, C0, F1, Cap, q0, q1, hc0,
                  hr0, hcw, hrw, ex0, ex1, acc_prev, acc, qd_state, qd_b, dirich_node,
                  dirich_sched, dirich_face, s_off, stab, nf, T_out, qf_out, E_out, P_out, hc_out,
@@ -1452,7 +1461,7 @@ def dense_output(k, k1, t, hs, land, t_target, t_out, Tprev, T, F0, C0, F1, Cap,
     return k
 
 
-@njit(cache=True)
+@njit(cache=True, _nrt=False)
 def carry_step_end(qd_state, qd_b, acc_prev, acc):
     """After the outputs of a step: its end values (fixed-face flows [W], cumulative
     energies [J]) become the start values of the next."""
