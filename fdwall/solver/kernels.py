@@ -21,7 +21,8 @@ The functions the time loop calls are compiled with ``_nrt=False`` (numba's runt
 they allocate nothing and return no arrays, only fill the arrays they are given, so they need
 no reference counts, and without them a call does not pay an atomic increment and decrement
 per array argument (on small meshes that was over half of the loop's time).  A function that
-allocates or returns an array (``integrate``, ``steady``, ``resume_views``) keeps the runtime;
+allocates or returns an array (``integrate``, which allocates the work arrays and hands them
+to the loop :func:`_step_loop`, ``steady``, ``resume_views``) keeps the runtime;
 ``tests/test_kernel_layout.py`` checks the rule on the source.
 """
 from __future__ import annotations
@@ -1499,6 +1500,7 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     :func:`factor_accepted` (the step-size controller), :func:`thermostat_retry`,
     :func:`ledger`, :func:`events`, :func:`accept_state`, :func:`stall_guard`,
     :func:`balance`, :func:`dirichlet_flows`, :func:`dense_output` and the resume state.
+    This function allocates the work arrays; the loop itself is :func:`_step_loop`.
     """
     nun = T.shape[0]
     nf = face_i.shape[0]
@@ -1532,6 +1534,28 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     ex0 = np.zeros(2)
     exg = np.zeros(2)
     nd = dirich_node.shape[0]
+    acc_prev = acc.copy()
+    qd_b = np.zeros(nd)
+    has_ext = np.empty(nf, dtype=np.bool_)
+    return _step_loop(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_step,
+                      node_i, node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab,
+                      ch_i, ch_f, ctl_i, ctl_f, dirich_node, dirich_sched, dirich_face,
+                      qd_state, ev_i, ev_f, ev_out, T_out, qf_out, E_out, P_out, hc_out, hr_out,
+                      ks, max_steps, nun, nf, N, has_ch, F0, Fg, Tprev, F1, Cap, H1, q1, hcw,
+                      hrw, ex1, H0, Hg, Jd, Jl, Ju, Jcol, Jrow, R, dx, wc, wy, wz, Tg, T1, Tp,
+                      Hb, C0, q0, qg, hc0, hr0, ex0, exg, nd, acc_prev, qd_b, has_ext)
+
+
+@njit(cache=True, _nrt=False)
+def _step_loop(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_step, node_i,
+               node_f, chains, face_i, face_f, hpar, m_off, mtab, s_off, stab, ch_i, ch_f,
+               ctl_i, ctl_f, dirich_node, dirich_sched, dirich_face, qd_state, ev_i, ev_f,
+               ev_out, T_out, qf_out, E_out, P_out, hc_out, hr_out, ks, max_steps, nun, nf, N,
+               has_ch, F0, Fg, Tprev, F1, Cap, H1, q1, hcw, hrw, ex1, H0, Hg, Jd, Jl, Ju, Jcol,
+               Jrow, R, dx, wc, wy, wz, Tg, T1, Tp, Hb, C0, q0, qg, hc0, hr0, ex0, exg, nd,
+               acc_prev, qd_b, has_ext):
+    """The step loop of :func:`integrate` (same arguments, then its work arrays), compiled
+    without numba's runtime: it allocates nothing (see "Reference counting")."""
     mode = ctl_i[CI_MODE]
     period = ctl_f[CF_PERIOD]
     ev_tol = ctl_f[CF_EVENT_TOL]
@@ -1545,9 +1569,6 @@ def integrate(T, cs, acc, stats, t_out, k0, k1, land_outputs, bp, bpj, tol, max_
     ibp, hprev, have_prev, reuse, after_jump, u_last = resume_load(ks, bp, t)
     k = k0
     nsteps = 0
-    acc_prev = acc.copy()
-    qd_b = np.zeros(nd)
-    has_ext = np.empty(nf, dtype=np.bool_)
     for f in range(nf):
         has_ext[f] = not (face_i[f, FI_TO_CHAMBER] == 1 and has_ch)
     while k < k1:
