@@ -344,15 +344,24 @@ def test_newton_stage_linear_end_satisfies_the_stage_equation(name):
     full = _stage(sysm, False, T0, dh, tol)
     lin = _stage(sysm, True, T0, dh, tol)
     assert full[0] == 1
-    # the same iterations: the same temperatures, bit for bit
-    assert np.array_equal(full[1], lin[1])
     if len(sysm.dirich_node):
-        # fixed-temperature rows: assembled
+        # fixed-temperature rows: the same iterations, assembled at the end
         assert lin[0] == 1
-        for a, b in zip(full[2:8], lin[2:8]):
+        for a, b in zip(full[1:8], lin[1:8]):
             assert np.array_equal(a, b)
         return
     assert lin[0] == 2
+    # the same solution within the Newton tolerance (the carried end may stop one iteration
+    # earlier, when the contraction of the corrections says the error left is below it)
+    assert np.max(np.abs(full[1] - lin[1])) < 2 * tol
+    # the reference values: an assembly at the carried end's own solution
+    n, nf = sysm.n_unknowns, sysm.face_i.shape[0]
+    Fa, Ca, Ha = np.empty(n), np.empty(n), np.empty(n)
+    Ja = [np.empty(n) for _ in range(5)]
+    qa, hca, hra, exa = np.empty(nf), np.empty(nf), np.empty(nf), np.zeros(N_EX)
+    Kr.assemble(lin[1], 100.0, 1.0, -1.0, *system_args(sysm), Fa, Ca, Ha, *Ja, qa, hca, hra,
+                exa)
+    full = (full[0], lin[1], Fa, Ca, Ha, qa, hca, hra, Ja, full[9], exa)
     F, Cap, H, qf, hc, hr, M, Hbase = lin[2], lin[3], lin[4], lin[5], lin[6], lin[7], lin[8], \
         lin[9]
     scale = np.max(np.abs(H))
@@ -369,6 +378,7 @@ def test_newton_stage_linear_end_satisfies_the_stage_equation(name):
     # the Newton matrix is left for the error filter: diag(Cap) - dh J at the last iterate
     Jd_full = full[8][0]
     assert np.allclose(M[0], Cap - dh * Jd_full, rtol=1e-5)
+    assert np.allclose(Cap, Ca, rtol=1e-6)
 
 
 # ------------------------------------------------------------------ the arrow solve
