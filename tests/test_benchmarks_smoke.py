@@ -85,6 +85,10 @@ def step_reference():
     return M.step_references(quick=True)
 
 
+# scipy's BDF may warn from its own difference table (bdf.py: "invalid value encountered in
+# subtract") when a trial step of the fine reference is rejected on a cold start; the two
+# independent solutions are compared below, which is what the reference has to pass
+@pytest.mark.filterwarnings("ignore:invalid value encountered in subtract:RuntimeWarning")
 def test_step_references_agree_light_hot_face(step_reference):
     # the insulating-firebrick variant: the two independent solutions agree as well
     ref, info = M.step_references(quick=True, hot_face="light")
