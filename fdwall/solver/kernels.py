@@ -208,35 +208,10 @@ def mat_eval(m_off, mtab, m, T):
     """Material ``m`` at ``T`` [K]: k [W/m/K], K=int k dT [W/m], c=rho*cp [J/m3/K], H [J/m3].
 
     Piecewise-linear k and c between table knots (so K and H are exact piecewise quadratics),
-    held constant outside the table.
+    held constant outside the table (:func:`mat_eval_near` with no guess of the segment).
     """
-    a = m_off[m]
-    b = m_off[m + 1]
-    if T <= mtab[MT_T, a]:
-        k = mtab[MT_K, a]
-        c = mtab[MT_C, a]
-        d = T - mtab[MT_T, a]
-        return k, mtab[MT_KINT, a] + k * d, c, mtab[MT_H, a] + c * d
-    if T >= mtab[MT_T, b - 1]:
-        k = mtab[MT_K, b - 1]
-        c = mtab[MT_C, b - 1]
-        d = T - mtab[MT_T, b - 1]
-        return k, mtab[MT_KINT, b - 1] + k * d, c, mtab[MT_H, b - 1] + c * d
-    lo = a
-    hi = b - 1
-    while hi - lo > 1:
-        mid = (lo + hi) // 2
-        if mtab[MT_T, mid] <= T:
-            lo = mid
-        else:
-            hi = mid
-    d = T - mtab[MT_T, lo]
-    w = d / (mtab[MT_T, lo + 1] - mtab[MT_T, lo])
-    k0 = mtab[MT_K, lo]
-    c0 = mtab[MT_C, lo]
-    k = k0 + w * (mtab[MT_K, lo + 1] - k0)
-    c = c0 + w * (mtab[MT_C, lo + 1] - c0)
-    return k, mtab[MT_KINT, lo] + 0.5 * d * (k0 + k), c, mtab[MT_H, lo] + 0.5 * d * (c0 + c)
+    k, K, c, H, _ = mat_eval_near(m_off, mtab, m, T, -1)
+    return k, K, c, H
 
 
 @njit(cache=True, inline="always")
