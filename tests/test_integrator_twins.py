@@ -15,6 +15,8 @@ Sources
 """
 from __future__ import annotations
 
+from types import SimpleNamespace
+
 import kernel_twins as tw
 import numpy as np
 import pytest
@@ -402,18 +404,9 @@ def test_arrow_solve_matches_a_dense_solve(has_ch):
         Mrow = -RNG.uniform(0.0, 0.3, n) if has_ch else np.zeros(n)
         if has_ch:
             Md[N] = 2.0 + np.sum(np.abs(Mrow[:N]))
-        A = np.zeros((n, n))
-        for a, b in chains:
-            for i in range(a, b + 1):
-                A[i, i] = Md[i]
-                if i > a:
-                    A[i, i - 1] = Ml[i]
-                if i < b:
-                    A[i, i + 1] = Mu[i]
-        if has_ch:
-            A[:N, N] = Mcol[:N]
-            A[N, :N] = Mrow[:N]
-            A[N, N] = Md[N]
+        from test_jacobian_fd import _dense
+        arrow = SimpleNamespace(chains=chains, n_unknowns=n, n_nodes=N, has_chamber=has_ch)
+        A = _dense(arrow, (Md, Ml, Mu, Mcol, Mrow))
         rhs = RNG.normal(0.0, 10.0, n)
         x, wc, wy, wz = (np.empty(n) for _ in range(4))
         Kr.solve_arrow(Md, Ml, Mu, Mcol, Mrow, chains, N, has_ch, rhs, x, wc, wy, wz)

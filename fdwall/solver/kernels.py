@@ -559,9 +559,8 @@ def _chain_solve(Md, Ml, Mu, Mcol, a, b, has_ch, rhs, wc, wy, wz):
         wz[a] = Mcol[a] * ib
         wz[b] = Mcol[b] * jb
     nt = m - a          # rows a .. m-1 from the top
-    nb = b - m          # rows b .. m+1 from the bottom
-    n2 = min(nt, nb)
-    for s in range(1, n2):
+    nb = b - m          # rows b .. m+1 from the bottom (m rounds up: nb = nt or nt - 1)
+    for s in range(1, nb):
         i = a + s
         l = Ml[i]
         ib = 1.0 / (Md[i] - l * wc[i - 1])
@@ -575,22 +574,15 @@ def _chain_solve(Md, Ml, Mu, Mcol, a, b, has_ch, rhs, wc, wy, wz):
         if has_ch:
             wz[i] = (Mcol[i] - l * wz[i - 1]) * ib
             wz[j] = (Mcol[j] - u * wz[j + 1]) * jb
-    for s in range(max(n2, 1), nt):
-        i = a + s
+    if nt > nb and nb >= 1:
+        # the top side's one row more (row a + nb = m - 1; with nb = 0 it is row a, done)
+        i = m - 1
         l = Ml[i]
         ib = 1.0 / (Md[i] - l * wc[i - 1])
         wc[i] = Mu[i] * ib
         wy[i] = (rhs[i] - l * wy[i - 1]) * ib
         if has_ch:
             wz[i] = (Mcol[i] - l * wz[i - 1]) * ib
-    for s in range(max(n2, 1), nb):
-        j = b - s
-        u = Mu[j]
-        jb = 1.0 / (Md[j] - u * wc[j + 1])
-        wc[j] = Ml[j] * jb
-        wy[j] = (rhs[j] - u * wy[j + 1]) * jb
-        if has_ch:
-            wz[j] = (Mcol[j] - u * wz[j + 1]) * jb
     # the meeting row m, with x_(m-1) and x_(m+1) expressed through x_m
     l = Ml[m]
     piv = Md[m] - l * wc[m - 1]
@@ -607,12 +599,11 @@ def _chain_solve(Md, Ml, Mu, Mcol, a, b, has_ch, rhs, wc, wy, wz):
     wy[m] = r * ip
     if has_ch:
         wz[m] = rz * ip
-    for s in range(1, max(nt, nb) + 1):
-        if s <= nt:
-            i = m - s
-            wy[i] -= wc[i] * wy[i + 1]
-            if has_ch:
-                wz[i] -= wc[i] * wz[i + 1]
+    for s in range(1, nt + 1):
+        i = m - s
+        wy[i] -= wc[i] * wy[i + 1]
+        if has_ch:
+            wz[i] -= wc[i] * wz[i + 1]
         if s <= nb:
             j = m + s
             wy[j] -= wc[j] * wy[j - 1]
